@@ -1,0 +1,81 @@
+"""infoscope: how much information the columns of a table carry.
+
+The public names are imported lazily (PEP 562), so ``import infoscope`` stays fast
+and the widget stack is loaded only when a widget is asked for.
+"""
+from __future__ import annotations
+
+import importlib
+
+from infoscope._warnings import DataQualityWarning, InfoscopeWarning, SmallSampleWarning
+
+__version__ = "0.1.0"
+
+# public name -> module that defines it
+_PUBLIC = {
+    # estimators on counts / probability vectors (numpy + scipy only)
+    "entropy_from_counts": "infoscope.estimators.entropy",
+    "ENTROPY_ESTIMATORS": "infoscope.estimators.entropy",
+    "mutual_information_from_table": "infoscope.estimators.information",
+    "conditional_mutual_information_from_table": "infoscope.estimators.information",
+    "g_test_from_table": "infoscope.estimators.information",
+    "GTestResult": "infoscope.estimators.information",
+    "kl_divergence": "infoscope.estimators.divergence",
+    "js_divergence": "infoscope.estimators.divergence",
+    "cross_entropy": "infoscope.estimators.divergence",
+    "psi": "infoscope.estimators.divergence",
+    "differential_entropy": "infoscope.estimators.continuous",
+    "bootstrap_entropy_ci": "infoscope.estimators.resampling",
+    "bootstrap_mi_ci": "infoscope.estimators.resampling",
+    "permutation_test_mi": "infoscope.estimators.resampling",
+    # functional API on samples (labels unless bins= is given)
+    "entropy": "infoscope.measures",
+    "joint_entropy": "infoscope.measures",
+    "conditional_entropy": "infoscope.measures",
+    "mutual_information": "infoscope.measures",
+    "conditional_mutual_information": "infoscope.measures",
+    "normalized_mutual_information": "infoscope.measures",
+    "adjusted_mutual_information": "infoscope.measures",
+    "variation_of_information": "infoscope.measures",
+    "g_test": "infoscope.measures",
+    # encoding
+    "bin_edges": "infoscope.encode.binning",
+    "encode_column": "infoscope.encode.columns",
+    "EncodedColumn": "infoscope.encode.columns",
+    # engine
+    "PairEngine": "infoscope.engine.engine",
+    # frame level
+    "InfoProfileAccessor": "infoscope.frame.accessor",
+    # demo data
+    "datasets": "infoscope.datasets",
+}
+
+__all__ = sorted(
+    [*_PUBLIC, "InfoscopeWarning", "SmallSampleWarning", "DataQualityWarning", "__version__"]
+)
+
+
+def __getattr__(name: str):
+    module_name = _PUBLIC.get(name)
+    if module_name is None:
+        raise AttributeError(f"module 'infoscope' has no attribute {name!r}")
+    module = importlib.import_module(module_name)
+    value = module if module_name.endswith("." + name) or name == "datasets" else getattr(module, name)
+    globals()[name] = value
+    return value
+
+
+def __dir__():
+    return __all__
+
+
+def _register_accessor() -> None:
+    """Register ``DataFrame.info_profile`` if pandas is importable (cheap when it is)."""
+    try:
+        importlib.import_module("pandas")
+    except ImportError:  # pandas missing: the functional core still works
+        return
+    importlib.import_module("infoscope.frame.accessor")
+
+
+_register_accessor()

@@ -1,0 +1,1 @@
+"""Estimators: counts and samples -> numbers. Imports numpy and scipy only."""
