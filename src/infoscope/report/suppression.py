@@ -1,0 +1,157 @@
+"""Small-cell suppression for everything infoscope exports.
+
+A profile of personal data can expose rare values: a joint table that shows
+"3 people are in (zip 12345, age 97)" says something about those three people.
+Official statistics hide such cells before publishing a table (common practice:
+counts below a threshold, often 5 or 10, are replaced by a symbol). Hiding one cell
+is not enough when the row or column total is known, because the total minus the
+visible cells gives the hidden one back; the usual remedy (common practice, also
+from official statistics) is *complementary* suppression: hide further cells until
+no row or column holds exactly one hidden cell.
+
+What this module guarantees for a suppressed table (and what the tests check):
+
+- no count of a suppressed cell is in the output, and neither are the values that
+  would give it back through one division (expected count, pointwise MI, share);
+- no row or column has exactly one hidden cell, and the table as a whole does not
+  either, so totals minus the visible cells do not give one hidden count back;
+- row and column totals are not shipped for a table with hidden cells.
+
+What it does not guarantee: hidden counts may still be bounded (e.g. "between 1 and
+9", which the threshold itself says), and a determined attacker who combines several
+exported tables of the same data (for instance two pair views that share a column)
+with linear programming may narrow them further. For decisions about people, follow
+the disclosure policy and law that apply to the data.
+"""
+from __future__ import annotations
+
+import numbers
+
+import numpy as np
+
+__all__ = ["check_min_count", "suppression_mask", "SUPPRESSED_LABEL"]
+
+#: What an export shows in place of a hidden count (``"<10"`` for ``min_count=10``).
+SUPPRESSED_LABEL = "<{min_count}"
+
+
+def check_min_count(min_count) -> int | None:
+    """Validate the ``min_count`` option of the exports.
+
+    Parameters
+    ----------
+    min_count : int or None
+        Counts ``1 .. min_count - 1`` are hidden; ``None`` (or 0, 1) hides nothing.
+
+    Returns
+    -------
+    int or None
+        The threshold, or ``None`` when nothing is to be hidden.
+
+    References
+    ----------
+    Hiding counts below a threshold (often 5 or 10) before publishing a table is
+    common practice in official statistics.
+
+    Examples
+    --------
+    >>> check_min_count(10)
+    10
+    >>> check_min_count(None) is None
+    True
+    """
+    if min_count is None:
+        return None
+    if isinstance(min_count, bool) or not isinstance(min_count, numbers.Integral):
+        raise TypeError(f"min_count must be a whole number or None, got {min_count!r}")
+    if min_count < 0:
+        raise ValueError(f"min_count must be >= 0, got {min_count}")
+    return int(min_count) if min_count > 1 else None
+
+
+def suppression_mask(counts, min_count) -> np.ndarray:
+    """Which cells of a count table an export must hide.
+
+    Primary cells are the counts with ``0 < count < min_count``. Complementary
+    cells are then added, smallest first, until no row and no column holds exactly
+    one hidden cell and the whole table does not hold exactly one (so that a total
+    minus the visible cells never yields a hidden count).
+
+    Parameters
+    ----------
+    counts : array_like of int, shape (r, c) or (k,)
+        Non-negative counts. A 1-D vector is treated as a single row.
+    min_count : int or None
+        The threshold (see :func:`check_min_count`).
+
+    Returns
+    -------
+    numpy.ndarray of bool, same shape as ``counts``
+        ``True`` where the cell must be hidden.
+
+    References
+    ----------
+    Threshold rules with complementary (secondary) suppression are common practice
+    in official statistics for tables of counts.
+
+    Examples
+    --------
+    >>> suppression_mask([[50, 3], [40, 60]], 10).astype(int).tolist()
+    [[1, 1], [1, 1]]
+    >>> bool(suppression_mask([[50, 30], [40, 60]], 10).any())
+    False
+    """
+    threshold = check_min_count(min_count)
+    table = np.asarray(counts)
+    if table.dtype.kind not in "iuf":
+        raise TypeError(f"counts must be numeric, got dtype {table.dtype}")
+    shape = table.shape
+    grid = np.atleast_2d(table).astype(np.float64)
+    if grid.ndim != 2:
+        raise ValueError(f"counts must be 1-D or 2-D, got shape {shape}")
+    if threshold is None or grid.size == 0:
+        return np.zeros(shape, dtype=bool)
+    mask = (grid > 0) & (grid < threshold)
+    if not mask.any():
+        return mask.reshape(shape)
+
+    def complement(line_mask: np.ndarray, values: np.ndarray) -> int | None:
+        # Hide the smallest visible cell of the line: least information lost.
+        # Positive cells first: hiding a zero protects as well, but a reader who
+        # knows structural zeros could undo it.
+        candidates = np.flatnonzero(~line_mask)
+        if candidates.size == 0:
+            return None
+        positive = candidates[values[candidates] > 0]
+        pool = positive if positive.size else candidates
+        return int(pool[np.argmin(values[pool])])
+
+    changed = True
+    while changed:
+        changed = False
+        for i in range(grid.shape[0]):
+            if mask[i].sum() == 1:
+                j = complement(mask[i], grid[i])
+                if j is not None:
+                    mask[i, j] = True
+                    changed = True
+        for j in range(grid.shape[1] if table.ndim == 2 else 0):
+            # a 1-D vector has no column totals to protect against
+            if mask[:, j].sum() == 1:
+                i = complement(mask[:, j], grid[:, j])
+                if i is not None:
+                    mask[i, j] = True
+                    changed = True
+        if mask.sum() == 1:
+            flat = mask.ravel()
+            k = complement(flat, grid.ravel())
+            if k is not None:
+                flat[k] = True
+                mask = flat.reshape(grid.shape)
+                changed = True
+    return mask.reshape(shape)
+
+
+def suppressed_label(min_count: int) -> str:
+    """The text an export shows in place of a hidden count, e.g. ``"<10"``."""
+    return SUPPRESSED_LABEL.format(min_count=int(min_count))
