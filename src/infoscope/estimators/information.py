@@ -699,8 +699,9 @@ def g_test_from_tables(tables) -> GTestResult:
         ratio = np.divide(stack, expected, out=np.ones_like(stack), where=stack > 0)
         g = 2.0 * np.sum(special.xlogy(stack, ratio), axis=(1, 2))
         stat[index] = np.maximum(g, 0.0)  # 2 N times a KL divergence: >= 0 up to rounding
-        d = (np.count_nonzero(rows, axis=1) - 1) * (np.count_nonzero(cols, axis=1) - 1)
-        dof[index] = np.maximum(d, 0)
+        d_rows = np.maximum(np.count_nonzero(rows, axis=1) - 1, 0)
+        d_cols = np.maximum(np.count_nonzero(cols, axis=1) - 1, 0)
+        dof[index] = d_rows * d_cols
     totals = np.array([t.sum() for t in checked]) if m else np.zeros(0)
     with np.errstate(invalid="ignore"):
         p = np.where(dof > 0, stats.chi2.sf(stat, np.maximum(dof, 1)), 1.0)
