@@ -13,11 +13,15 @@ What this module guarantees for a suppressed table (and what the tests check):
 
 - no count of a suppressed cell is in the output, and neither are the values that
   would give it back through one division (expected count, pointwise MI, share);
-- no row or column has exactly one hidden cell, and the table as a whole does not
-  either, so totals minus the visible cells do not give one hidden count back;
+- no row or column has exactly one hidden cell, and no hidden cell is pinned down
+  by the row and column totals together (every hidden cell lies on a cycle of hidden
+  cells, see ``_close_bridges``), so totals minus visible cells give no count back;
 - row and column totals are not shipped for a table with hidden cells.
 
-What it does not guarantee: hidden counts may still be bounded (e.g. "between 1 and
+What it does not guarantee: the pair's mutual information, G statistic and p-value
+are computed from the full table and are shipped; together with the totals they are
+one more equation on the hidden counts and may narrow them to a few candidates.
+Hidden counts may also be bounded (e.g. "between 1 and
 9", which the threshold itself says), and a determined attacker who combines several
 exported tables of the same data (for instance two pair views that share a column)
 with linear programming may narrow them further. For decisions about people, follow
@@ -74,8 +78,8 @@ def suppression_mask(counts, min_count) -> np.ndarray:
 
     Primary cells are the counts with ``0 < count < min_count``. Complementary
     cells are then added, smallest first, until no row and no column holds exactly
-    one hidden cell and the whole table does not hold exactly one (so that a total
-    minus the visible cells never yields a hidden count).
+    one hidden cell and no hidden cell is determined by the row and column totals
+    together (so that totals minus the visible cells never yield a hidden count).
 
     Parameters
     ----------
@@ -135,21 +139,65 @@ def suppression_mask(counts, min_count) -> np.ndarray:
                 if j is not None:
                     mask[i, j] = True
                     changed = True
-        for j in range(grid.shape[1] if table.ndim == 2 else 0):
-            # a 1-D vector has no column totals to protect against
+        if table.ndim == 1:
+            # a vector has one known total: two hidden cells are enough
+            continue
+        for j in range(grid.shape[1]):
             if mask[:, j].sum() == 1:
                 i = complement(mask[:, j], grid[:, j])
                 if i is not None:
                     mask[i, j] = True
                     changed = True
-        if mask.sum() == 1:
-            flat = mask.ravel()
-            k = complement(flat, grid.ravel())
-            if k is not None:
-                flat[k] = True
-                mask = flat.reshape(grid.shape)
-                changed = True
+        if not changed:
+            changed = _close_bridges(mask, grid)
     return mask.reshape(shape)
+
+
+def _hidden_graph_component(mask: np.ndarray, start: tuple[str, int], skip: tuple[int, int]) -> set:
+    """Rows ("r", i) and columns ("c", j) joined to ``start`` by hidden cells, without ``skip``."""
+    seen = {start}
+    todo = [start]
+    while todo:
+        side, k = todo.pop()
+        if side == "r":
+            nxt = [("c", j) for j in np.flatnonzero(mask[k]) if (k, j) != skip]
+        else:
+            nxt = [("r", i) for i in np.flatnonzero(mask[:, k]) if (i, k) != skip]
+        for node in nxt:
+            if node not in seen:
+                seen.add(node)
+                todo.append(node)
+    return seen
+
+
+def _close_bridges(mask: np.ndarray, grid: np.ndarray) -> bool:
+    """Hide one more cell for the first hidden cell that row and column totals pin down.
+
+    See the hidden cells as edges between their row and their column. With all
+    totals known, a hidden cell's count is determined exactly when its edge is on no
+    cycle (a bridge); on a cycle, adding and subtracting alternately around it keeps
+    every total, so the count stays unknown. For a bridge, hide the smallest visible
+    cell that joins its two sides, which puts it on a cycle. Returns True if a cell
+    was added.
+    """
+    for i, j in zip(*np.nonzero(mask)):
+        side_a = _hidden_graph_component(mask, ("r", int(i)), (int(i), int(j)))
+        if ("c", int(j)) in side_a:
+            continue  # on a cycle
+        side_b = _hidden_graph_component(mask, ("c", int(j)), (int(i), int(j)))
+        rows_a = [k for s, k in side_a if s == "r"]
+        cols_a = [k for s, k in side_a if s == "c"]
+        rows_b = [k for s, k in side_b if s == "r"]
+        cols_b = [k for s, k in side_b if s == "c"]
+        pool = [(r, c) for r in rows_a for c in cols_b] + [(r, c) for r in rows_b for c in cols_a]
+        pool = [cell for cell in pool if not mask[cell]]
+        if not pool:
+            continue
+        positive = [cell for cell in pool if grid[cell] > 0]
+        best = min(positive or pool, key=lambda cell: grid[cell])
+        mask[best] = True
+        return True
+    return False
 
 
 def suppressed_label(min_count: int) -> str:

@@ -1,0 +1,324 @@
+"""Static outputs: Vega-Lite charts, the SVG picture and small-cell suppression.
+
+The result tables fed to the views here are computed in the test from scikit-learn's
+bundled wine data (Forina et al.; ``sklearn.datasets.load_wine``) with reference
+libraries (``scipy.stats.entropy``, ``sklearn.metrics.mutual_info_score``,
+``pandas.crosstab``), independently of infoscope's own estimators, so a check that
+"the chart shows the table" compares against numbers from outside the project.
+"""
+from __future__ import annotations
+
+import json
+import time
+import xml.etree.ElementTree as ET
+
+import numpy as np
+import pandas as pd
+import pytest
+from hypothesis import given
+from hypothesis import strategies as st
+from hypothesis.extra.numpy import arrays
+from scipy.stats import entropy as scipy_entropy
+from sklearn.datasets import load_wine
+from sklearn.metrics import mutual_info_score
+
+from infoscope.report import charts, picture
+from infoscope.report import _records as rec
+from infoscope.report.suppression import check_min_count, suppression_mask
+
+HOSTILE = ["<img src=x onerror=alert(1)>", "a.b[0]", 'say "hi"', "it's", "x&y", "ctrl\x01char"]
+SVG_NS = "{http://www.w3.org/2000/svg}"
+
+
+@pytest.fixture(scope="module")
+def wine_codes():
+    """Wine columns cut into 4 quantile bins, renamed so some names are hostile."""
+    frame = load_wine(as_frame=True).frame
+    picked = ["alcohol", "malic_acid", "color_intensity", "proline", "hue", "target"]
+    codes = {}
+    for name in picked[:-1]:
+        codes[name] = pd.qcut(frame[name], 4, labels=False, duplicates="drop").to_numpy()
+    codes["target"] = frame["target"].to_numpy()
+    renamed = dict(zip(picked, [HOSTILE[0], HOSTILE[1], HOSTILE[2], "proline", "hue", "target"]))
+    return {renamed[k]: v for k, v in codes.items()}
+
+
+def _entropy_table(codes: dict) -> pd.DataFrame:
+    rows = []
+    for name, c in codes.items():
+        counts = np.bincount(c)
+        h = scipy_entropy(counts, base=2)  # scipy.stats.entropy, plug-in, bits
+        rows.append({"column": name, "kind": "numeric", "k": len(counts), "n": len(c), "missing": 0,
+                     "missing_share": 0.0, "entropy": h, "ci_low": h * 0.97, "ci_high": h * 1.02,
+                     "max_entropy": np.log2(len(counts)), "efficiency": h / np.log2(len(counts)),
+                     "effective_categories": 2 ** h, "flags": ""})
+    table = pd.DataFrame(rows)
+    table.attrs.update(unit="bits", estimator="plugin", sampled=None)
+    return table
+
+
+def _matrix(codes: dict) -> pd.DataFrame:
+    names = list(codes)
+    m = pd.DataFrame(np.nan, index=names, columns=names)
+    for a in names:
+        for b in names:
+            # sklearn.metrics.mutual_info_score is in nats
+            m.loc[a, b] = mutual_info_score(codes[a], codes[b]) / np.log(2)
+    m.attrs.update(unit="bits", measure="mi", estimator="plugin", sampled=None)
+    return m
+
+
+class _Pair:
+    """The PairTable shape of DEVELOPERS.md, from pandas.crosstab."""
+
+    def __init__(self, x, y, a, b):
+        self.a, self.b = a, b
+        self.counts = pd.crosstab(pd.Series(x, name=a), pd.Series(y, name=b))
+        self.counts.index = [f"bin {i}" for i in self.counts.index]
+        self.counts.columns = [f"class {j}" for j in self.counts.columns]
+        n = self.counts.to_numpy().sum()
+        r = self.counts.sum(axis=1).to_numpy()[:, None]
+        c = self.counts.sum(axis=0).to_numpy()[None, :]
+        self.expected = pd.DataFrame(r * c / n, index=self.counts.index, columns=self.counts.columns)
+        with np.errstate(divide="ignore"):
+            self.pmi = np.log2(self.counts / self.expected)
+        self.n = int(n)
+        self.mi = mutual_info_score(x, y) / np.log(2)
+        self.nmi = 0.5
+
+
+def _svg_texts(svg: str) -> list[str]:
+    root = ET.fromstring(svg)  # also proves the SVG is well-formed XML
+    return ["".join(t.itertext()) for t in root.iter(f"{SVG_NS}text")]
+
+
+# ----------------------------------------------------------------- suppression
+def test_check_min_count_rejects_bad_values():
+    assert check_min_count(None) is None and check_min_count(1) is None and check_min_count(10) == 10
+    with pytest.raises(TypeError, match="min_count"):
+        check_min_count(2.5)
+    with pytest.raises(TypeError, match="min_count"):
+        check_min_count(True)
+    with pytest.raises(ValueError, match="min_count"):
+        check_min_count(-3)
+
+
+def _pinned_down(mask: np.ndarray, table: np.ndarray) -> list[tuple[int, int]]:
+    """Hidden cells whose count follows from the visible cells and the row/column totals.
+
+    Independent check by linear algebra (not the module's graph argument): a hidden
+    cell is determined by the totals exactly when its unit vector lies in the row
+    space of the margin equations restricted to the hidden cells.
+    """
+    cells = list(zip(*np.nonzero(mask)))
+    if not cells:
+        return []
+    r, c = table.shape
+    eq = np.zeros((r + c, len(cells)))
+    for k, (i, j) in enumerate(cells):
+        eq[i, k] = 1
+        eq[r + j, k] = 1
+    rank = np.linalg.matrix_rank(eq)
+    pinned = []
+    for k, cell in enumerate(cells):
+        unit = np.zeros(len(cells))
+        unit[k] = 1
+        if np.linalg.matrix_rank(np.vstack([eq, unit])) == rank:
+            pinned.append(cell)
+    return pinned
+
+
+@given(arrays(np.int64, st.tuples(st.integers(2, 6), st.integers(2, 6)), elements=st.integers(0, 40)),
+       st.integers(2, 15))
+def test_suppression_hides_small_cells_and_nothing_is_pinned_down(table, threshold):
+    mask = suppression_mask(table, threshold)
+    primary = (table > 0) & (table < threshold)
+    assert mask[primary].all(), "every count 1..threshold-1 is hidden (common practice)"
+    for line in [*mask, *mask.T]:
+        assert line.sum() != 1, "no row or column may hold exactly one hidden cell"
+    assert _pinned_down(mask, table) == []
+
+
+def test_suppression_of_a_vector_hides_at_least_two_cells():
+    mask = suppression_mask(np.array([50, 3, 40, 60]), 10)
+    assert mask.tolist() == [False, True, True, False]  # 3 and the smallest other, 40
+
+
+def test_suppression_off_hides_nothing():
+    table = np.array([[1, 2], [3, 4]])
+    assert not suppression_mask(table, None).any()
+    assert not suppression_mask(table, 1).any()
+
+
+def test_suppression_closes_a_bridge_between_two_hidden_blocks():
+    # Two 2x2 blocks of small counts joined by one more small cell: the degree rule
+    # alone would leave the joining cell pinned down by the totals.
+    table = np.array([
+        [3, 4, 90, 90, 90],
+        [5, 6, 2, 90, 90],
+        [90, 90, 7, 8, 90],
+        [90, 90, 9, 3, 90],
+        [90, 90, 90, 90, 90],
+    ])
+    mask = suppression_mask(table, 10)
+    assert _pinned_down(mask, table) == []
+
+
+def test_pair_records_ship_no_hidden_count(wine_codes):
+    pair = _Pair(wine_codes["hue"], wine_codes["target"], "hue", "target")
+    raw = pair.counts.to_numpy()
+    assert ((raw > 0) & (raw < 10)).any(), "the wine crosstab has small cells to hide"
+    out = rec.pair_records(pair, min_count=10)
+    hidden = [c for c in out["cells"] if c["hidden"]]
+    assert len(hidden) == out["hidden_cells"] >= 2
+    for cell in hidden:
+        assert cell["count"] is None and cell["expected"] is None and cell["pmi"] is None
+        assert cell["shown"] == "<10"
+    assert "row_totals" not in out and "col_totals" not in out
+    visible = {(c["row"], c["col"]): c["count"] for c in out["cells"] if not c["hidden"]}
+    for (i, row) in enumerate(pair.counts.index):
+        for (j, col) in enumerate(pair.counts.columns):
+            if (row, col) in visible:
+                assert visible[(row, col)] == raw[i, j]  # pandas.crosstab count
+
+
+def test_pair_records_without_threshold_keep_totals(wine_codes):
+    pair = _Pair(wine_codes["hue"], wine_codes["target"], "hue", "target")
+    out = rec.pair_records(pair)
+    assert out["hidden_cells"] == 0
+    assert out["row_totals"] == pair.counts.sum(axis=1).tolist()
+
+
+def test_entropy_records_hide_small_missing_counts(wine_codes):
+    table = _entropy_table(wine_codes)
+    table.loc[0, ["missing", "missing_share"]] = [3, 3 / 178]
+    table.loc[1, ["missing", "missing_share"]] = [40, 40 / 178]
+    out = rec.entropy_records(table, min_count=10)
+    assert out[0]["missing"] == "<10" and out[0]["missing_share"] is None
+    assert out[1]["missing"] == 40
+
+
+# ----------------------------------------------------------------- charts
+def test_entropy_chart_shows_the_table(wine_codes):
+    table = _entropy_table(wine_codes)
+    spec = charts.entropy_chart(table).to_dict()
+    values = spec["data"]["values"] if "data" in spec else spec["layer"][0]["data"]["values"]
+    by_name = {v["column"]: v["entropy"] for v in values}
+    for name, c in wine_codes.items():
+        assert by_name[name] == pytest.approx(scipy_entropy(np.bincount(c), base=2))
+
+
+def _fields(spec) -> set[str]:
+    found = set()
+
+    def walk(node):
+        if isinstance(node, dict):
+            for key, value in node.items():
+                if key == "field" and isinstance(value, str):
+                    found.add(value)
+                elif key != "values":
+                    walk(value)
+        elif isinstance(node, list):
+            for item in node:
+                walk(item)
+
+    walk(spec)
+    return found
+
+
+def test_chart_fields_are_fixed_and_names_render_as_text(wine_codes):
+    table = _entropy_table(wine_codes)
+    chart = charts.entropy_chart(table)
+    fields = _fields(chart.to_dict())
+    assert fields and not fields & set(HOSTILE)
+    assert all("." not in f and "[" not in f for f in fields)
+    svg = charts.chart_to_svg(chart)
+    texts = _svg_texts(svg)
+    assert HOSTILE[0] in texts  # the name is text in the picture ...
+    assert ET.fromstring(svg).find(f".//{SVG_NS}img") is None  # ... and never markup
+    assert "<img" not in svg
+
+
+def test_grid_chart_values_match_sklearn(wine_codes):
+    m = _matrix(wine_codes)
+    spec = charts.grid_chart(m).to_dict()
+    names = list(wine_codes)
+    assert spec["encoding"]["x"]["sort"] == names
+    got = {(v["a"], v["b"]): v["value"] for v in spec["data"]["values"]}
+    a, b = names[0], names[-1]
+    # sklearn.metrics.mutual_info_score (nats) / ln 2
+    assert got[(a, b)] == pytest.approx(mutual_info_score(wine_codes[a], wine_codes[b]) / np.log(2))
+    assert (a, a) not in got
+    assert charts.chart_to_svg(spec).startswith("<svg")
+
+
+def test_pair_chart_suppression_reaches_the_rendered_picture(wine_codes):
+    pair = _Pair(wine_codes["hue"], wine_codes["target"], "hue", "target")
+    chart = charts.pair_chart(pair, min_count=10)
+    spec = chart.to_dict()
+    assert any("hidden" in s for s in spec["title"]["subtitle"])
+    texts = _svg_texts(charts.chart_to_svg(chart))
+    assert "<10" in texts
+    mask = suppression_mask(pair.counts.to_numpy(), 10)
+    shown_counts = {t for t in texts if t.isdigit()}
+    visible = {str(v) for v in pair.counts.to_numpy()[~mask]}
+    hidden_only = {str(v) for v in pair.counts.to_numpy()[mask]} - visible
+    assert not shown_counts & hidden_only
+
+
+def test_relevance_and_drift_charts_render(wine_codes):
+    names = [n for n in wine_codes if n != "target"]
+    mi = [mutual_info_score(wine_codes[n], wine_codes["target"]) / np.log(2) for n in names]
+    h_target = scipy_entropy(np.bincount(wine_codes["target"]), base=2)
+    rel = pd.DataFrame({"column": names, "k": 4, "n": 178, "mi": mi, "ci_low": np.array(mi) * 0.9,
+                        "ci_high": np.array(mi) * 1.1, "nmi": 0.0, "p_value": 0.01, "q_value": 0.01,
+                        "share_of_target": np.array(mi) / h_target,
+                        "leakage": np.array(mi) / h_target >= 0.95, "sparse": False})
+    rel.attrs.update(unit="bits")
+    assert "<svg" in charts.chart_to_svg(charts.relevance_chart(rel, target="target"))
+    drift = pd.DataFrame({"column": names[:2], "kind": "numeric", "k": 4, "n": 100, "n_reference": 78,
+                          "psi": [0.05, 0.4], "kl": 0.1, "js": 0.05, "p_value": 0.2, "flag": ["stable", "major"]})
+    png = charts.chart_to_png(charts.drift_chart(drift))
+    assert png[:4] == b"\x89PNG"
+
+
+def test_charts_refuse_a_table_that_is_not_a_result_table():
+    with pytest.raises(ValueError, match="entropy table lacks"):
+        charts.entropy_chart(pd.DataFrame({"column": ["x"]}))
+    with pytest.raises(TypeError, match="DataFrame"):
+        charts.grid_chart([[1, 2], [3, 4]])
+
+
+# ----------------------------------------------------------------- picture
+def test_picture_escapes_names_and_is_well_formed(wine_codes):
+    svg = picture.profile_svg_from_tables(_entropy_table(wine_codes), _matrix(wine_codes))
+    texts = _svg_texts(svg)
+    assert any(HOSTILE[0][:20] in t for t in texts)
+    assert "<img" not in svg and "ctrl\x01" not in svg
+    titles = ["".join(t.itertext()) for t in ET.fromstring(svg).iter(f"{SVG_NS}title")]
+    assert any(t.startswith('say "hi"') for t in titles)
+
+
+def test_picture_bar_lengths_follow_the_entropies(wine_codes):
+    table = _entropy_table(wine_codes)
+    svg = picture.profile_svg_from_tables(table)
+    root = ET.fromstring(svg)
+    filled = [r for r in root.iter(f"{SVG_NS}rect") if r.get("fill") == charts.PALETTE["bar"]]
+    widths = sorted(float(r.get("width")) for r in filled)
+    expected = sorted(table["entropy"])
+    ratio = [w / e for w, e in zip(widths, expected)]
+    assert ratio == pytest.approx([ratio[0]] * len(ratio), rel=0.02)
+
+
+def test_picture_refuses_bad_max_columns(wine_codes):
+    with pytest.raises(ValueError, match="max_columns"):
+        picture.profile_svg_from_tables(_entropy_table(wine_codes), max_columns=0)
+
+
+def test_svg_data_uri_round_trips():
+    import base64
+
+    svg = '<svg xmlns="http://www.w3.org/2000/svg"><text>&lt;x&gt;</text></svg>'
+    uri = picture.svg_data_uri(svg)
+    assert uri.startswith("data:image/svg+xml;base64,")
+    assert base64.b64decode(uri.split(",", 1)[1]).decode() == svg
