@@ -189,15 +189,6 @@ def test_pair_records_without_threshold_keep_totals(wine_codes):
     assert out["row_totals"] == pair.counts.sum(axis=1).tolist()
 
 
-def test_entropy_records_hide_small_missing_counts(wine_codes):
-    table = _entropy_table(wine_codes)
-    table.loc[0, ["missing", "missing_share"]] = [3, 3 / 178]
-    table.loc[1, ["missing", "missing_share"]] = [40, 40 / 178]
-    out = rec.entropy_records(table, min_count=10)
-    assert out[0]["missing"] == "<10" and out[0]["missing_share"] is None
-    assert out[1]["missing"] == 40
-
-
 # ----------------------------------------------------------------- charts
 def test_entropy_chart_shows_the_table(wine_codes):
     table = _entropy_table(wine_codes)

@@ -61,11 +61,12 @@ ENTROPY_FIELDS = ("column", "kind", "k", "n", "missing", "entropy", "ci_low", "c
 def entropy_records(table: pd.DataFrame, *, min_count=None) -> list[dict]:
     """One record per column of an ``entropy()`` table.
 
-    Under suppression a missing count in ``1 .. min_count - 1`` is replaced by the
-    label (``"<10"``) and its share is dropped, since share x n gives it back.
+    ``min_count`` is accepted for symmetry: these are column totals (rows used,
+    rows missing), not cells of a joint table, and the number of rows used gives the
+    missing count back anyway, so nothing is hidden here.
     """
     _require(table, ENTROPY_FIELDS, "the entropy table")
-    threshold = check_min_count(min_count)
+    check_min_count(min_count)
     out = []
     for row in table.itertuples(index=False):
         rec = {f: clean(getattr(row, f)) for f in ENTROPY_FIELDS}
@@ -74,10 +75,6 @@ def entropy_records(table: pd.DataFrame, *, min_count=None) -> list[dict]:
         share = getattr(row, "missing_share", None)
         rec["missing_share"] = clean(share)
         rec["effective_categories"] = clean(getattr(row, "effective_categories", None))
-        missing = rec["missing"]
-        if threshold is not None and missing is not None and 0 < missing < threshold:
-            rec["missing"] = suppressed_label(threshold)
-            rec["missing_share"] = None
         out.append(rec)
     return out
 

@@ -52,7 +52,7 @@ def entropy_chart(table: pd.DataFrame, *, min_count=None, width: int = 360) -> a
     table : pandas.DataFrame
         The result of ``ProfileSession.entropy()`` (see DEVELOPERS.md, result tables).
     min_count : int, optional
-        Hide missing counts below this threshold in the chart data.
+        Accepted for symmetry with the other exports (the bars show no cell counts).
     width : int, default=360
         Width of the plot area in pixels.
 
@@ -87,7 +87,7 @@ def entropy_chart(table: pd.DataFrame, *, min_count=None, width: int = 360) -> a
         alt.Tooltip("kind:N", title="kind"),
         alt.Tooltip("k:Q", title="categories"),
         alt.Tooltip("n:Q", title="rows used"),
-        alt.Tooltip("missing:N", title="missing"),
+        alt.Tooltip("missing:Q", title="missing"),
         alt.Tooltip("entropy:Q", title=f"entropy ({unit})", format=".3f"),
         alt.Tooltip("ci_low:Q", title="CI low", format=".3f"),
         alt.Tooltip("ci_high:Q", title="CI high", format=".3f"),
@@ -342,7 +342,7 @@ def profile_charts(session, *, reference=None, pair: tuple[str, str] | None = No
         The pair shown in the pair view (default: the pair with the largest value
         of the current measure).
     min_count : int, optional
-        Small-cell threshold applied to the pair view and the missing counts.
+        Small-cell threshold applied to the pair view (see :mod:`infoscope.report.suppression`).
 
     Returns
     -------
