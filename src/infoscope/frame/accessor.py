@@ -1,12 +1,366 @@
-"""``DataFrame.info_profile``: the pandas accessor (being built; see DEVELOPERS.md, contracts)."""
+"""``DataFrame.info_profile``: the pandas accessor.
+
+A thin layer: every method builds (or reuses) a :class:`ProfileSession` and calls
+the method of the same name.  Sessions are reused by the *content* of the frame
+plus the settings — not by the accessor object, which pandas caches on the frame
+and which would therefore keep stale results after the frame changed in place.
+
+Importing this module is cheap: the session, the encoder and the engine (numba)
+are imported on the first call.
+"""
 from __future__ import annotations
 
+import hashlib
+from collections import OrderedDict
+
+import numpy as np
 import pandas as pd
+
+__all__ = ["InfoProfileAccessor", "session_for"]
+
+# content key -> session; small, because a session holds its frame's codes
+_SESSIONS: OrderedDict = OrderedDict()
+_MAX_SESSIONS = 4
+
+
+def _content_key(frame: pd.DataFrame):
+    """A key for the frame's content (labels, dtypes, values), or None if unhashable.
+
+    ``pandas.util.hash_pandas_object`` hashes each column's values; cells that
+    cannot be hashed (lists, dicts) make the key None and the session is then
+    built afresh on every call.
+    """
+    digest = hashlib.blake2b(digest_size=16)
+    digest.update(repr((frame.shape, [repr(c) for c in frame.columns],
+                        [str(t) for t in frame.dtypes])).encode())
+    try:
+        for i in range(frame.shape[1]):
+            hashed = pd.util.hash_pandas_object(frame.iloc[:, i], index=False)
+            digest.update(np.ascontiguousarray(hashed.to_numpy()).tobytes())
+    except (TypeError, ValueError):
+        return None
+    return digest.hexdigest()
+
+
+def _settings_key(settings: dict):
+    try:
+        key = tuple(sorted(settings.items()))
+        hash(key)
+    except TypeError:
+        return None
+    return key
+
+
+def session_for(frame, **settings):
+    """A :class:`ProfileSession` of ``frame`` with ``settings``, reused by content.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame or polars.DataFrame
+        The data (never modified).
+    **settings
+        Settings of :class:`~infoscope.frame.session.ProfileSession`.
+
+    Returns
+    -------
+    ProfileSession
+        A cached session when the same content was profiled with the same
+        settings (and its settings were not changed since), else a new one.
+        Call ``update`` only on sessions you build yourself.
+
+    References
+    ----------
+    .. [1] pandas documentation, "Extending pandas: registering custom accessors".
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> df = pd.DataFrame({"a": [1, 2, 1, 2], "b": list("xyxy")})
+    >>> session_for(df) is session_for(df.copy())
+    True
+    """
+    from infoscope.frame.session import ProfileSession, as_pandas
+
+    pdf = as_pandas(frame)
+    content = _content_key(pdf) if pdf.shape[1] else None
+    skey = _settings_key(settings)
+    key = None if content is None or skey is None else (content, skey)
+    if key is not None and key in _SESSIONS:
+        cached = _SESSIONS[key]
+        if cached.settings == {**cached.settings, **settings}:
+            _SESSIONS.move_to_end(key)
+            return cached
+    session = ProfileSession(pdf, **settings)
+    if key is not None:
+        _SESSIONS[key] = session
+        while len(_SESSIONS) > _MAX_SESSIONS:
+            _SESSIONS.popitem(last=False)
+    return session
 
 
 @pd.api.extensions.register_dataframe_accessor("info_profile")
 class InfoProfileAccessor:
-    """Information profile of a DataFrame (placeholder until the frame layer lands)."""
+    """Information profile of a DataFrame: ``df.info_profile.<method>(**settings)``.
+
+    ``df.info_profile()`` returns the live profile widget; the methods return the
+    tidy result tables of :class:`~infoscope.frame.session.ProfileSession` (each
+    accepts the session's settings as keywords: ``bins``, ``strategy``,
+    ``estimator``, ``alpha``, ``base``, ``missing``, ``max_categories``, ``target``,
+    ``measure``, ``normalization``, ``sample``, ``seed``, ``ci``, ``n_boot``).
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        The frame the accessor is attached to (never modified).
+
+    References
+    ----------
+    .. [1] pandas documentation, "Extending pandas: registering custom accessors".
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> import infoscope  # registers the accessor
+    >>> df = pd.DataFrame({"a": [1, 2, 1, 2] * 5, "b": list("xyxy") * 5})
+    >>> df.info_profile.pairs(estimator="plugin")[["a", "b", "nmi"]].values.tolist()
+    [['a', 'b', 1.0]]
+    """
 
     def __init__(self, frame: pd.DataFrame):
         self._frame = frame
+
+    def _session(self, settings: dict):
+        frame = self._frame
+        if frame.shape[1] == 0:
+            raise ValueError("the DataFrame has no columns: there is nothing to profile")
+        if frame.shape[0] == 0:
+            raise ValueError("the DataFrame has no rows: there is nothing to profile")
+        return session_for(frame, **settings)
+
+    def session(self, **settings):
+        """A new :class:`ProfileSession` of this frame (yours to ``update``).
+
+        Parameters
+        ----------
+        **settings
+            Settings of the session.
+
+        Returns
+        -------
+        ProfileSession
+
+        References
+        ----------
+        .. [1] DEVELOPERS.md, "ProfileSession" (the contract).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> pd.DataFrame({"a": [1, 2, 1]}).info_profile.session().names
+        ['a']
+        """
+        from infoscope.frame.session import ProfileSession
+
+        self._session({})  # the same checks
+        return ProfileSession(self._frame, **settings)
+
+    def entropy(self, **settings) -> pd.DataFrame:
+        """Entropy of every column: see :meth:`ProfileSession.entropy`.
+
+        Parameters
+        ----------
+        **settings
+            Settings of the session (``bins``, ``estimator``, ``base`` ...).
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per column.
+
+        References
+        ----------
+        .. [1] Shannon, C. E. (1948). Bell System Technical Journal, 27, 379-423.
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"c": list("aabb") * 5})
+        >>> float(df.info_profile.entropy(estimator="plugin", n_boot=0)["entropy"][0])
+        1.0
+        """
+        return self._session(settings).entropy()
+
+    def pairs(self, measure: str | None = None, **settings) -> pd.DataFrame:
+        """Every pair of columns: see :meth:`ProfileSession.pairs`.
+
+        Parameters
+        ----------
+        measure : {"mi", "nmi", "adjusted_mi", "vi"}, optional
+            The measure of the ``value`` column.
+        **settings
+            Settings of the session.
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per unordered pair.
+
+        References
+        ----------
+        .. [1] Cover, T. M., & Thomas, J. A. (2006). Elements of Information Theory, Wiley.
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"a": [1, 2] * 10, "b": [1, 2] * 10})
+        >>> round(float(df.info_profile.pairs("nmi", estimator="plugin")["value"][0]), 6)
+        1.0
+        """
+        return self._session(settings).pairs(measure)
+
+    def matrix(self, measure: str | None = None, order: str = "name", **settings) -> pd.DataFrame:
+        """The pair measure as a square table: see :meth:`ProfileSession.matrix`.
+
+        Parameters
+        ----------
+        measure : {"mi", "nmi", "adjusted_mi", "vi"}, optional
+            The measure.
+        order : {"name", "cluster"}, default="name"
+            Column order.
+        **settings
+            Settings of the session.
+
+        Returns
+        -------
+        pandas.DataFrame
+            Square, index = columns = column keys.
+
+        References
+        ----------
+        .. [1] scipy.cluster.hierarchy.linkage (average linkage, optimal ordering).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"a": [1, 2] * 10, "b": [1, 2] * 10})
+        >>> df.info_profile.matrix("nmi").shape
+        (2, 2)
+        """
+        return self._session(settings).matrix(measure, order=order)
+
+    def pair(self, a: str, b: str, **settings):
+        """One pair's joint table: see :meth:`ProfileSession.pair`.
+
+        Parameters
+        ----------
+        a, b : str
+            Column keys.
+        **settings
+            Settings of the session.
+
+        Returns
+        -------
+        PairTable
+
+        References
+        ----------
+        .. [1] Church, K. W., & Hanks, P. (1990). Computational Linguistics, 16(1), 22-29.
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"a": [1, 2] * 10, "b": [1, 2] * 10})
+        >>> df.info_profile.pair("a", "b").n
+        20
+        """
+        return self._session(settings).pair(a, b)
+
+    def relevance(self, target: str | None = None, **settings) -> pd.DataFrame:
+        """Information about a target column: see :meth:`ProfileSession.relevance`.
+
+        Parameters
+        ----------
+        target : str
+            The target column key.
+        **settings
+            Settings of the session.
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per other column.
+
+        References
+        ----------
+        .. [1] Cover, T. M., & Thomas, J. A. (2006). Elements of Information Theory, Wiley.
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"y": [0, 1] * 10, "x": [5, 6] * 10})
+        >>> bool(df.info_profile.relevance("y", n_boot=0)["leakage"][0])
+        True
+        """
+        if target is not None:
+            settings = {**settings, "target": target}
+        return self._session(settings).relevance()
+
+    def drift(self, reference, **settings) -> pd.DataFrame:
+        """Divergence of this frame from a reference frame: see :meth:`ProfileSession.drift`.
+
+        Parameters
+        ----------
+        reference : pandas.DataFrame or polars.DataFrame
+            The frame to compare with.
+        **settings
+            Settings of the session (``pseudocount`` is passed to ``drift``).
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per common column.
+
+        References
+        ----------
+        .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (PSI).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> ref = pd.DataFrame({"c": list("aabb") * 50})
+        >>> pd.DataFrame({"c": list("aaab") * 50}).info_profile.drift(ref)["flag"].tolist()
+        ['moderate']
+        """
+        pseudo = {"pseudocount": settings.pop("pseudocount")} if "pseudocount" in settings else {}
+        return self._session(settings).drift(reference, **pseudo)
+
+    def __call__(self, **settings):
+        """The live profile widget of this frame (needs the widget extra).
+
+        Parameters
+        ----------
+        **settings
+            Initial settings of the profile.
+
+        Returns
+        -------
+        infoscope.widgets.profile.ProfileWidget
+
+        References
+        ----------
+        .. [1] Jupyter widget protocol (ipywidgets / anywidget documentation).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> w = pd.DataFrame({"a": [1, 2, 1]}).info_profile()  # doctest: +SKIP
+        """
+        try:
+            from infoscope.widgets.profile import ProfileWidget
+        except ImportError as error:
+            raise ImportError(
+                "df.info_profile() needs the live profile widget "
+                "(infoscope.widgets.profile.ProfileWidget), which could not be imported: "
+                f"{error}. The tables work without it: df.info_profile.entropy(), .pairs(), ..."
+            ) from error
+        return ProfileWidget(self.session(**settings))

@@ -1,0 +1,898 @@
+"""``ProfileSession``: the state a profile view holds, and the tidy result tables.
+
+A session holds one frame (never modified), its unique column keys, the settings,
+per-column bins overrides, the encoded columns and one :class:`PairEngine`.  The
+methods turn the engine's count tables into the result tables of DEVELOPERS.md
+("Result tables"); ``update`` re-encodes only the columns whose effective
+settings changed, so the engine recounts only the pairs that touch them.
+
+Data flow: frame -> :mod:`infoscope.encode` -> :mod:`infoscope.engine` ->
+:mod:`infoscope.estimators` -> the tables built here.
+"""
+from __future__ import annotations
+
+import math
+import numbers
+import warnings
+from collections.abc import Mapping
+
+import numpy as np
+import pandas as pd
+
+from infoscope._warnings import DataQualityWarning, SmallSampleWarning
+from infoscope.estimators._checks import check_choice, log_base, unit_name
+from infoscope.frame.results import (
+    DRIFT_COLUMNS,
+    ENTROPY_COLUMNS,
+    LEAKAGE_SHARE,
+    PAIRS_COLUMNS,
+    RELEVANCE_COLUMNS,
+    SPARSE_CELL_COUNT,
+    PairTable,
+    result_frame,
+)
+
+__all__ = ["MEASURES", "ORDERS", "ProfileSession", "as_pandas", "column_keys"]
+
+#: Pair measures: name -> what the ``value`` column of ``pairs()`` holds.
+MEASURES = {
+    "mi": "mutual information (the session's estimator), in the session's unit",
+    "nmi": "normalised mutual information (the session's normalisation), unit-free",
+    "adjusted_mi": "mutual information adjusted for chance (Vinh, Epps & Bailey 2010), unit-free",
+    "vi": "variation of information H(A|B) + H(B|A) (Meila 2007), a distance in the session's unit",
+}
+ORDERS = ("name", "cluster")
+_MISSING_POLICIES = ("drop", "category")
+
+_DEFAULTS = {
+    "bins": 16,
+    "strategy": "quantile",
+    "estimator": "miller_madow",
+    "alpha": None,
+    "base": 2,
+    "missing": "drop",
+    "max_categories": 64,
+    "target": None,
+    "measure": "mi",
+    "normalization": "arithmetic",
+    "sample": None,
+    "seed": 0,
+    "ci": 0.95,
+    "n_boot": 200,
+}
+# the settings that change how a column is encoded (the rest only change numbers)
+_ENCODING_SETTINGS = ("bins", "strategy", "missing", "max_categories")
+
+
+# ------------------------------------------------------------------ frames and keys
+def as_pandas(frame, parameter: str = "frame") -> pd.DataFrame:
+    """Return ``frame`` as a pandas DataFrame without modifying it.
+
+    pandas frames are shallow-copied (with copy-on-write, pandas 3, this costs
+    nothing and later edits of the user's frame do not reach the session); Polars
+    frames (eager or lazy) are converted with ``to_pandas()``.
+    """
+    if isinstance(frame, pd.DataFrame):
+        return frame.copy(deep=False)
+    module = type(frame).__module__.split(".")[0]
+    if module == "polars":
+        if hasattr(frame, "collect") and not hasattr(frame, "to_pandas"):
+            frame = frame.collect()  # a LazyFrame
+        return frame.to_pandas()
+    raise TypeError(
+        f"{parameter} must be a pandas or Polars DataFrame, got {type(frame).__name__}"
+    )
+
+
+def _name_text(name) -> str:
+    if isinstance(name, tuple):
+        return " / ".join(_name_text(part) for part in name)
+    return name if isinstance(name, str) else str(name)
+
+
+def column_keys(columns, *, warn: bool = True) -> list[str]:
+    """Unique string keys for column labels: ``infoscope.encode.columns.column_keys``.
+
+    Non-string labels become ``str(label)``, MultiIndex tuples are joined with
+    ``" / "``, and repeated keys get ``" (2)"``, ``" (3)"``, ... in order of
+    appearance, with a :class:`DataQualityWarning` naming them.
+    """
+    from infoscope.encode.columns import column_keys as encode_keys
+
+    return encode_keys(list(columns), warn=warn)
+
+
+# ------------------------------------------------------------------ settings checks
+def _check_settings(settings: Mapping) -> dict:
+    from infoscope.estimators.entropy import ENTROPY_ESTIMATORS
+    from infoscope.estimators.information import NORMALIZATIONS
+
+    unknown = sorted(set(settings) - set(_DEFAULTS))
+    if unknown:
+        raise TypeError(
+            f"unknown setting(s) {', '.join(map(repr, unknown))}; valid settings: "
+            f"{', '.join(_DEFAULTS)}"
+        )
+    s = dict(settings)
+    check_choice(s["estimator"], ENTROPY_ESTIMATORS, "estimator")
+    log_base(s["base"])
+    check_choice(s["missing"], _MISSING_POLICIES, "missing")
+    check_choice(s["measure"], MEASURES, "measure")
+    check_choice(s["normalization"], NORMALIZATIONS, "normalization")
+    _check_bins(s["bins"], "bins")
+    if not isinstance(s["strategy"], str):
+        raise TypeError(f"strategy must be a string such as 'quantile', got {s['strategy']!r}")
+    mc = s["max_categories"]
+    if isinstance(mc, bool) or not isinstance(mc, numbers.Integral) or mc < 2:
+        raise ValueError(f"max_categories={mc!r} must be an integer >= 2")
+    ci = s["ci"]
+    if isinstance(ci, bool) or not isinstance(ci, numbers.Real) or not 0.0 < float(ci) < 1.0:
+        raise ValueError(f"ci={ci!r} must be a confidence level strictly between 0 and 1")
+    nb = s["n_boot"]
+    if isinstance(nb, bool) or not isinstance(nb, numbers.Integral) or nb < 0:
+        raise ValueError(f"n_boot={nb!r} must be an integer >= 0 (0 skips the intervals)")
+    sample = s["sample"]
+    if sample is not None and (isinstance(sample, bool) or not isinstance(sample, numbers.Integral)
+                               or sample < 1):
+        raise ValueError(f"sample={sample!r} must be None or a number of rows >= 1")
+    seed = s["seed"]
+    if seed is not None and (isinstance(seed, bool) or not isinstance(seed, numbers.Integral)):
+        raise TypeError(f"seed={seed!r} must be an integer or None")
+    if s["target"] is not None and not isinstance(s["target"], str):
+        raise TypeError(f"target must be a column key (a string) or None, got {s['target']!r}")
+    return s
+
+
+def _check_bins(bins, parameter: str):
+    if isinstance(bins, str):
+        return bins  # a rule name: the encoder validates it and lists the valid ones
+    if isinstance(bins, bool) or not isinstance(bins, numbers.Integral) or bins < 1:
+        raise ValueError(f"{parameter}={bins!r} must be a number of bins >= 1 or a rule name such as 'fd'")
+    return int(bins)
+
+
+# ------------------------------------------------------------------ the session
+class ProfileSession:
+    """The information profile of one frame: settings, encoded columns, one engine.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame or polars.DataFrame
+        The data.  It is never modified; a later change of the user's frame does
+        not reach the session (pandas copy-on-write).
+    bins : int or str, default=16
+        Number of bins for numeric, datetime and timedelta columns, or a binning
+        rule name (``"fd"``, ``"scott"``, ``"sturges"``, ``"doane"``, ``"rice"``,
+        ``"sqrt"``, ``"stone"``, ``"auto"``, ``"knuth"``).
+    strategy : str, default="quantile"
+        ``"quantile"`` (equal frequency) or ``"uniform"`` (equal width) when ``bins``
+        is a number.
+    estimator : str, default="miller_madow"
+        Entropy estimator (a key of ``infoscope.ENTROPY_ESTIMATORS``), used for every
+        entropy and mutual information.
+    alpha : float or str, optional
+        Pseudocount of the ``"dirichlet"`` estimator.
+    base : {2, e, 10, "bits", "nats", "hartleys"}, default=2
+        Unit of the results.
+    missing : {"drop", "category"}, default="drop"
+        ``"drop"``: a row missing in a column is left out of that column's counts
+        (pairwise-complete cases for pairs); ``"category"``: missing is a symbol.
+    max_categories : int, default=64
+        Categorical columns keep at most this many symbols; rarer levels are folded
+        into one (flag ``levels_folded``).
+    target : str, optional
+        Column key used by :meth:`relevance` when no target is passed.
+    measure : {"mi", "nmi", "adjusted_mi", "vi"}, default="mi"
+        The pair measure of the ``value`` column of :meth:`pairs` and of :meth:`matrix`.
+    normalization : {"arithmetic", "min", "geometric", "max", "joint"}, default="arithmetic"
+        Normalisation of NMI (and of AMI).
+    sample : int, optional
+        Profile a seeded random sample of this many rows (all rows when the frame
+        is not longer); every table then says so in ``attrs["sampled"]``.
+    seed : int, default=0
+        Seed of the row sample and of the bootstrap.
+    ci : float, default=0.95
+        Level of the bootstrap confidence intervals.
+    n_boot : int, default=200
+        Bootstrap replicates (0 skips the intervals: they are NaN).
+
+    Attributes
+    ----------
+    names : list of str
+        Unique column keys, in frame order.
+    settings : dict
+        The current settings (a copy).
+
+    References
+    ----------
+    .. [1] Cover, T. M., & Thomas, J. A. (2006). Elements of Information Theory,
+       2nd ed. Wiley (entropy, mutual information, divergences).
+    .. [2] Miller, G. A. (1955). Note on the bias of information estimates. In
+       H. Quastler (ed.), Information Theory in Psychology, Free Press, 95-100.
+
+    Examples
+    --------
+    >>> from infoscope.datasets import make_deliveries
+    >>> from infoscope.frame.session import ProfileSession
+    >>> s = ProfileSession(make_deliveries(2_000), target="late", n_boot=20)
+    >>> s.entropy().columns[:4].tolist()
+    ['column', 'kind', 'k', 'n']
+    >>> sorted(s.update(bins=8)) == sorted(s.numeric_keys())
+    True
+    """
+
+    def __init__(self, frame, **settings):
+        merged = {**_DEFAULTS, **settings}
+        self._settings = _check_settings(merged)
+        pdf = as_pandas(frame)
+        if pdf.shape[1] == 0:
+            raise ValueError("the frame has no columns: there is nothing to profile")
+        if pdf.shape[0] == 0:
+            raise ValueError("the frame has no rows: there is nothing to profile")
+        self._names = column_keys(pdf.columns)
+        self._n_rows = int(pdf.shape[0])
+        self._rows = self._sample_rows(self._n_rows)
+        # one Series per key, positional (safe with repeated or odd column labels)
+        self._series = {key: pdf.iloc[:, i] for i, key in enumerate(self._names)}
+        self._bins_override: dict[str, object] = {}
+        self._encoded: dict[str, object] = {}
+        self._engine = None
+        self._check_target(self._settings["target"], "target")
+        self._encode(self._names)
+
+    # ---------------------------------------------------------- state
+    @property
+    def names(self) -> list[str]:
+        """The unique column keys, in frame order."""
+        return list(self._names)
+
+    @property
+    def settings(self) -> dict:
+        """A copy of the current settings."""
+        return dict(self._settings)
+
+    @property
+    def sampled(self) -> int | None:
+        """Number of rows sampled, or None when every row is profiled."""
+        return None if self._rows is None else int(self._rows.size)
+
+    @property
+    def engine(self):
+        """The :class:`~infoscope.engine.engine.PairEngine` holding the codes."""
+        return self._engine
+
+    def column(self, name: str):
+        """The :class:`~infoscope.encode.columns.EncodedColumn` of a column key."""
+        return self._encoded[self._check_name(name, "name")]
+
+    def numeric_keys(self) -> list[str]:
+        """Keys of the columns that are binned (their encoding has bin edges)."""
+        return [k for k in self._names if self._encoded[k].edges is not None]
+
+    def __repr__(self) -> str:
+        sampled = f", sampled {self.sampled} rows" if self.sampled else ""
+        return f"ProfileSession({self._n_rows} rows x {len(self._names)} columns{sampled})"
+
+    def update(self, **settings) -> set[str]:
+        """Change settings; re-encode only the columns whose encoding changed.
+
+        Parameters
+        ----------
+        **settings
+            Any of the constructor's keyword settings.
+
+        Returns
+        -------
+        set of str
+            Keys of the columns that were re-encoded (their pairs are recounted).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> s = ProfileSession(pd.DataFrame({"x": [0.1, 0.5, 0.9, 1.3] * 5, "c": list("abab") * 5}))
+        >>> s.update(bins=2)
+        {'x'}
+        >>> s.update(estimator="plugin")
+        set()
+        """
+        merged = _check_settings({**self._settings, **settings})
+        old = self._settings
+        self._check_target(merged["target"], "target")
+        resample = merged["sample"] != old["sample"] or (
+            merged["sample"] is not None and merged["seed"] != old["seed"])
+        self._settings = merged
+        if resample:
+            self._rows = self._sample_rows(self._n_rows)
+            self._engine = None
+            self._encoded.clear()
+            return self._encode(self._names)
+        changed = [k for k in self._names
+                   if self._encoding_settings(k, merged) != self._encoding_settings(k, old)]
+        return self._encode(changed)
+
+    def set_column_bins(self, name: str, bins) -> None:
+        """Override the bins of one column (``None`` clears the override).
+
+        Parameters
+        ----------
+        name : str
+            Column key.
+        bins : int or str or None
+            Number of bins or a rule name for this column only.
+
+        Returns
+        -------
+        None
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> s = ProfileSession(pd.DataFrame({"x": [0.1, 0.5, 0.9, 1.3] * 5}))
+        >>> s.set_column_bins("x", 2); s.column("x").k
+        2
+        """
+        key = self._check_name(name, "name")
+        if bins is None:
+            self._bins_override.pop(key, None)
+        else:
+            self._bins_override[key] = _check_bins(bins, "bins")
+        self._encode([key])
+
+    # ---------------------------------------------------------- encoding
+    def _sample_rows(self, n_rows: int):
+        sample = self._settings["sample"]
+        if sample is None or sample >= n_rows:
+            return None
+        rng = np.random.default_rng(self._settings["seed"])
+        return np.sort(rng.choice(n_rows, size=sample, replace=False))
+
+    def _encoding_settings(self, key: str, settings: Mapping) -> tuple:
+        return (self._bins_override.get(key, settings["bins"]), settings["strategy"],
+                settings["missing"], settings["max_categories"])
+
+    def _values(self, key: str) -> pd.Series:
+        series = self._series[key]
+        if self._rows is not None:
+            series = series.iloc[self._rows]
+        return series
+
+    def _encode(self, keys) -> set[str]:
+        from infoscope.encode.columns import encode_column
+
+        done: set[str] = set()
+        for key in keys:
+            bins, strategy, missing, max_categories = self._encoding_settings(key, self._settings)
+            encoded = encode_column(self._values(key), name=key, bins=bins, strategy=strategy,
+                                    missing=missing, max_categories=max_categories)
+            self._encoded[key] = encoded
+            done.add(key)
+            if self._engine is not None:
+                self._engine.set_column(encoded)
+        if self._engine is None:
+            from infoscope.engine.engine import PairEngine
+
+            self._engine = PairEngine([self._encoded[k] for k in self._names], progress=False)
+        return done
+
+    # ---------------------------------------------------------- helpers
+    def _check_name(self, name, parameter: str) -> str:
+        if isinstance(name, str) and name in self._series:
+            return name
+        label = _name_text(name) if isinstance(name, tuple) else name
+        if isinstance(label, str) and label in self._series:
+            return label
+        shown = ", ".join(repr(k) for k in self._names[:12]) + (" ..." if len(self._names) > 12 else "")
+        raise KeyError(f"{parameter}={name!r} is not a column of the profile; the columns are: {shown}")
+
+    def _check_target(self, target, parameter: str) -> None:
+        if target is not None:
+            self._check_name(target, parameter)
+
+    def _attrs(self, **extra) -> dict:
+        s = self._settings
+        attrs = {"unit": unit_name(s["base"]), "estimator": s["estimator"], "sampled": self.sampled}
+        attrs.update(extra)
+        return attrs
+
+    def _kw(self) -> dict:
+        s = self._settings
+        kw = {"estimator": s["estimator"], "base": s["base"]}
+        if s["estimator"] == "dirichlet" and s["alpha"] is not None:
+            kw["alpha"] = s["alpha"]
+        return kw
+
+    def _entropy(self, counts) -> float:
+        from infoscope.estimators.entropy import entropy_from_counts
+
+        counts = np.asarray(counts)
+        if counts.sum() == 0:
+            return math.nan
+        return float(entropy_from_counts(counts, **self._kw()))
+
+    # ---------------------------------------------------------- entropy
+    def entropy(self) -> pd.DataFrame:
+        """One row per column: entropy with a bootstrap interval, max H and flags.
+
+        Returns
+        -------
+        pandas.DataFrame
+            Columns ``column, kind, k, n, missing, missing_share, entropy, ci_low,
+            ci_high, max_entropy, efficiency, effective_categories, flags``:
+            ``n`` rows profiled, ``missing`` of them missing; ``entropy`` of the
+            non-missing values (missing included as a symbol under
+            ``missing="category"``) with the session's estimator, its percentile
+            bootstrap interval (seeded); ``max_entropy = log K``;
+            ``efficiency = entropy / max_entropy``; ``effective_categories =
+            base ** entropy`` (the number of equally likely symbols with the same
+            entropy; the same number in every unit); ``flags`` comma-separated,
+            from the encoder plus ``sparse_cells`` (fewer than 5 observations per
+            symbol on average).  ``attrs``: unit, estimator, sampled.
+
+        References
+        ----------
+        .. [1] Shannon, C. E. (1948). A mathematical theory of communication. Bell
+           System Technical Journal, 27, 379-423, 623-656.
+        .. [2] Efron, B., & Tibshirani, R. J. (1993). An Introduction to the
+           Bootstrap. Chapman & Hall (percentile intervals).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> s = ProfileSession(pd.DataFrame({"c": list("aabb") * 10}), estimator="plugin", n_boot=0)
+        >>> float(s.entropy().loc[0, "entropy"])
+        1.0
+        """
+        s = self._settings
+        if s["n_boot"] > 0:
+            from infoscope.estimators.resampling import bootstrap_entropy_ci
+        divisor = log_base(s["base"])
+        rows = []
+        for i, key in enumerate(self._names):
+            col = self._encoded[key]
+            counts = np.asarray(self._engine.marginal(key), dtype=np.int64)
+            observed = int(counts.sum())
+            flags = list(col.flags)
+            h = self._entropy(counts)
+            low = high = math.nan
+            if observed == 0:
+                warnings.warn(f"column {key!r} has no non-missing values: its entropy is undefined (NaN)",
+                              DataQualityWarning, stacklevel=2)
+            elif s["n_boot"] > 0 and np.count_nonzero(counts) > 1:
+                low, high = bootstrap_entropy_ci(counts, level=s["ci"], n_boot=s["n_boot"],
+                                                 seed=_child_seed(s["seed"], i), **self._kw())
+            elif s["n_boot"] > 0:
+                low = high = h  # one symbol: every resample is the same
+            if observed and observed / col.k < SPARSE_CELL_COUNT and "sparse_cells" not in flags:
+                flags.append("sparse_cells")
+            max_h = math.log(col.k) / divisor if col.k >= 1 else math.nan
+            rows.append({
+                "column": key, "kind": col.kind, "k": int(col.k), "n": int(col.n),
+                "missing": int(col.n_missing),
+                "missing_share": col.n_missing / col.n if col.n else math.nan,
+                "entropy": h, "ci_low": float(low), "ci_high": float(high),
+                "max_entropy": max_h,
+                "efficiency": h / max_h if max_h > 0 and not math.isnan(h) else math.nan,
+                "effective_categories": math.exp(h * divisor) if not math.isnan(h) else math.nan,
+                "flags": ",".join(flags),
+            })
+        return result_frame(rows, ENTROPY_COLUMNS, **self._attrs())
+
+    # ---------------------------------------------------------- pairs
+    def _pair_list(self, columns=None) -> list[tuple[str, str]]:
+        keys = self._names if columns is None else [self._check_name(c, "columns") for c in columns]
+        return [(a, b) for i, a in enumerate(keys) for b in keys[i + 1:]]
+
+    def pairs(self, measure: str | None = None, *, columns=None) -> pd.DataFrame:
+        """One row per unordered pair of columns: MI, NMI, the chosen measure, G-test.
+
+        Parameters
+        ----------
+        measure : {"mi", "nmi", "adjusted_mi", "vi"}, optional
+            What the ``value`` column holds (default: the session's ``measure``).
+        columns : list of str, optional
+            Restrict to the pairs among these column keys.
+
+        Returns
+        -------
+        pandas.DataFrame
+            Columns ``a, b, k_a, k_b, n, mi, nmi, value, g, dof, p_value, q_value,
+            sparse``, in column order: ``n`` rows where both are present, ``mi``
+            with the session's estimator, ``nmi`` with the session's
+            normalisation (same estimator), ``g`` / ``dof`` / ``p_value`` of the
+            G-test of independence, ``q_value`` Benjamini-Hochberg over all pairs
+            of the table, ``sparse`` fewer than 5 rows per cell on average.
+            ``attrs``: unit, estimator, sampled, measure, normalization.
+
+        References
+        ----------
+        .. [1] Wilks, S. S. (1938). Annals of Mathematical Statistics, 9(1), 60-62
+           (the G-test).
+        .. [2] Benjamini, Y., & Hochberg, Y. (1995). JRSS B, 57(1), 289-300.
+        .. [3] Vinh, N. X., Epps, J., & Bailey, J. (2010). JMLR 11, 2837-2854
+           (NMI normalisations, AMI).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"x": list("abab") * 10, "y": list("abab") * 10, "z": list("aabb") * 10})
+        >>> s = ProfileSession(df, estimator="plugin")
+        >>> s.pairs("nmi")[["a", "b", "value"]].round(3).values.tolist()
+        [['x', 'y', 1.0], ['x', 'z', 0.0], ['y', 'z', 0.0]]
+        """
+        from infoscope.estimators.information import (
+            adjusted_mutual_information_from_table,
+            benjamini_hochberg,
+            g_test_from_tables,
+            variation_of_information_from_table,
+        )
+
+        s = self._settings
+        measure = check_choice(measure if measure is not None else s["measure"], MEASURES, "measure")
+        pair_list = self._pair_list(columns)
+        tables = self._engine.tables(pair_list) if pair_list else {}
+        tabs = [np.asarray(tables[p], dtype=np.int64) for p in pair_list]
+        mi, nmi = self._mi_nmi(tabs)
+        g = g_test_from_tables(tabs) if tabs else None
+        q = benjamini_hochberg(g.p_value) if tabs else np.zeros(0)
+        rows = []
+        for i, (a, b) in enumerate(pair_list):
+            t = tabs[i]
+            n = int(t.sum())
+            if measure == "mi":
+                value = mi[i]
+            elif measure == "nmi":
+                value = nmi[i]
+            elif n == 0:
+                value = math.nan
+            elif measure == "adjusted_mi":
+                value = adjusted_mutual_information_from_table(t, normalization=s["normalization"])
+            else:
+                value = variation_of_information_from_table(t, **self._kw())
+            rows.append({
+                "a": a, "b": b, "k_a": int(self._encoded[a].k), "k_b": int(self._encoded[b].k),
+                "n": n, "mi": mi[i], "nmi": nmi[i], "value": float(value),
+                "g": float(g.statistic[i]), "dof": int(g.dof[i]), "p_value": float(g.p_value[i]),
+                "q_value": float(q[i]), "sparse": bool(n / max(t.size, 1) < SPARSE_CELL_COUNT),
+            })
+        return result_frame(rows, PAIRS_COLUMNS,
+                            **self._attrs(measure=measure, normalization=s["normalization"]))
+
+    def _mi_nmi(self, tabs: list[np.ndarray]) -> tuple[np.ndarray, np.ndarray]:
+        """MI and NMI of many tables, vectorised over tables of the same shape.
+
+        Same definitions and degenerate-case conventions as
+        ``mutual_information_from_table`` and ``normalized_mutual_information_from_table``
+        (tests check the agreement); empty tables give NaN.
+        """
+        from infoscope.estimators.entropy import entropy_of_count_rows
+
+        s = self._settings
+        kw = self._kw()
+        kw["base"] = "nats"
+        divisor = log_base(s["base"])
+        mi = np.full(len(tabs), np.nan)
+        nmi = np.full(len(tabs), np.nan)
+        groups: dict[tuple, list[int]] = {}
+        for i, t in enumerate(tabs):
+            if t.sum() > 0:
+                groups.setdefault(t.shape, []).append(i)
+        for (r, c), index in groups.items():
+            stack = np.stack([tabs[i] for i in index]).astype(np.float64)
+            rows, cols = stack.sum(axis=2), stack.sum(axis=1)
+            hx = entropy_of_count_rows(rows, **kw)
+            hy = entropy_of_count_rows(cols, **kw)
+            hxy = entropy_of_count_rows(stack.reshape(len(index), r * c), **kw)
+            m = hx + hy - hxy
+            if s["estimator"] == "plugin":
+                # plug-in MI is a KL divergence, >= 0; a tiny negative is rounding
+                m = np.maximum(m, 0.0)
+            norm = _normaliser(hx, hy, hxy, s["normalization"])
+            both_constant = (np.count_nonzero(rows, axis=1) == 1) & (np.count_nonzero(cols, axis=1) == 1)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                v = np.where(norm > 0, m / np.where(norm > 0, norm, 1.0), 0.0)
+            v = np.where(m == 0.0, 0.0, v)
+            v = np.where(both_constant, 1.0, v)
+            mi[index] = m / divisor
+            nmi[index] = v
+        return mi, nmi
+
+    # ---------------------------------------------------------- matrix
+    def matrix(self, measure: str | None = None, order: str = "name") -> pd.DataFrame:
+        """The pair measure as a square table, index = columns = column keys.
+
+        Parameters
+        ----------
+        measure : {"mi", "nmi", "adjusted_mi", "vi"}, optional
+            Default: the session's ``measure``.
+        order : {"name", "cluster"}, default="name"
+            ``"name"``: frame order; ``"cluster"``: leaf order of an average-linkage
+            hierarchical clustering on the distance ``1 - NMI`` (clipped to [0, 1])
+            with optimal leaf ordering, so that related columns sit together.
+
+        Returns
+        -------
+        pandas.DataFrame
+            Symmetric.  Diagonal: the column's entropy for ``"mi"`` (I(X;X) = H(X)),
+            1 for ``"nmi"`` and ``"adjusted_mi"`` (0 for a constant column under
+            ``"nmi"`` is not used: a column shares everything with itself), 0 for
+            ``"vi"``.  ``attrs``: unit, estimator, sampled, measure, order.
+
+        References
+        ----------
+        .. [1] Bar-Joseph, Z., Gifford, D. K., & Jaakkola, T. S. (2001). Fast optimal
+           leaf ordering for hierarchical clustering. Bioinformatics, 17(S1), S22-S29
+           (``scipy.cluster.hierarchy.optimal_leaf_ordering``).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"x": list("abab") * 10, "z": list("aabb") * 10, "y": list("abab") * 10})
+        >>> ProfileSession(df, estimator="plugin").matrix("nmi", order="cluster").index.tolist()
+        ['z', 'x', 'y']
+        """
+        order = check_choice(order, ORDERS, "order")
+        table = self.pairs(measure)
+        measure = table.attrs["measure"]
+        keys = self._names
+        square = pd.DataFrame(np.nan, index=pd.Index(keys), columns=pd.Index(keys), dtype=float)
+        values = table["value"].to_numpy(dtype=float)
+        ia = [keys.index(a) for a in table["a"]]
+        ib = [keys.index(b) for b in table["b"]]
+        arr = square.to_numpy(copy=True)
+        arr[ia, ib] = values
+        arr[ib, ia] = values
+        if measure == "mi":
+            diag = [self._entropy(self._engine.marginal(k)) for k in keys]
+        elif measure == "vi":
+            diag = [0.0] * len(keys)
+        else:
+            diag = [1.0] * len(keys)
+        arr[np.arange(len(keys)), np.arange(len(keys))] = diag
+        square = pd.DataFrame(arr, index=pd.Index(keys), columns=pd.Index(keys))
+        if order == "cluster" and len(keys) > 2:
+            nmi = np.eye(len(keys))
+            nv = table["nmi"].to_numpy(dtype=float)
+            nmi[ia, ib] = nv
+            nmi[ib, ia] = nv
+            leaves = _cluster_order(nmi)
+            square = square.iloc[leaves, leaves]
+        square.attrs.update(self._attrs(measure=measure, order=order))
+        return square
+
+    # ---------------------------------------------------------- one pair
+    def pair(self, a: str, b: str) -> PairTable:
+        """The joint table of two columns with expected counts and pointwise MI.
+
+        Parameters
+        ----------
+        a, b : str
+            Column keys (``a`` labels the rows).
+
+        Returns
+        -------
+        PairTable
+            ``counts``, ``expected``, ``pmi`` (DataFrames labelled with the symbols),
+            ``mi``, ``nmi``, ``g_test``, ``n``.
+
+        References
+        ----------
+        .. [1] Church, K. W., & Hanks, P. (1990). Word association norms, mutual
+           information, and lexicography. Computational Linguistics, 16(1), 22-29
+           (pointwise mutual information).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"x": list("abab") * 10, "y": list("abba") * 10})
+        >>> pt = ProfileSession(df, estimator="plugin").pair("x", "y")
+        >>> pt.counts.to_numpy().tolist(), pt.n
+        ([[10, 10], [10, 10]], 40)
+        """
+        from infoscope.estimators.information import g_test_from_table, pointwise_mutual_information
+
+        a = self._check_name(a, "a")
+        b = self._check_name(b, "b")
+        if a == b:
+            raise ValueError(f"a and b are the same column ({a!r}); pass two different columns")
+        t = np.asarray(self._engine.table(a, b), dtype=np.int64)
+        ca, cb = self._encoded[a], self._encoded[b]
+        index = pd.Index(list(ca.labels), name=a)
+        columns = pd.Index(list(cb.labels), name=b)
+        n = int(t.sum())
+        counts = pd.DataFrame(t, index=index, columns=columns)
+        if n == 0:
+            warnings.warn(f"columns {a!r} and {b!r} are never present in the same row: "
+                          "their joint table is empty", DataQualityWarning, stacklevel=2)
+            nan_frame = pd.DataFrame(np.nan, index=index, columns=columns)
+            return PairTable(a, b, counts, nan_frame, nan_frame.copy(), math.nan, math.nan,
+                             (math.nan, 0, math.nan), 0, unit_name(self._settings["base"]), True,
+                             self._attrs())
+        expected = np.outer(t.sum(axis=1), t.sum(axis=0)) / n
+        pmi = pointwise_mutual_information(t, base=self._settings["base"])
+        mi, nmi = self._mi_nmi([t])
+        sparse = bool(n / t.size < SPARSE_CELL_COUNT)
+        if sparse:
+            warnings.warn(f"the joint table of {a!r} and {b!r} has {t.size} cells for {n} rows "
+                          "(fewer than 5 per cell on average): the estimates are unreliable",
+                          SmallSampleWarning, stacklevel=2)
+        return PairTable(a, b, counts, pd.DataFrame(expected, index=index, columns=columns),
+                         pd.DataFrame(pmi, index=index, columns=columns), float(mi[0]),
+                         float(nmi[0]), g_test_from_table(t), n,
+                         unit_name(self._settings["base"]), sparse, self._attrs())
+
+    # ---------------------------------------------------------- relevance
+    def relevance(self, target: str | None = None) -> pd.DataFrame:
+        """Information each other column gives about a target column.
+
+        Parameters
+        ----------
+        target : str, optional
+            Column key (default: the session's ``target`` setting).
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per other column, largest MI first: ``column, k, n, mi, ci_low,
+            ci_high, nmi, p_value, q_value, share_of_target, leakage, sparse`` where
+            ``share_of_target = mi / H(target)`` (both on the rows where the two are
+            present), ``leakage`` is True when that share is at least 0.95 (the
+            column nearly determines the target: check whether it is known before
+            the outcome), the interval is a seeded multinomial bootstrap of the
+            joint table and q-values are Benjamini-Hochberg over the table.
+            ``attrs``: unit, estimator, sampled, target.
+
+        References
+        ----------
+        .. [1] Cover, T. M., & Thomas, J. A. (2006). Elements of Information Theory,
+           2nd ed., Wiley, section 2.4 (I(X;Y) <= H(Y)).
+        .. [2] Kaufman, S., Rosset, S., Perlich, C., & Stitelman, O. (2012).
+           Leakage in data mining: formulation, detection, and avoidance. ACM
+           TKDD, 6(4), 15.
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"y": [0, 1] * 20, "copy": ["n", "y"] * 20, "noise": [0, 0, 1, 1] * 10})
+        >>> r = ProfileSession(df, n_boot=0).relevance("y")
+        >>> r[["column", "leakage"]].values.tolist()
+        [['copy', True], ['noise', False]]
+        """
+        from infoscope.estimators.information import benjamini_hochberg, g_test_from_tables
+
+        s = self._settings
+        if s["n_boot"] > 0:
+            from infoscope.estimators.resampling import bootstrap_mi_ci
+        if target is None:
+            target = s["target"]
+        if target is None:
+            raise ValueError("relevance needs a target: pass target= or set the session's target")
+        target = self._check_name(target, "target")
+        others = [k for k in self._names if k != target]
+        if not others:
+            raise ValueError(f"the profile has only the target column {target!r}: nothing to relate to it")
+        tabs = [np.asarray(self._engine.table(k, target), dtype=np.int64) for k in others]
+        mi, nmi = self._mi_nmi(tabs)
+        g = g_test_from_tables(tabs)
+        q = benjamini_hochberg(g.p_value)
+        if np.count_nonzero(self._engine.marginal(target)) <= 1:
+            warnings.warn(f"target {target!r} has at most one value: no column can inform it",
+                          DataQualityWarning, stacklevel=2)
+        rows = []
+        for i, key in enumerate(others):
+            t = tabs[i]
+            n = int(t.sum())
+            h_target = self._entropy(t.sum(axis=0)) if n else math.nan
+            low = high = math.nan
+            if n and s["n_boot"] > 0:
+                low, high = bootstrap_mi_ci(t, level=s["ci"], n_boot=s["n_boot"],
+                                            seed=_child_seed(s["seed"], i), **self._kw())
+            share = mi[i] / h_target if h_target and h_target > 0 else math.nan
+            rows.append({
+                "column": key, "k": int(self._encoded[key].k), "n": n, "mi": mi[i],
+                "ci_low": float(low), "ci_high": float(high), "nmi": nmi[i],
+                "p_value": float(g.p_value[i]), "q_value": float(q[i]),
+                "share_of_target": share, "leakage": bool(share >= LEAKAGE_SHARE),
+                "sparse": bool(n / max(t.size, 1) < SPARSE_CELL_COUNT),
+            })
+        out = result_frame(rows, RELEVANCE_COLUMNS, **self._attrs(target=target))
+        out = out.sort_values("mi", ascending=False, na_position="last", kind="stable")
+        out = out.reset_index(drop=True)
+        out.attrs.update(self._attrs(target=target))
+        return out
+
+    # ---------------------------------------------------------- drift
+    def drift(self, reference, *, pseudocount: float = 0.5) -> pd.DataFrame:
+        """Per-column divergence of this frame from a reference frame.
+
+        See :func:`infoscope.frame.drift.drift_table` for the method; this session's
+        encoding settings (bins, strategy, missing, max_categories, per-column
+        overrides) define the reference's alphabet.
+
+        Parameters
+        ----------
+        reference : pandas.DataFrame or polars.DataFrame
+            The frame to compare with (e.g. the training data).
+        pseudocount : float, default=0.5
+            Added to every cell of both count vectors before PSI and KL (so that a
+            symbol absent from one side gives a finite value).
+
+        Returns
+        -------
+        pandas.DataFrame
+            ``column, kind, k, n, n_reference, psi, kl, js, p_value, flag``.
+
+        References
+        ----------
+        .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (PSI and its
+           0.10 / 0.25 rules of thumb).
+        .. [2] Lin, J. (1991). Divergence measures based on the Shannon entropy.
+           IEEE Transactions on Information Theory, 37(1), 145-151.
+
+        Examples
+        --------
+        >>> from infoscope.datasets import make_deliveries, make_deliveries_batch
+        >>> s = ProfileSession(make_deliveries_batch(2_000))
+        >>> d = s.drift(make_deliveries(4_000))
+        >>> d.set_index("column").loc["booking_channel", "flag"]
+        'moderate'
+        """
+        from infoscope.frame.drift import drift_table
+
+        ref = as_pandas(reference, "reference")
+        if ref.shape[1] == 0 or ref.shape[0] == 0:
+            raise ValueError("reference has no rows or no columns: there is nothing to compare with")
+        ref_keys = column_keys(ref.columns)
+        ref_series = {key: ref.iloc[:, i] for i, key in enumerate(ref_keys)}
+        only_here = [k for k in self._names if k not in ref_series]
+        only_there = [k for k in ref_keys if k not in self._series]
+        common = [k for k in self._names if k in ref_series]
+        if not common:
+            raise ValueError("the frame and the reference have no column in common: nothing to compare")
+        if only_here or only_there:
+            parts = []
+            if only_here:
+                parts.append("only in this frame: " + ", ".join(map(repr, only_here)))
+            if only_there:
+                parts.append("only in the reference: " + ", ".join(map(repr, only_there)))
+            warnings.warn("drift compares the common columns; " + "; ".join(parts),
+                          DataQualityWarning, stacklevel=2)
+        s = self._settings
+        rows = drift_table(
+            {k: self._values(k) for k in common}, {k: ref_series[k] for k in common},
+            encoding={k: self._encoding_settings(k, s) for k in common},
+            pseudocount=pseudocount, base=s["base"],
+        )
+        return result_frame(rows, DRIFT_COLUMNS, **self._attrs(pseudocount=pseudocount))
+
+
+# ------------------------------------------------------------------ module helpers
+def _child_seed(seed, i: int):
+    """A per-column seed derived from the session seed (None stays random)."""
+    if seed is None:
+        return None
+    return int(np.random.SeedSequence([int(seed), int(i)]).generate_state(1)[0])
+
+
+def _normaliser(hx, hy, hxy, normalization: str):
+    """The NMI denominators of Kvalseth (1987) / Vinh et al. (2010), vectorised."""
+    if normalization == "min":
+        return np.minimum(hx, hy)
+    if normalization == "geometric":
+        return np.sqrt(np.maximum(hx, 0.0) * np.maximum(hy, 0.0))
+    if normalization == "arithmetic":
+        return (hx + hy) / 2.0
+    if normalization == "max":
+        return np.maximum(hx, hy)
+    return hxy
+
+
+def _cluster_order(nmi: np.ndarray) -> list[int]:
+    """Leaf order of average linkage on 1 - NMI with optimal leaf ordering (scipy)."""
+    from scipy.cluster.hierarchy import leaves_list, linkage
+    from scipy.spatial.distance import squareform
+
+    distance = 1.0 - np.clip(np.nan_to_num(nmi, nan=0.0), 0.0, 1.0)
+    distance = (distance + distance.T) / 2.0
+    np.fill_diagonal(distance, 0.0)
+    tree = linkage(squareform(distance, checks=False), method="average", optimal_ordering=True)
+    return leaves_list(tree).tolist()
