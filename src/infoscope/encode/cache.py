@@ -1,0 +1,145 @@
+"""A content-keyed LRU cache of encoded columns, bounded in bytes.
+
+The key of an entry is ``(content_key, settings)``: a digest of the column's values
+(not its identity, so a column changed in place gets a new key and a copy of an
+unchanged column hits) and the hashable encoding settings.  Entries hold only
+arrays that infoscope made itself (codes, edges), never a view of the user's data,
+and those arrays are read-only.
+"""
+from __future__ import annotations
+
+import hashlib
+import threading
+from collections import OrderedDict
+
+import numpy as np
+import pandas as pd
+
+__all__ = ["content_key", "EncodingCache", "DEFAULT_CACHE_BYTES", "default_cache", "clear_cache"]
+
+#: Default byte budget of the process-wide cache (codes of ~256 million rows at uint8).
+DEFAULT_CACHE_BYTES = 256 * 2**20
+
+
+def _digest() -> "hashlib._Hash":
+    # sha1 is the fastest digest in hashlib here (about 1.3 GB/s); this is not security
+    try:
+        return hashlib.sha1(usedforsecurity=False)
+    except TypeError:  # pragma: no cover - very old OpenSSL builds
+        return hashlib.sha1()
+
+
+def content_key(series: pd.Series) -> str | None:
+    """A digest of a column's values and dtype, or None when the values cannot be hashed.
+
+    Plain NumPy dtypes are hashed as raw bytes.  Other dtypes go through
+    :func:`pandas.util.hash_pandas_object` (values only, not the index), plus the
+    missing mask, plus for object columns the type of every cell (pandas hashes
+    objects through their text, so 1 and "1" would otherwise collide), plus for
+    categoricals the categories and their order (unused categories change K).
+    Unhashable cells (lists, dicts) make the column uncacheable: None.
+    """
+    h = _digest()
+    dtype = series.dtype
+    h.update(f"{dtype}|{len(series)}|".encode())
+    if isinstance(dtype, np.dtype) and dtype.kind in "biufcmM":
+        arr = np.ascontiguousarray(series.to_numpy())
+        h.update(arr.view(np.uint8).reshape(-1) if arr.size else b"")
+        return h.hexdigest()
+    if isinstance(dtype, pd.CategoricalDtype):
+        codes = np.ascontiguousarray(series.cat.codes.to_numpy())
+        h.update(codes.view(np.uint8).reshape(-1) if codes.size else b"")
+        cats = content_key(pd.Series(series.cat.categories))
+        if cats is None:
+            return None
+        h.update(f"|{cats}|{dtype.ordered}".encode())
+        return h.hexdigest()
+    try:
+        hashed = pd.util.hash_pandas_object(series, index=False).to_numpy()
+    except TypeError:
+        return None
+    h.update(np.ascontiguousarray(hashed).view(np.uint8).reshape(-1) if hashed.size else b"")
+    mask = np.packbits(series.isna().to_numpy(dtype=bool))
+    h.update(mask.tobytes())
+    if dtype == object:
+        types = pd.factorize(np.frompyfunc(type, 1, 1)(series.to_numpy()))
+        h.update(np.ascontiguousarray(types[0]).view(np.uint8).reshape(-1) if len(series) else b"")
+        h.update("|".join(f"{t.__module__}.{t.__qualname__}" for t in types[1]).encode())
+    return h.hexdigest()
+
+
+class EncodingCache:
+    """Least-recently-used cache of encoded columns with a byte budget.
+
+    Thread-safe (the engine may encode from worker threads).  An entry larger
+    than the whole budget is not stored.
+
+    Parameters
+    ----------
+    max_bytes : int, default=DEFAULT_CACHE_BYTES
+        Budget for the arrays and labels held; the least recently used entries
+        are evicted past it.  0 disables caching.
+    """
+
+    def __init__(self, max_bytes: int = DEFAULT_CACHE_BYTES) -> None:
+        if isinstance(max_bytes, bool) or not isinstance(max_bytes, (int, np.integer)) or max_bytes < 0:
+            raise ValueError(f"max_bytes={max_bytes!r} is invalid: it must be an integer >= 0")
+        self.max_bytes = int(max_bytes)
+        self._entries: OrderedDict = OrderedDict()
+        self._bytes = 0
+        self._lock = threading.Lock()
+        self.hits = 0
+        self.misses = 0
+
+    def __len__(self) -> int:
+        return len(self._entries)
+
+    @property
+    def nbytes(self) -> int:
+        """Bytes currently held (as estimated when the entries were stored)."""
+        return self._bytes
+
+    def get(self, key):
+        """The entry stored under ``key`` (now the most recently used), or None."""
+        with self._lock:
+            entry = self._entries.get(key)
+            if entry is None:
+                self.misses += 1
+                return None
+            self._entries.move_to_end(key)
+            self.hits += 1
+            return entry[0]
+
+    def put(self, key, value, nbytes: int) -> None:
+        """Store ``value`` under ``key``, evicting the least recently used entries past the budget."""
+        nbytes = int(nbytes)
+        with self._lock:
+            old = self._entries.pop(key, None)
+            if old is not None:
+                self._bytes -= old[1]
+            if nbytes > self.max_bytes:
+                return
+            self._entries[key] = (value, nbytes)
+            self._bytes += nbytes
+            while self._bytes > self.max_bytes and self._entries:
+                _, (_, dropped) = self._entries.popitem(last=False)
+                self._bytes -= dropped
+
+    def clear(self) -> None:
+        """Drop every entry."""
+        with self._lock:
+            self._entries.clear()
+            self._bytes = 0
+
+
+_DEFAULT = EncodingCache()
+
+
+def default_cache() -> EncodingCache:
+    """The process-wide cache that :func:`~infoscope.encode_column` uses by default."""
+    return _DEFAULT
+
+
+def clear_cache() -> None:
+    """Empty the process-wide encoding cache."""
+    _DEFAULT.clear()
