@@ -1,0 +1,196 @@
+"""Result tables -> the compact shapes the front end reads (one place, one format).
+
+Nothing here estimates anything: the numbers come from ``ProfileSession`` result
+tables (DEVELOPERS.md, "Result tables"); this module only reshapes them, turns
+NaN/inf into ``null`` and hides small cells of a pair view. Column names and labels
+travel as JSON *values* (strings), never as keys or markup; the front end puts them
+into the page with ``textContent`` only.
+
+Shapes (the ESM in ``static/profile.js`` reads exactly these):
+
+``entropy_json`` -> JSON text
+    ``{"fields": [...ENTROPY_FIELDS], "rows": [[...], ...], "unit", "estimator",
+    "sampled", "generation"}`` with one row per column in the table's order.
+``grid_buffers`` -> dict
+    ``meta``: ``{"names": [...ordered...], "measure", "unit", "order", "alpha",
+    "size", "generation"}``; ``values`` (float32, row-major ``size x size``, NaN where
+    unknown, the diagonal included as given by ``matrix()``), ``n`` (int32 pairwise
+    complete rows) and ``q`` (float32 BH q-values, NaN on the diagonal).
+``pair_view`` -> dict
+    ``{"a", "b", "rows", "cols", "counts" (null = hidden), "pmi" (null = hidden),
+    "row_totals"/"col_totals" (null when any cell is hidden), "n", "mi", "nmi",
+    "p_value", "g", "dof", "unit", "min_count", "hidden_cells", "generation"}``.
+``relevance_json`` -> JSON text
+    ``{"target", "fields": [...RELEVANCE_FIELDS], "rows": [...], "unit", "generation"}``.
+"""
+from __future__ import annotations
+
+import base64
+import json
+import math
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from infoscope.report.suppression import check_min_count, suppression_mask
+
+ENTROPY_FIELDS = ("column", "kind", "k", "n", "missing", "missing_share", "entropy", "ci_low",
+                  "ci_high", "max_entropy", "efficiency", "effective_categories", "flags")
+PAIR_FIELDS = ("a", "b", "n", "value", "q_value")
+RELEVANCE_FIELDS = ("column", "k", "n", "mi", "ci_low", "ci_high", "nmi", "p_value", "q_value",
+                    "share_of_target", "leakage", "sparse")
+
+
+def scalar(value: Any) -> Any:
+    """A JSON-able scalar: numpy unwrapped, NaN/inf/NA -> None, other objects -> str."""
+    if value is None or value is pd.NA or value is pd.NaT:
+        return None
+    if isinstance(value, (bool, np.bool_)):
+        return bool(value)
+    if isinstance(value, (int, np.integer)):
+        return int(value)
+    if isinstance(value, (float, np.floating)):
+        value = float(value)
+        return value if math.isfinite(value) else None
+    return str(value)
+
+
+def dumps(obj: Any) -> str:
+    """Compact JSON that refuses NaN (the front end's JSON.parse would too)."""
+    return json.dumps(obj, separators=(",", ":"), allow_nan=False, ensure_ascii=False)
+
+
+def _require(table, fields, what: str) -> None:
+    if not isinstance(table, pd.DataFrame):
+        raise TypeError(f"{what} must be a pandas DataFrame, got {type(table).__name__}")
+    missing = [f for f in fields if f not in table.columns]
+    if missing:
+        raise ValueError(f"{what} lacks the column(s) {missing} (DEVELOPERS.md, result tables)")
+
+
+def _attrs(table: pd.DataFrame) -> dict:
+    attrs = getattr(table, "attrs", None) or {}
+    return {"unit": str(attrs.get("unit", "bits")), "estimator": scalar(attrs.get("estimator")),
+            "sampled": scalar(attrs.get("sampled")), "measure": scalar(attrs.get("measure"))}
+
+
+def entropy_json(table: pd.DataFrame, *, generation: int = 0) -> str:
+    """The entropy table as compact JSON rows (see the module docstring)."""
+    _require(table, ENTROPY_FIELDS, "the entropy table")
+    rows = [[scalar(v) for v in row] for row in table.loc[:, list(ENTROPY_FIELDS)].itertuples(index=False)]
+    for row in rows:  # the front end splits flags itself; keep "" for none
+        if row[-1] is None:
+            row[-1] = ""
+    a = _attrs(table)
+    return dumps({"fields": list(ENTROPY_FIELDS), "rows": rows, "unit": a["unit"],
+                  "estimator": a["estimator"], "sampled": a["sampled"], "generation": int(generation)})
+
+
+def grid_buffers(pairs: pd.DataFrame, order: list[str], *, alpha: float = 0.05,
+                 diagonal: pd.Series | None = None, generation: int = 0,
+                 order_name: str = "name") -> dict:
+    """Square float32/int32 buffers of one pair measure, in ``order``.
+
+    ``pairs`` is the long ``pairs(measure=...)`` table; ``diagonal`` (optional) gives
+    the value on the diagonal per name (e.g. the matrix's own diagonal).
+    """
+    _require(pairs, PAIR_FIELDS, "the pairs table")
+    names = [str(x) for x in order]
+    index = {name: i for i, name in enumerate(names)}
+    size = len(names)
+    values = np.full((size, size), np.nan, dtype=np.float32)
+    n = np.zeros((size, size), dtype=np.int32)
+    q = np.full((size, size), np.nan, dtype=np.float32)
+    ia = pairs["a"].astype(str).map(index)
+    ib = pairs["b"].astype(str).map(index)
+    ok = ia.notna().to_numpy() & ib.notna().to_numpy()
+    i = ia.to_numpy()[ok].astype(np.intp)
+    j = ib.to_numpy()[ok].astype(np.intp)
+    v = pd.to_numeric(pairs["value"], errors="coerce").to_numpy(dtype=np.float64)[ok]
+    nn = pd.to_numeric(pairs["n"], errors="coerce").fillna(0).to_numpy(dtype=np.int64)[ok]
+    qq = pd.to_numeric(pairs["q_value"], errors="coerce").to_numpy(dtype=np.float64)[ok]
+    for a, b in ((i, j), (j, i)):
+        values[a, b] = v
+        n[a, b] = nn
+        q[a, b] = qq
+    if diagonal is not None:
+        for name, val in diagonal.items():
+            k = index.get(str(name))
+            if k is not None:
+                values[k, k] = np.float32(val) if val is not None else np.nan
+    attrs = _attrs(pairs)
+    return {
+        "meta": {"names": names, "measure": attrs["measure"] or "mi", "unit": attrs["unit"],
+                 "order": order_name, "alpha": float(alpha), "size": size,
+                 "generation": int(generation)},
+        "values": values.tobytes(),
+        "n": n.tobytes(),
+        "q": q.tobytes(),
+    }
+
+
+def _g_parts(g_test) -> tuple[Any, Any, Any]:
+    """(G, dof, p) from a g-test result: a named tuple, a dataclass or a 3-tuple."""
+    if g_test is None:
+        return None, None, None
+    names = ("statistic", "dof", "p_value")
+    if all(hasattr(g_test, x) for x in names):
+        return tuple(scalar(getattr(g_test, x)) for x in names)
+    try:
+        g, dof, p = tuple(g_test)[:3]
+    except (TypeError, ValueError):
+        return None, None, None
+    return scalar(g), scalar(dof), scalar(p)
+
+
+def pair_view(pair, a: str, b: str, *, unit: str = "bits", min_count: int | None = None,
+              generation: int = 0) -> dict:
+    """One pair's joint table, with small cells hidden when ``min_count`` is set.
+
+    Hidden cells lose their count and their pointwise MI; when any cell is hidden the
+    margins are dropped too, so totals minus visible cells cannot give a hidden count
+    back (complementary suppression from :mod:`infoscope.report.suppression`).
+    """
+    counts = getattr(pair, "counts", None)
+    if not isinstance(counts, pd.DataFrame):
+        raise TypeError("a pair view needs a PairTable with a .counts DataFrame (ProfileSession.pair)")
+    threshold = check_min_count(min_count)
+    raw = counts.to_numpy(dtype=np.float64)
+    mask = suppression_mask(raw, threshold)
+    pmi_frame = getattr(pair, "pmi", None)
+    pmi = pmi_frame.to_numpy(dtype=np.float64) if isinstance(pmi_frame, pd.DataFrame) else np.full_like(raw, np.nan)
+    cell_counts = [[None if mask[i, j] else scalar(raw[i, j]) for j in range(raw.shape[1])]
+                   for i in range(raw.shape[0])]
+    # pointwise MI of an empty cell is -inf: it has no colour, the count 0 says it all
+    cell_pmi = [[None if mask[i, j] else scalar(pmi[i, j]) for j in range(raw.shape[1])]
+                for i in range(raw.shape[0])]
+    hidden = int(mask.sum())
+    g, dof, p = _g_parts(getattr(pair, "g_test", None))
+    return {
+        "a": str(a), "b": str(b),
+        "rows": [str(x) for x in counts.index], "cols": [str(x) for x in counts.columns],
+        "counts": cell_counts, "pmi": cell_pmi,
+        "row_totals": None if hidden else [scalar(x) for x in raw.sum(axis=1)],
+        "col_totals": None if hidden else [scalar(x) for x in raw.sum(axis=0)],
+        "n": scalar(getattr(pair, "n", None)), "mi": scalar(getattr(pair, "mi", None)),
+        "nmi": scalar(getattr(pair, "nmi", None)), "g": g, "dof": dof, "p_value": p,
+        "unit": str(unit), "min_count": threshold, "hidden_cells": hidden,
+        "generation": int(generation),
+    }
+
+
+def relevance_json(table: pd.DataFrame | None, target: str | None, *, generation: int = 0) -> str:
+    """The relevance table as compact JSON rows; ``{"target": null}`` when no target."""
+    if table is None or target is None:
+        return dumps({"target": None, "fields": list(RELEVANCE_FIELDS), "rows": [],
+                      "unit": None, "generation": int(generation)})
+    _require(table, RELEVANCE_FIELDS, "the relevance table")
+    rows = [[scalar(v) for v in row] for row in table.loc[:, list(RELEVANCE_FIELDS)].itertuples(index=False)]
+    return dumps({"target": str(target), "fields": list(RELEVANCE_FIELDS), "rows": rows,
+                  "unit": _attrs(table)["unit"], "generation": int(generation)})
+
+
+def b64(data: bytes) -> str:
+    """Base64 text of a binary buffer (how ``payload()`` carries the grid)."""
+    return base64.b64encode(bytes(data)).decode("ascii")
