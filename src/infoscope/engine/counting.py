@@ -1,0 +1,302 @@
+"""Joint count tables of many column pairs: the additive chunk / merge / finalize layer.
+
+Every table here carries the missing sentinel: a pair of columns with alphabet sizes
+``k_a`` and ``k_b`` is counted into a ``(k_a + 1) x (k_b + 1)`` table whose last row
+and column hold the rows where that column is missing (code ``k``). Tables of row
+chunks add up (:func:`merge`), so any back-end that can hand over row chunks of codes
+(in memory, a database cursor, the partitions of a cluster frame) gets the same totals;
+:func:`finalize` drops the sentinel row and column, leaving the pairwise-complete table.
+
+Two kernels count a chunk, chosen with ``backend=``:
+
+``"numba"``
+    a compiled kernel that walks the pairs in parallel (``prange``) and, for each
+    pair, streams the two code columns of the chunk once. Each pair owns its slice of
+    one flat counter array, so threads never write to the same cell and no per-thread
+    copies need merging.
+``"numpy"``
+    one ``numpy.bincount`` of ``a * (k_b + 1) + b`` per pair; no compiler needed.
+
+Both give identical tables (``tests/test_engine.py`` checks them against
+``pandas.crosstab``). ``numba`` is imported only when a count is first asked of it.
+"""
+from __future__ import annotations
+
+import os
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+__all__ = ["count_chunk", "merge", "finalize", "BACKENDS", "MAX_TABLE_CELLS"]
+
+BACKENDS = ("auto", "numba", "numpy")
+
+# A dense int64 table larger than this (128 MiB) is almost always a mistake (an
+# ID-like column that was not folded); refuse it with a message instead of
+# exhausting memory.
+MAX_TABLE_CELLS = 1 << 24
+
+
+@dataclass(frozen=True)
+class PairLayout:
+    """Where each pair's sentinel table lives inside one flat int64 counter array.
+
+    ``first[q]``/``second[q]`` index the code columns of pair ``q``, ``stride[q]`` is
+    ``k_second + 1`` and the table occupies ``flat[offset[q]:offset[q + 1]]`` in
+    row-major order (first column's code selects the row).
+    """
+
+    first: np.ndarray
+    second: np.ndarray
+    stride: np.ndarray
+    offset: np.ndarray
+    shapes: tuple[tuple[int, int], ...]
+
+    @property
+    def cells(self) -> int:
+        return int(self.offset[-1])
+
+    def split(self, flat: np.ndarray) -> list[np.ndarray]:
+        """Views of ``flat`` as one 2-D table per pair (no copy)."""
+        return [
+            flat[self.offset[q]:self.offset[q + 1]].reshape(shape)
+            for q, shape in enumerate(self.shapes)
+        ]
+
+
+def pair_layout(ks: Sequence[int], pairs: Sequence[tuple[int, int]], names=None) -> PairLayout:
+    """Offsets of the sentinel tables of ``pairs`` (indices into ``ks``) in one flat array."""
+    ks = [int(k) for k in ks]
+    first = np.fromiter((int(a) for a, _ in pairs), dtype=np.intp, count=len(pairs))
+    second = np.fromiter((int(b) for _, b in pairs), dtype=np.intp, count=len(pairs))
+    shapes = []
+    for a, b in zip(first.tolist(), second.tolist()):
+        shape = (ks[a] + 1, ks[b] + 1)
+        if shape[0] * shape[1] > MAX_TABLE_CELLS:
+            label = (names[a], names[b]) if names is not None else (a, b)
+            raise ValueError(
+                f"pair {label!r}: its joint table would have {shape[0]} x {shape[1]} cells "
+                f"(more than {MAX_TABLE_CELLS}); fold the levels of these columns "
+                "(e.g. a smaller max_categories) before counting pairs"
+            )
+        shapes.append(shape)
+    sizes = np.array([r * c for r, c in shapes], dtype=np.intp)
+    offset = np.zeros(len(pairs) + 1, dtype=np.intp)
+    np.cumsum(sizes, out=offset[1:])
+    stride = np.array([c for _, c in shapes], dtype=np.intp)
+    return PairLayout(first, second, stride, offset, tuple(shapes))
+
+
+def block_dtype(ks: Sequence[int]) -> np.dtype:
+    """Smallest unsigned dtype that holds every code 0..k (k is the missing sentinel)."""
+    top = max((int(k) for k in ks), default=0)
+    if top <= 0xFF:
+        return np.dtype(np.uint8)
+    if top <= 0xFFFF:
+        return np.dtype(np.uint16)
+    return np.dtype(np.uint32)
+
+
+def resolve_backend(backend: str) -> str:
+    """``"auto"`` -> ``"numba"`` when numba imports, else ``"numpy"``."""
+    if backend not in BACKENDS:
+        raise ValueError(f"backend must be one of {BACKENDS}, got {backend!r}")
+    if backend != "auto":
+        return backend
+    try:
+        import numba  # noqa: F401
+    except ImportError:  # pragma: no cover - numba is a dependency
+        return "numpy"
+    return "numba"
+
+
+def available_threads() -> int:
+    """All cores this process may use."""
+    try:
+        return len(os.sched_getaffinity(0))
+    except AttributeError:  # pragma: no cover - not Linux
+        return os.cpu_count() or 1
+
+
+# ----------------------------------------------------------------------------- kernels
+def count_block_numpy(block: np.ndarray, layout: PairLayout, out: np.ndarray) -> None:
+    """Add the counts of ``block`` (shape ``(columns, rows)``) into ``out`` (flat int64)."""
+    wide = {}  # a column's codes as intp, converted once per block
+    for q in range(len(layout.shapes)):
+        a, b = int(layout.first[q]), int(layout.second[q])
+        if a not in wide:
+            wide[a] = block[a].astype(np.intp)
+        lo, hi = int(layout.offset[q]), int(layout.offset[q + 1])
+        out[lo:hi] += np.bincount(wide[a] * int(layout.stride[q]) + block[b], minlength=hi - lo)
+
+
+_NUMBA_KERNEL = None
+
+
+def _numba_kernel():
+    """Compile (or load from numba's on-disk cache) the parallel pair kernel."""
+    global _NUMBA_KERNEL
+    if _NUMBA_KERNEL is None:
+        from infoscope.engine import _numba_kernels
+
+        _NUMBA_KERNEL = _numba_kernels.count_pairs
+    return _NUMBA_KERNEL
+
+
+def count_block_numba(block: np.ndarray, layout: PairLayout, out: np.ndarray) -> None:
+    """Add the counts of ``block`` (shape ``(columns, rows)``) into ``out`` (flat int64)."""
+    if block.shape[1] == 0 or len(layout.shapes) == 0:
+        return
+    _numba_kernel()(block, layout.first, layout.second, layout.stride, layout.offset, out)
+
+
+KERNELS = {"numpy": count_block_numpy, "numba": count_block_numba}
+
+
+# ------------------------------------------------------------------ the additive layer
+def _as_block(codes_block, ks) -> np.ndarray:
+    if isinstance(codes_block, np.ndarray) and codes_block.ndim == 2:
+        columns = list(codes_block)
+    elif isinstance(codes_block, np.ndarray):
+        raise ValueError(
+            f"codes_block: expected a 2-D array shaped (columns, rows) or a sequence of "
+            f"1-D code arrays, got an array of shape {codes_block.shape}"
+        )
+    else:
+        columns = [np.asarray(c) for c in codes_block]
+    if len(columns) != len(ks):
+        raise ValueError(f"codes_block has {len(columns)} columns but ks has {len(ks)} entries")
+    lengths = {c.shape[0] if c.ndim == 1 else -1 for c in columns}
+    if -1 in lengths or len(lengths) > 1:
+        raise ValueError("codes_block: every column must be 1-D and of the same length")
+    for i, (c, k) in enumerate(zip(columns, ks)):
+        if c.dtype.kind not in "ui":
+            raise TypeError(f"codes_block column {i}: codes must be integers, got dtype {c.dtype}")
+        if c.size and (int(c.min()) < 0 or int(c.max()) > int(k)):
+            raise ValueError(
+                f"codes_block column {i}: codes must lie in 0..{int(k)} (k = {int(k)} marks "
+                f"missing), found {int(c.min())}..{int(c.max())}"
+            )
+    dtype = block_dtype(ks)
+    rows = lengths.pop() if lengths else 0
+    block = np.empty((len(columns), rows), dtype=dtype)
+    for i, c in enumerate(columns):
+        block[i] = c
+    return block
+
+
+def count_chunk(codes_block, ks, pairs, *, backend: str = "auto") -> dict:
+    """Count the joint table, with missing sentinel, of each pair over one row chunk.
+
+    Parameters
+    ----------
+    codes_block : sequence of 1-D arrays, or 2-D array of shape (columns, rows)
+        The codes of the chunk's rows, one array per column (``0 .. k-1`` symbols,
+        ``k`` missing). Any number of rows, including zero.
+    ks : sequence of int
+        Alphabet size ``k`` of each column.
+    pairs : sequence of (int, int)
+        Column index pairs to count.
+    backend : {"auto", "numba", "numpy"}, default="auto"
+        Counting kernel; ``"auto"`` uses numba when it imports.
+
+    Returns
+    -------
+    dict
+        ``{(i, j): table}`` with int64 tables of shape ``(k_i + 1, k_j + 1)``; row
+        ``k_i`` / column ``k_j`` count the rows where that column is missing.
+
+    Notes
+    -----
+    Counting is additive: the tables of consecutive chunks :func:`merge` into the
+    tables of the whole data, whatever the chunk sizes.
+
+    References
+    ----------
+    .. [1] Agresti, A. (2013). *Categorical Data Analysis*, 3rd ed., Wiley, sec. 2.1
+       (contingency tables as cross-classified counts).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> t = count_chunk([np.array([0, 1, 1], np.uint8), np.array([0, 0, 2], np.uint8)],
+    ...                 ks=[2, 2], pairs=[(0, 1)], backend="numpy")
+    >>> t[(0, 1)].tolist()
+    [[1, 0, 0], [1, 0, 1], [0, 0, 0]]
+    """
+    backend = resolve_backend(backend)
+    ks = [int(k) for k in ks]
+    pairs = [(int(a), int(b)) for a, b in pairs]
+    for a, b in pairs:
+        if not (0 <= a < len(ks) and 0 <= b < len(ks)):
+            raise ValueError(f"pairs: index pair {(a, b)} out of range for {len(ks)} columns")
+    block = _as_block(codes_block, ks)
+    layout = pair_layout(ks, pairs)
+    flat = np.zeros(layout.cells, dtype=np.int64)
+    KERNELS[backend](block, layout, flat)
+    return dict(zip(pairs, layout.split(flat)))
+
+
+def merge(left: Mapping, right: Mapping) -> dict:
+    """Add two sets of chunk tables (the union of their pairs).
+
+    Parameters
+    ----------
+    left, right : mapping
+        ``{pair: table}`` as returned by :func:`count_chunk` (or an earlier merge).
+
+    Returns
+    -------
+    dict
+        ``{pair: left[pair] + right[pair]}``; a pair present on one side only is copied.
+
+    References
+    ----------
+    .. [1] Agresti, A. (2013). *Categorical Data Analysis*, 3rd ed., Wiley, sec. 2.1
+       (counts of disjoint samples add).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> merge({(0, 1): np.ones((2, 2), np.int64)}, {(0, 1): np.ones((2, 2), np.int64)})[(0, 1)].tolist()
+    [[2, 2], [2, 2]]
+    """
+    out = {}
+    for pair in {**left, **right}:
+        if pair in left and pair in right:
+            a, b = np.asarray(left[pair]), np.asarray(right[pair])
+            if a.shape != b.shape:
+                raise ValueError(f"merge: pair {pair!r} has tables of shapes {a.shape} and {b.shape}")
+            out[pair] = a.astype(np.int64) + b
+        else:
+            out[pair] = np.array(left[pair] if pair in left else right[pair], dtype=np.int64)
+    return out
+
+
+def finalize(tables: Mapping) -> dict:
+    """Drop the missing sentinel row and column: the pairwise-complete tables.
+
+    Parameters
+    ----------
+    tables : mapping
+        ``{pair: table}`` with sentinel, shape ``(k_a + 1, k_b + 1)``.
+
+    Returns
+    -------
+    dict
+        ``{pair: table[:-1, :-1]}`` as new C-contiguous int64 arrays, shape ``(k_a, k_b)``:
+        the counts over rows where both columns are present.
+
+    References
+    ----------
+    .. [1] Little, R. J. A. & Rubin, D. B. (2019). *Statistical Analysis with Missing
+       Data*, 3rd ed., Wiley, sec. 3.4 (available-case / pairwise-complete analysis).
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> finalize({(0, 1): np.arange(9).reshape(3, 3)})[(0, 1)].tolist()
+    [[0, 1], [3, 4]]
+    """
+    return {pair: np.ascontiguousarray(np.asarray(t)[:-1, :-1], dtype=np.int64) for pair, t in tables.items()}

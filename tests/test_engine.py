@@ -1,0 +1,349 @@
+"""PairEngine and the chunk / merge / finalize layer.
+
+Reference for every table: ``pandas.crosstab`` of the same codes over the rows where
+both columns are present (pairwise-complete cases), with every category 0..k-1 kept.
+"""
+from __future__ import annotations
+
+import dataclasses
+
+import numpy as np
+import pandas as pd
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from infoscope.engine import PairEngine, count_chunk, finalize, merge, sample_rows
+
+try:  # the real EncodedColumn once encode/ has landed; same fields otherwise
+    from infoscope.encode.columns import EncodedColumn as _RealColumn  # noqa: F401
+
+    HAVE_ENCODED_COLUMN = True
+except ImportError:
+    HAVE_ENCODED_COLUMN = False
+
+
+@dataclasses.dataclass(frozen=True)
+class Col:
+    """The fields of EncodedColumn the engine reads."""
+
+    name: str
+    codes: np.ndarray
+    k: int
+
+
+def make_col(name, k, n, rng, missing=0.1):
+    dtype = np.uint8 if k + 1 <= 256 else np.uint16
+    codes = rng.integers(0, max(k, 1), n) if k > 0 else np.zeros(n, dtype=np.int64)
+    codes = np.where(rng.random(n) < missing, k, codes).astype(dtype)
+    return Col(name, codes, k)
+
+
+def crosstab_reference(a: Col, b: Col) -> np.ndarray:
+    """pandas.crosstab of the rows where both codes are symbols (not the sentinel k)."""
+    both = (a.codes < a.k) & (b.codes < b.k)
+    if a.k == 0 or b.k == 0:
+        return np.zeros((a.k, b.k), dtype=np.int64)
+    ta = pd.Categorical(a.codes[both], categories=range(a.k))
+    tb = pd.Categorical(b.codes[both], categories=range(b.k))
+    return pd.crosstab(ta, tb, dropna=False).reindex(index=range(a.k), columns=range(b.k), fill_value=0).to_numpy()
+
+
+def assert_all_pairs_match_crosstab(eng: PairEngine, cols):
+    by_name = {c.name: c for c in cols}
+    tables = eng.tables()
+    names = [c.name for c in cols]
+    assert list(tables) == [(a, b) for i, a in enumerate(names) for b in names[i + 1:]]
+    for (a, b), t in tables.items():
+        assert t.dtype == np.int64
+        np.testing.assert_array_equal(t, crosstab_reference(by_name[a], by_name[b]), err_msg=f"pair {(a, b)}")
+
+
+frames = st.builds(
+    lambda seed, n, ks, missing: [
+        make_col(f"c{i}", k, n, np.random.default_rng(seed + i), missing) for i, k in enumerate(ks)
+    ],
+    seed=st.integers(0, 2**31),
+    n=st.integers(0, 400),
+    ks=st.lists(st.one_of(st.integers(0, 9), st.sampled_from([1, 17, 64, 300])), min_size=2, max_size=5),
+    missing=st.sampled_from([0.0, 0.05, 0.5]),
+)
+
+
+# ------------------------------------------------------------------ full counts
+@given(cols=frames, chunk_rows=st.integers(1, 500), threads=st.sampled_from([1, 2]),
+       backend=st.sampled_from(["numba", "numpy"]))
+def test_tables_equal_pandas_crosstab(cols, chunk_rows, threads, backend):
+    # reference: pandas.crosstab over pairwise-complete rows (see crosstab_reference)
+    eng = PairEngine(cols, chunk_rows=chunk_rows, threads=threads, backend=backend, progress=False)
+    assert_all_pairs_match_crosstab(eng, cols)
+
+
+@given(cols=frames, chunk_rows=st.integers(1, 100))
+@settings(max_examples=30)
+def test_backends_give_identical_tables(cols, chunk_rows):
+    a = PairEngine(cols, backend="numba", chunk_rows=chunk_rows, progress=False).tables()
+    b = PairEngine(cols, backend="numpy", progress=False).tables()
+    for pair in a:
+        np.testing.assert_array_equal(a[pair], b[pair])
+
+
+def test_uint16_column_with_300_levels(rng):
+    cols = [make_col("wide", 300, 5000, rng), make_col("narrow", 4, 5000, rng), make_col("mid", 255, 5000, rng)]
+    assert cols[0].codes.dtype == np.uint16 and cols[2].codes.dtype == np.uint8
+    for backend in ("numba", "numpy"):
+        eng = PairEngine(cols, backend=backend, progress=False, chunk_rows=777)
+        assert_all_pairs_match_crosstab(eng, cols)
+        assert eng.table("wide", "narrow").shape == (300, 4)
+
+
+def test_k1_and_k0_columns(rng):
+    one = Col("one", np.zeros(50, np.uint8), 1)
+    one_missing = Col("one_missing", np.where(rng.random(50) < 0.3, 1, 0).astype(np.uint8), 1)
+    empty = Col("all_missing", np.zeros(50, np.uint8), 0)  # k = 0: every row is missing
+    other = make_col("other", 3, 50, rng)
+    cols = [one, one_missing, empty, other]
+    eng = PairEngine(cols, progress=False)
+    assert_all_pairs_match_crosstab(eng, cols)
+    assert eng.table("all_missing", "other").shape == (0, 3)
+    # K = 1 against any column: the table is that column's marginal on the shared rows
+    np.testing.assert_array_equal(eng.table("one", "other")[0], eng.marginal("other"))
+
+
+def test_zero_rows():
+    cols = [Col("a", np.zeros(0, np.uint8), 3), Col("b", np.zeros(0, np.uint8), 2)]
+    for backend in ("numba", "numpy"):
+        eng = PairEngine(cols, backend=backend, progress=False)
+        t = eng.table("a", "b")
+        assert t.shape == (3, 2) and t.sum() == 0
+        assert eng.marginal("a").tolist() == [0, 0, 0]
+
+
+def test_marginal_equals_pandas_value_counts(rng):
+    col = make_col("m", 6, 1000, rng, missing=0.2)
+    eng = PairEngine([col, make_col("x", 2, 1000, rng)], progress=False)
+    # reference: pandas.Series.value_counts, missing sentinel excluded
+    ref = pd.Series(col.codes[col.codes < col.k]).value_counts().reindex(range(6), fill_value=0)
+    np.testing.assert_array_equal(eng.marginal("m"), ref.to_numpy())
+
+
+def test_table_orientation_and_read_only(rng):
+    cols = [make_col("a", 3, 200, rng), make_col("b", 5, 200, rng)]
+    eng = PairEngine(cols, progress=False)
+    np.testing.assert_array_equal(eng.table("b", "a"), eng.table("a", "b").T)
+    with pytest.raises(ValueError):
+        eng.table("a", "b")[0, 0] = 7  # the cache cannot be edited through a result
+
+
+# ---------------------------------------------------------- chunk/merge/finalize
+@given(cols=frames, data=st.data(), backend=st.sampled_from(["numba", "numpy"]))
+@settings(max_examples=40)
+def test_chunks_of_any_size_merge_to_the_engine_tables(cols, data, backend):
+    n = cols[0].codes.shape[0]
+    cuts = sorted(data.draw(st.lists(st.integers(0, n), max_size=6)))
+    bounds = [0, *cuts, n]
+    ks = [c.k for c in cols]
+    pairs = [(i, j) for i in range(len(cols)) for j in range(i + 1, len(cols))]
+    total = {}
+    for lo, hi in zip(bounds[:-1], bounds[1:]):
+        chunk = count_chunk([c.codes[lo:hi] for c in cols], ks, pairs, backend=backend)
+        assert all(chunk[(i, j)].shape == (ks[i] + 1, ks[j] + 1) for i, j in pairs)
+        total = merge(total, chunk)
+    final = finalize(total)
+    for i, j in pairs:
+        # reference: pandas.crosstab on the whole columns
+        np.testing.assert_array_equal(final[(i, j)], crosstab_reference(cols[i], cols[j]))
+
+
+def test_count_chunk_counts_the_sentinel():
+    a = np.array([0, 1, 2, 2], np.uint8)  # k = 2: code 2 is missing
+    b = np.array([1, 1, 0, 1], np.uint8)  # k = 1: code 1 is missing
+    # hand count (a, b): (0,1) (1,1) (2,0) (2,1)
+    t = count_chunk(np.stack([a, b]), [2, 1], [(0, 1)], backend="numpy")[(0, 1)]
+    assert t.tolist() == [[0, 1], [0, 1], [1, 1]]
+    assert finalize({"p": t})["p"].tolist() == [[0], [0]]
+
+
+def test_count_chunk_rejects_codes_beyond_k():
+    with pytest.raises(ValueError, match=r"column 1: codes must lie in 0\.\.2"):
+        count_chunk([np.array([0, 1]), np.array([0, 3])], [2, 2], [(0, 1)])
+    with pytest.raises(ValueError, match="out of range"):
+        count_chunk([np.array([0, 1]), np.array([0, 1])], [2, 2], [(0, 2)])
+
+
+def test_merge_rejects_mismatched_shapes():
+    with pytest.raises(ValueError, match="shapes"):
+        merge({(0, 1): np.zeros((2, 2))}, {(0, 1): np.zeros((3, 2))})
+
+
+# ----------------------------------------------------------------- incremental
+def test_reencoding_recounts_only_the_touching_pairs_in_one_pass(rng):
+    cols = [make_col(f"c{i}", k, 3000, rng) for i, k in enumerate([3, 5, 16, 2, 9, 4])]
+    eng = PairEngine(cols, progress=False, chunk_rows=1000)
+    eng.tables()
+    assert len(eng.last_counted) == 15 and eng.passes == 1
+    new2, new4 = make_col("c2", 7, 3000, rng), make_col("c4", 12, 3000, rng)
+    eng.set_column(new2)
+    eng.set_column(new4)
+    tables = eng.tables()
+    touched = {p for p in tables if "c2" in p or "c4" in p}
+    assert set(eng.last_counted) == touched and len(touched) == 9
+    assert eng.passes == 2  # both columns' pairs in a single pass over the rows
+    cols[2], cols[4] = new2, new4
+    assert_all_pairs_match_crosstab(eng, cols)
+    assert eng.last_counted == ()  # everything now comes from the cache
+
+
+def test_returning_to_earlier_codes_hits_the_cache(rng):
+    first = make_col("x", 4, 500, rng)
+    cols = [first, make_col("y", 3, 500, rng), make_col("z", 6, 500, rng)]
+    eng = PairEngine(cols, progress=False)
+    eng.tables()
+    eng.set_column(make_col("x", 8, 500, rng))
+    eng.tables()
+    eng.set_column(Col("x", first.codes.copy(), 4))  # same content, new object
+    eng.tables()
+    assert eng.last_counted == ()
+
+
+@given(seed=st.integers(0, 2**31), steps=st.lists(
+    st.tuples(st.sampled_from(["set", "add", "remove", "tables", "some"]), st.integers(0, 5), st.integers(0, 40)),
+    min_size=1, max_size=12))
+@settings(max_examples=40)
+def test_any_sequence_of_reencodings_equals_a_full_recount(seed, steps):
+    rng = np.random.default_rng(seed)
+    n = 300
+    current = {f"c{i}": make_col(f"c{i}", int(rng.integers(1, 12)), n, rng) for i in range(4)}
+    eng = PairEngine(list(current.values()), progress=False, chunk_rows=int(rng.integers(1, 400)),
+                     cache_bytes=int(rng.choice([0, 2000, 10**8])))
+    fresh_name = 10
+    for op, which, k in steps:
+        names = list(current)
+        if op == "set" and names:
+            name = names[which % len(names)]
+            current[name] = make_col(name, k, n, rng)
+            eng.set_column(current[name])
+        elif op == "add":
+            name = f"c{fresh_name}"
+            fresh_name += 1
+            current[name] = make_col(name, k, n, rng)
+            eng.set_column(current[name])
+        elif op == "remove" and len(names) > 2:
+            name = names[which % len(names)]
+            del current[name]
+            eng.remove_column(name)
+        elif op == "some" and len(names) >= 2:
+            a, b = names[which % len(names)], names[(which + 1) % len(names)]
+            np.testing.assert_array_equal(eng.table(a, b), crosstab_reference(current[a], current[b]))
+        else:
+            eng.tables()
+        assert eng.cached_bytes <= eng._cache_bytes
+    assert eng.names == list(current)
+    full = PairEngine(list(current.values()), progress=False).tables()
+    incremental = eng.tables()
+    assert list(full) == list(incremental)
+    for pair in full:
+        np.testing.assert_array_equal(incremental[pair], full[pair])
+
+
+# ------------------------------------------------------- interrupts and progress
+@pytest.mark.parametrize("backend", ["numba", "numpy"])
+def test_interrupt_between_chunks_leaves_the_engine_consistent(rng, backend):
+    cols = [make_col(f"c{i}", k, 2000, rng) for i, k in enumerate([3, 4, 5])]
+    calls = []
+
+    def interrupt_after_first_chunk(done, total):
+        calls.append((done, total))
+        if len(calls) == 1:
+            raise KeyboardInterrupt
+
+    eng = PairEngine(cols, progress=interrupt_after_first_chunk, chunk_rows=500, backend=backend)
+    with pytest.raises(KeyboardInterrupt):
+        eng.tables()
+    assert eng.cached_bytes == 0 and eng.passes == 0  # nothing half-counted was kept
+    assert_all_pairs_match_crosstab(eng, cols)  # still usable, and right
+    assert calls[-1] == (2000, 2000) and [d for d, _ in calls[1:]] == [500, 1000, 1500, 2000]
+    # after an interrupted recount of one column the other pairs are still cached
+    eng.set_column(make_col("c1", 6, 2000, rng))
+    calls.clear()
+    with pytest.raises(KeyboardInterrupt):
+        eng.tables()
+    eng.tables()
+    assert set(eng.last_counted) == {("c0", "c1"), ("c1", "c2")}
+
+
+def test_progress_bar_runs(rng, capsys):
+    cols = [make_col(f"c{i}", 3, 100, rng) for i in range(3)]
+    eng = PairEngine(cols, progress=True, chunk_rows=10)
+    assert len(eng.tables()) == 3
+    assert "counting 3 pairs" in capsys.readouterr().err
+
+
+def test_numba_thread_count_is_restored(rng):
+    import numba
+
+    before = numba.get_num_threads()
+    eng = PairEngine([make_col("a", 3, 100, rng), make_col("b", 3, 100, rng)], threads=1, progress=False,
+                     backend="numba")
+    eng.tables()
+    assert numba.get_num_threads() == before
+
+
+# --------------------------------------------------------------------- sampling
+def test_sampling_is_seeded_and_reported(rng):
+    n = 5000
+    cols = [make_col(f"c{i}", k, n, rng) for i, k in enumerate([4, 6, 3])]
+    a = PairEngine(cols, sample=800, seed=3, progress=False)
+    b = PairEngine(cols, sample=800, seed=3, progress=False)
+    c = PairEngine(cols, sample=800, seed=4, progress=False)
+    assert a.sampled == 800 and a.n == 800
+    np.testing.assert_array_equal(a.table("c0", "c1"), b.table("c0", "c1"))
+    assert not np.array_equal(a.table("c0", "c1"), c.table("c0", "c1"))
+    rows = sample_rows(n, 800, seed=3)
+    assert len(np.unique(rows)) == 800
+    picked = [Col(col.name, col.codes[rows], col.k) for col in cols]
+    # reference: pandas.crosstab on the same seeded rows
+    assert_all_pairs_match_crosstab(a, picked)
+    full = PairEngine(cols, sample=n, progress=False)
+    assert full.sampled is None and full.n == n
+
+
+def test_sample_rows_rejects_bad_sizes():
+    with pytest.raises(ValueError, match="sample"):
+        sample_rows(10, 0)
+    with pytest.raises(ValueError, match="sample"):
+        PairEngine(sample=2.5)
+
+
+# ------------------------------------------------------------------ bad input
+def test_bad_columns_name_the_column(rng):
+    eng = PairEngine([make_col("a", 3, 10, rng)], progress=False)
+    with pytest.raises(ValueError, match="column 'b' has 11 rows"):
+        eng.set_column(make_col("b", 3, 11, rng))
+    with pytest.raises(ValueError, match=r"column 'c': codes must lie in 0\.\.2"):
+        eng.set_column(Col("c", np.full(10, 3, np.uint8), 2))
+    with pytest.raises(TypeError, match="column 'd': codes must be unsigned"):
+        eng.set_column(Col("d", np.zeros(10, np.int64), 2))
+    with pytest.raises(KeyError, match="no column named 'zz'"):
+        eng.table("a", "zz")
+    eng.set_column(make_col("e", 3, 10, rng))
+    with pytest.raises(ValueError, match="with itself"):
+        eng.table("a", "a")
+    with pytest.raises(ValueError, match="backend"):
+        PairEngine(backend="gpu")
+    with pytest.raises(ValueError, match="threads"):
+        PairEngine(threads=0)
+
+
+def test_oversized_table_is_refused_with_the_pair_named():
+    big = Col("id_like", np.zeros(4, np.uint32), 70_000)
+    eng = PairEngine([big, Col("other", np.zeros(4, np.uint32), 70_000)], progress=False)
+    with pytest.raises(ValueError, match="pair \\('id_like', 'other'\\).*fold the levels"):
+        eng.tables()
+
+
+def test_cache_budget_is_respected(rng):
+    cols = [make_col(f"c{i}", 16, 500, rng) for i in range(6)]
+    eng = PairEngine(cols, progress=False, cache_bytes=5 * 16 * 16 * 8)
+    assert_all_pairs_match_crosstab(eng, cols)
+    assert 0 < eng.cached_bytes <= 5 * 16 * 16 * 8
