@@ -39,7 +39,7 @@ def gaussian_pair(rng, n, rho):
 @pytest.mark.parametrize("metric", ["chebyshev", "euclidean"])
 def test_entropy_of_gaussian_matches_closed_form(rng, metric):
     # Closed form: h(N(0, s^2)) = 1/2 ln(2 pi e s^2) nats (Cover & Thomas 2006,
-    # Elements of Information Theory, 2nd ed., eq. 8.9 -- from memory).
+    # Elements of Information Theory, 2nd ed., Ch. 8 -- from memory).
     # Spread of the estimate at n=4000, k=3: sd 0.015 nats -> tolerance 0.06.
     sigma = 2.5
     x = rng.normal(scale=sigma, size=4000)
@@ -139,6 +139,12 @@ def test_entropy_with_jitter_warns_and_is_finite(rng):
     # smaller estimate (h -> -inf as jitter -> 0), which is why a warning is shown.
     with pytest.warns(DataQualityWarning):
         assert differential_entropy(x, k=3, jitter=1e-9) < h - 5
+
+
+def test_entropy_warns_on_discrete_looking_sample(rng):
+    x = np.repeat(rng.normal(size=300), 2)  # ties, but fewer than k=3 duplicates
+    with pytest.warns(DataQualityWarning, match=r"x has only 300 distinct values in 600 rows"):
+        assert np.isfinite(differential_entropy(x, k=3))
 
 
 def test_entropy_of_constant_sample_raises_even_with_jitter():
@@ -402,6 +408,9 @@ def test_mixed_small_classes_error_names_k(rng):
     labels = np.array([0] * 20 + [1] * 3)
     with pytest.raises(ValueError, match=r"k=3 needs classes of at least k \+ 1 = 4 members.*1 \(3\)"):
         mixed_mutual_information(rng.normal(size=23), labels, k=3, small_classes="error")
+    names = np.array(["north"] * 20 + ["south"] * 2, dtype=object)
+    with pytest.raises(ValueError, match=r"1 smaller class\(es\): 'south' \(2\)"):
+        mixed_mutual_information(rng.normal(size=22), names, k=3, small_classes="error")
 
 
 def test_mixed_with_separated_classes_equals_digamma_entropy_of_labels(rng):

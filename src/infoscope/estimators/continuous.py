@@ -227,6 +227,12 @@ def differential_entropy(x, *, k=3, base=2, metric="chebyshev", jitter=None, see
         If ``k >= n``, if ``x`` holds NaN/inf or is empty, or if duplicates make a
         neighbour distance zero and ``jitter`` is None.
 
+    Warns
+    -----
+    DataQualityWarning
+        When ``jitter`` was used, and when a column has at most n/2 distinct values
+        (ties with fewer than k duplicates do not give -inf but shrink the radii).
+
     Notes
     -----
     With :math:`r_i` the distance from point :math:`i` to its k-th nearest neighbour
@@ -268,7 +274,10 @@ def differential_entropy(x, *, k=3, base=2, metric="chebyshev", jitter=None, see
 
     radius, _ = _kth_neighbour_radius(cKDTree(samples), samples, k, p)
     n_zero = int(np.count_nonzero(radius == 0))
-    if n_zero:
+    if not n_zero:
+        # Fewer than k duplicates per value still shrink the radii that ties touch.
+        _warn_if_discrete_looking(samples, "x")
+    else:
         if jitter is None or jitter == 0:
             raise ValueError(
                 f"x has {n_zero} point(s) with at least k={k} exact duplicates, so their "
@@ -468,6 +477,11 @@ def ksg_mutual_information(
 # ----------------------------------------------------------------------------
 # Mutual information between a continuous and a discrete variable: Ross (2014)
 # ----------------------------------------------------------------------------
+def _plain(value):
+    """A numpy scalar as the Python value it holds (for readable messages)."""
+    return value.item() if isinstance(value, np.generic) else value
+
+
 def _as_labels(values, parameter: str) -> np.ndarray:
     """Integer codes 0..m-1 of a 1-D sequence of discrete labels, or raise naming ``parameter``."""
     arr = np.asarray(values)
@@ -611,7 +625,7 @@ def mixed_mutual_information(
     small = np.flatnonzero(class_sizes <= k)
     if small.size:
         labels = np.unique(np.asarray(y_discrete).reshape(-1))
-        detail = ", ".join(f"{labels[c].item()!r} ({class_sizes[c]})" for c in small[:5])
+        detail = ", ".join(f"{_plain(labels[c])!r} ({class_sizes[c]})" for c in small[:5])
         more = f" and {small.size - 5} more" if small.size > 5 else ""
         if small_classes == "error":
             raise ValueError(
