@@ -11,9 +11,10 @@ How values are read
   distinct is almost surely continuous; reading it as labels makes every row its own
   symbol, so a :class:`~infoscope.DataQualityWarning` says so (pass ``bins=``, or
   ``estimator="ksg"`` for mutual information).
-* With ``bins=``, numeric columns are binned by
-  :func:`infoscope.encode.columns.encode_column` (the same codes the profile uses);
-  non-numeric and boolean columns stay labels.
+* With ``bins=``, numeric, datetime and duration columns are binned by
+  :func:`infoscope.encode.columns.encode_column` (the binning the profile uses;
+  a column with few distinct values is binned too, since bins were asked for);
+  text, categorical and boolean columns stay labels.
 * Missing values (None, NaN, NA, NaT; ±inf too, with a warning) follow ``missing``:
   ``"drop"`` keeps the rows where every column involved is present
   (pairwise-complete), ``"category"`` makes missing a symbol of its own, and
@@ -124,8 +125,15 @@ def _is_numeric(series) -> bool:
     )
 
 
+def _is_binnable(series) -> bool:
+    import pandas as pd
+
+    dtype = series.dtype
+    return _is_numeric(series) or pd.api.types.is_datetime64_any_dtype(dtype) or pd.api.types.is_timedelta64_dtype(dtype)
+
+
 def _missing_mask(series, name: str) -> np.ndarray:
-    mask = series.isna().to_numpy(dtype=bool)
+    mask = np.array(series.isna(), dtype=bool)  # a writable copy
     if _is_numeric(series):
         with np.errstate(invalid="ignore"):
             inf = np.isinf(series.to_numpy(dtype=np.float64, na_value=np.nan))
@@ -159,10 +167,14 @@ def _warn_if_continuous(series, present: np.ndarray, n_distinct: int, name: str)
 def _code_column(series, name: str, *, bins, strategy, missing) -> _Coded:
     import pandas as pd
 
-    if bins is not None and _is_numeric(series):
+    if bins is not None and _is_binnable(series):
         from infoscope.encode.columns import encode_column
 
-        enc = encode_column(series, name=name, bins=bins, strategy=strategy, missing="drop")
+        # categorical_threshold=0: the caller asked for bins, so a column with few
+        # distinct values is binned too (the profile reads those as categories).
+        enc = encode_column(
+            series, name=name, bins=bins, strategy=strategy, missing="drop", categorical_threshold=0
+        )
         codes = np.asarray(enc.codes).astype(np.int64)
         present = codes < enc.k
         k = int(enc.k)
