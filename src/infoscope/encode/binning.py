@@ -205,7 +205,7 @@ def knuth_log_posterior(values, bins) -> np.ndarray:
     ----------
     .. [1] K. H. Knuth, "Optimal data-based binning for histograms and
        histogram-based probability density models", arXiv:physics/0605197 (2006);
-       Digital Signal Processing 95, 102581 (2019), eq. 29 of the preprint (from memory).
+       Digital Signal Processing 95, 102581 (2019) (from memory).
 
     Examples
     --------
@@ -234,6 +234,10 @@ def knuth_bin_count(values, *, max_bins: int | None = None) -> int:
     can stop at a local maximum of this often multi-modal function) and the best
     is returned; on ties the smallest ``M`` wins.
 
+    On data with few distinct values (or heavy ties) the posterior keeps rising with
+    ``M`` as the bins resolve the separate values, so the answer is then the end of
+    the search; :func:`~infoscope.encode_column` keeps such columns as categories.
+
     Parameters
     ----------
     values : array-like of numbers
@@ -255,8 +259,8 @@ def knuth_bin_count(values, *, max_bins: int | None = None) -> int:
     Examples
     --------
     >>> import numpy as np
-    >>> knuth_bin_count(np.repeat([0.0, 1.0], 50))
-    1
+    >>> knuth_bin_count(np.random.default_rng(0).normal(size=1000))
+    9
     """
     cap = KNUTH_MAX_BINS if max_bins is None else int(max_bins)
     if cap < 1:
