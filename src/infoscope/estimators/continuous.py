@@ -544,9 +544,8 @@ def mixed_mutual_information(
         Logarithm base of the result (2/"bits", e/"nats", 10/"hartleys", ...).
     small_classes : {"shrink", "error"}, default="shrink"
         Classes with fewer than ``k + 1`` members cannot supply k neighbours.
-        ``"shrink"`` does what Ross's estimator is usually run with (and what
-        scikit-learn's ``mutual_info_classif`` does): such a class uses
-        ``k_c = size - 1`` neighbours, and points whose class has a single member are
+        ``"shrink"`` follows scikit-learn's ``mutual_info_classif``: such a class
+        uses ``k_c = size - 1`` neighbours, and points whose class has a single member are
         left out of the estimate (N shrinks accordingly); a
         :class:`~infoscope.SmallSampleWarning` names the classes.  ``"error"`` raises
         ``ValueError`` instead.
