@@ -25,6 +25,8 @@ _PUBLIC = {
     "cross_entropy": "infoscope.estimators.divergence",
     "psi": "infoscope.estimators.divergence",
     "differential_entropy": "infoscope.estimators.continuous",
+    "ksg_mutual_information": "infoscope.estimators.continuous",
+    "mixed_mutual_information": "infoscope.estimators.continuous",
     "bootstrap_entropy_ci": "infoscope.estimators.resampling",
     "bootstrap_mi_ci": "infoscope.estimators.resampling",
     "permutation_test_mi": "infoscope.estimators.resampling",
