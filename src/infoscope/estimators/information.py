@@ -112,6 +112,13 @@ def _plugin_mi_nats(t: np.ndarray) -> float:
     rows = t.sum(axis=1, keepdims=True)
     cols = t.sum(axis=0, keepdims=True)
     nz = t > 0
+    # When one variable is a function of the other, I equals that variable's entropy
+    # exactly; return the entropy itself so that identical partitions give NMI = AMI = 1
+    # to the last bit (the cell-wise sum differs from it by rounding).
+    if np.all(nz.sum(axis=1) <= 1):  # every row has one non-empty cell: Y = f(X)
+        return _plugin_entropy_nats(cols)
+    if np.all(nz.sum(axis=0) <= 1):  # X = f(Y)
+        return _plugin_entropy_nats(rows)
     expected = (rows * cols)[nz] / n
     mi = float(np.sum(t[nz] * np.log(t[nz] / expected)) / n)
     # Exactly >= 0 in real arithmetic (a KL divergence); a tiny negative is rounding.
