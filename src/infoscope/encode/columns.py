@@ -364,26 +364,42 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
 
 
 _TIME_STEPS_NS = (86_400 * 10**9, 3_600 * 10**9, 60 * 10**9, 10**9, 10**6, 10**3)
+_TIMESPEC = {86_400 * 10**9: "days", 3_600 * 10**9: "minutes", 60 * 10**9: "minutes",
+             10**9: "seconds", 10**6: "milliseconds", 10**3: "microseconds"}
 _UNIT_NS = {"s": 10**9, "ms": 10**6, "us": 10**3, "ns": 1}
 
 
-def _round_time_edges(edges: np.ndarray, unit: str) -> np.ndarray:
-    """Round interior edges to the coarsest of day/hour/minute/second/ms/us that keeps them distinct."""
+def _round_time_edges(edges: np.ndarray, unit: str) -> tuple[np.ndarray, int | None]:
+    """Round interior edges to a readable step (day, hour, minute, second, ms, us).
+
+    The step is the coarsest one no larger than 1/100 of the narrowest bin, so no
+    edge moves by more than 0.5 % of its bins' width; the end edges stay the data's
+    own.  Returns the edges and the step in nanoseconds (None: not rounded).
+    """
     per = _UNIT_NS.get(unit)
-    if per is None or edges.size <= 2:
-        return edges
+    if per is None or edges.size < 2:
+        return edges, None
+    narrowest_ns = float(np.diff(edges).min()) * per
     for step_ns in _TIME_STEPS_NS:
         if step_ns < per:
             break
+        if step_ns > narrowest_ns / 100:
+            continue
         step = step_ns // per
         inner = np.round(edges[1:-1] / step).astype(np.int64) * step
         cand = np.concatenate([edges[:1], inner, edges[-1:]])
         if np.all(np.diff(cand) > 0):
-            return cand
-    return edges
+            return cand, step_ns
+    return edges, None
 
 
-def _time_texts(ints: np.ndarray, unit: str, kind: str, tz) -> list[str]:
+def _time_texts(ints: np.ndarray, unit: str, kind: str, tz, step_ns: int | None = None) -> list[str]:
+    """Text of instants / durations; with a rounding step, shown to that step (ends widened to it)."""
+    if step_ns is not None and ints.size >= 2:
+        step = max(step_ns // _UNIT_NS[unit], 1)
+        ints = ints.copy()
+        ints[0] = (ints[0] // step) * step  # floor: the label interval still holds the minimum
+        ints[-1] = -((-ints[-1]) // step) * step  # ceil
     if kind == "timedelta":
         return [str(t) for t in pd.to_timedelta(ints.view(f"m8[{unit}]"))]
     idx = pd.DatetimeIndex(ints.view(f"M8[{unit}]"))
@@ -393,6 +409,12 @@ def _time_texts(ints: np.ndarray, unit: str, kind: str, tz) -> list[str]:
         texts = [t.strftime("%Y-%m-%d") for t in idx]
         if len(set(texts)) == len(texts):
             return texts
+    if step_ns is not None:
+        spec = _TIMESPEC[step_ns]
+        if spec != "days":
+            texts = [t.isoformat(sep=" ", timespec=spec) for t in idx]
+            if len(set(texts)) == len(texts):
+                return texts
     return [str(t) for t in idx]
 
 
@@ -435,10 +457,12 @@ def _temporal(series: pd.Series, notes: _Notes, bins, strategy, threshold) -> _L
         # float64 cannot hold nanosecond instants exactly: the ends are the data's own
         edges[0], edges[-1] = s[0], s[-1]
         edges = np.unique(edges)
-        edges = _round_time_edges(edges, unit)
+    step_ns = None
+    if not explicit:
+        edges, step_ns = _round_time_edges(edges, unit)
     raw = np.full(ints.size, -1, dtype=np.int64)
     raw[~missing] = binning.assign_bins(v, edges)
-    labels = list(binning.interval_labels(_time_texts(edges, unit, kind, tz)))
+    labels = list(binning.interval_labels(_time_texts(edges, unit, kind, tz, step_ns)))
     edge_arr = edges.view(f"{'m' if kind == 'timedelta' else 'M'}8[{unit}]").copy()
     return _Bins(raw, labels, edge_arr, kind, n_distinct)
 
@@ -803,7 +827,8 @@ def encode_column(
     ``"timedelta"`` (binned on the duration axis), ``"text"`` (everything else;
     object columns of one scalar type go to their typed encoder).  Interior edges
     of datetime / duration bins are rounded to the coarsest of day, hour, minute,
-    second, ms, us that keeps them distinct, so labels read well.
+    second, ms, us that is at most 1/100 of the narrowest bin (no edge moves by
+    more than 0.5 % of a bin), so labels read well; labels show that step.
 
     Flags: ``constant`` (at most one distinct non-missing value, an all-missing
     column included); ``mostly_missing`` (missing share >= 0.5); ``id_like``

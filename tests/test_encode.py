@@ -1,0 +1,557 @@
+"""encode_column / encode_frame: the EncodedColumn contract for every dtype.
+
+Every check names its outside reference beside it (numpy, pandas, scipy calls) or
+says "contract" where it checks DEVELOPERS.md's EncodedColumn rules.
+"""
+from __future__ import annotations
+
+import datetime
+import warnings
+
+import numpy as np
+import pandas as pd
+import pytest
+import scipy.stats
+from hypothesis import given
+from hypothesis import strategies as st
+
+from infoscope import DataQualityWarning
+from infoscope.encode import (
+    MISSING_LABEL,
+    OTHER_LABEL,
+    EncodedColumn,
+    EncodingCache,
+    codes_dtype,
+    column_keys,
+    content_key,
+    encode_column,
+    encode_frame,
+)
+from infoscope.encode.columns import HEAVY_TAIL_INDEX, tail_index
+
+
+def enc(values, **kw):
+    kw.setdefault("name", "col")
+    kw.setdefault("cache", False)
+    return encode_column(values, **kw)
+
+
+def check_contract(col: EncodedColumn) -> None:
+    """DEVELOPERS.md, EncodedColumn."""
+    assert col.codes.ndim == 1 and col.codes.flags.c_contiguous
+    assert col.codes.dtype == codes_dtype(col.k)
+    assert len(col.labels) == col.k and all(isinstance(s, str) for s in col.labels)
+    assert len(set(col.labels)) == col.k
+    assert col.codes.size == col.n
+    assert int(col.codes.max(initial=0)) <= col.k
+    missing_policy = dict(col.settings)["missing"]
+    n_code_k = int(np.count_nonzero(col.codes == col.k))
+    if missing_policy == "drop":
+        assert n_code_k == col.n_missing
+    else:
+        assert n_code_k == 0
+        if col.n_missing:
+            assert col.labels[-1] == MISSING_LABEL
+            assert int(np.count_nonzero(col.codes == col.k - 1)) == col.n_missing
+    hash(col.settings)
+
+
+# ---------------------------------------------------------------- numbers
+
+
+def test_quantile_codes_equal_numpy_digitize_and_pandas_cut(rng):
+    # references: numpy.digitize(x, edges[1:-1]) and numpy.histogram(x, edges) on the
+    # same edges; pandas.cut(x, edges, right=False) for values below the last edge
+    x = rng.gamma(2.0, size=4000)
+    col = enc(x, bins=10)
+    assert col.kind == "numeric" and col.k == 10
+    np.testing.assert_array_equal(col.edges, np.quantile(x, np.linspace(0, 1, 11)))
+    np.testing.assert_array_equal(col.codes, np.digitize(x, col.edges[1:-1]))
+    np.testing.assert_array_equal(col.counts(), np.histogram(x, col.edges)[0])
+    inside = x < col.edges[-1]
+    ref = pd.cut(x, col.edges, right=False, labels=False)
+    np.testing.assert_array_equal(col.codes[inside], ref[inside].astype(int))
+    # equal frequency: 4000 distinct values in 10 quantile bins (numpy.quantile, linear)
+    assert set(col.counts().tolist()) == {400}
+    assert col.labels[0].startswith("[") and col.labels[-1].endswith("]")
+    check_contract(col)
+
+
+@pytest.mark.parametrize("bins", ["fd", "sturges", "knuth", 7])
+def test_uniform_and_rules_use_bin_edges(bins, rng):
+    # reference: numpy.histogram_bin_edges / numpy.histogram on the same data
+    x = rng.normal(size=3000)
+    col = enc(x, bins=bins, strategy="uniform")
+    if bins != "knuth":
+        np.testing.assert_array_equal(col.edges, np.histogram_bin_edges(x, bins=bins))
+    np.testing.assert_array_equal(col.counts(), np.histogram(x, col.edges)[0])
+
+
+def test_zero_one_column_is_two_categories_not_sixteen_bins():
+    # contract: a 0/1 column is not binned into 16 bins
+    col = enc(np.array([0, 1, 1, 0, 1] * 20))
+    assert (col.kind, col.k, col.labels, col.edges) == ("integer_categories", 2, ("0", "1"), None)
+    # reference: numpy.unique(..., return_counts=True)
+    np.testing.assert_array_equal(col.counts(), np.unique([0, 1, 1, 0, 1] * 20, return_counts=True)[1])
+
+
+def test_few_distinct_floats_are_categories_in_numeric_order():
+    col = enc([2.5, 0.5, 1.5, 0.5, np.nan])
+    assert col.kind == "integer_categories"
+    assert col.labels == ("0.5", "1.5", "2.5")
+    np.testing.assert_array_equal(col.codes, [2, 0, 1, 0, 3])
+
+
+def test_threshold_zero_forces_binning_and_explicit_edges_always_bin():
+    x = np.array([0, 1, 2, 3] * 10)
+    assert enc(x, categorical_threshold=0, bins=2, strategy="uniform").kind == "numeric"
+    col = enc(x, bins=[0.0, 1.5, 3.0])
+    assert col.kind == "numeric" and col.labels == ("[0, 1.5)", "[1.5, 3]")
+    # reference: numpy.histogram(x, [0, 1.5, 3])
+    np.testing.assert_array_equal(col.counts(), np.histogram(x, [0.0, 1.5, 3.0])[0])
+
+
+def test_values_outside_explicit_edges_warn_and_fill_end_bins():
+    x = np.arange(100.0)
+    with pytest.warns(DataQualityWarning, match=r"column 'col': 40 value\(s\) lie outside"):
+        col = enc(x, bins=[20.0, 50.0, 79.0])
+    assert col.counts().tolist() == [50, 50]
+
+
+def test_nullable_integer_and_float_na_is_missing():
+    s = pd.Series([1, None, 3, 3] * 5, dtype="Int64")
+    col = enc(s)
+    assert (col.kind, col.k, col.n_missing, col.labels) == ("integer_categories", 2, 5, ("1", "3"))
+    f = pd.Series(np.r_[np.linspace(0, 1, 99), [np.nan]], dtype="Float64")
+    col = enc(f, bins=4)
+    assert col.n_missing == 1 and col.k == 4
+    # reference: numpy.quantile on the 99 non-missing values
+    np.testing.assert_array_equal(col.edges, np.quantile(np.linspace(0, 1, 99), np.linspace(0, 1, 5)))
+    check_contract(col)
+
+
+def test_pyarrow_backed_numbers(rng):
+    x = rng.normal(size=500)
+    s = pd.Series(x, dtype="double[pyarrow]")
+    np.testing.assert_array_equal(enc(s).codes, enc(x).codes)
+
+
+# ---------------------------------------------------------------- missing policy
+
+
+def test_missing_drop_gets_code_k_and_category_gets_a_symbol(rng):
+    x = rng.normal(size=400)
+    x[::10] = np.nan
+    drop = enc(x, bins=8, missing="drop")
+    assert drop.k == 8 and drop.n_missing == 40
+    assert np.all(drop.codes[::10] == 8)
+    cat = enc(x, bins=8, missing="category")
+    assert cat.k == 9 and cat.labels[-1] == MISSING_LABEL
+    assert np.all(cat.codes[::10] == 8) and not np.any(cat.codes == 9)
+    np.testing.assert_array_equal(drop.codes, cat.codes)  # same rows, same symbol numbers
+    check_contract(drop)
+    check_contract(cat)
+
+
+def test_missing_symbol_only_when_something_is_missing():
+    col = enc(["a", "b", "a"], missing="category")
+    assert col.labels == ("a", "b") and col.k == 2
+
+
+def test_missing_values_of_every_spelling_are_missing():
+    cells = pd.Series(["a", None, np.nan, pd.NA, "b", "a"], dtype=object)
+    col = enc(cells, missing="category")
+    assert col.n_missing == 3 and col.labels == ("a", "b", MISSING_LABEL)
+    t = pd.Series(pd.to_datetime(["2024-01-01", None, "2024-01-02"]))
+    assert enc(t).n_missing == 1
+
+
+def test_infinite_values_warn_flag_and_count_as_missing():
+    x = np.r_[np.linspace(0, 1, 97), [np.inf, -np.inf, np.inf]]
+    for policy in ("drop", "category"):
+        with pytest.warns(DataQualityWarning, match=r"column 'col': 3 infinite value\(s\) \(2 \+inf, 1 -inf\)"):
+            col = enc(x, bins=4, missing=policy)
+        assert "infinite_values" in col.flags and col.n_missing == 3
+        # never binned into the edge bins: edges from the finite values only (numpy.quantile)
+        np.testing.assert_array_equal(col.edges, np.quantile(x[:97], np.linspace(0, 1, 5)))
+        assert col.counts()[:4].sum() == 97
+
+
+def test_all_missing_and_empty_columns():
+    col = enc(np.full(5, np.nan))
+    assert (col.k, col.n_missing, col.labels) == (0, 5, ())
+    assert {"constant", "mostly_missing"} <= set(col.flags)
+    assert enc(np.full(5, np.nan), missing="category").labels == (MISSING_LABEL,)
+    empty = enc([])
+    assert empty.n == 0 and empty.k == 0 and empty.codes.size == 0
+
+
+# ---------------------------------------------------------------- categories and text
+
+
+def test_categorical_unused_categories_count_in_k():
+    # contract: K = number of categories; pandas.Categorical.value_counts() lists unused ones with 0
+    c = pd.Categorical(["lo", "hi", "lo"], categories=["lo", "mid", "hi"], ordered=True)
+    col = enc(pd.Series(c))
+    assert (col.kind, col.k, col.labels, col.n_distinct) == ("categorical", 3, ("lo", "mid", "hi"), 2)
+    np.testing.assert_array_equal(col.counts(), pd.Series(c).value_counts(sort=False).to_numpy())
+
+
+def test_unordered_categorical_and_text_are_most_frequent_first():
+    col = enc(pd.Series(["x", "y", "y", "z", "z", "z"], dtype="category"))
+    assert col.labels == ("z", "y", "x")
+    # reference: pandas.Series.value_counts (descending counts)
+    s = pd.Series(["q", "r", "r", "s", "s", "s", "s"])
+    col = enc(s)
+    vc = s.value_counts()
+    assert col.labels == tuple(vc.index) and col.counts().tolist() == vc.tolist()
+
+
+@pytest.mark.parametrize("dtype", [object, "string", "string[pyarrow]", "str"])
+def test_string_dtypes_agree_with_pandas_factorize(dtype):
+    # reference: pandas.factorize (codes up to relabelling) and value_counts
+    s = pd.Series(["b", "a", None, "b", "c", "a", "b"], dtype=dtype)
+    col = enc(s)
+    ref, uniques = pd.factorize(s)
+    mapping = {lab: i for i, lab in enumerate(col.labels)}
+    expected = [col.k if r < 0 else mapping[str(uniques[r])] for r in ref]
+    assert col.codes.tolist() == expected and col.kind == "text"
+
+
+def test_booleans_have_both_symbols():
+    col = enc(np.array([True, True, True]))
+    assert (col.kind, col.k, col.labels) == ("boolean", 2, ("False", "True"))
+    assert "constant" in col.flags
+    nb = enc(pd.Series([True, None, False], dtype="boolean"))
+    assert nb.codes.tolist() == [1, 2, 0]
+    assert enc(pd.Series([True, None, False], dtype=object)).codes.tolist() == [1, 2, 0]
+
+
+def test_mixed_types_keep_one_and_string_one_apart():
+    with pytest.warns(DataQualityWarning, match=r"column 'mix': values of several types \(int: 2, str: 2"):
+        col = enc(pd.Series([1, "1", 1, "1", True], dtype=object), name="mix")
+    assert "mixed_types" in col.flags
+    assert col.k == 3 and set(col.labels) == {"int:1", "str:1", "bool:True"}
+
+
+def test_unhashable_cells_use_a_stable_text_and_warn():
+    cells = pd.Series([[1, 2], {"a": 1, "b": 2}, {"b": 2, "a": 1}, {3, 1}, [1, 2], None], dtype=object)
+    with pytest.warns(DataQualityWarning) as record:
+        col = enc(cells, name="blobs")
+    messages = [str(w.message) for w in record]
+    assert "column 'blobs': 5 cell(s) hold unhashable values (dict, list, set)" in messages[0]
+    assert "column 'blobs': values of several types (list: 2, dict: 2, set: 1)" in messages[1]
+    codes = col.codes.tolist()
+    assert codes[0] == codes[4] and codes[1] == codes[2] and codes[5] == col.k
+    assert "dict:{'a': 1, 'b': 2}" in col.labels and "set:{1, 3}" in col.labels
+
+
+def test_all_list_cells_are_one_type_text():
+    with pytest.warns(DataQualityWarning, match="unhashable"):
+        col = enc(pd.Series([[1], [2], [1]], dtype=object))
+    assert col.labels == ("[1]", "[2]") and "mixed_types" not in col.flags
+
+
+def test_reserved_labels_in_the_data_stay_distinct():
+    col = enc(pd.Series(["(missing)", None, "(other)"]), missing="category")
+    assert col.k == 3 and len(set(col.labels)) == 3 and col.labels[-1] == MISSING_LABEL
+
+
+# ---------------------------------------------------------------- folding
+
+
+def test_folding_keeps_the_most_frequent_levels():
+    # contract: K <= max_categories; the rarest levels fold into "(other)"
+    values = [f"v{i}" for i in range(10) for _ in range(10 - i)]  # v0 x10, v1 x9, ... v9 x1
+    with pytest.warns(DataQualityWarning, match=r"column 'col': 6 of 10 levels \(21 row\(s\)\) are folded"):
+        col = enc(values, max_categories=5)
+    assert col.k == 5 and "levels_folded" in col.flags
+    assert col.labels == ("v0", "v1", "v2", "v3", OTHER_LABEL)
+    assert col.counts().tolist() == [10, 9, 8, 7, 6 + 5 + 4 + 3 + 2 + 1]
+    assert col.n_distinct == 10
+
+
+def test_folding_counts_the_missing_symbol_in_k():
+    values = [f"v{i}" for i in range(10) for _ in range(10 - i)] + [None] * 3
+    with pytest.warns(DataQualityWarning, match="folded"):
+        col = enc(values, max_categories=5, missing="category")
+    assert col.k == 5 and col.labels[-2:] == (OTHER_LABEL, MISSING_LABEL)
+    check_contract(col)
+
+
+def test_folding_an_ordered_categorical_keeps_natural_order():
+    cats = ["a", "b", "c", "d", "e"]
+    c = pd.Categorical(["e"] * 5 + ["a"] * 4 + ["c"] * 3 + ["b", "d"], categories=cats, ordered=True)
+    with pytest.warns(DataQualityWarning, match="folded"):
+        col = enc(pd.Series(c), max_categories=4)
+    assert col.labels == ("a", "c", "e", OTHER_LABEL)
+
+
+def test_max_categories_none_never_folds_and_bad_values_raise():
+    values = [str(i) for i in range(300)]
+    col = enc(values, max_categories=None)
+    assert col.k == 300 and col.codes.dtype == np.uint16
+    with pytest.raises(ValueError, match="max_categories=1 is invalid"):
+        enc(values, max_categories=1)
+    with pytest.raises(ValueError, match=r"column 'col': max_categories=2 leaves no room"):
+        enc(["a", "b", None], max_categories=2, missing="category")
+
+
+def test_codes_dtype_follows_k():
+    # contract: uint8 when k + 1 <= 256, else uint16, else uint32
+    assert [codes_dtype(k) for k in (0, 255, 256, 65535, 65536)] == [
+        np.uint8, np.uint8, np.uint16, np.uint16, np.uint32,
+    ]
+    assert enc([str(i) for i in range(255)], max_categories=None).codes.dtype == np.uint8
+    assert enc([str(i) for i in range(256)], max_categories=None).codes.dtype == np.uint16
+
+
+# ---------------------------------------------------------------- time
+
+
+def test_zoned_datetimes_bin_on_utc_instants_with_local_labels(rng):
+    # reference: pandas.Series.dt.tz_convert("UTC"): the same instants in UTC and in
+    # New York (across the March DST change) get identical codes
+    utc = pd.Series(pd.date_range("2024-03-01", periods=24 * 30, freq="h", tz="UTC"))
+    ny = utc.dt.tz_convert("America/New_York")
+    a, b = enc(utc, bins=6), enc(ny, bins=6)
+    assert a.kind == b.kind == "datetime"
+    np.testing.assert_array_equal(a.codes, b.codes)
+    np.testing.assert_array_equal(a.edges, b.edges)
+    assert b.labels[0].startswith("[2024-02-29 19:00-05:00")
+    assert b.labels[-1].endswith("-04:00]")
+    # reference: numpy.digitize on the int64 UTC instants with the same edges
+    ints = utc.dt.tz_localize(None).to_numpy().view(np.int64)
+    np.testing.assert_array_equal(b.codes, np.digitize(ints, b.edges.view(np.int64)[1:-1]))
+
+
+def test_naive_datetimes_quantile_bins_are_near_equal_frequency(rng):
+    t = pd.Series(pd.Timestamp("2020-01-01") + pd.to_timedelta(rng.uniform(0, 365, 2000), unit="D"))
+    col = enc(t, bins=4)
+    assert col.kind == "datetime" and col.edges.dtype.kind == "M"
+    # edges are numpy.quantile of the instants, rounded to whole units for readability
+    assert np.all(np.abs(col.counts() - 500) <= 5)
+
+
+def test_few_distinct_dates_are_categories_with_date_labels():
+    d = [datetime.date(2024, 1, 2), datetime.date(2024, 1, 1), None, datetime.date(2024, 1, 2)]
+    col = enc(d)
+    assert (col.kind, col.labels, col.codes.tolist()) == ("datetime", ("2024-01-01", "2024-01-02"), [1, 0, 2, 1])
+
+
+def test_timedeltas_bin_on_the_duration_axis(rng):
+    td = pd.Series(pd.to_timedelta(rng.integers(0, 10_000, 1000), unit="s"))
+    col = enc(td, bins=5)
+    assert col.kind == "timedelta" and col.edges.dtype.kind == "m"
+    # reference: numpy.digitize on the int64 durations
+    np.testing.assert_array_equal(col.codes, np.digitize(td.to_numpy().view(np.int64), col.edges.view(np.int64)[1:-1]))
+
+
+def test_datetime_edges_reuse_on_another_sample(rng):
+    t = pd.Series(pd.date_range("2024-01-01", periods=1000, freq="min", tz="Europe/Paris"))
+    ref = enc(t, bins=4)
+    again = enc(t, bins=ref.edges)
+    np.testing.assert_array_equal(again.codes, ref.codes)
+    with pytest.raises(TypeError, match="datetime64"):
+        enc(t, bins=[0.0, 1.0])
+
+
+# ---------------------------------------------------------------- flags
+
+
+def test_id_like_text_and_row_numbers():
+    assert "id_like" in enc([f"user-{i}" for i in range(100)], max_categories=None).flags
+    assert "id_like" not in enc([f"user-{i}" for i in range(10)]).flags  # too few rows to tell
+    assert "id_like" in enc(np.arange(1000)).flags  # dense whole numbers
+
+
+def test_id_like_is_not_every_all_distinct_number(rng):
+    assert "id_like" not in enc(rng.normal(size=1000)).flags
+    amounts = rng.choice(10**7, size=500, replace=False)  # distinct, sparse, unordered
+    assert "id_like" not in enc(amounts, name="amount").flags
+    assert "id_like" in enc(amounts, name="customer_id").flags
+    assert "id_like" in enc(np.sort(amounts), name="amount").flags  # strictly increasing: a counter
+
+
+def test_constant_and_mostly_missing():
+    assert "constant" in enc(["k"] * 30).flags
+    col = enc(np.r_[np.ones(5), np.full(5, np.nan)])
+    assert {"constant", "mostly_missing"} <= set(col.flags)
+    assert "mostly_missing" not in enc(np.r_[np.arange(6.0), np.full(4, np.nan)]).flags
+
+
+def test_tail_index_thresholds_separate_light_and_heavy_tails():
+    # reference: population quantiles from scipy.stats ppf; the documented values
+    def population(dist):
+        q = dist.ppf([0.001, 0.25, 0.5, 0.75, 0.999])
+        return max(q[4] - q[2], q[2] - q[0]) / (q[3] - q[1])
+
+    assert population(scipy.stats.norm) == pytest.approx(2.29, abs=0.01)
+    assert population(scipy.stats.expon) == pytest.approx(5.66, abs=0.01)
+    assert population(scipy.stats.lognorm(1.0)) == pytest.approx(14.5, abs=0.1)
+    assert population(scipy.stats.cauchy) == pytest.approx(159, abs=1)
+    assert population(scipy.stats.expon) < HEAVY_TAIL_INDEX < population(scipy.stats.lognorm(1.0))
+    rng = np.random.default_rng(7)
+    sample = np.sort(scipy.stats.lognorm(1.0).rvs(size=20_000, random_state=rng))
+    assert tail_index(sample) == pytest.approx(population(scipy.stats.lognorm(1.0)), rel=0.15)
+
+
+def test_heavy_tail_flag(rng):
+    assert "heavy_tail" in enc(rng.lognormal(sigma=1.0, size=5000)).flags
+    assert "heavy_tail" in enc(rng.standard_cauchy(size=5000)).flags
+    assert "heavy_tail" not in enc(rng.normal(size=5000)).flags
+    assert "heavy_tail" not in enc(rng.exponential(size=5000)).flags
+
+
+# ---------------------------------------------------------------- cache
+
+
+def test_cache_returns_the_same_object_for_same_content_and_settings(rng):
+    store = EncodingCache()
+    x = rng.normal(size=1000)
+    a = encode_column(x, name="x", cache=store)
+    b = encode_column(x.copy(), name="x", cache=store)  # equal content, another array
+    assert a is b and store.hits == 1
+    c = encode_column(x, name="x", bins=8, cache=store)
+    assert c is not a and c.k == 8
+    renamed = encode_column(x, name="y", cache=store)
+    assert renamed.name == "y" and renamed.codes is a.codes
+
+
+def test_cache_sees_changed_content_and_never_holds_user_arrays(rng):
+    store = EncodingCache()
+    x = rng.normal(size=1000)
+    a = encode_column(x, name="x", cache=store)
+    assert not np.shares_memory(a.codes, x)
+    x[:500] *= 2.0  # the user changes their array in place
+    b = encode_column(x, name="x", cache=store)
+    assert b is not a
+    with pytest.raises(ValueError):
+        a.codes[0] = 3  # cached arrays are read-only
+
+
+def test_cache_repeats_warnings_on_a_hit():
+    store = EncodingCache()
+    x = np.r_[np.arange(50.0), [np.inf]]
+    with pytest.warns(DataQualityWarning, match="column 'a': 1 infinite"):
+        first = encode_column(x, name="a", cache=store)
+    with pytest.warns(DataQualityWarning, match="column 'b': 1 infinite"):
+        second = encode_column(x, name="b", cache=store)
+    assert second.codes is first.codes
+
+
+def test_cache_is_bounded_in_bytes(rng):
+    store = EncodingCache(max_bytes=30_000)
+    samples = [rng.normal(size=10_000) for _ in range(5)]
+    cols = [encode_column(x, name=f"c{i}", cache=store) for i, x in enumerate(samples)]
+    assert store.nbytes <= 30_000 and len(store) < 5
+    assert encode_column(samples[-1], name="c4", cache=store) is cols[-1]  # newest kept
+    assert encode_column(samples[0], name="c0", cache=store) is not cols[0]  # oldest evicted
+
+
+def test_content_key_tells_apart_what_pandas_hashes_alike():
+    # pandas.util.hash_pandas_object hashes objects through their text: 1 and "1" alike
+    a = pd.Series([1, "x"], dtype=object)
+    b = pd.Series(["1", "x"], dtype=object)
+    assert content_key(a) != content_key(b)
+    c1 = pd.Series(pd.Categorical(["a"], categories=["a"]))
+    c2 = pd.Series(pd.Categorical(["a"], categories=["a", "b"]))
+    assert content_key(c1) != content_key(c2)
+    assert content_key(pd.Series(["", "a"], dtype="string")) != content_key(pd.Series([None, "a"], dtype="string"))
+    assert content_key(pd.Series([[1]], dtype=object)) is None  # unhashable: not cached
+
+
+# ---------------------------------------------------------------- input safety
+
+
+@pytest.mark.parametrize(
+    "make",
+    [
+        lambda: np.r_[np.arange(50.0), [np.nan, np.inf]],
+        lambda: pd.Series([3, None, 1] * 10, dtype="Int64"),
+        lambda: pd.Series(["b", None, "a"] * 10, dtype=object),
+        lambda: pd.Series(pd.Categorical(["x", "y"], categories=["y", "x", "z"])),
+        lambda: pd.Series(pd.date_range("2024-01-01", periods=60, freq="D", tz="Asia/Tokyo")),
+        lambda: pd.Series([[1], {"a": 2}, 3], dtype=object),
+    ],
+)
+def test_input_is_never_modified(make):
+    original, copy = make(), make()
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        col = encode_column(original, name="c", max_categories=2 if isinstance(original, np.ndarray) else 64)
+    if isinstance(original, pd.Series):
+        pd.testing.assert_series_equal(original, copy)
+    else:
+        np.testing.assert_array_equal(original, copy)
+    check_contract(col)
+
+
+# ---------------------------------------------------------------- frames
+
+
+def test_encode_frame_keys_duplicates_and_multiindex():
+    df = pd.DataFrame([[1, 2, 3, 4]], columns=["a", "a", 7, "a (2)"])
+    with pytest.warns(DataQualityWarning, match=r"column names repeat \('a'\)"):
+        cols = encode_frame(df, cache=False)
+    assert [c.name for c in cols] == ["a", "a (3)", "7", "a (2)"]
+    mi = pd.DataFrame([[1, 2]], columns=pd.MultiIndex.from_tuples([("x", "p"), ("x", "")]))
+    assert [c.name for c in encode_frame(mi, cache=False)] == ["x / p", "x"]
+    assert column_keys(["a", "a", "a"], warn=False) == ["a", "a (2)", "a (3)"]
+
+
+def test_encode_frame_accepts_polars():
+    pl = pytest.importorskip("polars")
+    frame = pl.DataFrame({"n": [1.0, 2.0, None], "s": ["a", None, "a"]})
+    cols = encode_frame(frame, cache=False)
+    assert [(c.name, c.n_missing) for c in cols] == [("n", 1), ("s", 1)]
+
+
+# ---------------------------------------------------------------- bad input
+
+
+def test_bad_arguments_name_the_problem():
+    with pytest.raises(TypeError, match="name must be a str"):
+        encode_column([1, 2], name=3)
+    with pytest.raises(ValueError, match="missing='keep' is not valid"):
+        enc([1, 2], missing="keep")
+    with pytest.raises(ValueError, match=r"column 'col': expected a 1-D column"):
+        enc(np.zeros((2, 2)))
+    with pytest.raises(TypeError, match="scalar"):
+        enc(5)
+    with pytest.raises(ValueError, match="bins='nope'"):
+        enc([1.0], bins="nope")
+    with pytest.raises(ValueError, match="categorical_threshold=-1"):
+        enc([1.0], categorical_threshold=-1)
+
+
+# ---------------------------------------------------------------- properties
+
+cells = st.one_of(
+    st.none(), st.floats(allow_nan=True, allow_infinity=False), st.integers(-5, 5),
+    st.sampled_from(["a", "b", "c"]),
+)
+
+
+@given(st.lists(cells, max_size=60), st.sampled_from(["drop", "category"]), st.integers(2, 6))
+def test_codes_stay_in_the_alphabet(values, missing, max_categories):
+    # contract: codes in 0..k; k only for missing rows under "drop"; len(labels) == k
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        col = enc(pd.Series(values, dtype=object), missing=missing,
+                  max_categories=max(max_categories, 3))
+    check_contract(col)
+    assert col.k <= max(max_categories, 3)
+    assert col.counts().sum() == col.n - (col.n_missing if missing == "drop" else 0)
+
+
+@given(st.lists(st.floats(-1e9, 1e9), min_size=1, max_size=200), st.integers(1, 20),
+       st.sampled_from(["quantile", "uniform"]))
+def test_binned_codes_match_numpy_histogram(values, bins, strategy):
+    # reference: numpy.histogram(x, edges) counts on the edges encode_column chose
+    x = np.array(values)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        col = enc(x, bins=bins, strategy=strategy, categorical_threshold=0)
+    check_contract(col)
+    np.testing.assert_array_equal(col.counts(), np.histogram(x, col.edges)[0])
