@@ -182,14 +182,17 @@ function num(v, digits = 3) {
 function count(v) { return v == null || !Number.isFinite(v) ? "\u2014" : Math.round(v).toLocaleString("en-US"); }
 function pval(p) { return p == null || !Number.isFinite(p) ? "\u2014" : p < 0.001 ? "< 0.001" : num(p, 2); }
 function pct(v) { return v == null || !Number.isFinite(v) ? "\u2014" : `${Math.round(v * 100)}%`; }
-function niceMax(v) {
+function tickStep(max, n = 5) {
+  const raw = max / n, p = 10 ** Math.floor(Math.log10(raw)), m = raw / p;
+  return (m <= 1 ? 1 : m <= 2 ? 2 : m <= 5 ? 5 : 10) * p;
+}
+function niceMax(v) { // the axis end: the first tick at or above v
   if (!(v > 0) || !Number.isFinite(v)) return 1;
-  const p = 10 ** Math.floor(Math.log10(v)), m = v / p;
-  return (m <= 1 ? 1 : m <= 2 ? 2 : m <= 2.5 ? 2.5 : m <= 5 ? 5 : 10) * p;
+  const step = tickStep(v);
+  return Number((Math.ceil(v / step - 1e-9) * step).toPrecision(6));
 }
 function ticks(max, n = 5) {
-  const raw = max / n, p = 10 ** Math.floor(Math.log10(raw)), m = raw / p;
-  const step = (m <= 1 ? 1 : m <= 2 ? 2 : m <= 5 ? 5 : 10) * p;
+  const step = tickStep(max, n);
   const out = [];
   for (let v = 0; v <= max + step * 1e-9; v += step) out.push(Number(v.toPrecision(6)));
   return out;
@@ -483,7 +486,8 @@ function gridView(ctx) {
   const mutedSw = h("span", { class: "isc-swatch" });
   const mutedText = h("span");
   const legend = h("div", { class: "isc-legend" }, h("span", null, legendMin, " ", legendBar, " ", legendMax),
-    h("span", null, mutedSw, mutedText), h("span", null, h("span", { class: "isc-swatch", style: { background: "#e7e4dc" } }), "a column with itself"));
+    h("span", null, mutedSw, mutedText), h("span", null, h("span", { class: "isc-swatch", style: { background: "linear-gradient(135deg,#fff 45%,#c9c4b8 45% 55%,#fff 55%)" } }), "a column with itself"),
+    h("span", null, "colour ∝ √ value"));
   el.append(h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Information grid"), unitEl, order.el), wrap, legend, live);
   const st = { names: [], size: 0, values: null, n: null, q: null, cell: 10, mx: 0, my: 0, max: 1, cursor: [0, 1], alpha: 0.05 };
 
@@ -523,9 +527,9 @@ function gridView(ctx) {
 
   function colourAt(i, j) {
     const k = i * st.size + j, v = st.values[k];
-    if (i === j) return [231, 228, 220];
+    if (i === j) return [255, 255, 255];
     if (!Number.isFinite(v)) return [240, 239, 235];
-    const c = SEQUENTIAL.at(Math.max(0, v) / st.max);
+    const c = SEQUENTIAL.at(gridT(v, st.max));
     return st.q[k] < st.alpha ? c : mute(c);
   }
 
@@ -545,6 +549,7 @@ function gridView(ctx) {
     const W = st.mx + st.size * st.cell + 2, H = st.my + st.size * st.cell + 2;
     canvas.width = Math.round(W * dpr); canvas.height = Math.round(H * dpr);
     canvas.style.width = `${W}px`; canvas.style.height = `${H}px`;
+    canvas.dataset.cell = String(st.cell); canvas.dataset.offset = String(st.mx); // for tests and tools
     const g = canvas.getContext("2d");
     g.setTransform(dpr, 0, 0, dpr, 0, 0);
     g.clearRect(0, 0, W, H);
@@ -553,6 +558,14 @@ function gridView(ctx) {
       const [r, gg, b] = colourAt(i, j);
       g.fillStyle = `rgb(${r},${gg},${b})`;
       g.fillRect(st.mx + j * st.cell, st.my + i * st.cell, st.cell - gap, st.cell - gap);
+    }
+    if (st.cell >= 6) { // the diagonal: a column with itself, struck through
+      g.strokeStyle = "#c9c4b8"; g.lineWidth = 1;
+      for (let i = 0; i < st.size; i++) {
+        const x0 = st.mx + i * st.cell, y0 = st.my + i * st.cell;
+        g.strokeRect(x0 + 0.5, y0 + 0.5, st.cell - gap - 1, st.cell - gap - 1);
+        g.beginPath(); g.moveTo(x0 + 2, y0 + 2); g.lineTo(x0 + st.cell - gap - 2, y0 + st.cell - gap - 2); g.stroke();
+      }
     }
     if (st.mx) { // labels: left (right-aligned) and top (rotated), truncated to the margin
       g.fillStyle = "#57606a"; g.font = `${Math.min(11, st.cell)}px system-ui, sans-serif`; g.textBaseline = "middle";
@@ -585,7 +598,8 @@ function gridView(ctx) {
 
   function drawLegend() {
     const g = legendBar.getContext("2d");
-    for (let x = 0; x < legendBar.width; x++) { g.fillStyle = SEQUENTIAL.css(x / (legendBar.width - 1)); g.fillRect(x, 0, 1, legendBar.height); }
+    // the bar runs linearly in value; the colour follows the grid's square-root scale
+    for (let x = 0; x < legendBar.width; x++) { g.fillStyle = SEQUENTIAL.css(gridT(x / (legendBar.width - 1), 1)); g.fillRect(x, 0, 1, legendBar.height); }
     legendMin.textContent = "0";
     legendMax.textContent = `${num(st.max)}${HAS_UNIT[st.measure] ? ` ${st.unit}` : ""}`;
   }
@@ -644,6 +658,10 @@ function gridView(ctx) {
   requestAnimationFrame(draw);
   return { el, draw, destroy: () => ro && ro.disconnect(), state: st, canvas };
 }
+
+// colour position of a grid value: square root of the share of the largest off-diagonal
+// value, so that a few near-duplicate pairs do not wash every other pair out
+function gridT(v, max) { return Math.sqrt(Math.max(0, v) / max); }
 
 function fitText(g, text, width) {
   text = String(text);

@@ -1,0 +1,286 @@
+"""Browser tier: the profile ESM rendered in headless Chromium from a harness page.
+
+The harness imports ``static/profile.js`` and calls ``render({model, el})`` with the
+small model of ``modelFromPayload``; a fake kernel in the page answers setting
+changes with payloads that the real ``ProfileWidget`` computed in this test (so the
+numbers on screen are infoscope's own, not invented). Screenshots go to
+``test-artifacts/``.
+"""
+from __future__ import annotations
+
+import json
+import warnings
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+ESM = Path(__file__).resolve().parents[2] / "src" / "infoscope" / "widgets" / "static" / "profile.js"
+
+HARNESS = """<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><title>infoscope harness</title></head>
+<body style="margin:16px;background:#fff">
+<div id="app" style="max-width:1240px"></div>
+<script type="module">
+import { render, modelFromPayload } from "/profile.js";
+const data = await (await fetch("/payloads.json")).json();
+window.__pwned = false;
+window.__saves = [];
+window.__sent = [];
+const SETTINGS = ["bins", "strategy", "estimator", "alpha", "measure", "unit", "missing", "target", "min_count", "column_bins"];
+const DATA = ["_entropy", "_grid_meta", "_grid_values", "_grid_n", "_grid_q", "_pair", "_relevance", "_meta"];
+function decode(state, binary) {
+  const out = { ...state };
+  for (const k of binary || []) {
+    const bin = atob(out[k]); const b = new Uint8Array(bin.length);
+    for (let i = 0; i < bin.length; i++) b[i] = bin.charCodeAt(i);
+    out[k] = new DataView(b.buffer);
+  }
+  return out;
+}
+// the fake kernel: answer a change with the payload computed for those settings
+function answer(keys, m) {
+  window.__saves.push(Object.fromEntries(keys.map((k) => [k, m.get(k)])));
+  const gen = ((m.get("_status") || {}).generation || 0) + 1;
+  m.set("_status", { state: "computing", message: "Recomputing...", generation: gen, progress: 0.3, notes: [] });
+  setTimeout(() => {
+    if (keys.includes("selected_pair") && keys.length === 1) {
+      const [a, b] = m.get("selected_pair");
+      const hit = (data.base.pair_cache || {})[a + "\\u0000" + b] || (data.base.pair_cache || {})[b + "\\u0000" + a];
+      if (hit) m.set("_pair", hit);
+      m.set("_status", { state: "idle", message: "", generation: gen, progress: null, notes: [] });
+      return;
+    }
+    const want = Object.fromEntries(SETTINGS.map((k) => [k, m.get(k)]));
+    const found = data.answers.find((p) => SETTINGS.every((k) => JSON.stringify(p.state[k]) === JSON.stringify(want[k])));
+    if (!found) {
+      m.set("_status", { state: "error", message: "the fake kernel has no answer for " + JSON.stringify(want), generation: gen, progress: null, notes: [] });
+      return;
+    }
+    const st = decode(found.state, found.binary);
+    for (const k of DATA) m.set(k, st[k]);
+    m.set("_status", { state: "idle", message: "", generation: gen, progress: null, notes: [] });
+  }, window.__delay ?? 40);
+}
+const offline = new URLSearchParams(location.search).has("offline");
+const which = new URLSearchParams(location.search).get("payload") || "base";
+const model = modelFromPayload(data[which], offline ? {} : { onSave: answer, onSend: (msg) => window.__sent.push(msg) });
+window.__model = model;
+window.__cleanup = render({ model, el: document.getElementById("app") });
+window.__ready = true;
+</script></body></html>
+"""
+
+
+def _quiet(fn, *args, **kwargs):
+    """Run a session step; folded-level notes are expected in the demo data."""
+    from infoscope import InfoscopeWarning
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        return fn(*args, **kwargs)
+
+
+@pytest.fixture(scope="module")
+def payloads():
+    from infoscope.datasets import make_deliveries
+    from infoscope.frame.session import ProfileSession
+    from infoscope.widgets import ProfileWidget
+
+    frame = make_deliveries(800, seed=3)
+    session = _quiet(ProfileSession, frame, n_boot=0)
+    w = _quiet(ProfileWidget, session, threaded=False, target="late", min_count=5)
+    base = _quiet(w.payload)
+    answers = [base]
+    for change in ({"bins": 17}, {"bins": 8}, {"bins": 8, "estimator": "plugin"},
+                   {"bins": 16, "estimator": "plugin"}):
+        for key, value in {"bins": 16, "estimator": "miller_madow", **change}.items():
+            _quiet(setattr, w, key, value)
+        assert w._status["state"] == "idle", w._status
+        answers.append(_quiet(w.payload, top_pairs=0))
+    # a frame whose names and values are markup: they must show as text
+    rng = np.random.default_rng(7)
+    evil_name = "<img src=x onerror=alert(1)>"
+    evil_value = "<script>window.__pwned = true; alert(2)</script>"
+    evil = pd.DataFrame({
+        evil_name: rng.choice([evil_value, "plain", "<b>bold</b>"], size=300),
+        "size \"quoted\" & <i>": rng.normal(size=300),
+        "ok": rng.choice(["x", "y"], size=300),
+    })
+    ws = _quiet(ProfileWidget, _quiet(ProfileSession, evil, n_boot=0), threaded=False,
+                target="ok", selected_pair=[evil_name, "ok"])
+    return {"base": base, "answers": answers, "evil": _quiet(ws.payload),
+            "evil_name": evil_name, "evil_value": evil_value}
+
+
+@pytest.fixture
+def harness(served, web, payloads):
+    served.put_file("/profile.js", ESM)
+    served.put("/payloads.json", json.dumps(payloads))
+    served.put("/harness.html", HARNESS)
+
+    def open_(query: str = ""):
+        web.goto(served.url("/harness.html" + query))
+        web.page.wait_for_function("window.__ready === true")
+        web.page.wait_for_timeout(120)  # one animation frame of batched redraws
+        return web.page
+
+    return open_
+
+
+def _bar_widths(page):
+    return page.eval_on_selector_all(
+        ".isc-entropy .isc-erow", "rows => rows.map(r => [r.dataset.column, r.querySelector('.isc-val').textContent])")
+
+
+def test_profile_renders_every_view_offline_clean(harness, web, artifacts):
+    page = harness()
+    for sel in (".isc-controls", ".isc-entropy", ".isc-grid", ".isc-pair", ".isc-relevance", ".isc-caution"):
+        assert page.locator(sel).count() == 1, sel
+    rows = _bar_widths(page)
+    assert len(rows) == 17 and all(v != "\u2014" for _, v in rows if _ != "parcel_ref")
+    # the caution line says what the numbers are and are not
+    caution = page.text_content(".isc-caution")
+    assert "dependence, not cause" in caution and "800 rows" in caution
+    # the pair view shows the kernel's pair with hidden small cells noted (min_count=5)
+    assert "hidden" in page.text_content(".isc-pair") or "none are" in page.text_content(".isc-pair")
+    assert web.outside_requests == [] and web.page_errors == [] and web.dialogs == []
+    web.screenshot(artifacts / "profile-full.png", full_page=True)
+    for name in ("controls", "entropy", "grid", "pair", "relevance"):
+        page.locator(f".isc-{name}").screenshot(path=str(artifacts / f"profile-{name}.png"))
+
+
+def test_bins_slider_and_estimator_dropdown_redraw(harness, web, artifacts):
+    page = harness()
+    before = dict(_bar_widths(page))
+    slider = page.locator(".isc-controls input[type=range]").first
+    slider.focus()
+    page.keyboard.press("ArrowRight")  # 16 -> 17, keyboard operable
+    page.wait_for_function("window.__saves.length >= 1")
+    assert page.evaluate("window.__saves[0]") == {"bins": 17}
+    page.wait_for_function("(window.__model.get('_status')||{}).state === 'idle'")
+    page.wait_for_timeout(80)
+    after17 = dict(_bar_widths(page))
+    slider.fill("8")
+    page.wait_for_function("window.__model.get('bins') === 8 && (window.__model.get('_status')||{}).state === 'idle'")
+    page.wait_for_timeout(80)
+    after8 = dict(_bar_widths(page))
+    numeric = "distance_km"
+    assert before[numeric] != after8[numeric], "the bars did not redraw for bins=8"
+    assert before[numeric] != after17[numeric] or before != after17
+    assert page.text_content(".isc-controls output") == "8"
+    page.select_option(".isc-controls select[aria-label=Estimator]", "plugin")
+    page.wait_for_function("window.__model.get('estimator') === 'plugin' && (window.__model.get('_status')||{}).state === 'idle'")
+    page.wait_for_timeout(80)
+    plugin = dict(_bar_widths(page))
+    assert plugin != after8, "the bars did not redraw for the plug-in estimator"
+    assert "plug-in" in page.text_content(".isc-entropy .isc-punit")
+    # the pseudocount slider is only live for the Dirichlet estimator
+    assert page.locator(".isc-controls input[aria-label='Pseudocount per cell']").is_disabled()
+    assert web.outside_requests == [] and web.page_errors == []
+    page.locator(".isc-controls").screenshot(path=str(artifacts / "controls-after-change.png"))
+
+
+def test_unanswered_change_shows_error_in_view(harness, web):
+    page = harness()
+    page.select_option(".isc-controls select[aria-label=Binning]", "sturges")
+    page.wait_for_function("(window.__model.get('_status')||{}).state === 'error'")
+    page.wait_for_timeout(80)
+    alert = page.locator(".isc-error")
+    assert alert.is_visible() and "no answer" in alert.text_content()
+    # a rule sets the bin count: the bins slider is disabled and says so
+    assert page.locator(".isc-controls input[type=range]").first.is_disabled()
+    assert "by rule" in page.text_content(".isc-controls output")
+
+
+def test_grid_click_opens_pair_view(harness, web, artifacts):
+    page = harness()
+    canvas = page.locator(".isc-grid canvas").first
+    names = page.evaluate("window.__model.get('_grid_meta').names")
+    shown = page.evaluate("window.__model.get('_pair')")
+    # a precomputed pair other than the one shown (the fake kernel answers from those)
+    a, b = next(k.split("\u0000") for k in page.evaluate("Object.keys(window.__model.get('_pair_cache'))")
+                if set(k.split("\u0000")) != {shown["a"], shown["b"]})
+    i, j = names.index(a), names.index(b)
+    cell = float(canvas.get_attribute("data-cell"))
+    off = float(canvas.get_attribute("data-offset"))
+    canvas.hover(position={"x": off + (j + 0.5) * cell, "y": off + (i + 0.5) * cell})
+    tip = page.locator(".isc-tip")
+    assert tip.is_visible() and f"{a} \u00d7 {b}" in tip.text_content() and "q =" in tip.text_content()
+    canvas.click(position={"x": off + (j + 0.5) * cell, "y": off + (i + 0.5) * cell})
+    page.wait_for_function("([a, b]) => JSON.stringify(window.__model.get('selected_pair')) === JSON.stringify([a, b])", arg=[a, b])
+    page.wait_for_function("(a) => document.querySelector('.isc-pair .isc-punit').textContent.includes(a)", arg=a)
+    title = page.text_content(".isc-pair .isc-punit")
+    assert a in title and b in title
+    assert page.locator(".isc-pair table td").count() > 4
+    # keyboard: Enter on the focused grid opens the pair under the cursor
+    canvas.focus()
+    down = i + 1 < len(names) and i + 1 != j  # step off the clicked cell, never onto the diagonal
+    page.keyboard.press("ArrowDown" if down else "ArrowUp")
+    page.keyboard.press("Enter")
+    page.wait_for_function("window.__saves.filter(s => 'selected_pair' in s).length >= 2")
+    moved = names[i + 1 if down else i - 1]
+    assert page.evaluate("window.__model.get('selected_pair')") == [moved, b]
+    page.locator(".isc-pair").screenshot(path=str(artifacts / "pair-after-click.png"))
+    assert web.outside_requests == [] and web.page_errors == []
+
+
+def test_names_and_values_are_text_not_markup(harness, web, payloads, artifacts):
+    page = harness("?payload=evil")
+    page.wait_for_timeout(200)
+    app = page.locator("#app")
+    assert payloads["evil_name"] in app.text_content()
+    assert page.locator(f".isc-erow[data-column='{payloads['evil_name']}']").count() == 1
+    pair_text = page.text_content(".isc-pair")
+    assert payloads["evil_value"] in pair_text
+    assert page.locator("#app img").count() == 0
+    assert page.locator("#app script").count() == 0
+    assert page.locator("#app i").count() == 0  # the name 'size "quoted" & <i>' made no element
+    assert page.evaluate("[...document.querySelectorAll('#app b')].every(b => b.textContent !== 'bold')")
+    assert "<b>bold</b>" in pair_text or "<b>bold</b>" in app.text_content()
+    canvas = page.locator(".isc-grid canvas").first
+    cell = float(canvas.get_attribute("data-cell"))
+    off = float(canvas.get_attribute("data-offset"))
+    canvas.hover(position={"x": off + 1.5 * cell, "y": off + 0.5 * cell})
+    assert page.locator(".isc-tip img").count() == 0
+    assert page.evaluate("window.__pwned") is False
+    assert web.dialogs == [] and web.page_errors == [] and web.outside_requests == []
+    web.screenshot(artifacts / "escaping.png", full_page=True)
+
+
+def test_offline_copy_uses_precomputed_pairs(harness, web):
+    page = harness("?offline")
+    assert page.locator(".isc-controls select[aria-label=Estimator]").is_disabled()
+    assert "saved copy" in page.text_content(".isc-status")
+    names = page.evaluate("window.__model.get('_grid_meta').names")
+    cache = page.evaluate("Object.keys(window.__model.get('_pair_cache'))")
+    a, b = cache[1].split("\u0000")
+    canvas = page.locator(".isc-grid canvas").first
+    cell = float(canvas.get_attribute("data-cell"))
+    off = float(canvas.get_attribute("data-offset"))
+    i, j = names.index(a), names.index(b)
+    canvas.click(position={"x": off + (j + 0.5) * cell, "y": off + (i + 0.5) * cell})
+    page.wait_for_timeout(100)
+    title = page.text_content(".isc-pair .isc-punit")
+    assert a in title and b in title
+    assert web.outside_requests == []
+
+
+def test_grid_stays_responsive_at_200_columns(harness, web, artifacts):
+    page = harness()
+    # 200 columns of a synthetic square (a rendering load test, not a numeric check)
+    took = page.evaluate("""() => {
+      const n = 200, names = Array.from({length: n}, (_, i) => 'col_' + String(i).padStart(3, '0'));
+      const v = new Float32Array(n * n), q = new Float32Array(n * n), c = new Int32Array(n * n);
+      for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) {
+        const d = Math.abs(i - j); v[i * n + j] = 1 / (1 + d); q[i * n + j] = d < 40 ? 0.001 : 0.5; c[i * n + j] = 1000; }
+      const m = window.__model, t0 = performance.now();
+      m.set('_grid_values', new DataView(v.buffer)); m.set('_grid_q', new DataView(q.buffer));
+      m.set('_grid_n', new DataView(c.buffer));
+      m.set('_grid_meta', {names, measure: 'mi', unit: 'bits', order: 'name', alpha: 0.05, size: n, generation: 9});
+      return new Promise((res) => requestAnimationFrame(() => requestAnimationFrame(() => res(performance.now() - t0))));
+    }""")
+    assert took < 1500, f"drawing 200 x 200 cells took {took:.0f} ms"
+    assert page.locator(".isc-grid canvas").count() == 2  # the grid and its legend: no DOM per cell
+    page.locator(".isc-grid").screenshot(path=str(artifacts / "grid-200.png"))
