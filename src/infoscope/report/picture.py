@@ -181,12 +181,15 @@ def profile_svg_from_tables(entropy: pd.DataFrame, matrix: pd.DataFrame | None =
         top = max([v for v in values if v > 0] + [1e-12])
         parts.append(f'<text x="{gx - 100:.1f}" y="40" font-size="13" font-weight="bold" {FONT}>'
                      f'Information grid ({svg_text(measure)})</text>')
+        for i in range(n):  # a column with itself: not a pair
+            parts.append(f'<rect x="{gx + i * size:.1f}" y="{gy + i * size:.1f}" width="{size:.1f}" '
+                         f'height="{size:.1f}" fill="#e6e3da"/>')
         for c in cells:
             i, j = index.get(c["a"]), index.get(c["b"])
             if i is None or j is None:
                 continue
             v = c["value"]
-            fill = PALETTE["hidden"] if v is None else _mix(PALETTE["grid_low"], PALETTE["grid_high"], v / top)
+            fill = PALETTE["hidden"] if v is None else _mix(PALETTE["grid_low"], PALETTE["grid_high"], math.sqrt(max(v, 0.0) / top))
             parts.append(f'<rect x="{gx + j * size:.1f}" y="{gy + i * size:.1f}" width="{size:.1f}" '
                          f'height="{size:.1f}" fill="{fill}"><title>{svg_text(c["a"])} × {svg_text(c["b"])}: '
                          f'{svg_text(_fmt(v, 3))}</title></rect>')
@@ -195,7 +198,7 @@ def profile_svg_from_tables(entropy: pd.DataFrame, matrix: pd.DataFrame | None =
                 parts.append(f'<text x="{gx - 4:.1f}" y="{gy + (i + 0.8) * size:.1f}" font-size="{min(size - 1, 10):.0f}" '
                              f'text-anchor="end" {FONT}>{svg_text(name, 16)}</text>')
         parts.append(f'<text x="{gx:.1f}" y="{gy + n * size + 12:.1f}" font-size="9" {FONT}>'
-                     f'darker: more shared information (max {svg_text(_fmt(top, 3))})</text>')
+                     f'darker: more shared information (square-root scale, max {svg_text(_fmt(top, 3))})</text>')
         width = gx + n * size + 20
         height = max(height, gy + n * size + 20)
 

@@ -1,0 +1,109 @@
+"""The self-contained HTML export opened in headless Chromium with no network.
+
+Checks: zero outside requests (the ``web`` fixture aborts and records any request
+whose host is not loopback), every view renders, a hostile column name and a
+hostile value show as text and run nothing, and small-cell suppression holds in
+the file itself (nothing to recover from the JSON a reader can open).
+"""
+from __future__ import annotations
+
+import json
+import re
+import warnings
+
+import numpy as np
+import pytest
+
+from infoscope.datasets import make_deliveries
+from infoscope.frame.session import ProfileSession
+from infoscope.report.html import to_html
+from infoscope.widgets.profile import ProfileWidget
+
+HOSTILE_NAME = "<img src=x onerror=alert(1)>"
+HOSTILE_VALUE = "<script>window.__pwned=1</script>"
+MIN_COUNT = 10
+
+
+@pytest.fixture(scope="module")
+def exported(tmp_path_factory):
+    frame = make_deliveries(3_000, seed=7)
+    frame = frame.rename(columns={"booking_channel": HOSTILE_NAME})
+    depot = frame["depot"].astype(str).to_numpy(copy=True)
+    depot[:40] = HOSTILE_VALUE
+    frame["depot"] = depot
+    frame = frame.drop(columns=["parcel_ref", "contents", "courier_note"])  # keep the page small
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # the demo's planted data-quality warnings
+        session = ProfileSession(frame, target="late", n_boot=0)
+        widget = ProfileWidget(session, threaded=False, selected_pair=[HOSTILE_NAME, "depot"])
+        widget.wait()
+        path = to_html(widget, tmp_path_factory.mktemp("export") / "profile.html", min_count=MIN_COUNT)
+    yield {"path": path, "session": session, "widget": widget}
+    widget.close()
+
+
+def _payload(text: str) -> dict:
+    match = re.search(r'<script type="application/json" id="isc-payload">(.*?)</script>', text, re.S)
+    assert match, "the payload element is in the file"
+    return json.loads(match.group(1))
+
+
+def test_export_makes_no_outside_request_and_renders_every_view(exported, served, web, artifacts):
+    url = served.put("/export/profile.html", exported["path"].read_bytes())
+    web.goto(url)
+    web.page.wait_for_selector("body[data-rendered]", timeout=20_000)
+    assert web.page.evaluate("document.body.dataset.rendered") == "yes", web.page.inner_text("body")[:500]
+    text = web.page.inner_text("#isc-view")
+    for heading in ("Entropy bars", "Information grid", "Pair view", "Relevance"):
+        assert heading in text
+    # every column of the profile has an entropy bar row
+    for name in exported["session"].names:
+        assert name in text
+    web.screenshot(artifacts / "export.png", full_page=True)
+    assert web.outside_requests == []
+    assert web.page_errors == [] and web.console_errors == []
+    # only the page itself came from the server: nothing else was fetched
+    assert [r for r in served.requests if r.startswith("/export/")] == ["/export/profile.html"]
+
+
+def test_hostile_name_and_value_are_text_and_run_nothing(exported, served, web):
+    url = served.put("/export/hostile.html", exported["path"].read_bytes())
+    web.goto(url)
+    web.page.wait_for_selector("body[data-rendered='yes']", timeout=20_000)
+    text = web.page.inner_text("body")
+    assert HOSTILE_NAME in text
+    assert HOSTILE_VALUE in text  # the depot label shows in the pair view of (name, depot)
+    assert web.page.evaluate("window.__pwned === undefined")
+    assert web.page.evaluate("document.querySelectorAll('img[src=x], #isc-view script').length") == 0
+    assert web.dialogs == []
+
+
+def test_suppression_holds_in_the_file(exported):
+    text = exported["path"].read_text(encoding="utf-8")
+    payload = _payload(text)
+    session = exported["session"]
+    views = [payload["state"]["_pair"], *payload["pair_cache"].values()]
+    checked = 0
+    for view in views:
+        if not view or not view.get("counts"):
+            continue
+        true = session.pair(view["a"], view["b"]).counts.to_numpy()
+        shipped = np.array([[np.nan if c is None else c for c in row] for row in view["counts"]], dtype=float)
+        small = (true > 0) & (true < MIN_COUNT)
+        assert np.isnan(shipped[small]).all(), f"small cells of {view['a']} x {view['b']} are hidden"
+        visible = ~np.isnan(shipped)
+        assert (shipped[visible] == true[visible]).all()
+        if small.any():
+            checked += 1
+            assert view["row_totals"] is None and view["col_totals"] is None
+            for line in [*np.isnan(shipped), *np.isnan(shipped).T]:
+                assert line.sum() != 1
+            pmi = np.array([[np.nan if c is None else 0 for c in row] for row in view["pmi"]])
+            assert np.isnan(pmi[~visible]).all()
+    assert checked >= 1, "the export holds at least one pair view with small cells"
+    assert f"counts below {MIN_COUNT} are hidden" in text
+
+
+def test_export_refuses_a_missing_folder(exported, tmp_path):
+    with pytest.raises(FileNotFoundError, match="does not exist"):
+        to_html(exported["widget"], tmp_path / "nope" / "p.html")
