@@ -35,8 +35,11 @@ __all__ = ["UNSEEN_LABEL", "align_to_reference", "drift_table"]
 
 #: Label of the symbol that collects levels the reference never had.
 UNSEEN_LABEL = "(unseen)"
-# max_categories used to list every level of a column without folding
+# categorical_threshold that keeps every distinct value of a column as a level
 _ALL_LEVELS = 2**31 - 1
+# kinds whose labels are comparable with each other
+_FAMILY = {"numeric": "number", "integer_categories": "number", "categorical": "text",
+           "text": "text", "boolean": "boolean", "datetime": "datetime", "timedelta": "timedelta"}
 
 
 def _encode(values: pd.Series, name: str, settings: tuple, **override):
@@ -122,6 +125,10 @@ def align_to_reference(current: pd.Series, reference: pd.Series, name: str, sett
             full = _quiet_encode(reference, name, settings, max_categories=None)
             for label in full.labels:
                 index.setdefault(label, index[OTHER_LABEL])
+        if _FAMILY.get(cur.kind) != _FAMILY.get(ref.kind) and cur.n_missing < cur.n:
+            warnings.warn(f"column {name!r} is {ref.kind} in the reference but {cur.kind} in this "
+                          "frame: values of another type cannot match the reference's levels and "
+                          "count as unseen", DataQualityWarning, stacklevel=3)
     cur_k = int(cur.k)
     level_counts = np.bincount(cur.codes, minlength=cur_k + 1)[:cur_k]
     cur_counts = np.zeros(k + 1, dtype=np.int64)

@@ -145,7 +145,10 @@ def _check_settings(settings: Mapping) -> dict:
 
 def _check_bins(bins, parameter: str):
     if isinstance(bins, str):
-        return bins  # a rule name: the encoder validates it and lists the valid ones
+        from infoscope.encode.binning import BIN_RULES
+
+        # checked here too: a rule change reaches the encoder only for binned columns
+        return check_choice(bins, BIN_RULES, parameter)
     if isinstance(bins, bool) or not isinstance(bins, numbers.Integral) or bins < 1:
         raise ValueError(f"{parameter}={bins!r} must be a number of bins >= 1 or a rule name such as 'fd'")
     return int(bins)
@@ -306,9 +309,25 @@ class ProfileSession:
             self._engine = None
             self._encoded.clear()
             return self._encode(self._names)
-        changed = [k for k in self._names
-                   if self._encoding_settings(k, merged) != self._encoding_settings(k, old)]
+        changed = [k for k in self._names if self._needs_encoding(k, old, merged)]
         return self._encode(changed)
+
+    def _needs_encoding(self, key: str, old: Mapping, new: Mapping) -> bool:
+        """Whether a settings change can change this column's codes.
+
+        Bins and strategy matter only to binned columns (whether a number is binned
+        at all depends on its distinct values, not on ``bins``); ``max_categories``
+        only to columns kept as levels; ``missing`` only to columns with missing rows.
+        """
+        names = ("bins", "strategy", "missing", "max_categories")
+        before = dict(zip(names, self._encoding_settings(key, old)))
+        after = dict(zip(names, self._encoding_settings(key, new)))
+        changed = {name for name in names if before[name] != after[name]}
+        col = self._encoded[key]
+        relevant = {"bins", "strategy"} if col.edges is not None else {"max_categories"}
+        if col.n_missing:
+            relevant.add("missing")
+        return bool(changed & relevant)
 
     def set_column_bins(self, name: str, bins) -> None:
         """Override the bins of one column (``None`` clears the override).

@@ -1,0 +1,260 @@
+"""The frame layer: the profile finds what the demo planted; sessions are incremental.
+
+The demo data are invented (infoscope.datasets); what they plant is listed in
+PLANTED and confirmed independently of infoscope in test_datasets.py.  Checks of
+the numbers against outside references are in test_frame_reference.py.
+"""
+from __future__ import annotations
+
+import sys
+
+import numpy as np
+import pandas as pd
+import pytest
+
+import infoscope  # noqa: F401  (registers df.info_profile)
+from infoscope.datasets import PLANTED, make_deliveries, make_deliveries_batch
+from infoscope.frame.results import (
+    DRIFT_COLUMNS,
+    ENTROPY_COLUMNS,
+    PAIRS_COLUMNS,
+    RELEVANCE_COLUMNS,
+)
+from infoscope.frame.session import ProfileSession
+
+TARGET = PLANTED["target"]
+
+# The demo log has two many-level columns on purpose (an identifier and a goods
+# category with rare levels); folding their rare levels warns every time a session
+# encodes them.  test_folding_warns_and_names_the_columns checks that warning once.
+pytestmark = pytest.mark.filterwarnings("ignore:column '(parcel_ref|contents)'.*folded:UserWarning")
+
+
+@pytest.fixture(scope="module")
+def log():
+    return make_deliveries(20_000, seed=0)
+
+
+@pytest.fixture(scope="module")
+def session(log):
+    return ProfileSession(log, target=TARGET, n_boot=50)
+
+
+# ------------------------------------------------------------------ contracts
+def test_tables_have_the_contract_columns_and_attrs(session, log):
+    entropy = session.entropy()
+    assert tuple(entropy.columns) == ENTROPY_COLUMNS
+    assert tuple(session.pairs().columns) == PAIRS_COLUMNS
+    assert tuple(session.relevance().columns) == RELEVANCE_COLUMNS
+    assert tuple(session.drift(log).columns) == DRIFT_COLUMNS
+    for table in (entropy, session.pairs(), session.relevance(), session.matrix(), session.drift(log)):
+        assert table.attrs["unit"] == "bits"
+        assert table.attrs["estimator"] == "miller_madow"
+        assert table.attrs["sampled"] is None
+    assert session.pairs("nmi").attrs["measure"] == "nmi"
+    assert list(entropy["column"]) == session.names == list(log.columns)
+    p = len(log.columns)
+    assert len(session.pairs()) == p * (p - 1) // 2
+
+
+def test_entropy_table_is_consistent(session):
+    e = session.entropy()
+    finite = e.dropna(subset=["entropy"])
+    # max H = log2 K, efficiency = H / max H, effective categories = 2 ** H (definitions)
+    np.testing.assert_allclose(finite["max_entropy"], np.log2(finite["k"]))
+    ok = finite["max_entropy"] > 0
+    np.testing.assert_allclose(finite.loc[ok, "efficiency"],
+                               finite.loc[ok, "entropy"] / finite.loc[ok, "max_entropy"])
+    np.testing.assert_allclose(finite["effective_categories"], 2.0 ** finite["entropy"])
+    varied = finite[finite["k"] > 1]
+    assert (varied["ci_low"] <= varied["ci_high"]).all()
+    assert (e["missing_share"] == e["missing"] / e["n"]).all()
+
+
+def test_units_scale(log):
+    bits = ProfileSession(log[["depot", "service"]], n_boot=0).entropy()["entropy"]
+    nats = ProfileSession(log[["depot", "service"]], n_boot=0, base="nats").entropy()["entropy"]
+    # 1 bit = ln 2 nats (definition of the units)
+    np.testing.assert_allclose(nats, bits * np.log(2.0))
+
+
+# ------------------------------------------------------------------ planted structure
+@pytest.mark.filterwarnings("error")
+def test_folding_warns_and_names_the_columns(log):
+    from infoscope import DataQualityWarning
+
+    with pytest.warns(DataQualityWarning) as record:
+        ProfileSession(log, n_boot=0)
+    messages = [str(w.message) for w in record]
+    assert any("'parcel_ref'" in m and "folded" in m for m in messages)
+    assert any("'contents'" in m and "folded" in m for m in messages)
+    assert len(messages) == 2
+
+
+def test_near_duplicates_have_the_top_nmi(session):
+    pairs = session.pairs("nmi").sort_values("nmi", ascending=False)
+    top = pairs.iloc[0]
+    assert {top["a"], top["b"]} == set(PLANTED["near_duplicates"])
+    assert top["nmi"] > 0.8
+
+
+def test_leak_is_flagged_and_only_the_leak(session):
+    rel = session.relevance()
+    flagged = rel.loc[rel["leakage"], "column"].tolist()
+    assert flagged == [PLANTED["leak"]]
+    assert rel.iloc[0]["column"] == PLANTED["leak"]
+    assert rel.iloc[0]["share_of_target"] > 0.95
+
+
+def test_informative_columns_are_significant(session):
+    rel = session.relevance().set_index("column")
+    for column in PLANTED["informative"]:
+        assert rel.loc[column, "q_value"] < 1e-6, column
+    # independent columns (planted without a link to the target) are not
+    for column in ("fragile", "booking_channel"):
+        assert rel.loc[column, "q_value"] > 0.001, column
+
+
+def test_planted_flags_are_found(session):
+    flags = session.entropy().set_index("column")["flags"].str.split(",")
+    for column, flag in PLANTED["flags"].items():
+        assert flag in flags[column], (column, flags[column])
+    # a flag planted on one column is not sprayed over the others
+    for flag in ("id_like", "constant", "heavy_tail"):
+        holders = [c for c, f in flags.items() if flag in f]
+        assert holders == [c for c, f in PLANTED["flags"].items() if f == flag], flag
+
+
+def test_drift_flags_exactly_the_drifted_columns(log):
+    batch = make_deliveries_batch(10_000, seed=1, drift=True)
+    flags = ProfileSession(batch).drift(log).set_index("column")["flag"]
+    expected = {c: PLANTED["drift"].get(c, "stable") for c in log.columns}
+    assert flags.to_dict() == expected
+
+
+def test_batch_without_drift_is_stable(log):
+    batch = make_deliveries_batch(10_000, seed=2, drift=False)
+    flags = ProfileSession(batch).drift(log).set_index("column")["flag"]
+    expected = {c: PLANTED["no_drift"].get(c, "stable") for c in log.columns}
+    assert flags.to_dict() == expected
+
+
+def test_drift_of_a_frame_from_itself_is_zero(log):
+    d = ProfileSession(log).drift(log)
+    assert (d["psi"].abs() < 1e-12).all() and (d["flag"] == "stable").all()
+    assert (d["p_value"] > 0.999).all()
+
+
+# ------------------------------------------------------------------ incremental session
+def test_update_re_encodes_only_what_changed(log):
+    s = ProfileSession(log, n_boot=0)
+    s.pairs()
+    binned = set(s.numeric_keys())
+    assert {"weight_kg", "distance_km", "dispatched_at"} <= binned
+    assert "depot" not in binned
+    assert s.update(bins=8) == binned
+    assert s.update(estimator="plugin") == set()
+    assert s.update(max_categories=32) <= set(s.names) - binned
+    # after updates, the tables equal a fresh session's
+    fresh = ProfileSession(log, n_boot=0, bins=8, estimator="plugin", max_categories=32)
+    pd.testing.assert_frame_equal(s.pairs(), fresh.pairs())
+
+
+def test_only_touching_pairs_are_recounted(log):
+    s = ProfileSession(log[["weight_kg", "depot", "service", "distance_km"]], n_boot=0)
+    s.pairs()
+    s.set_column_bins("weight_kg", 4)
+    assert s.column("weight_kg").k == 4
+    s.pairs()
+    counted = {frozenset(p) for p in s.engine.last_counted}
+    assert counted == {frozenset(("weight_kg", other)) for other in ("depot", "service", "distance_km")}
+    s.set_column_bins("weight_kg", None)
+    assert s.column("weight_kg").k == 16
+
+
+def test_matrix_is_symmetric_and_clusters_duplicates(session):
+    m = session.matrix("nmi", order="cluster")
+    assert list(m.index) == list(m.columns)
+    np.testing.assert_allclose(m.to_numpy(), m.to_numpy().T)
+    order = list(m.index)
+    a, b = PLANTED["near_duplicates"]
+    assert abs(order.index(a) - order.index(b)) == 1
+    by_name = session.matrix("mi")
+    assert list(by_name.index) == session.names
+    # the diagonal of the MI matrix is each column's entropy (I(X;X) = H(X))
+    e = session.entropy().set_index("column")["entropy"]
+    np.testing.assert_allclose(np.diag(by_name.to_numpy()), e[session.names].to_numpy())
+
+
+def test_pair_table(session, log):
+    pt = session.pair("service", TARGET)
+    assert pt.counts.shape == (3, 2)
+    assert pt.n == len(log)
+    np.testing.assert_allclose(pt.expected.to_numpy().sum(), pt.n)
+    row = session.pairs().set_index(["a", "b"]).loc[("service", TARGET)]
+    assert pt.mi == pytest.approx(row["mi"])
+    assert pt.g_test[2] == pytest.approx(row["p_value"])
+
+
+def test_measures(session):
+    for measure in ("mi", "nmi", "adjusted_mi", "vi"):
+        t = session.pairs(measure, columns=["depot", "service", TARGET])
+        assert t.attrs["measure"] == measure and len(t) == 3
+    vi = session.pairs("vi", columns=["depot", TARGET])["value"].iloc[0]
+    e = session.entropy().set_index("column")["entropy"]
+    mi = session.pairs("mi", columns=["depot", TARGET])["mi"].iloc[0]
+    # VI = H(A) + H(B) - 2 I(A; B) (Meila 2007), with the same estimator
+    assert vi == pytest.approx(e["depot"] + e[TARGET] - 2 * mi, abs=1e-3)
+
+
+def test_sample_is_reported(log):
+    s = ProfileSession(log, sample=5_000, seed=3, n_boot=0)
+    e = s.entropy()
+    assert e.attrs["sampled"] == 5_000 and s.pairs().attrs["sampled"] == 5_000
+    assert (e["n"] == 5_000).all()
+    again = ProfileSession(log, sample=5_000, seed=3, n_boot=0).entropy()
+    pd.testing.assert_frame_equal(e, again)
+    assert s.update(sample=None) == set(s.names)
+    assert s.entropy().attrs["sampled"] is None
+
+
+def test_bootstrap_is_seeded(log):
+    a = ProfileSession(log[["depot", "late"]], n_boot=50, seed=4).entropy()
+    b = ProfileSession(log[["depot", "late"]], n_boot=50, seed=4).entropy()
+    pd.testing.assert_frame_equal(a, b)
+
+
+# ------------------------------------------------------------------ accessor
+def test_accessor_matches_session_and_never_goes_stale(log):
+    df = log[["depot", "service", TARGET]].copy()
+    direct = ProfileSession(df, n_boot=0).entropy()
+    via = df.info_profile.entropy(n_boot=0)
+    pd.testing.assert_frame_equal(direct, via)
+    assert df.info_profile.pairs() is not None
+    # change the frame in place: the accessor must not serve the old numbers
+    df.loc[: len(df) // 2, "service"] = "express"
+    after = df.info_profile.entropy(n_boot=0)
+    assert after.set_index("column").loc["service", "entropy"] < via.set_index("column").loc["service", "entropy"]
+
+
+def test_accessor_methods(log):
+    df = log[["depot", "service", "weight_kg", "weight_lb", TARGET]]
+    assert len(df.info_profile.pairs("nmi")) == 10
+    assert df.info_profile.matrix(order="cluster").shape == (5, 5)
+    assert df.info_profile.pair("depot", TARGET).n == len(df)
+    assert df.info_profile.relevance(TARGET, n_boot=0).attrs["target"] == TARGET
+    assert len(df.info_profile.drift(df)) == 5
+
+
+def test_widget_call_without_widgets_is_a_clear_import_error(monkeypatch, log):
+    monkeypatch.setitem(sys.modules, "infoscope.widgets.profile", None)
+    with pytest.raises(ImportError, match="live profile widget"):
+        log[["depot"]].info_profile()
+
+
+def test_polars_frame_gives_the_same_entropy_table(log):
+    pl = pytest.importorskip("polars")
+    small = log[["depot", "weight_kg", "stops_before", "fragile", "courier_note", TARGET]]
+    from_polars = ProfileSession(pl.from_pandas(small), n_boot=20).entropy()
+    from_pandas = ProfileSession(small, n_boot=20).entropy()
+    pd.testing.assert_frame_equal(from_polars.drop(columns="kind"), from_pandas.drop(columns="kind"))
