@@ -215,6 +215,11 @@ def test_infinite_values_are_missing_with_a_warning():
     assert got == pytest.approx(m.mutual_information(np.delete(x, 2), np.delete(y, 2), estimator="plugin"))
 
 
+def test_empty_input_is_a_clear_error():
+    with pytest.raises(ValueError, match="x and y are empty"):
+        m.g_test([], [])
+
+
 def test_all_rows_missing_is_a_clear_error():
     with pytest.raises(ValueError, match="no rows left: there is no row where x and y are all present"):
         m.mutual_information([None, "a"], [1.0, np.nan])

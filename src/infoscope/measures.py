@@ -23,7 +23,8 @@ How values are read
   estimators that use the alphabet size K, such as ``james_stein``, see that K); a
   binned column has one symbol per bin.
 
-The user's data are never modified.
+Columns are paired by position (row i with row i); the index of a pandas Series
+is ignored.  The user's data are never modified.
 """
 from __future__ import annotations
 
@@ -215,7 +216,9 @@ def _check_common(missing, bins, strategy) -> None:
 def _coded_columns(named, *, bins, strategy, missing) -> list[_Coded]:
     _check_common(missing, bins, strategy)
     prepared = [(_describe(v, p), p, _to_series(v, _describe(v, p))) for p, v in named]
-    check_same_length(**{p: series for _, p, series in prepared})
+    n = check_same_length(**{p: series for _, p, series in prepared})
+    if n == 0:
+        raise ValueError(f"{' and '.join(p for p, _ in named)} {'is' if len(named) == 1 else 'are'} empty (no rows)")
     return [_code_column(series, name, bins=bins, strategy=strategy, missing=missing) for name, _, series in prepared]
 
 
