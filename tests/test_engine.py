@@ -13,7 +13,7 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
-from infoscope.engine import PairEngine, count_chunk, finalize, merge, sample_rows
+from infoscope.engine import PairEngine, count_chunk, counting, finalize, merge, sample_rows
 
 try:  # the real EncodedColumn once encode/ has landed; same fields otherwise
     from infoscope.encode.columns import EncodedColumn as _RealColumn  # noqa: F401
@@ -71,21 +71,39 @@ frames = st.builds(
 
 
 # ------------------------------------------------------------------ full counts
-@given(cols=frames, chunk_rows=st.integers(1, 500), threads=st.sampled_from([1, 2]),
-       backend=st.sampled_from(["numba", "numpy"]))
-def test_tables_equal_pandas_crosstab(cols, chunk_rows, threads, backend):
-    # reference: pandas.crosstab over pairwise-complete rows (see crosstab_reference)
-    eng = PairEngine(cols, chunk_rows=chunk_rows, threads=threads, backend=backend, progress=False)
-    assert_all_pairs_match_crosstab(eng, cols)
+class parallel_kernel_forced:
+    """Send even tiny chunks through the threaded numba kernel (normally they run serially)."""
+
+    def __enter__(self):
+        self.saved = counting.SERIAL_INCREMENTS
+        counting.SERIAL_INCREMENTS = 0
+
+    def __exit__(self, *exc):
+        counting.SERIAL_INCREMENTS = self.saved
 
 
-@given(cols=frames, chunk_rows=st.integers(1, 100))
-@settings(max_examples=30)
-def test_backends_give_identical_tables(cols, chunk_rows):
-    a = PairEngine(cols, backend="numba", chunk_rows=chunk_rows, progress=False).tables()
-    b = PairEngine(cols, backend="numpy", progress=False).tables()
-    for pair in a:
-        np.testing.assert_array_equal(a[pair], b[pair])
+@given(cols=frames, chunk_rows=st.integers(1, 500))
+@settings(max_examples=40)
+def test_tables_equal_pandas_crosstab_for_every_backend_chunking_and_thread_count(cols, chunk_rows):
+    # reference: pandas.crosstab over pairwise-complete rows (see crosstab_reference),
+    # computed once per frame and compared with every way the engine can count
+    by_name = {c.name: c for c in cols}
+    names = [c.name for c in cols]
+    expected = {(a, b): crosstab_reference(by_name[a], by_name[b])
+                for i, a in enumerate(names) for b in names[i + 1:]}
+    configurations = [
+        dict(backend="numba", chunk_rows=chunk_rows, threads=1),
+        dict(backend="numba", chunk_rows=chunk_rows, threads=2),
+        dict(backend="numpy", chunk_rows=chunk_rows),
+        dict(backend="numba"),
+    ]
+    for options in configurations:
+        with parallel_kernel_forced():
+            tables = PairEngine(cols, progress=False, **options).tables()
+        assert list(tables) == list(expected)
+        for pair, t in tables.items():
+            assert t.dtype == np.int64
+            np.testing.assert_array_equal(t, expected[pair], err_msg=f"pair {pair} with {options}")
 
 
 def test_uint16_column_with_300_levels(rng):
@@ -137,7 +155,7 @@ def test_table_orientation_and_read_only(rng):
 
 # ---------------------------------------------------------- chunk/merge/finalize
 @given(cols=frames, data=st.data(), backend=st.sampled_from(["numba", "numpy"]))
-@settings(max_examples=40)
+@settings(max_examples=25)
 def test_chunks_of_any_size_merge_to_the_engine_tables(cols, data, backend):
     n = cols[0].codes.shape[0]
     cuts = sorted(data.draw(st.lists(st.integers(0, n), max_size=6)))
@@ -209,7 +227,7 @@ def test_returning_to_earlier_codes_hits_the_cache(rng):
 @given(seed=st.integers(0, 2**31), steps=st.lists(
     st.tuples(st.sampled_from(["set", "add", "remove", "tables", "some"]), st.integers(0, 5), st.integers(0, 40)),
     min_size=1, max_size=12))
-@settings(max_examples=40)
+@settings(max_examples=30)
 def test_any_sequence_of_reencodings_equals_a_full_recount(seed, steps):
     rng = np.random.default_rng(seed)
     n = 300

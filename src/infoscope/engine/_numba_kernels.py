@@ -23,3 +23,11 @@ def count_pairs(block, first, second, stride, offset, out):
     """Add the sentinel tables of every pair over ``block`` (columns, rows) into ``out``."""
     for q in prange(first.shape[0]):
         _count_one(block[first[q]], block[second[q]], stride[q], out[offset[q]:offset[q + 1]])
+
+
+@njit(nogil=True, cache=True, boundscheck=False)
+def count_pairs_serial(block, first, second, stride, offset, out):
+    """As :func:`count_pairs` in the calling thread: small chunks, where waking the
+    thread pool would cost more than the counting."""
+    for q in range(first.shape[0]):
+        _count_one(block[first[q]], block[second[q]], stride[q], out[offset[q]:offset[q + 1]])

@@ -131,24 +131,20 @@ def count_block_numpy(block: np.ndarray, layout: PairLayout, out: np.ndarray) ->
         out[lo:hi] += np.bincount(wide[a] * int(layout.stride[q]) + block[b], minlength=hi - lo)
 
 
-_NUMBA_KERNEL = None
+# Below this many increments (rows x pairs) a chunk is counted in the calling thread:
+# waking numba's thread pool costs tens of microseconds (far more on a busy machine).
+SERIAL_INCREMENTS = 1 << 20
 
 
-def _numba_kernel():
-    """Compile (or load from numba's on-disk cache) the parallel pair kernel."""
-    global _NUMBA_KERNEL
-    if _NUMBA_KERNEL is None:
-        from infoscope.engine import _numba_kernels
-
-        _NUMBA_KERNEL = _numba_kernels.count_pairs
-    return _NUMBA_KERNEL
-
-
-def count_block_numba(block: np.ndarray, layout: PairLayout, out: np.ndarray) -> None:
+def count_block_numba(block: np.ndarray, layout: PairLayout, out: np.ndarray, *, parallel: bool = True) -> None:
     """Add the counts of ``block`` (shape ``(columns, rows)``) into ``out`` (flat int64)."""
     if block.shape[1] == 0 or len(layout.shapes) == 0:
         return
-    _numba_kernel()(block, layout.first, layout.second, layout.stride, layout.offset, out)
+    from infoscope.engine import _numba_kernels  # numba loads here, on the first count
+
+    small = block.shape[1] * len(layout.shapes) < SERIAL_INCREMENTS
+    kernel = _numba_kernels.count_pairs if parallel and not small else _numba_kernels.count_pairs_serial
+    kernel(block, layout.first, layout.second, layout.stride, layout.offset, out)
 
 
 KERNELS = {"numpy": count_block_numpy, "numba": count_block_numba}
