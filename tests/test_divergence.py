@@ -1,5 +1,8 @@
 """Divergences checked against scipy (stats.entropy, spatial.distance.jensenshannon),
-pyitlib (drv.divergence_kullbackleibler_symmetrised_pmf) and closed forms."""
+pyitlib (drv.divergence_kullbackleibler_symmetrised_pmf) and closed forms.
+Section and equation numbers of Cover & Thomas (2006), Elements of Information
+Theory, 2nd ed., Wiley, are cited from memory.
+"""
 from __future__ import annotations
 
 import math

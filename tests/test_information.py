@@ -4,6 +4,9 @@ Each check names its reference beside it: scikit-learn (mutual_info_score,
 normalized_mutual_info_score, adjusted_mutual_info_score, expected_mutual_information),
 pyitlib (drv.*), scipy (chi2_contingency, false_discovery_control, stats.entropy),
 closed forms and a hand-worked table.
+
+Section and equation numbers of Cover & Thomas (2006), Elements of Information
+Theory, 2nd ed., Wiley, are cited from memory.
 """
 from __future__ import annotations
 

@@ -1,7 +1,7 @@
 """Property tests (hypothesis) of the information measures and divergences.
 
 The properties are theorems of information theory; the source is named beside each
-(Cover & Thomas 2006 = Elements of Information Theory, 2nd ed., Wiley; Meilă 2007 for
+(theorem and equation numbers from memory; Cover & Thomas 2006 = Elements of Information Theory, 2nd ed., Wiley; Meilă 2007 for
 the metric properties of VI; Lin 1991 for the JS bound; Benjamini & Hochberg 1995).
 """
 from __future__ import annotations
@@ -78,7 +78,7 @@ def test_mi_is_between_zero_and_the_smaller_entropy(t):
 
 @given(tables)
 def test_mi_is_symmetric(t):
-    # Cover & Thomas (2006), eq. 2.39: I(X; Y) = I(Y; X).
+    # Cover & Thomas (2006), eq. 2.46 (from memory): I(X; Y) = I(Y; X).
     for est in ("plugin", "miller_madow"):
         assert math.isclose(
             mutual_information_from_table(t, estimator=est),

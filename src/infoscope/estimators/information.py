@@ -378,7 +378,7 @@ def normalized_mutual_information_from_table(
        Research, 3, 583-617.
     .. [3] Vinh, N. X., Epps, J., & Bailey, J. (2010). Information theoretic measures
        for clusterings comparison. Journal of Machine Learning Research, 11,
-       2837-2854 (Table 2: the five normalisations).
+       2837-2854 (the normalisations compared).
 
     Examples
     --------
@@ -457,7 +457,7 @@ def expected_mutual_information_from_table(table, *, base=2) -> float:
     -------
     float
         :math:`E[I]` under the hypergeometric (permutation) model of Vinh et al.
-        (2010, eq. 24a), in the unit of ``base``.
+        (2010), in the unit of ``base``.
 
     Notes
     -----
