@@ -461,6 +461,34 @@ def test_content_key_tells_apart_what_pandas_hashes_alike():
     assert content_key(pd.Series([[1]], dtype=object)) is None  # unhashable: not cached
 
 
+def test_content_key_branches_see_values_missingness_and_zone():
+    ints = pd.Series([0, 1, 2], dtype="Int64")
+    assert content_key(ints) != content_key(pd.Series([None, 1, 2], dtype="Int64"))
+    assert content_key(ints) == content_key(pd.Series([0, 1, 2], dtype="Int64"))
+    arrow = pd.Series(["a", "b", "c", "d"], dtype="string[pyarrow]")
+    assert content_key(arrow.iloc[1:3]) != content_key(arrow.iloc[0:2])
+    assert content_key(arrow) != content_key(pd.Series(["a", None, "c", "d"], dtype="string[pyarrow]"))
+    t = pd.Series(pd.date_range("2024-01-01", periods=3, freq="h", tz="UTC"))
+    assert content_key(t) != content_key(t.dt.tz_convert("Asia/Tokyo"))  # same instants, other labels
+    assert content_key(t) != content_key(t + pd.Timedelta(1, "ns"))
+
+
+def test_small_integer_range_path_equals_the_sorting_path(rng):
+    # the counting shortcut for integers must agree with numpy.unique's sorted levels
+    x = rng.integers(-3, 20, size=3000)
+    col = enc(x)
+    levels, inverse = np.unique(x, return_inverse=True)
+    assert col.labels == tuple(str(v) for v in levels)
+    np.testing.assert_array_equal(col.codes, inverse)
+    np.testing.assert_array_equal(enc(x.astype(float)).codes, col.codes)
+    # narrow and unsigned dtypes whose range does not fit the dtype's own differences
+    for small in (np.array([-100, 100, 0, -100], dtype=np.int8), np.array([2**64 - 1, 2**64 - 3], dtype=np.uint64)):
+        levels, inverse = np.unique(small, return_inverse=True)
+        got = enc(small)
+        assert got.labels == tuple(str(int(v)) for v in levels)
+        np.testing.assert_array_equal(got.codes, inverse)
+
+
 # ---------------------------------------------------------------- input safety
 
 

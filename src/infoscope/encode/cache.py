@@ -32,11 +32,14 @@ def _digest() -> "hashlib._Hash":
 def content_key(series: pd.Series) -> str | None:
     """A digest of a column's values and dtype, or None when the values cannot be hashed.
 
-    Plain NumPy dtypes are hashed as raw bytes.  Other dtypes go through
-    :func:`pandas.util.hash_pandas_object` (values only, not the index), plus the
-    missing mask, plus for object columns the type of every cell (pandas hashes
-    objects through their text, so 1 and "1" would otherwise collide), plus for
-    categoricals the categories and their order (unused categories change K).
+    Plain NumPy dtypes are hashed as raw bytes, zoned datetimes as their UTC
+    instants (the zone is in the dtype), nullable and arrow numbers as values plus
+    NA mask, other arrow-backed columns (strings) as their arrow buffers, and
+    categoricals as codes plus categories and their order (unused categories change
+    K).  Everything else goes through :func:`pandas.util.hash_pandas_object` (values
+    only, not the index) plus the missing mask, plus for object columns of mixed
+    cells the type of every cell (pandas hashes objects through their text, so 1
+    and "1" would otherwise collide).
     Unhashable cells (lists, dicts) make the column uncacheable: None.
     """
     h = _digest()
@@ -54,6 +57,26 @@ def content_key(series: pd.Series) -> str | None:
             return None
         h.update(f"|{cats}|{dtype.ordered}".encode())
         return h.hexdigest()
+    if isinstance(dtype, pd.DatetimeTZDtype):
+        utc = series.dt.tz_convert("UTC").dt.tz_localize(None).to_numpy()
+        h.update(np.ascontiguousarray(utc).view(np.uint8).reshape(-1) if utc.size else b"")
+        return h.hexdigest()
+    numpy_dtype = getattr(dtype, "numpy_dtype", None)
+    if numpy_dtype is not None and numpy_dtype.kind in "biuf" and dtype.kind in "biuf":
+        # nullable / arrow numbers: the values with NA as 0, and the NA mask
+        arr = np.ascontiguousarray(series.to_numpy(dtype=numpy_dtype, na_value=numpy_dtype.type(0)))
+        h.update(arr.view(np.uint8).reshape(-1) if arr.size else b"")
+        h.update(np.packbits(series.isna().to_numpy(dtype=bool)).tobytes())
+        return h.hexdigest()
+    chunks = getattr(getattr(series.array, "_pa_array", None), "chunks", None)
+    if chunks is not None:
+        # arrow-backed (e.g. pandas' default string dtype): hash the arrow buffers,
+        # with each chunk's offset and length (a slice shares its parent's buffers)
+        for chunk in chunks:
+            h.update(f"|{chunk.offset}|{len(chunk)}|".encode())
+            for buf in chunk.buffers():
+                h.update(b"-" if buf is None else memoryview(buf))
+        return h.hexdigest()
     try:
         hashed = pd.util.hash_pandas_object(series, index=False).to_numpy()
     except TypeError:
@@ -62,6 +85,10 @@ def content_key(series: pd.Series) -> str | None:
     mask = np.packbits(series.isna().to_numpy(dtype=bool))
     h.update(mask.tobytes())
     if dtype == object:
+        inferred = pd.api.types.infer_dtype(series, skipna=True)
+        h.update(f"|{inferred}|".encode())
+        if inferred in ("string", "empty", "boolean", "bytes"):
+            return h.hexdigest()  # one type of cell: the hash above tells them apart
         types = pd.factorize(np.frompyfunc(type, 1, 1)(series.to_numpy()))
         h.update(np.ascontiguousarray(types[0]).view(np.uint8).reshape(-1) if len(series) else b"")
         h.update("|".join(f"{t.__module__}.{t.__qualname__}" for t in types[1]).encode())

@@ -326,15 +326,34 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
             missing |= inf
     any_missing = bool(missing.any())
     v = x[~missing] if any_missing else x
+    explicit = isinstance(bins, np.ndarray)
+    if explicit and bins.dtype.kind in "mM":
+        raise TypeError(f"column {notes.name!r}: datetime bin edges cannot bin a numeric column")
+    if x.dtype.kind in "iu" and v.size and not explicit:
+        # small integer ranges: counting beats sorting (one pass, no n log n)
+        lo, hi = int(v.min()), int(v.max())
+        if hi - lo < max(2**16, v.size):
+            # offsets from the minimum, computed where they cannot overflow
+            if x.dtype.kind == "u":
+                offsets = (v - x.dtype.type(lo)).astype(np.intp)
+            else:
+                offsets = (v.astype(np.int64) - lo).astype(np.intp)
+            present = np.bincount(offsets, minlength=hi - lo + 1) > 0
+            n_distinct = int(np.count_nonzero(present))
+            if n_distinct <= threshold:
+                distinct = (np.flatnonzero(present) + lo).astype(x.dtype)
+                lookup = np.cumsum(present) - 1
+                raw = np.full(n, -1, dtype=np.int64)
+                raw[~missing] = lookup[offsets]
+                if _integer_id_like(v, distinct, notes.name):
+                    notes.flags.add("id_like")
+                return _Levels(raw, _format_numbers(distinct), True, "integer_categories", n_distinct)
     s = np.sort(v)
     distinct = _sorted_distinct(s)
     n_distinct = int(distinct.size)
-    explicit = isinstance(bins, np.ndarray)
     integral = x.dtype.kind in "iu" or (s.size > 0 and bool(np.all(np.floor(distinct) == distinct)))
     if integral and _integer_id_like(v, distinct, notes.name):
         notes.flags.add("id_like")
-    if explicit and bins.dtype.kind in "mM":
-        raise TypeError(f"column {notes.name!r}: datetime bin edges cannot bin a numeric column")
     if n_distinct == 0 or (not explicit and n_distinct <= threshold):
         raw = np.full(n, -1, dtype=np.int64)
         if n_distinct:
