@@ -341,7 +341,7 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
             present = np.bincount(offsets, minlength=hi - lo + 1) > 0
             n_distinct = int(np.count_nonzero(present))
             if n_distinct <= threshold:
-                distinct = (np.flatnonzero(present) + lo).astype(x.dtype)
+                distinct = np.flatnonzero(present).astype(x.dtype) + x.dtype.type(lo)
                 lookup = np.cumsum(present) - 1
                 raw = np.full(n, -1, dtype=np.int64)
                 raw[~missing] = lookup[offsets]
