@@ -313,3 +313,76 @@ def test_svg_data_uri_round_trips():
     uri = picture.svg_data_uri(svg)
     assert uri.startswith("data:image/svg+xml;base64,")
     assert base64.b64decode(uri.split(",", 1)[1]).decode() == svg
+
+
+# ----------------------------------------------------------------- command line
+@pytest.fixture(scope="module")
+def wine_csv(tmp_path_factory):
+    """scikit-learn's bundled wine data (load_wine) written as CSV and Parquet."""
+    frame = load_wine(as_frame=True).frame[["alcohol", "hue", "proline", "target"]]
+    folder = tmp_path_factory.mktemp("cli")
+    frame.to_csv(folder / "wine.csv", index=False)
+    frame.to_parquet(folder / "wine.parquet")
+    return folder, frame
+
+
+def test_cli_profile_writes_a_page_with_the_target_entropy(wine_csv, capsys):
+    from infoscope.cli import main
+
+    folder, frame = wine_csv
+    page = folder / "wine.html"
+    status = main(["profile", str(folder / "wine.parquet"), "--target", "target", "--estimator", "plugin",
+                   "--bins", "4", "--out", str(page), "--min-count", "10"])
+    assert status == 0
+    printed = capsys.readouterr().out
+    assert "relevance to 'target'" in printed and f"wrote {page}" in printed
+    text = page.read_text(encoding="utf-8")
+    import re
+
+    payload = json.loads(re.search(r'id="isc-payload">(.*?)</script>', text, re.S).group(1))
+    table = json.loads(payload["state"]["_entropy"])
+    row = dict(zip(table["fields"], next(r for r in table["rows"] if r[0] == "target")))
+    # scipy.stats.entropy of the class counts (59, 71, 48), plug-in, bits
+    assert row["entropy"] == pytest.approx(scipy_entropy(np.bincount(frame["target"]), base=2), rel=1e-9)
+    assert "counts below 10 are hidden" in text
+
+
+def test_cli_profile_reads_csv_and_prints_tables(wine_csv, capsys):
+    from infoscope.cli import main
+
+    folder, _ = wine_csv
+    assert main(["profile", str(folder / "wine.csv"), "--bins", "fd", "--top", "2"]) == 0
+    printed = capsys.readouterr().out
+    assert "entropy per column" in printed and "top 2 pairs" in printed
+
+
+@pytest.mark.parametrize("argv, message", [
+    (["profile", "{folder}/absent.csv"], "no such file"),
+    (["profile", "{folder}/wine.csv", "--target", "colour"], "--target 'colour' is not a column"),
+    (["profile", "{folder}/wine.csv", "--out", "{folder}/nowhere/p.html"], "does not exist"),
+    (["profile", "{folder}/wine.csv", "--out", "{folder}/p.txt"], "must name an .html file"),
+    (["profile", "{folder}/wine.csv", "--min-count", "-2"], "--min-count"),
+    (["profile", "{folder}/wine.csv", "--strategy", "sideways"], "strategy"),
+    (["profile", "{folder}/broken.parquet"], "cannot read"),
+    (["profile", "{folder}/wine.xlsx"], "cannot tell the format"),
+])
+def test_cli_bad_input_is_one_line_and_status_2(wine_csv, capsys, argv, message):
+    from infoscope.cli import main
+
+    folder, _ = wine_csv
+    (folder / "broken.parquet").write_bytes(b"not a parquet file")
+    (folder / "wine.xlsx").write_bytes(b"")
+    assert main([a.format(folder=folder) for a in argv]) == 2
+    err = capsys.readouterr().err.strip()
+    assert message in err and "\n" not in err and "Traceback" not in err
+
+
+def test_cli_error_from_the_installed_command_has_no_traceback(tmp_path):
+    import subprocess
+    import sys
+
+    done = subprocess.run([sys.executable, "-m", "infoscope", "profile", str(tmp_path / "absent.csv")],
+                          capture_output=True, text=True, timeout=120)
+    assert done.returncode == 2
+    assert done.stderr.strip().count("\n") == 0 and "no such file" in done.stderr
+    assert "Traceback" not in done.stderr
