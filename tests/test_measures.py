@@ -14,7 +14,7 @@ from pyitlib import discrete_random_variable as drv
 from sklearn import metrics
 
 import infoscope
-from infoscope import DataQualityWarning
+from infoscope import DataQualityWarning, SmallSampleWarning
 from infoscope import measures as m
 from infoscope.estimators import continuous
 
@@ -212,11 +212,12 @@ def test_missing_error_names_the_column():
 
 
 def test_infinite_values_are_missing_with_a_warning():
-    x = np.array([1.0, 2.0, np.inf, 1.0, 2.0, 1.0])
-    y = np.array([0, 1, 1, 0, 1, 0])
-    with pytest.warns(DataQualityWarning, match="x has 1 infinite value"):
+    x = np.tile([1.0, 2.0, np.inf, 1.0, 2.0, 1.0], 10)
+    y = np.tile([0, 1, 1, 0, 1, 0], 10)
+    with pytest.warns(DataQualityWarning, match="x has 10 infinite value"):
         got = m.mutual_information(x, y, estimator="plugin")
-    assert got == pytest.approx(m.mutual_information(np.delete(x, 2), np.delete(y, 2), estimator="plugin"))
+    finite = np.isfinite(x)
+    assert got == pytest.approx(m.mutual_information(x[finite], y[finite], estimator="plugin"))
 
 
 def test_empty_input_is_a_clear_error():
@@ -254,6 +255,17 @@ def test_polars_series_are_accepted(labels):
 def test_mixed_type_labels_are_kept_apart():
     # 1 and "1" are different labels (a Python list is read as objects, not strings).
     assert m.entropy([1, "1", 1, "1"], estimator="plugin") == 1.0
+
+
+def test_sparse_tables_warn_for_mi_cmi_and_g_test():
+    # 8 rows over a 4 x 4 table: 0.5 rows per cell (common practice: at least 5).
+    x, y = [0, 1, 2, 3] * 2, [0, 1, 2, 3, 1, 0, 3, 2]
+    with pytest.warns(SmallSampleWarning, match="has 16 cells for 8 rows"):
+        m.mutual_information(x, y)
+    with pytest.warns(SmallSampleWarning, match="chi-square p-value is unreliable"):
+        m.g_test(x, y)
+    with pytest.warns(SmallSampleWarning, match="x, y and given"):
+        m.conditional_mutual_information(x, y, [0, 1] * 4)
 
 
 def test_continuous_looking_labels_warn(rng):

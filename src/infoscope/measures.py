@@ -34,7 +34,7 @@ import warnings
 
 import numpy as np
 
-from infoscope._warnings import DataQualityWarning
+from infoscope._warnings import DataQualityWarning, SmallSampleWarning
 from infoscope.estimators import information as _info
 from infoscope.estimators._checks import check_choice, check_same_length, log_base
 
@@ -61,6 +61,11 @@ KNN_ESTIMATORS = {"ksg": 1, "ksg2": 2}
 # counts takes 256 MiB): such a table comes from ID-like columns, and the estimate on
 # it would be meaningless anyway.
 _MAX_TABLE_CELLS = 2**25
+
+# Fewer rows than this per cell of a joint table, on average, make the plug-in MI
+# strongly biased and the chi-square approximation of the G-test poor (common
+# practice for chi-square style tables; the frame layer flags such pairs "sparse").
+_SPARSE_CELL_COUNT = 5.0
 
 # A float column with at least this share of distinct values (and at least this many
 # rows) looks continuous when read as labels.
@@ -226,7 +231,7 @@ def _table(cols: list[_Coded]) -> np.ndarray:
     """Joint count table of the coded columns over the rows where all are present."""
     shape = tuple(max(c.k, 1) for c in cols)
     cells = math.prod(shape)
-    names = " and ".join(c.name for c in cols)
+    names = _join(cols)
     if cells > _MAX_TABLE_CELLS:
         sizes = ", ".join(f"{c.name}: {c.k}" for c in cols)
         raise ValueError(
@@ -239,6 +244,23 @@ def _table(cols: list[_Coded]) -> np.ndarray:
         raise ValueError(f"no rows left: there is no row where {names} {verb}")
     flat = np.ravel_multi_index(tuple(c.codes[keep] for c in cols), shape)
     return np.bincount(flat, minlength=cells).reshape(shape)
+
+
+def _join(cols: list[_Coded]) -> str:
+    names = [c.name for c in cols]
+    return names[0] if len(names) == 1 else ", ".join(names[:-1]) + " and " + names[-1]
+
+
+def _warn_if_sparse(table: np.ndarray, cols: list[_Coded], what: str) -> None:
+    n = int(table.sum())
+    if n < _SPARSE_CELL_COUNT * table.size:
+        names = _join(cols)
+        warnings.warn(
+            f"the joint table of {names} has {table.size} cells for {n} rows "
+            f"({n / table.size:.2g} per cell on average, fewer than 5): {what}",
+            SmallSampleWarning,
+            stacklevel=3,
+        )
 
 
 def _check_count_estimator(estimator) -> str:
@@ -477,6 +499,20 @@ def mutual_information(
         slightly negative when the columns are independent; they are returned as
         computed (see :mod:`infoscope.estimators.information`).
 
+    Warns
+    -----
+    SmallSampleWarning
+        With a count estimator, when the joint table has fewer than 5 rows per cell
+        on average: the estimate is then strongly biased (upwards for ``"plugin"``).
+    DataQualityWarning
+        When a float column read as labels looks continuous, or holds infinities.
+
+    Notes
+    -----
+    Mutual information measures dependence, not cause, and it is an estimate from a
+    sample: compare it with its chance level (:func:`adjusted_mutual_information`,
+    :func:`g_test`) before reading much into a small value.
+
     References
     ----------
     .. [1] Cover, T. M., & Thomas, J. A. (2006). Elements of Information Theory,
@@ -488,7 +524,7 @@ def mutual_information(
 
     Examples
     --------
-    >>> mutual_information(["a", "a", "b", "b"], [1, 1, 0, 0], estimator="plugin")
+    >>> mutual_information(["a", "a", "b", "b"] * 5, [1, 1, 0, 0] * 5, estimator="plugin")
     1.0
     """
     check_choice(missing, MISSING_POLICIES, "missing")
@@ -499,7 +535,9 @@ def mutual_information(
         return _knn_mi(x, y, algorithm=KNN_ESTIMATORS[estimator], k=k, base=base, missing=missing, discrete=discrete, seed=seed)
     estimator = _check_count_estimator(estimator)
     cols = _coded_columns([("x", x), ("y", y)], bins=bins, strategy=strategy, missing=missing)
-    return _info.mutual_information_from_table(_table(cols), estimator=estimator, base=base, alpha=alpha)
+    table = _table(cols)
+    _warn_if_sparse(table, cols, "the estimate is unreliable (use fewer bins or levels)")
+    return _info.mutual_information_from_table(table, estimator=estimator, base=base, alpha=alpha)
 
 
 def conditional_mutual_information(
@@ -538,12 +576,15 @@ def conditional_mutual_information(
 
     Examples
     --------
-    >>> round(conditional_mutual_information([0, 1, 0, 1], [0, 1, 0, 1], [0, 0, 1, 1], estimator="plugin"), 12)
+    >>> x, z = [0, 1, 0, 1] * 10, [0, 0, 1, 1] * 10
+    >>> round(conditional_mutual_information(x, x, z, estimator="plugin"), 12)
     1.0
     """
     estimator = _check_count_estimator(estimator)
     cols = _coded_columns([("x", x), ("y", y), ("given", given)], bins=bins, strategy=strategy, missing=missing)
-    return _info.conditional_mutual_information_from_table(_table(cols), estimator=estimator, base=base, alpha=alpha)
+    table = _table(cols)
+    _warn_if_sparse(table, cols, "the estimate is unreliable (use fewer bins or levels)")
+    return _info.conditional_mutual_information_from_table(table, estimator=estimator, base=base, alpha=alpha)
 
 
 def normalized_mutual_information(
@@ -696,6 +737,11 @@ def g_test(x, y, *, bins=None, missing="drop", strategy="quantile") -> _info.GTe
         chi-square approximation is poor when expected cell counts are small
         (common practice: fewer than 5 on average).
 
+    Warns
+    -----
+    SmallSampleWarning
+        When the table has fewer than 5 rows per cell on average.
+
     References
     ----------
     .. [1] Wilks, S. S. (1938). The large-sample distribution of the likelihood
@@ -709,4 +755,6 @@ def g_test(x, y, *, bins=None, missing="drop", strategy="quantile") -> _info.GTe
     (1, 27.7259)
     """
     cols = _coded_columns([("x", x), ("y", y)], bins=bins, strategy=strategy, missing=missing)
-    return _info.g_test_from_table(_table(cols))
+    table = _table(cols)
+    _warn_if_sparse(table, cols, "the chi-square p-value is unreliable (use fewer bins or levels, or a permutation test)")
+    return _info.g_test_from_table(table)
