@@ -258,3 +258,19 @@ def test_polars_frame_gives_the_same_entropy_table(log):
     from_polars = ProfileSession(pl.from_pandas(small), n_boot=20).entropy()
     from_pandas = ProfileSession(small, n_boot=20).entropy()
     pd.testing.assert_frame_equal(from_polars.drop(columns="kind"), from_pandas.drop(columns="kind"))
+
+
+def test_drift_missing_policy_on_binned_columns():
+    rng = np.random.default_rng(5)
+    x = rng.normal(size=2_000)
+    with_gaps = np.where(rng.random(2_000) < 0.1, np.nan, x)
+    ref = pd.DataFrame({"x": with_gaps})
+    same = ProfileSession(ref, missing="category").drift(ref).iloc[0]
+    assert same["k"] == 17 and same["psi"] == 0.0 and same["n"] == 2_000
+    dropped = ProfileSession(ref).drift(ref).iloc[0]
+    assert dropped["k"] == 16 and dropped["n"] == int(np.isfinite(with_gaps).sum())
+    # the reference has no missing values, the batch has: under "category" they are unseen
+    clean = pd.DataFrame({"x": x})
+    d = ProfileSession(ref, missing="category").drift(clean).iloc[0]
+    assert d["k"] == 17 and d["n"] == 2_000 and d["n_reference"] == 2_000
+    assert d["flag"] == "major"  # 10 % of the batch in a symbol the reference never had

@@ -327,8 +327,8 @@ class InfoProfileAccessor:
         Examples
         --------
         >>> import pandas as pd
-        >>> ref = pd.DataFrame({"c": list("aabb") * 50})
-        >>> pd.DataFrame({"c": list("aaab") * 50}).info_profile.drift(ref)["flag"].tolist()
+        >>> ref = pd.DataFrame({"c": list("ab") * 100})
+        >>> pd.DataFrame({"c": list("a" * 140 + "b" * 60)}).info_profile.drift(ref)["flag"].tolist()
         ['moderate']
         """
         pseudo = {"pseudocount": settings.pop("pseudocount")} if "pseudocount" in settings else {}

@@ -132,8 +132,15 @@ def align_to_reference(current: pd.Series, reference: pd.Series, name: str, sett
     cur_k = int(cur.k)
     level_counts = np.bincount(cur.codes, minlength=cur_k + 1)[:cur_k]
     cur_counts = np.zeros(k + 1, dtype=np.int64)
-    for label, count in zip(cur.labels, level_counts):
-        cur_counts[index.get(label, k)] += int(count)
+    if ref.edges is not None and cur.edges is not None:
+        # same edges, so bin i is bin i (labels may be worded differently); after
+        # the bins may come the "(missing)" symbol under missing="category"
+        n_bins = len(ref.edges) - 1
+        targets = [i if i < n_bins else index.get(label, k) for i, label in enumerate(cur.labels)]
+    else:
+        targets = [index.get(label, k) for label in cur.labels]
+    for target, count in zip(targets, level_counts):
+        cur_counts[target] += int(count)
     if cur_counts[k] > 0:
         labels.append(UNSEEN_LABEL)
         ref_counts = np.append(ref_counts, 0)

@@ -51,12 +51,31 @@ DRIFT_THRESHOLDS = (0.10, 0.25)
 
 
 def drift_flag(psi_value: float) -> str:
-    """"stable" / "moderate" / "major" for a PSI value (NaN -> "stable" is not assumed).
+    """The drift verdict of a PSI value.
 
-    A NaN PSI (nothing to compare) is reported as "" so that no view shows a
-    verdict that was not computed.
+    Parameters
+    ----------
+    psi_value : float
+        Population stability index (nats).
+
+    Returns
+    -------
+    str
+        ``"stable"`` below 0.10, ``"moderate"`` from 0.10 to below 0.25,
+        ``"major"`` from 0.25 (infinity included); ``""`` for NaN (nothing was
+        compared), so that no view shows a verdict that was not computed.
+
+    References
+    ----------
+    .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (the thresholds;
+       common practice in credit scoring).
+
+    Examples
+    --------
+    >>> drift_flag(0.05), drift_flag(0.1), drift_flag(0.3), drift_flag(float("nan"))
+    ('stable', 'moderate', 'major', '')
     """
-    if not np.isfinite(psi_value) and not np.isinf(psi_value):
+    if np.isnan(psi_value):
         return ""
     low, high = DRIFT_THRESHOLDS
     if psi_value < low:
@@ -67,7 +86,30 @@ def drift_flag(psi_value: float) -> str:
 
 
 def result_frame(rows: list[dict], columns: tuple[str, ...], **attrs) -> pd.DataFrame:
-    """A DataFrame with exactly ``columns`` in order and ``attrs`` set."""
+    """A result table: exactly ``columns``, in order, with ``attrs`` set.
+
+    Parameters
+    ----------
+    rows : list of dict
+        One dict per row.
+    columns : tuple of str
+        The table's columns (one of the ``*_COLUMNS`` tuples).
+    **attrs
+        Stored in ``DataFrame.attrs`` (unit, estimator, sampled, ...).
+
+    Returns
+    -------
+    pandas.DataFrame
+
+    References
+    ----------
+    .. [1] DEVELOPERS.md, "Result tables".
+
+    Examples
+    --------
+    >>> result_frame([{"a": 1, "b": 2}], ("b", "a"), unit="bits").attrs
+    {'unit': 'bits'}
+    """
     frame = pd.DataFrame(rows, columns=list(columns))
     if not rows:
         frame = pd.DataFrame({c: pd.Series(dtype=object) for c in columns})

@@ -68,9 +68,35 @@ _ENCODING_SETTINGS = ("bins", "strategy", "missing", "max_categories")
 def as_pandas(frame, parameter: str = "frame") -> pd.DataFrame:
     """Return ``frame`` as a pandas DataFrame without modifying it.
 
-    pandas frames are shallow-copied (with copy-on-write, pandas 3, this costs
-    nothing and later edits of the user's frame do not reach the session); Polars
-    frames (eager or lazy) are converted with ``to_pandas()``.
+    Parameters
+    ----------
+    frame : pandas.DataFrame or polars.DataFrame or polars.LazyFrame
+        The data.
+    parameter : str, default="frame"
+        Name used in the error message.
+
+    Returns
+    -------
+    pandas.DataFrame
+        pandas frames are shallow-copied (with copy-on-write, pandas 3, this costs
+        nothing and later edits of the user's frame do not reach the copy); Polars
+        frames (eager or lazy) are converted with ``to_pandas()``.
+
+    Raises
+    ------
+    TypeError
+        For anything else, naming ``parameter``.
+
+    References
+    ----------
+    .. [1] pandas documentation, "Copy-on-Write (CoW)".
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> df = pd.DataFrame({"a": [1, 2]})
+    >>> as_pandas(df) is df, as_pandas(df).equals(df)
+    (False, True)
     """
     if isinstance(frame, pd.DataFrame):
         return frame.copy(deep=False)
@@ -91,11 +117,30 @@ def _name_text(name) -> str:
 
 
 def column_keys(columns, *, warn: bool = True) -> list[str]:
-    """Unique string keys for column labels: ``infoscope.encode.columns.column_keys``.
+    """Unique string keys for column labels (``infoscope.encode.columns.column_keys``).
 
-    Non-string labels become ``str(label)``, MultiIndex tuples are joined with
-    ``" / "``, and repeated keys get ``" (2)"``, ``" (3)"``, ... in order of
-    appearance, with a :class:`DataQualityWarning` naming them.
+    Parameters
+    ----------
+    columns : sequence
+        Column labels, e.g. ``df.columns``.
+    warn : bool, default=True
+        Warn (:class:`DataQualityWarning`) when labels repeat.
+
+    Returns
+    -------
+    list of str
+        Non-string labels become ``str(label)``, MultiIndex tuples are joined with
+        ``" / "``, and repeated keys get ``" (2)"``, ``" (3)"``, ... in order of
+        appearance.
+
+    References
+    ----------
+    .. [1] DEVELOPERS.md, "ProfileSession" (``names``).
+
+    Examples
+    --------
+    >>> column_keys(["a", "a", 3], warn=False)
+    ['a', 'a (2)', '3']
     """
     from infoscope.encode.columns import column_keys as encode_keys
 
@@ -255,6 +300,16 @@ class ProfileSession:
         return dict(self._settings)
 
     @property
+    def n_rows(self) -> int:
+        """Number of rows of the frame (before any sample)."""
+        return self._n_rows
+
+    @property
+    def column_bins(self) -> dict:
+        """The per-column bins overrides (a copy)."""
+        return dict(self._bins_override)
+
+    @property
     def sampled(self) -> int | None:
         """Number of rows sampled, or None when every row is profiled."""
         return None if self._rows is None else int(self._rows.size)
@@ -359,11 +414,15 @@ class ProfileSession:
 
     # ---------------------------------------------------------- encoding
     def _sample_rows(self, n_rows: int):
+        # The session samples before encoding (with the engine's row sampler), so
+        # that the bins, the entropy table and the pair tables all rest on the
+        # same rows; the engine then counts every row it is given.
+        from infoscope.engine.sampling import sample_rows
+
         sample = self._settings["sample"]
-        if sample is None or sample >= n_rows:
+        if sample is None:
             return None
-        rng = np.random.default_rng(self._settings["seed"])
-        return np.sort(rng.choice(n_rows, size=sample, replace=False))
+        return sample_rows(n_rows, sample, seed=self._settings["seed"])
 
     def _encoding_settings(self, key: str, settings: Mapping) -> tuple:
         return (self._bins_override.get(key, settings["bins"]), settings["strategy"],
