@@ -583,3 +583,39 @@ def test_binned_codes_match_numpy_histogram(values, bins, strategy):
         col = enc(x, bins=bins, strategy=strategy, categorical_threshold=0)
     check_contract(col)
     np.testing.assert_array_equal(col.counts(), np.histogram(x, col.edges)[0])
+
+
+# ---------------------------------------------------------------- documentation
+
+
+def _public_functions():
+    import inspect
+
+    from infoscope.encode import binning, cache, columns
+
+    for module in (binning, cache, columns):
+        for name in module.__all__:
+            obj = getattr(module, name)
+            if inspect.isfunction(obj) or inspect.isclass(obj):
+                yield f"{module.__name__}.{name}", obj
+
+
+@pytest.mark.parametrize(("qualname", "obj"), list(_public_functions()))
+def test_public_names_have_numpydoc_with_references_and_examples(qualname, obj):
+    import inspect
+
+    doc = inspect.getdoc(obj) or ""
+    sections = ("Attributes",) if qualname.endswith("EncodedColumn") else ("References", "Examples")
+    for section in sections:
+        assert f"\n{section}\n---" in doc, f"{qualname}: no {section} section"
+
+
+def test_docstring_examples_run():
+    # the examples in the docstrings are doctests: they must print what they say
+    import doctest
+
+    from infoscope.encode import binning, cache, columns
+
+    for module in (binning, cache, columns):
+        result = doctest.testmod(module, optionflags=doctest.NORMALIZE_WHITESPACE)
+        assert result.failed == 0, module.__name__

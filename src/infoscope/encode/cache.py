@@ -41,6 +41,28 @@ def content_key(series: pd.Series) -> str | None:
     cells the type of every cell (pandas hashes objects through their text, so 1
     and "1" would otherwise collide).
     Unhashable cells (lists, dicts) make the column uncacheable: None.
+
+    Parameters
+    ----------
+    series : pandas.Series
+        The column (its index is ignored).
+
+    Returns
+    -------
+    str or None
+        A hex digest (SHA-1, not used for security), or None.
+
+    References
+    ----------
+    .. [1] pandas, ``pandas.util.hash_pandas_object``; Python, ``hashlib``.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> content_key(pd.Series([1.0, 2.0])) == content_key(pd.Series([1.0, 2.0]))
+    True
+    >>> content_key(pd.Series([1, "x"], dtype=object)) == content_key(pd.Series(["1", "x"], dtype=object))
+    False
     """
     h = _digest()
     dtype = series.dtype
@@ -106,6 +128,18 @@ class EncodingCache:
     max_bytes : int, default=DEFAULT_CACHE_BYTES
         Budget for the arrays and labels held; the least recently used entries
         are evicted past it.  0 disables caching.
+
+    References
+    ----------
+    .. [1] Python, ``functools.lru_cache`` (the same eviction rule, bounded by
+       entries rather than bytes).
+
+    Examples
+    --------
+    >>> store = EncodingCache(max_bytes=10)
+    >>> store.put("a", "x", 6); store.put("b", "y", 6)
+    >>> store.get("a") is None, store.get("b")
+    (True, 'y')
     """
 
     def __init__(self, max_bytes: int = DEFAULT_CACHE_BYTES) -> None:
@@ -163,10 +197,39 @@ _DEFAULT = EncodingCache()
 
 
 def default_cache() -> EncodingCache:
-    """The process-wide cache that :func:`~infoscope.encode_column` uses by default."""
+    """The process-wide cache that :func:`~infoscope.encode_column` uses by default.
+
+    Returns
+    -------
+    EncodingCache
+
+    References
+    ----------
+    .. [1] Python, ``collections.OrderedDict`` (the LRU order).
+
+    Examples
+    --------
+    >>> default_cache().max_bytes == DEFAULT_CACHE_BYTES
+    True
+    """
     return _DEFAULT
 
 
 def clear_cache() -> None:
-    """Empty the process-wide encoding cache."""
+    """Empty the process-wide encoding cache.
+
+    Returns
+    -------
+    None
+
+    References
+    ----------
+    .. [1] Python, ``collections.OrderedDict.clear``.
+
+    Examples
+    --------
+    >>> clear_cache()
+    >>> len(default_cache())
+    0
+    """
     _DEFAULT.clear()
