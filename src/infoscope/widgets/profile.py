@@ -48,8 +48,19 @@ MISSING = ("drop", "category")
 ORDERS = ("cluster", "name")
 SORTS = ("entropy", "name", "efficiency", "missing_share")
 
+#: Frames longer than this get a first view from a seeded sample of this many rows.
+PREVIEW_ROWS = 200_000
+
 #: Pair views precomputed into ``payload()`` for an offline export.
 PAYLOAD_TOP_PAIRS = 12
+
+
+def _row_count(session) -> int | None:
+    """Rows of the session's frame (``n_rows`` if the session offers it)."""
+    n = getattr(session, "n_rows", None)
+    if n is None:  # interim: ProfileSession has no public row count yet (asked of the lead)
+        n = getattr(session, "_n_rows", None)
+    return int(n) if isinstance(n, (int, np.integer)) else None
 
 
 class Cancelled(Exception):
@@ -133,12 +144,23 @@ class _ProfileBase(anywidget.AnyWidget):
     _parts = ("entropy", "grid", "pair", "relevance")
 
     def __init__(self, session, *, debounce: float = 0.15, threaded: bool = True,
-                 live_picture: bool = True, **kwargs):
+                 live_picture: bool = True, preview_rows: int | None = PREVIEW_ROWS, **kwargs):
         if not all(hasattr(session, m) for m in ("update", "entropy", "pairs", "names", "settings")):
             raise TypeError("the profile widgets need an infoscope ProfileSession "
                             f"(infoscope.frame.session), got {type(session).__name__}")
         if debounce < 0:
             raise ValueError(f"debounce must be >= 0 seconds, got {debounce}")
+        if preview_rows is not None and (isinstance(preview_rows, bool) or not isinstance(preview_rows, int)
+                                         or preview_rows < 100):
+            raise ValueError(f"preview_rows must be None or a number of rows >= 100, got {preview_rows!r}")
+        # Large frames: the first view comes from a seeded sample (labelled as such),
+        # then the full data follow on the worker thread. The user's own `sample`
+        # setting, if any, is what the full view uses.
+        self._user_sample = session.settings.get("sample")
+        n_rows = _row_count(session)
+        self._preview = (preview_rows is not None and self._user_sample is None
+                         and n_rows is not None and n_rows > preview_rows)
+        self._sample = preview_rows if self._preview else self._user_sample
         self._session = session
         self._debounce = float(debounce)
         self._threaded = bool(threaded)
@@ -171,6 +193,11 @@ class _ProfileBase(anywidget.AnyWidget):
         # first view: computed now, in the caller's thread, so that a widget shown right
         # after construction is never empty (errors still land in _status)
         self._request(set(self._parts), immediate=True, first=True)
+        if self._preview:
+            self._sample = self._user_sample
+            self._preview = False
+            self._request(set(self._parts))
+            self._status = {**self._status, "message": "First view from a seeded sample; computing the full data..."}
 
     # ------------------------------------------------------------------ settings mapping
     @staticmethod
@@ -202,7 +229,7 @@ class _ProfileBase(anywidget.AnyWidget):
             "bins": bins, "strategy": strategy, "estimator": self.estimator,
             "alpha": float(self.alpha) if self.estimator == "dirichlet" else None,
             "base": _BASES.get(self.unit, 2), "missing": self.missing,
-            "target": self.target, "measure": self.measure,
+            "target": self.target, "measure": self.measure, "sample": self._sample,
         }
 
     def _check_settings(self) -> None:
@@ -233,7 +260,7 @@ class _ProfileBase(anywidget.AnyWidget):
         names = [str(x) for x in s.names]
         self._meta = {
             "names": names,
-            "n_rows": ser.scalar(getattr(s, "n_rows", None)),
+            "n_rows": _row_count(s),
             "sampled": ser.scalar(getattr(s, "sampled", None)),
             "choices": {"strategy": list(STRATEGIES + BIN_RULES), "estimator": list(ESTIMATORS),
                         "measure": list(MEASURES), "unit": list(UNITS), "missing": list(MISSING),
@@ -620,6 +647,8 @@ class _ProfileBase(anywidget.AnyWidget):
         return f"{type(self).__name__}({names} columns, generation {self._applied})"
 
     def close(self):
+        if not hasattr(self, "_lock"):  # the constructor refused its arguments
+            return super().close()
         with self._lock:
             if self._timer is not None:
                 self._timer.cancel()

@@ -1,0 +1,360 @@
+"""Python tier of the widget tests: the trait protocol, without a browser.
+
+What the front end would send (trait sets, the exact comm ``update`` message, the
+custom ``cancel`` message) goes in; the kernel's answer (the ``_``-prefixed traits)
+is checked against a ``ProfileSession`` computed directly with the same settings,
+and for one joint table against ``pandas.crosstab`` (pandas, an outside reference).
+"""
+from __future__ import annotations
+
+import base64
+import json
+import threading
+import time
+import warnings
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from infoscope import InfoscopeWarning
+from infoscope.frame.session import ProfileSession
+from infoscope.report.suppression import suppression_mask
+from infoscope.widgets import EntropyBarsWidget, ProfileWidget, RelevanceWidget
+
+
+def quiet(fn, *args, **kwargs):
+    """Run fn; the demo frame's folded-level notes are expected, not under test."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        return fn(*args, **kwargs)
+
+
+@pytest.fixture(scope="module")
+def frame():
+    from infoscope.datasets import make_deliveries
+
+    return make_deliveries(600, seed=5)
+
+
+def session_of(frame, **settings):
+    return quiet(ProfileSession, frame, n_boot=0, **settings)
+
+
+def widget(frame, cls=ProfileWidget, **kw):
+    kw.setdefault("threaded", False)
+    return quiet(cls, session_of(frame), **kw)
+
+
+def entropy_rows(w) -> pd.DataFrame:
+    data = json.loads(w._entropy)
+    return pd.DataFrame(data["rows"], columns=data["fields"]).set_index("column")
+
+
+def direct_entropy(frame, **settings) -> pd.DataFrame:
+    return quiet(session_of(frame, **settings).entropy).set_index("column")
+
+
+def assert_same_entropy(w, expected: pd.DataFrame):
+    got = entropy_rows(w)
+    assert list(got.index) == list(expected.index)
+    np.testing.assert_allclose(got["entropy"].astype(float), expected["entropy"].astype(float), rtol=1e-12)
+    assert (got["k"] == expected["k"]).all()
+
+
+# ------------------------------------------------------------------ round trips
+def test_first_view_matches_the_session(frame):
+    w = widget(frame)
+    assert w._status["state"] == "idle", w._status
+    assert_same_entropy(w, direct_entropy(frame))
+    assert w._meta["names"] == session_of(frame).names
+    assert json.loads(w._entropy)["unit"] == "bits"
+
+
+def test_setting_bins_reencodes_and_answers(frame):
+    w = widget(frame)
+    w.bins = 5  # what the slider sets
+    assert w._status["state"] == "idle"
+    assert_same_entropy(w, direct_entropy(frame, bins=5))
+    assert entropy_rows(w).loc["distance_km", "k"] == 5
+
+
+def test_comm_update_message_is_answered(frame):
+    """Feed the exact message the front end sends; record what goes back on the comm."""
+    w = widget(frame)
+    sent = []
+    w.comm.send = lambda data=None, buffers=None, **kw: sent.append((data, buffers))
+    w._handle_msg({"content": {"data": {"method": "update", "state": {"estimator": "plugin"},
+                                        "buffer_paths": []}}, "buffers": []})
+    assert w.estimator == "plugin"
+    assert_same_entropy(w, direct_entropy(frame, estimator="plugin"))
+    updates = [d["state"] for d, _ in sent if d and d.get("method") == "update"]
+    keys = set().union(*updates)
+    assert {"_entropy", "_grid_meta", "_status"} <= keys
+    assert updates[-1].get("_status", {}).get("state") == "idle"
+    # the grid goes out as binary buffers (float32), not JSON numbers
+    paths = [(p, b) for d, bufs in sent if d and d.get("method") == "update"
+             for p, b in zip(d.get("buffer_paths", []), bufs or [])]
+    grid = [bytes(b) for p, b in paths if p == ["_grid_values"]]
+    assert grid and grid[-1] == w._grid_values and len(grid[-1]) == 4 * w._grid_meta["size"] ** 2
+
+
+def test_grid_buffers_are_the_session_pairs(frame):
+    w = widget(frame, measure="nmi", order="cluster")
+    s = session_of(frame, measure="nmi")
+    pairs = quiet(s.pairs).set_index(["a", "b"])
+    order = list(quiet(s.matrix, order="cluster").index)
+    meta = w._grid_meta
+    assert meta["names"] == order and meta["measure"] == "nmi" and meta["size"] == len(order)
+    size = meta["size"]
+    values = np.frombuffer(w._grid_values, dtype=np.float32).reshape(size, size)
+    n = np.frombuffer(w._grid_n, dtype=np.int32).reshape(size, size)
+    q = np.frombuffer(w._grid_q, dtype=np.float32).reshape(size, size)
+    for (a, b), row in pairs.iterrows():
+        i, j = order.index(a), order.index(b)
+        assert values[i, j] == values[j, i] == pytest.approx(row["value"], rel=1e-6, abs=1e-7)
+        assert n[i, j] == row["n"]
+        assert q[i, j] == pytest.approx(row["q_value"], rel=1e-6, abs=1e-7)
+    assert np.allclose(np.diag(values), 1.0)  # NMI of a column with itself
+
+
+def test_pair_view_counts_match_crosstab_and_hide_small_cells(frame):
+    w = widget(frame, selected_pair=["depot", "service"], min_count=5)
+    view = w._pair
+    # outside reference: pandas.crosstab of the two categorical columns (no binning)
+    ref = pd.crosstab(frame["depot"], frame["service"], dropna=False)
+    ref = ref.reindex(index=view["rows"], columns=view["cols"], fill_value=0).to_numpy()
+    mask = suppression_mask(ref.astype(float), 5)
+    for i in range(ref.shape[0]):
+        for j in range(ref.shape[1]):
+            got = view["counts"][i][j]
+            assert (got is None) == bool(mask[i, j])
+            if got is not None:
+                assert got == ref[i, j]
+            else:
+                assert view["pmi"][i][j] is None  # nothing that gives the count back
+    assert view["hidden_cells"] == int(mask.sum())
+    if mask.any():
+        assert view["row_totals"] is None and view["col_totals"] is None
+    assert view["min_count"] == 5 and view["n"] == ref.sum()
+    w.min_count = 0
+    assert w._pair["hidden_cells"] == 0 and w._pair["row_totals"] == ref.sum(axis=1).tolist()
+
+
+def test_selecting_a_pair_and_a_target(frame):
+    w = widget(frame)
+    w.selected_pair = ["late", "compensation_eur"]
+    assert (w._pair["a"], w._pair["b"]) == ("late", "compensation_eur")
+    pt = quiet(session_of(frame).pair, "late", "compensation_eur")
+    assert w._pair["mi"] == pytest.approx(pt.mi, rel=1e-12)
+    w.target = "late"
+    rel = json.loads(w._relevance)
+    direct = quiet(session_of(frame, target="late").relevance).set_index("column")
+    got = pd.DataFrame(rel["rows"], columns=rel["fields"]).set_index("column")
+    assert rel["target"] == "late" and set(got.index) == set(direct.index)
+    np.testing.assert_allclose(got.loc[direct.index, "mi"].astype(float), direct["mi"], rtol=1e-12)
+    assert bool(got.loc["compensation_eur", "leakage"]) == bool(direct.loc["compensation_eur", "leakage"])
+
+
+def test_per_column_bins_override(frame):
+    w = widget(frame)
+    w.selected_column = "distance_km"
+    w.column_bins = {"distance_km": 4}
+    s = session_of(frame)
+    quiet(s.set_column_bins, "distance_km", 4)
+    assert_same_entropy(w, quiet(s.entropy).set_index("column"))
+    assert entropy_rows(w).loc["distance_km", "k"] == 4 and entropy_rows(w).loc["weight_kg", "k"] == 16
+    w.column_bins = {}
+    assert entropy_rows(w).loc["distance_km", "k"] == 16
+
+
+def test_unit_nats_and_dirichlet_smoothing(frame):
+    w = widget(frame)
+    with w.hold_trait_notifications():
+        w.unit = "nats"
+        w.estimator = "dirichlet"
+        w.alpha = 1.0
+    assert json.loads(w._entropy)["unit"] == "nats"
+    assert_same_entropy(w, direct_entropy(frame, base="nats", estimator="dirichlet", alpha=1.0))
+
+
+def test_single_views_compute_only_what_they_show(frame):
+    e = widget(frame, cls=EntropyBarsWidget)
+    assert e._view == "entropy" and e._entropy and e._grid_meta == {}
+    r = widget(frame, cls=RelevanceWidget, target="late")
+    assert r._view == "relevance" and json.loads(r._relevance)["target"] == "late" and r._entropy == ""
+
+
+# ------------------------------------------------------------------ generations, debounce, worker
+def test_burst_of_50_changes_shows_the_final_setting(frame):
+    w = quiet(ProfileWidget, session_of(frame), debounce=0.05)
+    assert w.wait(30)
+    applied = []
+    w.observe(lambda ch: applied.append(ch["new"]), names="_entropy")
+    rng = np.random.default_rng(1)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        for b in rng.integers(2, 30, size=49):
+            w.bins = int(b)
+        w.bins = 7
+        assert w.wait(60)
+    assert w._status["state"] == "idle" and w._status["generation"] == w.generation
+    assert_same_entropy(w, direct_entropy(frame, bins=7))
+    assert 1 <= len(applied) < 10, "rapid changes should collapse into a few recomputes"
+    w.close()
+
+
+class SlowSession(ProfileSession):
+    """A session whose entropy() is slow for bins=3 (to race two requests)."""
+
+    def entropy(self):
+        if self.settings["bins"] == 3:
+            time.sleep(0.6)
+        return super().entropy()
+
+
+def test_late_result_for_old_setting_never_replaces_newer(frame):
+    s = quiet(SlowSession, frame, n_boot=0)
+    w = quiet(ProfileWidget, s, debounce=0.0)
+    assert w.wait(30)
+    shown = []
+    w.observe(lambda ch: shown.append(json.loads(ch["new"])["rows"]), names="_entropy")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        w.bins = 3           # slow job starts on the worker
+        time.sleep(0.2)
+        w.bins = 5           # newer request while the old one runs
+        assert w.wait(30)
+    bins3 = json.loads(quiet(ProfileWidget, session_of(frame, bins=3), threaded=False)._entropy)["rows"]
+    assert bins3 not in shown
+    assert_same_entropy(w, direct_entropy(frame, bins=5))
+    w.close()
+
+
+def test_cancel_message_stops_and_restores_controls(frame):
+    s = quiet(SlowSession, frame, n_boot=0)
+    w = quiet(ProfileWidget, s, debounce=0.0)
+    assert w.wait(30)
+    before = w._entropy
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        w.bins = 3
+        time.sleep(0.2)
+        assert w._status["state"] == "computing"
+        w._handle_custom_msg({"type": "cancel"}, [])   # what the Cancel button sends
+        assert w.wait(30)
+    assert w._status["state"] == "idle" and "Cancelled" in w._status["message"]
+    assert w.bins == 16 and w._entropy == before
+    w.close()
+
+
+def test_recompute_runs_off_the_calling_thread(frame):
+    seen = []
+
+    class Recording(ProfileSession):
+        def entropy(self):
+            seen.append(threading.current_thread().name)
+            return super().entropy()
+
+    w = quiet(ProfileWidget, quiet(Recording, frame, n_boot=0), debounce=0.0)
+    assert w.wait(30)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        w.bins = 6
+        assert w.wait(30)
+    assert seen[0] == threading.current_thread().name   # first view: in the constructor
+    assert seen[-1].startswith("infoscope-widget")        # later ones: the worker
+    w.close()
+
+
+def test_large_frame_first_view_is_a_labelled_sample(frame):
+    class Recording(ProfileWidget):
+        def _apply(self, gen, result, notes, snap):
+            if "_entropy" in result:
+                self.history = getattr(self, "history", []) + [json.loads(result["_entropy"])]
+            super()._apply(gen, result, notes, snap)
+
+    w = quiet(Recording, session_of(frame), preview_rows=200, threaded=False)
+    first, last = w.history[0], w.history[-1]
+    assert first["sampled"] == 200 and max(r[3] for r in first["rows"]) == 200
+    assert last["sampled"] is None and max(r[3] for r in last["rows"]) == len(frame)
+    assert_same_entropy(w, direct_entropy(frame))
+
+
+# ------------------------------------------------------------------ errors
+@pytest.mark.parametrize(("trait", "value", "needle"), [
+    ("target", "no such column", "target"),
+    ("strategy", "bogus", "strategy must be one of"),
+    ("selected_pair", ["depot", "nope"], "selected_pair"),
+    ("column_bins", {"nope": 4}, "column_bins"),
+])
+def test_errors_surface_in_status(frame, trait, value, needle):
+    w = widget(frame)
+    before = w._entropy
+    setattr(w, trait, value)
+    assert w._status["state"] == "error"
+    assert needle in w._status["message"] and repr(value if not isinstance(value, list) else value[1]) in w._status["message"] \
+        or needle in w._status["message"]
+    assert w._entropy == before  # the last good numbers stay on screen
+
+
+def test_error_then_recovery(frame):
+    w = widget(frame)
+    w.strategy = "bogus"
+    assert w._status["state"] == "error"
+    w.strategy = "uniform"
+    assert w._status["state"] == "idle"
+    assert_same_entropy(w, direct_entropy(frame, strategy="uniform"))
+
+
+def test_session_warnings_become_notes(frame):
+    w = widget(frame, selected_pair=["weight_kg", "weight_lb"])  # 16 x 16 cells for 600 rows
+    assert any("SmallSampleWarning" in note for note in w._status["notes"])
+
+
+def test_needs_a_session():
+    with pytest.raises(TypeError, match="ProfileSession"):
+        ProfileWidget(pd.DataFrame({"a": [1, 2]}))
+
+
+# ------------------------------------------------------------------ sharing and escaping
+def test_mimebundle_has_widget_view_and_static_picture(frame):
+    w = widget(frame)
+    data, _meta = w._repr_mimebundle_()
+    assert data["application/vnd.jupyter.widget-view+json"]["model_id"] == w.model_id
+    svg = data["image/svg+xml"]
+    assert svg.lstrip().startswith(("<svg", "<?xml"))
+    html = data["text/html"]
+    assert html.startswith("<img ") and html.count("<") == 1
+    encoded = html.split("data:image/svg+xml;base64,", 1)[1].split('"', 1)[0]
+    assert base64.b64decode(encoded).decode("utf-8") == svg
+    assert len(repr(w)) < 120  # no trait dump in text/plain
+
+
+def test_payload_is_json_and_carries_pairs(frame):
+    w = widget(frame, selected_pair=["depot", "service"])
+    p = w.payload(top_pairs=3)
+    text = json.dumps(p, allow_nan=False)
+    back = json.loads(text)
+    assert back["format"] == "infoscope-profile/1" and back["view"] == "profile"
+    assert set(back["binary"]) == {"_grid_values", "_grid_n", "_grid_q"}
+    raw = base64.b64decode(back["state"]["_grid_values"])
+    assert raw == w._grid_values
+    assert "depot\u0000service" in back["pair_cache"] and 2 <= len(back["pair_cache"]) <= 4
+    for key, view in back["pair_cache"].items():
+        assert key == view["a"] + "\u0000" + view["b"]
+
+
+def test_markup_names_travel_as_plain_data():
+    evil = "<img src=x onerror=alert(1)>"
+    value = "<script>alert(2)</script>"
+    rng = np.random.default_rng(3)
+    df = pd.DataFrame({evil: rng.choice([value, "a"], 200), "y": rng.choice(["u", "v"], 200)})
+    w = quiet(ProfileWidget, quiet(ProfileSession, df, n_boot=0), threaded=False, selected_pair=[evil, "y"])
+    assert json.loads(w._entropy)["rows"][0][0] == evil        # the exact name, as a JSON value
+    assert w._grid_meta["names"].count(evil) == 1
+    assert value in w._pair["rows"] and w._pair["a"] == evil
+    data, _ = w._repr_mimebundle_()
+    svg = data["image/svg+xml"]
+    assert evil not in svg and value not in svg               # escaped in the picture
+    assert data["text/html"].count("<img ") == 1              # only our own tag
