@@ -320,6 +320,8 @@ def test_benjamini_hochberg_leaves_nan_out_of_the_count():
 def test_benjamini_hochberg_rejects_values_outside_unit_interval():
     with pytest.raises(ValueError, match="p_values must lie in"):
         benjamini_hochberg([0.2, 1.3])
+    with pytest.raises(TypeError, match="p_values must be numeric"):
+        benjamini_hochberg(["0.2", "x"])
 
 
 # ----------------------------------------------------------------- PMI

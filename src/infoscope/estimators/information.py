@@ -745,8 +745,13 @@ def benjamini_hochberg(p_values) -> np.ndarray:
     >>> benjamini_hochberg([0.01, 0.04, 0.03]).round(3).tolist()
     [0.03, 0.04, 0.04]
     """
-    p = np.asarray(p_values, dtype=np.float64) if not isinstance(p_values, np.ndarray) else p_values
-    if p.dtype == object or not np.issubdtype(p.dtype, np.number):
+    p = np.asarray(p_values)
+    if p.dtype == object and p.size:
+        try:  # a list mixing None-free numbers is fine; anything else is named below
+            p = p.astype(np.float64)
+        except (TypeError, ValueError):
+            pass
+    if p.dtype == object or not (np.issubdtype(p.dtype, np.number) or p.dtype == bool):
         raise TypeError(f"p_values must be numeric, got dtype {p.dtype}")
     p = p.astype(np.float64, copy=False)
     flat = p.ravel()
