@@ -234,6 +234,16 @@ def test_mixed_types_keep_one_and_string_one_apart():
     assert col.k == 3 and set(col.labels) == {"int:1", "str:1", "bool:True"}
 
 
+def test_lists_keep_cell_types_and_nested_cells():
+    # numpy.asarray([1, "1"]) would make two equal strings; the list's cells are kept
+    with pytest.warns(DataQualityWarning, match="several types"):
+        assert enc([1, "1"]).k == 2
+    with pytest.warns(DataQualityWarning, match="unhashable"):
+        col = enc([[1, 2], [3, 4], [1, 2]])
+    assert col.labels == ("[1, 2]", "[3, 4]") and col.n == 3
+    assert enc((x for x in [1.0, 2.0])).kind == "integer_categories"
+
+
 def test_unhashable_cells_use_a_stable_text_and_warn():
     cells = pd.Series([[1, 2], {"a": 1, "b": 2}, {"b": 2, "a": 1}, {3, 1}, [1, 2], None], dtype=object)
     with pytest.warns(DataQualityWarning) as record:
@@ -352,6 +362,10 @@ def test_datetime_edges_reuse_on_another_sample(rng):
     ref = enc(t, bins=4)
     again = enc(t, bins=ref.edges)
     np.testing.assert_array_equal(again.codes, ref.codes)
+    # zoned edges (e.g. a DatetimeIndex in another zone) mean the same instants
+    zoned = pd.DatetimeIndex(ref.edges).tz_localize("UTC").tz_convert("America/Chicago")
+    np.testing.assert_array_equal(enc(t, bins=zoned).codes, ref.codes)
+    np.testing.assert_array_equal(enc(t, bins=list(zoned)).codes, ref.codes)
     with pytest.raises(TypeError, match="datetime64"):
         enc(t, bins=[0.0, 1.0])
 

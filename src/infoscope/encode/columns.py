@@ -178,8 +178,23 @@ class EncodedColumn:
 # --------------------------------------------------------------------------- settings
 
 
+def _time_edges(bins):
+    """Datetime-like edges (Timestamps, DatetimeIndex, zoned or not) as datetime64 (zoned: UTC)."""
+    if isinstance(bins, (str, int, np.integer, float)) or (isinstance(bins, np.ndarray) and bins.dtype != object):
+        return bins
+    try:
+        idx = pd.Index(bins)
+    except (TypeError, ValueError):
+        return bins
+    if isinstance(idx.dtype, pd.DatetimeTZDtype):
+        return idx.tz_convert("UTC").tz_localize(None).to_numpy()
+    if idx.dtype.kind in "mM":
+        return idx.to_numpy()
+    return bins
+
+
 def _check_settings(bins, strategy, missing, max_categories, categorical_threshold):
-    bins = binning._check_bins(bins)
+    bins = binning._check_bins(_time_edges(bins))
     strategy = binning._check_strategy(strategy)
     if not isinstance(missing, str) or missing not in ("drop", "category"):
         raise ValueError(f"missing={missing!r} is not valid; choose one of: 'drop', 'category'")
@@ -228,17 +243,14 @@ def _as_series(values, name: str) -> pd.Series:
         return pd.Series(converted, copy=False)
     if isinstance(values, (str, bytes)) or np.isscalar(values) or values is None:
         raise TypeError(f"column {name!r}: expected a sequence of values, got a scalar {type(values).__name__}")
-    if isinstance(values, np.ndarray):
-        arr = values
-    else:
-        values = list(values)
+    if not isinstance(values, np.ndarray):
+        # pandas infers a list's dtype cell by cell (numpy would turn [1, "1"] into
+        # two equal strings, and nested lists into a 2-D array)
         try:
-            arr = np.asarray(values)
-        except (ValueError, TypeError):  # ragged nested lists
-            arr = None
-        if arr is None or arr.ndim != 1:
-            arr = np.empty(len(values), dtype=object)
-            arr[:] = values
+            return pd.Series(list(values), dtype=None)
+        except TypeError:
+            raise TypeError(f"column {name!r}: expected a sequence of values, got {type(values).__name__}") from None
+    arr = values
     if arr.ndim != 1:
         raise ValueError(f"column {name!r}: expected a 1-D column, got shape {arr.shape}")
     if arr.dtype.kind in "US":
