@@ -358,3 +358,22 @@ def test_markup_names_travel_as_plain_data():
     svg = data["image/svg+xml"]
     assert evil not in svg and value not in svg               # escaped in the picture
     assert data["text/html"].count("<img ") == 1              # only our own tag
+
+
+def test_displayed_picture_follows_the_view(frame, monkeypatch):
+    import IPython.display as ipd
+
+    shown, updated = [], []
+    monkeypatch.setattr(ipd, "display", lambda data, raw=False, display_id=None, **kw: shown.append((data, display_id)))
+    monkeypatch.setattr(ipd, "update_display", lambda data, raw=False, display_id=None, **kw: updated.append((data, display_id)))
+    w = widget(frame, picture_delay=0.05)
+    w._ipython_display_()
+    (data, display_id), = shown
+    assert "image/svg+xml" in data and "application/vnd.jupyter.widget-view+json" in data
+    w.bins = 4
+    deadline = time.monotonic() + 10
+    while not updated and time.monotonic() < deadline:
+        time.sleep(0.02)
+    assert updated, "the static picture was not refreshed after the view changed"
+    new, same_id = updated[-1]
+    assert same_id == display_id and new["image/svg+xml"] != data["image/svg+xml"]

@@ -144,7 +144,8 @@ class _ProfileBase(anywidget.AnyWidget):
     _parts = ("entropy", "grid", "pair", "relevance")
 
     def __init__(self, session, *, debounce: float = 0.15, threaded: bool = True,
-                 live_picture: bool = True, preview_rows: int | None = PREVIEW_ROWS, **kwargs):
+                 live_picture: bool = True, preview_rows: int | None = PREVIEW_ROWS,
+                 picture_delay: float = 2.0, **kwargs):
         if not all(hasattr(session, m) for m in ("update", "entropy", "pairs", "names", "settings")):
             raise TypeError("the profile widgets need an infoscope ProfileSession "
                             f"(infoscope.frame.session), got {type(session).__name__}")
@@ -165,6 +166,10 @@ class _ProfileBase(anywidget.AnyWidget):
         self._debounce = float(debounce)
         self._threaded = bool(threaded)
         self._live_picture = bool(live_picture)
+        # Refreshing the picture re-sends the whole output (the live view re-renders),
+        # so it waits until the controls have been still for picture_delay seconds.
+        self._picture_delay = float(picture_delay)
+        self._picture_timer: threading.Timer | None = None
         self._lock = threading.RLock()          # guards generation bookkeeping
         self._session_lock = threading.Lock()   # the session is not thread-safe
         self._idle = threading.Condition(self._lock)
@@ -481,7 +486,23 @@ class _ProfileBase(anywidget.AnyWidget):
 
     # ------------------------------------------------------------------ public methods
     def cancel(self) -> None:
-        """Stop the running recompute at its next step; the view keeps what it shows."""
+        """Stop the running recompute at its next step; the view keeps what it shows.
+
+        The settings traits return to the values of the numbers on screen. The
+        front end's Cancel button sends ``{"type": "cancel"}``, which calls this.
+
+        Returns
+        -------
+        None
+
+        References
+        ----------
+        Jupyter widget message protocol, custom messages (ipywidgets documentation).
+
+        Examples
+        --------
+        >>> w.bins = 64; w.cancel()   # doctest: +SKIP
+        """
         with self._lock:
             if self._timer is not None:
                 self._timer.cancel()
@@ -498,7 +519,27 @@ class _ProfileBase(anywidget.AnyWidget):
                             "message": "Cancelled: the view shows the last finished settings.", "notes": []}
 
     def wait(self, timeout: float = 30.0) -> bool:
-        """Block until every requested recompute has finished (True) or ``timeout`` passed."""
+        """Block until every requested recompute has finished.
+
+        Parameters
+        ----------
+        timeout : float, default=30.0
+            Seconds to wait at most.
+
+        Returns
+        -------
+        bool
+            True when nothing is pending, False when ``timeout`` passed first.
+
+        References
+        ----------
+        Python documentation, ``threading.Condition.wait``.
+
+        Examples
+        --------
+        >>> w.bins = 8; w.wait()   # doctest: +SKIP
+        True
+        """
         deadline = time.monotonic() + timeout
         with self._idle:
             while self._outstanding > 0:
@@ -580,9 +621,21 @@ class _ProfileBase(anywidget.AnyWidget):
         display(data, raw=True, display_id=self._display_id)
 
     def _refresh_picture(self) -> None:
-        """Keep the static picture beside a displayed view in step with it."""
+        """Keep the static picture beside a displayed view in step with it (debounced)."""
         if not (self._displayed and self._live_picture):
             return
+        with self._lock:
+            if self._picture_timer is not None:
+                self._picture_timer.cancel()
+            self._picture_timer = threading.Timer(self._picture_delay, self._refresh_picture_now)
+            self._picture_timer.daemon = True
+            self._picture_timer.start()
+
+    def _refresh_picture_now(self) -> None:
+        with self._lock:
+            self._picture_timer = None
+            if self._outstanding:
+                return  # a newer result is on its way; it schedules the refresh again
         try:
             from IPython.display import update_display
             data = self._repr_mimebundle_()
@@ -650,9 +703,10 @@ class _ProfileBase(anywidget.AnyWidget):
         if not hasattr(self, "_lock"):  # the constructor refused its arguments
             return super().close()
         with self._lock:
-            if self._timer is not None:
-                self._timer.cancel()
-                self._timer = None
+            for timer in (self._timer, self._picture_timer):
+                if timer is not None:
+                    timer.cancel()
+            self._timer = self._picture_timer = None
         if self._executor is not None:
             self._executor.shutdown(wait=False, cancel_futures=True)
         super().close()
@@ -674,6 +728,12 @@ class ProfileWidget(_ProfileBase):
     debounce : float, default=0.15
         Seconds to wait after a control change before recomputing (rapid changes
         collapse into one recompute).
+    preview_rows : int or None, default=200_000
+        A frame with more rows gets its first view from a seeded sample of this many
+        rows (labelled "sampled"), then the full data; None always uses every row.
+    picture_delay : float, default=2.0
+        Seconds of still controls before the static picture beside a displayed view
+        is refreshed (a refresh re-renders the output).
     threaded : bool, default=True
         Recompute on a worker thread (the kernel stays responsive). ``False``
         recomputes synchronously in the thread that changed a setting.
