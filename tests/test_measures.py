@@ -143,6 +143,44 @@ def test_quantile_bins_are_the_default_strategy(rng):
     assert m.entropy(x, bins=4, estimator="plugin") == pytest.approx(2.0, abs=1e-12)
 
 
+def test_iris_features_binned_against_species_match_sklearn():
+    # scikit-learn's bundled iris data (sklearn.datasets.load_iris, no download):
+    # MI between the species and each feature cut into 5 equal-width bins (numpy's
+    # histogram edges), compared with sklearn.metrics.mutual_info_score on those codes.
+    from sklearn.datasets import load_iris
+
+    data = load_iris()
+    species = data.target
+    for j, feature in enumerate(data.feature_names):
+        x = data.data[:, j]
+        edges = np.histogram_bin_edges(x, bins=5)
+        codes = np.clip(np.searchsorted(edges, x, side="right") - 1, 0, 4)
+        expected = metrics.mutual_info_score(species, codes)
+        got = m.mutual_information(x, species, bins=5, strategy="uniform", estimator="plugin", base="nats")
+        assert got == pytest.approx(expected, rel=1e-12), feature
+
+
+def test_binned_column_with_missing_as_a_category(rng):
+    x = rng.normal(size=400)
+    x[::9] = np.nan
+    y = rng.integers(0, 3, 400)
+    edges = np.histogram_bin_edges(x[~np.isnan(x)], bins=4)
+    codes = np.where(np.isnan(x), 99, np.clip(np.searchsorted(edges, x, side="right") - 1, 0, 3))
+    # scikit-learn with the missing rows as a fifth label
+    expected = metrics.mutual_info_score(codes, y)
+    got = m.mutual_information(x, y, bins=4, strategy="uniform", missing="category", estimator="plugin", base="nats")
+    assert got == pytest.approx(expected, rel=1e-12)
+
+
+def test_relabelling_the_values_changes_nothing(labels):
+    x, y = labels
+    renamed = np.char.add("site-", x)
+    # Invariance of every measure to a one-to-one relabelling (common practice; the
+    # measures depend only on the partition of the rows).
+    for func in (m.mutual_information, m.normalized_mutual_information, m.variation_of_information):
+        assert func(renamed, y) == pytest.approx(func(x, y), rel=1e-12)
+
+
 # ----------------------------------------------------------------- kNN dispatch
 def test_ksg_dispatch_is_the_continuous_estimator_and_near_gaussian_closed_form(rng):
     n, rho = 2000, 0.6
