@@ -274,3 +274,47 @@ def test_drift_missing_policy_on_binned_columns():
     d = ProfileSession(ref, missing="category").drift(clean).iloc[0]
     assert d["k"] == 17 and d["n"] == 2_000 and d["n_reference"] == 2_000
     assert d["flag"] == "major"  # 10 % of the batch in a symbol the reference never had
+
+
+@pytest.mark.parametrize("module_name", ["infoscope.datasets", "infoscope.frame.session",
+                                         "infoscope.frame.results", "infoscope.frame.drift",
+                                         "infoscope.frame.accessor", "infoscope.cli"])
+def test_public_functions_have_numpydoc_sections(module_name):
+    import importlib
+    import inspect
+
+    module = importlib.import_module(module_name)
+    checked = 0
+    for name in module.__all__:
+        obj = getattr(module, name)
+        members = [obj]
+        if inspect.isclass(obj):
+            members += [m for n, m in vars(obj).items() if not n.startswith("_") and inspect.isfunction(m)]
+        for member in members:
+            if not callable(member) or (inspect.isclass(member) and member.__module__ != module_name):
+                continue
+            doc = inspect.getdoc(member) or ""
+            sections = ("References", "Examples") if inspect.isclass(member) else (
+                "Parameters", "Returns", "References", "Examples")
+            if inspect.isclass(member) and "Attributes\n---" in doc and "Examples" not in doc:
+                sections = ("Attributes",)  # a plain record type (PairTable)
+            elif not inspect.isclass(member):
+                params = [p for p in inspect.signature(member).parameters if p != "self"]
+                if not params:  # nothing to describe under Parameters
+                    sections = sections[1:]
+            for section in sections:
+                assert f"\n{section}\n---" in doc, f"{module_name}.{name}: {member.__name__} lacks {section}"
+            checked += 1
+    assert checked > 0
+
+
+@pytest.mark.parametrize("module_name", ["infoscope.datasets", "infoscope.frame.session",
+                                         "infoscope.frame.results", "infoscope.frame.drift",
+                                         "infoscope.frame.accessor"])
+def test_docstring_examples_run(module_name):
+    import doctest
+    import importlib
+
+    module = importlib.import_module(module_name)
+    result = doctest.testmod(module, optionflags=doctest.ELLIPSIS | doctest.NORMALIZE_WHITESPACE)
+    assert result.attempted > 0 and result.failed == 0

@@ -185,7 +185,8 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
         _section(f"top {args.top} pairs by normalised mutual information",
                  format_table(pairs[["a", "b", "n", "mi", "nmi", "q_value"]], max_rows=args.top), out)
         relevance = session.relevance(target)
-        _section(f"relevance to {target!r} ({unit}; leakage = column nearly determines it)",
+        _section(f"relevance to {target!r} ({unit}; leakage = the column nearly determines the "
+                 "target; an estimate below 0 means no dependence beyond the bias correction)",
                  format_table(relevance[["column", "mi", "ci_low", "ci_high", "share_of_target",
                                          "q_value", "leakage"]]), out)
         drift = ProfileSession(batch, bins=args.bins).drift(frame)

@@ -262,7 +262,8 @@ class ProfileSession:
     --------
     >>> from infoscope.datasets import make_deliveries
     >>> from infoscope.frame.session import ProfileSession
-    >>> s = ProfileSession(make_deliveries(2_000), target="late", n_boot=20)
+    >>> s = ProfileSession(make_deliveries(2_000)[["depot", "weight_kg", "late"]], target="late",
+    ...                    n_boot=20)
     >>> s.entropy().columns[:4].tolist()
     ['column', 'kind', 'k', 'n']
     >>> sorted(s.update(bins=8)) == sorted(s.numeric_keys())
@@ -320,11 +321,48 @@ class ProfileSession:
         return self._engine
 
     def column(self, name: str):
-        """The :class:`~infoscope.encode.columns.EncodedColumn` of a column key."""
+        """The encoded column of a column key.
+
+        Parameters
+        ----------
+        name : str
+            Column key (or the original label, e.g. a MultiIndex tuple).
+
+        Returns
+        -------
+        EncodedColumn
+            Codes, alphabet size, labels, kind, flags (DEVELOPERS.md, contracts).
+
+        References
+        ----------
+        .. [1] DEVELOPERS.md, "EncodedColumn".
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> ProfileSession(pd.DataFrame({"c": list("abca")})).column("c").labels
+        ('a', 'b', 'c')
+        """
         return self._encoded[self._check_name(name, "name")]
 
     def numeric_keys(self) -> list[str]:
-        """Keys of the columns that are binned (their encoding has bin edges)."""
+        """Keys of the binned columns (numbers, datetimes, durations with bin edges).
+
+        Returns
+        -------
+        list of str
+            In frame order.
+
+        References
+        ----------
+        .. [1] DEVELOPERS.md, "EncodedColumn" (``edges``).
+
+        Examples
+        --------
+        >>> import numpy as np, pandas as pd
+        >>> ProfileSession(pd.DataFrame({"x": np.arange(100.0), "c": ["a"] * 100})).numeric_keys()
+        ['x']
+        """
         return [k for k in self._names if self._encoded[k].edges is not None]
 
     def __repr__(self) -> str:
@@ -344,10 +382,14 @@ class ProfileSession:
         set of str
             Keys of the columns that were re-encoded (their pairs are recounted).
 
+        References
+        ----------
+        .. [1] DEVELOPERS.md, "ProfileSession" (the incremental path).
+
         Examples
         --------
-        >>> import pandas as pd
-        >>> s = ProfileSession(pd.DataFrame({"x": [0.1, 0.5, 0.9, 1.3] * 5, "c": list("abab") * 5}))
+        >>> import numpy as np, pandas as pd
+        >>> s = ProfileSession(pd.DataFrame({"x": np.linspace(0, 1, 40), "c": list("ab") * 20}))
         >>> s.update(bins=2)
         {'x'}
         >>> s.update(estimator="plugin")
@@ -398,10 +440,14 @@ class ProfileSession:
         -------
         None
 
+        References
+        ----------
+        .. [1] DEVELOPERS.md, "ProfileSession" (``set_column_bins``).
+
         Examples
         --------
-        >>> import pandas as pd
-        >>> s = ProfileSession(pd.DataFrame({"x": [0.1, 0.5, 0.9, 1.3] * 5}))
+        >>> import numpy as np, pandas as pd
+        >>> s = ProfileSession(pd.DataFrame({"x": np.linspace(0, 1, 40)}))
         >>> s.set_column_bins("x", 2); s.column("x").k
         2
         """
@@ -706,7 +752,7 @@ class ProfileSession:
         >>> import pandas as pd
         >>> df = pd.DataFrame({"x": list("abab") * 10, "z": list("aabb") * 10, "y": list("abab") * 10})
         >>> ProfileSession(df, estimator="plugin").matrix("nmi", order="cluster").index.tolist()
-        ['z', 'x', 'y']
+        ['z', 'y', 'x']
         """
         order = check_choice(order, ORDERS, "order")
         table = self.pairs(measure)
@@ -909,8 +955,9 @@ class ProfileSession:
         Examples
         --------
         >>> from infoscope.datasets import make_deliveries, make_deliveries_batch
-        >>> s = ProfileSession(make_deliveries_batch(2_000))
-        >>> d = s.drift(make_deliveries(4_000))
+        >>> columns = ["depot", "booking_channel", "weight_kg"]
+        >>> s = ProfileSession(make_deliveries_batch(2_000)[columns])
+        >>> d = s.drift(make_deliveries(4_000)[columns])
         >>> d.set_index("column").loc["booking_channel", "flag"]
         'moderate'
         """
