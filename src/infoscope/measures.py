@@ -147,7 +147,7 @@ def _missing_mask(series, name: str) -> np.ndarray:
             warnings.warn(
                 f"{name} has {int(inf.sum())} infinite value(s); they are treated as missing",
                 DataQualityWarning,
-                stacklevel=4,
+                stacklevel=5,  # the caller of the public function
             )
             mask |= inf
     return mask
@@ -166,7 +166,7 @@ def _warn_if_continuous(series, present: np.ndarray, n_distinct: int, name: str)
             "labels, so nearly every row is its own symbol; pass bins= to bin it "
             "(or estimator='ksg' for mutual information)",
             DataQualityWarning,
-            stacklevel=4,
+            stacklevel=5,  # the caller of the public function
         )
 
 
@@ -224,7 +224,10 @@ def _coded_columns(named, *, bins, strategy, missing) -> list[_Coded]:
     n = check_same_length(**{p: series for _, p, series in prepared})
     if n == 0:
         raise ValueError(f"{' and '.join(p for p, _ in named)} {'is' if len(named) == 1 else 'are'} empty (no rows)")
-    return [_code_column(series, name, bins=bins, strategy=strategy, missing=missing) for name, _, series in prepared]
+    coded = []
+    for name, _, series in prepared:  # a loop, not a comprehension: warning stack levels count frames
+        coded.append(_code_column(series, name, bins=bins, strategy=strategy, missing=missing))
+    return coded
 
 
 def _table(cols: list[_Coded]) -> np.ndarray:
