@@ -491,7 +491,9 @@ def mutual_information(
         Pseudocount of the ``"dirichlet"`` estimator.
     discrete : {None, "x", "y", "neither"}, optional
         For ``"ksg"``: which side holds labels.  ``None`` decides by dtype
-        (numbers are continuous; strings, booleans and categoricals discrete).
+        (numbers are continuous; strings, booleans and categoricals discrete), so
+        integer class labels need ``discrete="y"`` (or ``"x"``) to get the mixed
+        estimator.
     seed : int, default=0
         Seed of the tie-breaking noise of the kNN estimators.
 
