@@ -211,6 +211,16 @@ def test_ksg_with_a_label_side_uses_the_mixed_estimator(rng):
     assert m.mutual_information(cls, x, estimator="ksg") == got
 
 
+def test_integer_class_labels_reach_the_mixed_estimator_when_declared(rng):
+    y = rng.integers(0, 3, 400)
+    x = 4.0 * y + rng.normal(size=400)
+    got = m.mutual_information(x, y, estimator="ksg", discrete="y")
+    # the continuous module's Ross (2014) estimator on the same data
+    assert got == continuous.mixed_mutual_information(x, pd.factorize(y)[0], k=3, base=2, seed=0)
+    with pytest.raises(ValueError, match="discrete='z' is not valid"):
+        m.mutual_information(x, y, estimator="ksg", discrete="z")
+
+
 def test_ksg_drops_rows_with_missing_values(rng):
     x = rng.normal(size=300)
     y = x + rng.normal(size=300)
