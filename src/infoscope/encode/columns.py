@@ -621,7 +621,8 @@ def _objects(series: pd.Series, notes: _Notes, bins, strategy, threshold):
         return _boolean(x, na)
     if inferred in ("integer", "floating", "mixed-integer-float", "decimal"):
         num = pd.to_numeric(series, errors="coerce")
-        if num.dtype != object and int(num.isna().sum()) == int(series.isna().sum()):
+        exact = not (inferred == "integer" and num.dtype.kind == "f")  # ints beyond 64 bits
+        if num.dtype != object and exact and int(num.isna().sum()) == int(series.isna().sum()):
             arr = num.to_numpy()
             return _numeric(arr, None, notes, bins, strategy, threshold)
     if inferred in ("datetime", "datetime64", "date", "timedelta", "timedelta64"):
