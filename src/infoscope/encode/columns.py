@@ -984,7 +984,7 @@ def _key_text(label) -> str:
     return label if isinstance(label, str) else str(label)
 
 
-def column_keys(columns: Sequence, *, warn: bool = True) -> list[str]:
+def column_keys(columns: Sequence, *, warn: bool = True, _stacklevel: int = 2) -> list[str]:
     """Unique string keys for column labels (duplicates, numbers, MultiIndex tuples).
 
     Parameters
@@ -1036,7 +1036,7 @@ def column_keys(columns: Sequence, *, warn: bool = True) -> list[str]:
         warnings.warn(
             f"column names repeat ({names}); later ones are keyed with ' (2)', ' (3)', ...",
             DataQualityWarning,
-            stacklevel=2,
+            stacklevel=_stacklevel,
         )
     return out
 
@@ -1076,5 +1076,12 @@ def encode_frame(frame, **settings) -> list[EncodedColumn]:
             frame = frame.to_pandas()
         else:
             raise TypeError(f"frame must be a pandas or Polars DataFrame, got {type(frame).__name__}")
-    keys = column_keys(list(frame.columns))
-    return [encode_column(frame.iloc[:, i], name=key, **settings) for i, key in enumerate(keys)]
+    keys = column_keys(list(frame.columns), _stacklevel=3)
+    out = []
+    for i, key in enumerate(keys):
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            out.append(encode_column(frame.iloc[:, i], name=key, **settings))
+        for w in caught:  # re-issued so that they point at the caller's line
+            warnings.warn(w.message, w.category, stacklevel=2)
+    return out
