@@ -11,33 +11,14 @@ import altair as alt
 import pandas as pd
 
 from infoscope.report import _records as rec
-from infoscope.report.suppression import check_min_count, suppressed_label
+from infoscope.report._style import DEPENDENCE_CAUTION, PALETTE, SAMPLE_CAUTION
+from infoscope.report.suppression import check_min_count
 
 __all__ = [
     "PALETTE", "entropy_chart", "grid_chart", "pair_chart", "relevance_chart", "drift_chart",
     "profile_charts", "chart_to_svg", "chart_to_png",
 ]
 
-#: Our colours. Blue against orange is told apart under the common colour-vision
-#: deficiencies (common practice); sequential ramps vary in lightness, not just hue.
-PALETTE = {
-    "bar": "#3b6e8f",           # entropy / relevance bars
-    "whisker": "#1d2b36",       # confidence-interval whiskers
-    "outline": "#9aa7b1",       # max-entropy outline
-    "leak": "#c4622d",          # relevance share >= 0.95 (possible leakage)
-    "grid_low": "#f3f1ea",      # information grid, no information
-    "grid_high": "#17445e",     # information grid, most information
-    "pmi_neg": "#b5541c",       # pair view: fewer than expected
-    "pmi_mid": "#f6f5f0",       # pair view: as expected
-    "pmi_pos": "#245f80",       # pair view: more than expected
-    "hidden": "#d5d3cc",        # suppressed cell
-    "stable": "#8db3c7",
-    "moderate": "#e0a43a",
-    "major": "#a8401a",
-}
-
-SAMPLE_CAUTION = "Estimates from a sample; whiskers are confidence intervals."
-DEPENDENCE_CAUTION = "Mutual information measures dependence, not cause."
 
 
 def _unit(table) -> str:

@@ -18,7 +18,7 @@ import re
 import pandas as pd
 
 from infoscope.report import _records as rec
-from infoscope.report.charts import DEPENDENCE_CAUTION, PALETTE
+from infoscope.report._style import DEPENDENCE_CAUTION, PALETTE
 from infoscope.report.suppression import check_min_count
 
 __all__ = ["profile_svg", "profile_svg_from_tables", "svg_data_uri", "svg_text"]
