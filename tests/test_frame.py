@@ -318,3 +318,34 @@ def test_docstring_examples_run(module_name):
     module = importlib.import_module(module_name)
     result = doctest.testmod(module, optionflags=doctest.ELLIPSIS | doctest.NORMALIZE_WHITESPACE)
     assert result.attempted > 0 and result.failed == 0
+
+
+@pytest.mark.parametrize("estimator", ["plugin", "miller_madow", "chao_shen", "james_stein",
+                                       "dirichlet", "grassberger", "nsb"])
+def test_vectorised_pair_measures_equal_the_per_table_functions(estimator):
+    from infoscope.estimators.information import (
+        g_test_from_table,
+        mutual_information_from_table,
+        normalized_mutual_information_from_table,
+    )
+
+    rng = np.random.default_rng(11)
+    n = 300
+    frame = pd.DataFrame({
+        "a": rng.integers(0, 3, n), "b": rng.integers(0, 7, n), "c": rng.normal(size=n),
+        "d": pd.Categorical(rng.choice(list("pqrs"), n), categories=list("pqrst")),
+        "e": rng.integers(0, 2, n).astype(bool),
+    })
+    frame["b"] = frame["b"] + frame["a"]  # some dependence
+    frame.loc[rng.random(n) < 0.1, "c"] = np.nan
+    s = ProfileSession(frame, estimator=estimator, bins=5, n_boot=0, normalization="geometric")
+    pairs = s.pairs()
+    for row in pairs.itertuples():
+        t = s.engine.table(row.a, row.b)
+        # the same numbers, one table at a time, from infoscope.estimators.information
+        assert row.mi == pytest.approx(mutual_information_from_table(t, estimator=estimator), abs=1e-9)
+        assert row.nmi == pytest.approx(normalized_mutual_information_from_table(
+            t, estimator=estimator, normalization="geometric"), abs=1e-9)
+        g = g_test_from_table(t)
+        assert (row.g, row.dof) == (pytest.approx(g.statistic, abs=1e-8), g.dof)
+        assert row.p_value == pytest.approx(g.p_value, abs=1e-10)

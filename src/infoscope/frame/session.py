@@ -646,7 +646,6 @@ class ProfileSession:
         from infoscope.estimators.information import (
             adjusted_mutual_information_from_table,
             benjamini_hochberg,
-            g_test_from_tables,
             variation_of_information_from_table,
         )
 
@@ -655,9 +654,9 @@ class ProfileSession:
         pair_list = self._pair_list(columns)
         tables = self._engine.tables(pair_list) if pair_list else {}
         tabs = [np.asarray(tables[p], dtype=np.int64) for p in pair_list]
-        mi, nmi = self._mi_nmi(tabs)
-        g = g_test_from_tables(tabs) if tabs else None
-        q = benjamini_hochberg(g.p_value) if tabs else np.zeros(0)
+        tm = self._table_measures(tabs)
+        mi, nmi = tm["mi"], tm["nmi"]
+        q = benjamini_hochberg(tm["p_value"]) if tabs else np.zeros(0)
         rows = []
         for i, (a, b) in enumerate(pair_list):
             t = tabs[i]
@@ -675,50 +674,74 @@ class ProfileSession:
             rows.append({
                 "a": a, "b": b, "k_a": int(self._encoded[a].k), "k_b": int(self._encoded[b].k),
                 "n": n, "mi": mi[i], "nmi": nmi[i], "value": float(value),
-                "g": float(g.statistic[i]), "dof": int(g.dof[i]), "p_value": float(g.p_value[i]),
+                "g": float(tm["g"][i]), "dof": int(tm["dof"][i]), "p_value": float(tm["p_value"][i]),
                 "q_value": float(q[i]), "sparse": bool(n / max(t.size, 1) < SPARSE_CELL_COUNT),
             })
         return result_frame(rows, PAIRS_COLUMNS,
                             **self._attrs(measure=measure, normalization=s["normalization"]))
 
-    def _mi_nmi(self, tabs: list[np.ndarray]) -> tuple[np.ndarray, np.ndarray]:
-        """MI and NMI of many tables, vectorised over tables of the same shape.
+    def _table_measures(self, tabs: list[np.ndarray]) -> dict[str, np.ndarray]:
+        """MI, NMI and the G-test of many tables at once (vectorised across tables).
 
-        Same definitions and degenerate-case conventions as
+        ``mi`` / ``nmi`` follow the definitions and degenerate-case conventions of
         ``mutual_information_from_table`` and ``normalized_mutual_information_from_table``
-        (tests check the agreement); empty tables give NaN.
+        with the session's estimator; the G-test those of ``g_test_from_table``:
+        :math:`G = 2 N I_{plugin}` in nats (Wilks 1938; Kullback 1959), ``dof``
+        counting non-empty rows and columns, p = 1 when ``dof == 0``.  The tests
+        compare every estimator with the per-table functions and the G-test with
+        ``scipy.stats.chi2_contingency``.  Empty tables give NaN (G 0, dof 0).
+
+        Tables go through the entropy estimators in stacks: for estimators that
+        ignore empty cells (plug-in, Miller-Madow, Chao-Shen, Grassberger) tables of
+        different shapes are zero-padded into one stack; for the others, whose value
+        depends on the alphabet size K (James-Stein, Dirichlet, NSB), only tables of
+        the same shape share a stack.
         """
+        from scipy.stats import chi2
+
         from infoscope.estimators.entropy import entropy_of_count_rows
 
         s = self._settings
         kw = self._kw()
         kw["base"] = "nats"
         divisor = log_base(s["base"])
-        mi = np.full(len(tabs), np.nan)
-        nmi = np.full(len(tabs), np.nan)
-        groups: dict[tuple, list[int]] = {}
-        for i, t in enumerate(tabs):
-            if t.sum() > 0:
-                groups.setdefault(t.shape, []).append(i)
-        for (r, c), index in groups.items():
-            stack = np.stack([tabs[i] for i in index]).astype(np.float64)
-            rows, cols = stack.sum(axis=2), stack.sum(axis=1)
+        m = len(tabs)
+        out = {"mi": np.full(m, np.nan), "nmi": np.full(m, np.nan), "g": np.zeros(m),
+               "dof": np.zeros(m, dtype=np.int64), "p_value": np.full(m, np.nan)}
+        live = [i for i, t in enumerate(tabs) if t.sum() > 0]
+        for index in _stacks(tabs, live, pad=s["estimator"] in _ZERO_CELLS_IGNORED):
+            r = max(tabs[i].shape[0] for i in index)
+            c = max(tabs[i].shape[1] for i in index)
+            stack = np.zeros((len(index), r, c))
+            for j, i in enumerate(index):
+                t = tabs[i]
+                stack[j, : t.shape[0], : t.shape[1]] = t
+            rows, cols, flat = stack.sum(axis=2), stack.sum(axis=1), stack.reshape(len(index), r * c)
             hx = entropy_of_count_rows(rows, **kw)
             hy = entropy_of_count_rows(cols, **kw)
-            hxy = entropy_of_count_rows(stack.reshape(len(index), r * c), **kw)
-            m = hx + hy - hxy
+            hxy = entropy_of_count_rows(flat, **kw)
+            mi = hx + hy - hxy
             if s["estimator"] == "plugin":
                 # plug-in MI is a KL divergence, >= 0; a tiny negative is rounding
-                m = np.maximum(m, 0.0)
+                mi = np.maximum(mi, 0.0)
             norm = _normaliser(hx, hy, hxy, s["normalization"])
-            both_constant = (np.count_nonzero(rows, axis=1) == 1) & (np.count_nonzero(cols, axis=1) == 1)
+            r_used, c_used = np.count_nonzero(rows, axis=1), np.count_nonzero(cols, axis=1)
             with np.errstate(divide="ignore", invalid="ignore"):
-                v = np.where(norm > 0, m / np.where(norm > 0, norm, 1.0), 0.0)
-            v = np.where(m == 0.0, 0.0, v)
-            v = np.where(both_constant, 1.0, v)
-            mi[index] = m / divisor
-            nmi[index] = v
-        return mi, nmi
+                v = np.where(norm > 0, mi / np.where(norm > 0, norm, 1.0), 0.0)
+            v = np.where(mi == 0.0, 0.0, v)
+            v = np.where((r_used == 1) & (c_used == 1), 1.0, v)  # both constant: a perfect match
+            plugin = (entropy_of_count_rows(rows, estimator="plugin", base="nats")
+                      + entropy_of_count_rows(cols, estimator="plugin", base="nats")
+                      - entropy_of_count_rows(flat, estimator="plugin", base="nats"))
+            n = flat.sum(axis=1)
+            dof = np.maximum((r_used - 1) * (c_used - 1), 0)
+            g = np.where(dof > 0, 2.0 * n * np.maximum(plugin, 0.0), 0.0)
+            out["mi"][index] = mi / divisor
+            out["nmi"][index] = v
+            out["g"][index] = g
+            out["dof"][index] = dof
+            out["p_value"][index] = np.where(dof > 0, chi2.sf(g, np.maximum(dof, 1)), 1.0)
+        return out
 
     # ---------------------------------------------------------- matrix
     def matrix(self, measure: str | None = None, order: str = "name") -> pd.DataFrame:
@@ -833,15 +856,15 @@ class ProfileSession:
                              self._attrs())
         expected = np.outer(t.sum(axis=1), t.sum(axis=0)) / n
         pmi = pointwise_mutual_information(t, base=self._settings["base"])
-        mi, nmi = self._mi_nmi([t])
+        tm = self._table_measures([t])
         sparse = bool(n / t.size < SPARSE_CELL_COUNT)
         if sparse:
             warnings.warn(f"the joint table of {a!r} and {b!r} has {t.size} cells for {n} rows "
                           "(fewer than 5 per cell on average): the estimates are unreliable",
                           SmallSampleWarning, stacklevel=2)
         return PairTable(a, b, counts, pd.DataFrame(expected, index=index, columns=columns),
-                         pd.DataFrame(pmi, index=index, columns=columns), float(mi[0]),
-                         float(nmi[0]), g_test_from_table(t), n,
+                         pd.DataFrame(pmi, index=index, columns=columns), float(tm["mi"][0]),
+                         float(tm["nmi"][0]), g_test_from_table(t), n,
                          unit_name(self._settings["base"]), sparse, self._attrs())
 
     # ---------------------------------------------------------- relevance
@@ -881,7 +904,7 @@ class ProfileSession:
         >>> r[["column", "leakage"]].values.tolist()
         [['copy', True], ['noise', False]]
         """
-        from infoscope.estimators.information import benjamini_hochberg, g_test_from_tables
+        from infoscope.estimators.information import benjamini_hochberg
 
         s = self._settings
         if s["n_boot"] > 0:
@@ -895,9 +918,9 @@ class ProfileSession:
         if not others:
             raise ValueError(f"the profile has only the target column {target!r}: nothing to relate to it")
         tabs = [np.asarray(self._engine.table(k, target), dtype=np.int64) for k in others]
-        mi, nmi = self._mi_nmi(tabs)
-        g = g_test_from_tables(tabs)
-        q = benjamini_hochberg(g.p_value)
+        tm = self._table_measures(tabs)
+        mi, nmi = tm["mi"], tm["nmi"]
+        q = benjamini_hochberg(tm["p_value"])
         if np.count_nonzero(self._engine.marginal(target)) <= 1:
             warnings.warn(f"target {target!r} has at most one value: no column can inform it",
                           DataQualityWarning, stacklevel=2)
@@ -914,7 +937,7 @@ class ProfileSession:
             rows.append({
                 "column": key, "k": int(self._encoded[key].k), "n": n, "mi": mi[i],
                 "ci_low": float(low), "ci_high": float(high), "nmi": nmi[i],
-                "p_value": float(g.p_value[i]), "q_value": float(q[i]),
+                "p_value": float(tm["p_value"][i]), "q_value": float(q[i]),
                 "share_of_target": share, "leakage": bool(share >= LEAKAGE_SHARE),
                 "sparse": bool(n / max(t.size, 1) < SPARSE_CELL_COUNT),
             })
@@ -991,6 +1014,36 @@ class ProfileSession:
 
 
 # ------------------------------------------------------------------ module helpers
+# entropy estimators whose value does not change when empty cells are added
+# (a property their own tests check), so tables of any shape can share a stack
+_ZERO_CELLS_IGNORED = frozenset({"plugin", "miller_madow", "chao_shen", "grassberger"})
+# largest stack of padded cells handed to the estimators at once (float64: 32 MB)
+_STACK_CELLS = 4_000_000
+
+
+def _stacks(tabs: list[np.ndarray], live: list[int], *, pad: bool) -> list[list[int]]:
+    """Groups of table indices computed together: same shape, or (``pad``) similar size."""
+    if not pad:
+        groups: dict[tuple, list[int]] = {}
+        for i in live:
+            groups.setdefault(tabs[i].shape, []).append(i)
+        return list(groups.values())
+    order = sorted(live, key=lambda i: tabs[i].shape)
+    out: list[list[int]] = []
+    batch: list[int] = []
+    r = c = 0
+    for i in order:
+        nr, nc = max(r, tabs[i].shape[0]), max(c, tabs[i].shape[1])
+        if batch and (len(batch) + 1) * nr * nc > _STACK_CELLS:
+            out.append(batch)
+            batch, nr, nc = [], tabs[i].shape[0], tabs[i].shape[1]
+        batch.append(i)
+        r, c = nr, nc
+    if batch:
+        out.append(batch)
+    return out
+
+
 def _child_seed(seed, i: int):
     """A per-column seed derived from the session seed (None stays random)."""
     if seed is None:
