@@ -65,6 +65,8 @@ function answer(keys, m) {
 }
 const offline = new URLSearchParams(location.search).has("offline");
 const which = new URLSearchParams(location.search).get("payload") || "base";
+const only = new URLSearchParams(location.search).get("view");
+if (only) data[which].state._view = only;
 const model = modelFromPayload(data[which], offline ? {} : { onSave: answer, onSend: (msg) => window.__sent.push(msg) });
 window.__model = model;
 window.__cleanup = render({ model, el: document.getElementById("app") });
@@ -89,7 +91,7 @@ def payloads():
     from infoscope.widgets import ProfileWidget
 
     frame = make_deliveries(800, seed=3)
-    session = _quiet(ProfileSession, frame, n_boot=0)
+    session = _quiet(ProfileSession, frame, n_boot=30)
     w = _quiet(ProfileWidget, session, threaded=False, target="late", min_count=5)
     base = _quiet(w.payload)
     answers = [base]
@@ -284,3 +286,14 @@ def test_grid_stays_responsive_at_200_columns(harness, web, artifacts):
     assert took < 1500, f"drawing 200 x 200 cells took {took:.0f} ms"
     assert page.locator(".isc-grid canvas").count() == 2  # the grid and its legend: no DOM per cell
     page.locator(".isc-grid").screenshot(path=str(artifacts / "grid-200.png"))
+
+
+@pytest.mark.parametrize("view", ["entropy", "grid", "pair", "relevance"])
+def test_single_views_render_alone(harness, web, artifacts, view):
+    page = harness(f"?view={view}")
+    panels = page.eval_on_selector_all(".isc-panel", "els => els.map(e => e.className)")
+    assert panels == [f"isc-panel isc-{view}"]
+    assert page.locator(".isc-controls").count() == 0
+    assert page.locator(".isc-caution").count() == 1  # the cautions go with every view
+    assert web.page_errors == [] and web.outside_requests == []
+    page.locator(f".isc-{view}").screenshot(path=str(artifacts / f"alone-{view}.png"))

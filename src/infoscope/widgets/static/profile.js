@@ -46,7 +46,7 @@ const CSS = `
 .isc-phead .isc-ctl{margin-left:auto;flex-direction:row;align-items:center;gap:6px}
 .isc-empty{color:var(--isc-ink2);font-size:12px;padding:18px 4px}
 .isc-bars{max-height:440px;overflow:auto;position:relative}
-.isc-erow,.isc-axis{display:grid;grid-template-columns:minmax(6em,10em) minmax(120px,1fr) 3.6em 8.6em;
+.isc-erow,.isc-axis{display:grid;grid-template-columns:minmax(6em,10em) minmax(120px,1fr) 4.6em 8.6em;
  align-items:center;column-gap:8px;width:100%}
 .isc-erow{border:0;background:none;font:inherit;color:inherit;text-align:left;padding:2px 2px;border-radius:3px;cursor:pointer;min-height:21px}
 .isc-erow:hover{background:#f3f1ea}
@@ -86,6 +86,7 @@ const CSS = `
 .isc-dim{opacity:.45;transition:opacity .15s}
 .isc-caution{font-size:11px;color:var(--isc-ink2);border-top:1px solid var(--isc-line);padding-top:6px;margin-top:2px}
 .isc-caution span+span::before{content:" · "}
+.isc-sampled{color:#8a3b08;font-weight:600}
 .isc-tip{position:fixed;z-index:1000;pointer-events:none;background:#1f2328;color:#f6f8fa;border-radius:4px;
  padding:5px 8px;font-size:11.5px;line-height:1.45;max-width:320px;box-shadow:0 2px 8px rgba(0,0,0,.18);display:none}
 .isc-tip div:first-child{font-weight:600}
@@ -178,6 +179,12 @@ function num(v, digits = 3) {
   const a = Math.abs(v);
   if (a !== 0 && (a < 0.001 || a >= 1e6)) return v.toExponential(1);
   return String(Number(v.toPrecision(digits)));
+}
+function val(v) { // a shown estimate: three significant digits, trailing zeros kept for alignment
+  if (v == null || !Number.isFinite(v)) return "\u2014";
+  const a = Math.abs(v);
+  if (a !== 0 && (a < 0.001 || a >= 1e6)) return v.toExponential(1);
+  return a === 0 ? "0" : v.toPrecision(3);
 }
 function count(v) { return v == null || !Number.isFinite(v) ? "\u2014" : Math.round(v).toLocaleString("en-US"); }
 function pval(p) { return p == null || !Number.isFinite(p) ? "\u2014" : p < 0.001 ? "< 0.001" : num(p, 2); }
@@ -419,9 +426,9 @@ function entropyView(ctx) {
     const rows = table(data);
     if (!rows.length) { body.append(h("div", { class: "isc-empty" }, data ? "No columns." : "Computing\u2026")); return; }
     const key = ctx.get("sort_by") || "entropy";
-    const val = (r) => (r[key] == null ? -Infinity : r[key]);
+    const sortKey = (r) => (r[key] == null ? -Infinity : r[key]);
     rows.sort(key === "name" ? (a, b) => String(a.column).localeCompare(String(b.column))
-      : (a, b) => val(b) - val(a) || String(a.column).localeCompare(String(b.column)));
+      : (a, b) => sortKey(b) - sortKey(a) || String(a.column).localeCompare(String(b.column)));
     let top = 0;
     for (const r of rows) for (const f of ["max_entropy", "ci_high", "entropy"]) if (Number.isFinite(r[f])) top = Math.max(top, r[f]);
     const max = niceMax(top);
@@ -465,7 +472,7 @@ function entropyView(ctx) {
           const sib = ev.key === "ArrowDown" ? btn.nextElementSibling : btn.previousElementSibling;
           if (sib && sib.classList.contains("isc-erow")) sib.focus();
         },
-      }, h("span", { class: "isc-name" }, String(r.column)), track, h("span", { class: "isc-val" }, num(r.entropy)), flagBox);
+      }, h("span", { class: "isc-name" }, String(r.column)), track, h("span", { class: "isc-val" }, val(r.entropy)), flagBox);
       body.append(btn);
     }
   }
@@ -809,7 +816,7 @@ function relevanceView(ctx) {
           `p = ${pval(r.p_value)}, q = ${pval(r.q_value)} \u00b7 n = ${count(r.n)}`,
           r.leakage ? "\u25b8 possible leak: nearly determines the target" : null].filter(Boolean), ev.clientX, ev.clientY),
         onmouseleave: () => ctx.tip.hide(),
-      }, h("span", { class: "isc-name" }, String(r.column)), track, h("span", { class: "isc-val" }, num(r.mi)), marks));
+      }, h("span", { class: "isc-name" }, String(r.column)), track, h("span", { class: "isc-val" }, val(r.mi)), marks));
     }
   }
   draw();
@@ -832,7 +839,8 @@ function statusView(ctx, onCancel) {
     if (busy && Number.isFinite(s.progress)) prog.value = s.progress; else prog.removeAttribute("value");
     msg.textContent = ctx.offline ? "saved copy: numbers as exported" : busy ? (s.message || "Recomputing\u2026")
       : s.state === "error" ? "error" : s.message || "";
-    const notes = Array.isArray(s.notes) ? s.notes : [];
+    const all = Array.isArray(s.notes) ? s.notes : [];
+    const notes = all.length > 4 ? [...all.slice(0, 3), `… and ${all.length - 3} more notes (see the kernel log)`] : all;
     err.style.display = s.state === "error" || notes.length ? "" : "none";
     err.textContent = s.state === "error" ? `Could not recompute: ${s.message}\n(The view shows the last finished numbers; details are in the kernel log.)`
       : notes.join("\n");
@@ -852,7 +860,8 @@ function cautionView(ctx) {
     const rows = table(data);
     const n = rows.reduce((m, r) => Math.max(m, r.n || 0), 0) || meta.n_rows;
     const sampled = data.sampled || meta.sampled;
-    if (sampled) el.append(h("span", null, `Sampled: these numbers come from a seeded sample of ${count(sampled)} rows${meta.n_rows ? ` of ${count(meta.n_rows)}` : ""}.`));
+    const busy = (ctx.get("_status") || {}).state === "computing";
+    if (sampled) el.append(h("span", { class: "isc-sampled" }, `Sampled: these numbers come from a seeded sample of ${count(sampled)} rows${meta.n_rows ? ` of ${count(meta.n_rows)}` : ""}${busy && !ctx.offline ? "; the full data follow" : ""}.`));
     el.append(h("span", null, `Estimates from ${n ? `${count(n)} rows` : "a sample"}, with 95% intervals; they carry sampling error.`));
     el.append(h("span", null, "Mutual information measures dependence, not cause."));
     el.append(h("span", null, "Profiles of personal data can reveal rare values: hide small cells, and follow the law and policy that apply."));
@@ -913,7 +922,7 @@ function render({ model, el }) {
   const wiring = {
     _entropy: ["entropy", "caution", "controls"], sort_by: ["entropy"], selected_column: ["entropy", "controls"],
     _grid_meta: ["grid"], _grid_values: ["grid"], _grid_n: ["grid"], _grid_q: ["grid"], order: ["grid", "controls"],
-    selected_pair: ["grid", "pair"], _pair: ["pair"], _relevance: ["relevance"], _status: ["status"],
+    selected_pair: ["grid", "pair"], _pair: ["pair"], _relevance: ["relevance"], _status: ["status", "caution"],
     _meta: ["caution", "sub"], alpha_fdr: ["grid", "relevance"],
   };
   for (const k of ["bins", "strategy", "estimator", "alpha", "measure", "unit", "target", "missing", "column_bins", "min_count"]) {
