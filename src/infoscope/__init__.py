@@ -53,6 +53,8 @@ _PUBLIC = {
     "bin_edges": "infoscope.encode.binning",
     "encode_column": "infoscope.encode.columns",
     "EncodedColumn": "infoscope.encode.columns",
+    "encode_frame": "infoscope.encode.columns",
+    "clear_cache": "infoscope.encode.cache",
     # engine
     "PairEngine": "infoscope.engine.engine",
     # frame level
