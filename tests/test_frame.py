@@ -349,3 +349,20 @@ def test_vectorised_pair_measures_equal_the_per_table_functions(estimator):
         g = g_test_from_table(t)
         assert (row.g, row.dof) == (pytest.approx(g.statistic, abs=1e-8), g.dof)
         assert row.p_value == pytest.approx(g.p_value, abs=1e-10)
+
+
+def test_polars_reference_and_lazy_frames(log):
+    pl = pytest.importorskip("polars")
+    small = log[["depot", "weight_kg", "late"]]
+    batch = make_deliveries_batch(5_000, seed=4)[["depot", "weight_kg", "late"]]
+    from_polars = ProfileSession(pl.from_pandas(batch)).drift(pl.from_pandas(small).lazy())
+    pd.testing.assert_frame_equal(from_polars, ProfileSession(batch).drift(small))
+    assert from_polars.set_index("column").loc["weight_kg", "flag"] == "major"
+
+
+def test_accessor_session_is_fresh_and_tables_reuse_one(log):
+    df = log[["depot", "late"]]
+    assert df.info_profile.session() is not df.info_profile.session()
+    from infoscope.frame.accessor import session_for
+    assert session_for(df, n_boot=0) is session_for(df.copy(), n_boot=0)
+    assert session_for(df, n_boot=0) is not session_for(df, n_boot=1)
