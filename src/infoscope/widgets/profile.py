@@ -177,6 +177,7 @@ class _ProfileBase(anywidget.AnyWidget):
         self._applied = 0                       # generation on screen
         self._outstanding = 0                   # requests not yet finished
         self._timer: threading.Timer | None = None
+        self._timer_gen: int | None = None
         self._cancel = threading.Event()
         self._shown_settings: dict = {}
         self._reverting = False
@@ -300,33 +301,56 @@ class _ProfileBase(anywidget.AnyWidget):
 
     # ------------------------------------------------------------------ requests
     def _request(self, parts: set[str], *, immediate: bool = False, first: bool = False) -> int:
+        """Ask for a recompute of ``parts``; returns its generation number.
+
+        Each request counts once in ``_outstanding`` until it has run (or was
+        superseded while it waited in the debounce timer, which releases its count).
+        """
         with self._lock:
             self._requested += 1
             gen = self._requested
             self._pending_parts |= parts
-            if self._timer is not None:
-                self._timer.cancel()
-                self._timer = None
-                self._outstanding -= 1
+            self._drop_timer()
             self._outstanding += 1
             self._cancel.clear()
+            deferred = self._threaded and not immediate and self._debounce > 0
+            if deferred:
+                self._timer = threading.Timer(self._debounce, self._submit, args=(gen,))
+                self._timer_gen = gen
+                self._timer.daemon = True
+                self._timer.start()
         self._status = {"state": "computing", "message": "Recomputing...", "generation": gen,
                         "progress": 0.0, "notes": []}
         if immediate or not self._threaded:
             self._run(gen)
-        elif self._debounce == 0:
-            self._submit(gen)
-        else:
-            with self._lock:
-                self._timer = threading.Timer(self._debounce, self._submit, args=(gen,))
-                self._timer.daemon = True
-                self._timer.start()
+        elif not deferred:
+            self._submit(gen, from_timer=False)
         return gen
 
-    def _submit(self, gen: int) -> None:
+    def _drop_timer(self) -> bool:
+        """Cancel a waiting debounce timer (lock held); True if one was waiting."""
+        if self._timer is None:
+            return False
+        self._timer.cancel()
+        self._timer = None
+        self._timer_gen = None
+        self._outstanding -= 1
+        self._idle.notify_all()
+        return True
+
+    def _submit(self, gen: int, from_timer: bool = True) -> None:
         with self._lock:
-            self._timer = None
-        self._executor.submit(self._run, gen)
+            if from_timer:
+                if self._timer_gen != gen:
+                    return  # superseded while waiting: its count was released then
+                self._timer = None
+                self._timer_gen = None
+        try:
+            self._executor.submit(self._run, gen)
+        except RuntimeError:  # the widget was closed
+            with self._idle:
+                self._outstanding -= 1
+                self._idle.notify_all()
 
     def _run(self, gen: int) -> None:
         try:
@@ -504,14 +528,7 @@ class _ProfileBase(anywidget.AnyWidget):
         >>> w.bins = 64; w.cancel()   # doctest: +SKIP
         """
         with self._lock:
-            if self._timer is not None:
-                self._timer.cancel()
-                self._timer = None
-                self._outstanding -= 1
-                self._idle.notify_all()
-                pending = True
-            else:
-                pending = False
+            pending = self._drop_timer()
             self._cancel.set()
         if pending:
             self._revert()
