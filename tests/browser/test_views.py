@@ -221,10 +221,10 @@ def test_grid_click_opens_pair_view(harness, web, artifacts):
     down = i + 1 < len(names) and i + 1 != j  # step off the clicked cell, never onto the diagonal
     page.keyboard.press("ArrowDown" if down else "ArrowUp")
     page.keyboard.press("Enter")
+    page.locator(".isc-pair").screenshot(path=str(artifacts / "pair-after-click.png"))
     page.wait_for_function("window.__saves.filter(s => 'selected_pair' in s).length >= 2")
     moved = names[i + 1 if down else i - 1]
     assert page.evaluate("window.__model.get('selected_pair')") == [moved, b]
-    page.locator(".isc-pair").screenshot(path=str(artifacts / "pair-after-click.png"))
     assert web.outside_requests == [] and web.page_errors == []
 
 
@@ -297,3 +297,44 @@ def test_single_views_render_alone(harness, web, artifacts, view):
     assert page.locator(".isc-caution").count() == 1  # the cautions go with every view
     assert web.page_errors == [] and web.outside_requests == []
     page.locator(f".isc-{view}").screenshot(path=str(artifacts / f"alone-{view}.png"))
+
+
+def test_sort_select_column_and_override_its_bins(harness, web):
+    page = harness()
+    page.select_option(".isc-entropy select", "name")
+    page.wait_for_timeout(80)
+    order = [c for c, _ in _bar_widths(page)]
+    assert order == sorted(order)
+    assert page.evaluate("window.__model.get('sort_by')") == "name"
+    row = page.locator(".isc-erow[data-column='distance_km']")
+    row.hover()
+    tip = page.locator(".isc-tip").text_content()
+    assert "efficiency" in tip and "effective categories" in tip and "maximum log K" in tip
+    row.focus()
+    page.keyboard.press("Enter")  # keyboard selects the column
+    page.wait_for_function("window.__model.get('selected_column') === 'distance_km'")
+    page.wait_for_timeout(80)
+    assert row.get_attribute("aria-pressed") == "true"
+    label = page.text_content(".isc-controls .isc-ctl:last-child label")
+    assert "distance_km" in label
+    override = page.locator(".isc-controls .isc-ctl:last-child input[type=range]")
+    assert override.is_enabled()
+    override.fill("5")
+    page.wait_for_function("JSON.stringify(window.__model.get('column_bins')) === '{\"distance_km\":5}'")
+    # a categorical column has no bins to override
+    page.locator(".isc-erow[data-column='depot']").click()
+    page.wait_for_timeout(80)
+    assert override.is_disabled()
+
+
+def test_cancel_button_sends_cancel(harness, web, artifacts):
+    page = harness()
+    page.evaluate("window.__delay = 5000")
+    slider = page.locator(".isc-controls input[type=range]").first
+    slider.fill("20")
+    button = page.locator(".isc-status button", has_text="Cancel")
+    button.wait_for(state="visible")
+    assert page.locator(".isc-status progress").is_visible()
+    page.locator(".isc-head").screenshot(path=str(artifacts / "status-computing.png"))
+    button.click()
+    page.wait_for_function("window.__sent.some(m => m.type === 'cancel')")
