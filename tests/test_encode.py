@@ -297,6 +297,93 @@ def test_folding_an_ordered_categorical_keeps_natural_order():
     assert col.labels == ("a", "c", "e", OTHER_LABEL)
 
 
+def _value_counts(values) -> np.ndarray:
+    # reference: pandas.Series.value_counts() (missing dropped, most frequent first)
+    return np.sort(pd.Series(values, dtype=object).value_counts(dropna=True).to_numpy())[::-1]
+
+
+def test_level_counts_keep_the_unfolded_levels():
+    values = [f"v{i}" for i in range(10) for _ in range(10 - i)] + [None] * 4
+    with pytest.warns(DataQualityWarning, match="folded"):
+        col = enc(values, max_categories=5)
+    # contract (EncodedColumn.level_counts): int64, most frequent first, every level
+    assert col.level_counts.dtype == np.int64 and not col.level_counts.flags.writeable
+    assert col.level_counts.tolist() == list(range(10, 0, -1))
+    assert len(col.level_counts) == col.n_distinct == 10
+    assert col.level_counts.sum() == col.n - col.n_missing
+    np.testing.assert_array_equal(col.level_counts, _value_counts(values))
+    # the folded symbols still count the same rows (the codes are unchanged by the field)
+    assert col.counts().sum() == col.level_counts.sum()
+
+
+def test_level_counts_give_the_entropy_of_an_id_column():
+    # closed form (common practice): n equally frequent values have entropy log2(n)
+    # bits; reference: scipy.stats.entropy(counts, base=2).  Folding to 64 symbols
+    # leaves one big "(other)" symbol and almost no entropy.
+    ids = [f"row-{i:05d}" for i in range(50_000)]
+    with pytest.warns(DataQualityWarning, match="folded"):
+        col = enc(ids)
+    assert col.k == 64 and len(col.level_counts) == 50_000
+    assert scipy.stats.entropy(col.level_counts, base=2) == pytest.approx(np.log2(50_000), rel=1e-12)
+    assert scipy.stats.entropy(col.counts(), base=2) < 0.05
+
+
+def test_level_counts_for_missing_category_and_categoricals():
+    values = ["a"] * 6 + ["b"] * 3 + ["c"] * 2 + ["d"] + [None] * 5
+    with pytest.warns(DataQualityWarning, match="folded"):
+        col = enc(values, max_categories=3, missing="category")
+    # the missing symbol is not a level: sum == n - n_missing (contract)
+    assert col.level_counts.tolist() == [6, 3, 2, 1] and col.level_counts.sum() == col.n - col.n_missing
+    # unused categories are not levels: len == n_distinct (pandas value_counts drops zeros here)
+    c = pd.Categorical(["x"] * 4 + ["y"] * 2 + ["z"], categories=["w", "x", "y", "z", "v"])
+    with pytest.warns(DataQualityWarning, match="folded"):
+        col = enc(pd.Series(c), max_categories=2)
+    assert col.level_counts.tolist() == [4, 2, 1] and col.n_distinct == 3
+    expected = pd.Series(c).value_counts()
+    np.testing.assert_array_equal(col.level_counts, expected[expected > 0].to_numpy())
+
+
+def test_level_counts_of_folded_integer_categories_and_none_otherwise(rng):
+    x = rng.integers(0, 40, size=2_000)
+    with pytest.warns(DataQualityWarning, match="folded"):
+        col = enc(x, categorical_threshold=50, max_categories=10)
+    assert col.kind == "integer_categories" and col.k == 10
+    np.testing.assert_array_equal(col.level_counts, np.sort(np.bincount(x))[::-1])  # numpy.bincount
+    # nothing folded, binned, boolean: no level counts
+    assert enc(["a", "b", "a"]).level_counts is None
+    assert enc(rng.normal(size=500), bins=8).level_counts is None
+    assert enc(np.array([True, False])).level_counts is None
+
+
+def test_level_counts_stay_out_of_settings_and_survive_the_cache():
+    store = EncodingCache()
+    values = pd.Series([f"v{i % 70}" for i in range(700)])
+    with pytest.warns(DataQualityWarning, match="folded"):
+        first = encode_column(values, name="a", cache=store)
+    with pytest.warns(DataQualityWarning, match="folded"):
+        again = encode_column(values, name="b", cache=store)  # a hit under another name
+    assert again.level_counts is first.level_counts and len(store) == 1
+    assert "level_counts" not in dict(first.settings)
+    # backward compatible: the field has a default, so older constructions still work
+    old = EncodedColumn(name="c", codes=first.codes, k=first.k, labels=first.labels, kind=first.kind,
+                        n=first.n, n_missing=first.n_missing, edges=None, flags=first.flags,
+                        settings=first.settings, n_distinct=first.n_distinct)
+    assert old.level_counts is None
+
+
+@given(st.lists(st.one_of(st.none(), st.sampled_from("abcdefghij")), max_size=80), st.integers(3, 6))
+def test_level_counts_match_pandas_value_counts(values, max_categories):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        col = enc(values, max_categories=max_categories)
+    if "levels_folded" not in col.flags:
+        assert col.level_counts is None
+        return
+    np.testing.assert_array_equal(col.level_counts, _value_counts(values))  # pandas value_counts
+    assert len(col.level_counts) == col.n_distinct
+    assert col.level_counts.sum() == col.n - col.n_missing
+
+
 def test_max_categories_none_never_folds_and_bad_values_raise():
     values = [str(i) for i in range(300)]
     col = enc(values, max_categories=None)

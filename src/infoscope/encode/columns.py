@@ -139,6 +139,17 @@ class EncodedColumn:
         The hashable encoding settings (``(content_key, settings)`` keys the cache).
     n_distinct : int
         Distinct non-missing values before binning or folding.
+    level_counts : numpy.ndarray or None, default=None
+        Only when levels were folded into ``"(other)"`` (flag ``levels_folded``):
+        the rows of every distinct non-missing level *before* folding, int64,
+        most frequent first (ties in the order the labels are kept), read-only; its length is
+        ``n_distinct`` and its sum ``n - n_missing``.  An entropy computed from the
+        folded codes undercounts a long-tailed or ID-like column (50,000 distinct
+        IDs folded to 64 symbols read about 0.02 bits instead of about 15.6);
+        these counts give the unfolded entropy.  None when nothing was folded and
+        for binned columns (their codes are the intended symbols).  It is derived
+        from the content and settings, so it is not part of ``settings``; the
+        class compares by identity (``eq=False``), so it does not affect caching.
     """
 
     name: str
@@ -152,6 +163,7 @@ class EncodedColumn:
     flags: tuple
     settings: tuple
     n_distinct: int
+    level_counts: np.ndarray | None = None
 
     @property
     def missing_code(self) -> int | None:
@@ -776,7 +788,13 @@ def _finish_levels(d: _Levels, notes: _Notes, missing: str, max_categories):
     # raw == -1 picks the last entry: the missing code
     new_index[n_levels] = k - 1 if with_missing_symbol else k
     codes = new_index[raw] if raw.size else raw
-    return codes, k, _distinct_labels(out_labels), n_missing
+    level_counts = None
+    if folded:
+        # every present level, most frequent first (ties in label order, as `order`)
+        present = order[counts[order] > 0]
+        level_counts = np.array(counts[present[np.argsort(-counts[present], kind="stable")]], dtype=np.int64)
+        level_counts.setflags(write=False)
+    return codes, k, _distinct_labels(out_labels), n_missing, level_counts
 
 
 def _finish_bins(d: _Bins, missing: str):
@@ -800,8 +818,9 @@ def _build(series: pd.Series, name: str, bins, strategy, missing, max_categories
         codes, k, labels, n_missing = _finish_bins(d, missing)
         edges = d.edges
         edges.setflags(write=False)
+        level_counts = None
     else:
-        codes, k, labels, n_missing = _finish_levels(d, notes, missing, max_categories)
+        codes, k, labels, n_missing, level_counts = _finish_levels(d, notes, missing, max_categories)
         edges = None
     n = int(series.size)
     codes = np.ascontiguousarray(codes, dtype=codes_dtype(k))
@@ -818,12 +837,14 @@ def _build(series: pd.Series, name: str, bins, strategy, missing, max_categories
     col = EncodedColumn(
         name=name, codes=codes, k=int(k), labels=labels, kind=d.kind, n=n, n_missing=n_missing,
         edges=edges, flags=ordered_flags, settings=settings, n_distinct=int(d.n_distinct),
+        level_counts=level_counts,
     )
     return col, tuple(notes.messages)
 
 
 def _entry_bytes(col: EncodedColumn, messages) -> int:
     edges = 0 if col.edges is None else col.edges.nbytes
+    edges += 0 if col.level_counts is None else col.level_counts.nbytes
     return col.codes.nbytes + edges + sum(len(s) + 56 for s in col.labels) + sum(len(m) for m in messages) + 512
 
 
@@ -883,7 +904,8 @@ def encode_column(
     -------
     EncodedColumn
         ``codes``, ``k``, ``labels``, ``kind``, ``n``, ``n_missing``, ``edges``,
-        ``flags``, ``settings``, ``n_distinct`` (see :class:`EncodedColumn`).
+        ``flags``, ``settings``, ``n_distinct``, ``level_counts`` (the unfolded
+        level counts when levels were folded, else None; see :class:`EncodedColumn`).
 
     Warns
     -----
