@@ -1,0 +1,133 @@
+"""Slider-to-redrawn-grid latency of the live profile, in a real browser against a real kernel.
+
+Starts JupyterLab on 127.0.0.1 (the harness of ``tests/browser/_lab_harness.py``),
+opens a notebook that profiles the demo delivery log (``make_deliveries``, 100 000
+rows x 17 columns by default), and then, many times over, moves the bins slider
+and measures in the page the time from the slider's ``input`` event to the first
+animation frame at which the information grid's pixels differ. The kernel
+recomputes on its worker thread after the widget's debounce (0.15 s by default):
+the figure is what a user waits for.
+
+Baseline, measured in the same run and the same page: an empty execute request
+through JupyterLab to the kernel and back (the cost of any kernel round trip).
+
+Usage::
+
+    python benchmarks/latency.py [--rows 100000] [--repeats 15] [--debounce 0.15]
+
+Prints the median and 90th percentile of the latency in ms, the baseline's median
+and the ratio; the target is a median of 300 ms or less.
+"""
+from __future__ import annotations
+
+import argparse
+import json
+import statistics
+import sys
+import tempfile
+import time
+from pathlib import Path
+
+REPO = Path(__file__).resolve().parents[1]
+sys.path.insert(0, str(REPO / "tests" / "browser"))
+
+from _lab_harness import (  # noqa: E402
+    LabServer, kernel_exec, kernel_ping_ms, open_notebook_and_run_all,
+)
+from conftest import CHROMIUM, CHROMIUM_ARGS  # noqa: E402
+
+BINS = 'input[type=range][aria-label="Bins per numeric column"]'
+GRID = ".isc-gridwrap canvas"
+TARGET_MS = 300.0
+
+MEASURE = """async ([value, timeoutMs]) => {
+  const input = document.querySelector('.isc-root %s');
+  const grid = () => document.querySelector('%s');
+  const before = grid().toDataURL();
+  const t0 = performance.now();
+  input.value = String(value);
+  input.dispatchEvent(new Event("input", { bubbles: true }));
+  return await new Promise((resolve, reject) => {
+    const tick = () => {
+      const c = grid();
+      if (c && c.toDataURL() !== before) resolve(performance.now() - t0);
+      else if (performance.now() - t0 > timeoutMs) reject(new Error("grid did not change"));
+      else requestAnimationFrame(tick);
+    };
+    requestAnimationFrame(tick);
+  });
+}""" % (BINS, GRID)
+
+
+def notebook(rows: int, debounce: float) -> dict:
+    code = (
+        "from infoscope.datasets import make_deliveries\n"
+        "from infoscope.frame.session import ProfileSession\n"
+        "from infoscope.widgets.profile import ProfileWidget\n"
+        f"frame = make_deliveries({rows}, seed=0)\n"
+        f"profile = ProfileWidget(ProfileSession(frame), debounce={debounce})\n"
+        "profile"
+    )
+    return {"cells": [{"cell_type": "code", "execution_count": None, "id": "latency", "metadata": {},
+                       "outputs": [], "source": code}],
+            "metadata": {"kernelspec": {"name": "python3", "display_name": "Python 3", "language": "python"}},
+            "nbformat": 4, "nbformat_minor": 5}
+
+
+def percentile(values: list[float], q: float) -> float:
+    ordered = sorted(values)
+    k = (len(ordered) - 1) * q
+    lo, hi = int(k), min(int(k) + 1, len(ordered) - 1)
+    return ordered[lo] + (ordered[hi] - ordered[lo]) * (k - lo)
+
+
+def main(argv=None) -> int:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--rows", type=int, default=100_000)
+    parser.add_argument("--repeats", type=int, default=15)
+    parser.add_argument("--warmup", type=int, default=3)
+    parser.add_argument("--debounce", type=float, default=0.15)
+    args = parser.parse_args(argv)
+    from playwright.sync_api import sync_playwright
+
+    with tempfile.TemporaryDirectory(prefix="infoscope-latency-") as tmp:
+        root, work = Path(tmp) / "root", Path(tmp) / "work"
+        root.mkdir()
+        (root / "latency.ipynb").write_text(json.dumps(notebook(args.rows, args.debounce)), encoding="utf-8")
+        with LabServer(root, work) as lab, sync_playwright() as pw:
+            browser = pw.chromium.launch(executable_path=str(CHROMIUM), args=CHROMIUM_ARGS, headless=True)
+            page = browser.new_page(viewport={"width": 1400, "height": 1000})
+            page.set_default_timeout(180_000)
+            started = time.monotonic()
+            open_notebook_and_run_all(page, lab, "latency.ipynb")
+            page.wait_for_selector(f".isc-root {BINS}")
+            page.wait_for_function(f"() => {{ const c = document.querySelector('{GRID}'); return c && c.width > 1; }}")
+            kernel_exec(page, "profile.wait(120)")
+            print(f"notebook ready in {time.monotonic() - started:.1f} s "
+                  f"({args.rows} rows x {kernel_exec(page, 'print(frame.shape[1])').strip()} columns)")
+            values = [8, 12, 10, 14, 9, 16, 11, 13, 7, 15]
+            latencies, pings = [], []
+            for i in range(args.warmup + args.repeats):
+                bins = values[i % len(values)]
+                ms = page.evaluate(MEASURE, [bins, 60_000])
+                kernel_exec(page, "profile.wait(120)")  # settle before the next move
+                seen = kernel_exec(page, "print(profile.session.settings['bins'])").strip()
+                if seen != str(bins):
+                    raise RuntimeError(f"the kernel holds bins={seen}, the slider sent {bins}")
+                pings.append(kernel_ping_ms(page))
+                if i >= args.warmup:
+                    latencies.append(ms)
+            browser.close()
+
+    median, p90 = statistics.median(latencies), percentile(latencies, 0.9)
+    base = statistics.median(pings)
+    print(f"slider -> redrawn grid: median {median:.0f} ms, p90 {p90:.0f} ms over {len(latencies)} moves "
+          f"(debounce {args.debounce * 1000:.0f} ms included)")
+    print(f"baseline (empty kernel round trip through JupyterLab): median {base:.1f} ms")
+    print(f"ratio median / baseline: {median / base:.1f}x")
+    print(f"target median <= {TARGET_MS:.0f} ms: {'met' if median <= TARGET_MS else 'NOT met'}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
