@@ -366,3 +366,12 @@ def test_accessor_session_is_fresh_and_tables_reuse_one(log):
     from infoscope.frame.accessor import session_for
     assert session_for(df, n_boot=0) is session_for(df.copy(), n_boot=0)
     assert session_for(df, n_boot=0) is not session_for(df, n_boot=1)
+
+
+def test_widget_call_returns_the_live_profile(log):
+    pytest.importorskip("anywidget")
+    profile = pytest.importorskip("infoscope.widgets.profile")
+    df = log[["depot", "service", TARGET]]
+    widget = df.info_profile(target=TARGET, n_boot=0)
+    assert isinstance(widget, profile.ProfileWidget)
+    assert widget.session.names == ["depot", "service", TARGET]
