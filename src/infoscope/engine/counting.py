@@ -38,18 +38,35 @@ BACKENDS = ("auto", "numba", "numpy")
 MAX_TABLE_CELLS = 1 << 24
 
 
+# Each pair is counted into COPIES interleaved copies of its table (row r goes to copy
+# r % COPIES), summed once at the end. Runs of equal codes (a skewed category, a
+# constant column) otherwise make every increment wait for the previous store to the
+# same cell; with four copies consecutive rows never touch the same address.
+COPIES = 4
+
+
+def _pitch(size: int) -> int:
+    """Cells between two copies of a table: whole cache lines, and not a multiple of
+    4 KiB apart (copies 4 KiB apart alias in the store buffer's address check)."""
+    pitch = -(-size // 8) * 8
+    if (pitch * 8) % 4096 < 512 or (pitch * 8) % 4096 > 3584:
+        pitch += 64
+    return pitch
+
+
 @dataclass(frozen=True)
 class PairLayout:
     """Where each pair's sentinel table lives inside one flat int64 counter array.
 
     ``first[q]``/``second[q]`` index the code columns of pair ``q``, ``stride[q]`` is
-    ``k_second + 1`` and the table occupies ``flat[offset[q]:offset[q + 1]]`` in
-    row-major order (first column's code selects the row).
+    ``k_second + 1``; the pair owns ``flat[offset[q]:offset[q + 1]]``, which holds
+    ``COPIES`` copies of its row-major table, ``pitch[q]`` cells apart.
     """
 
     first: np.ndarray
     second: np.ndarray
     stride: np.ndarray
+    pitch: np.ndarray
     offset: np.ndarray
     shapes: tuple[tuple[int, int], ...]
 
@@ -58,11 +75,13 @@ class PairLayout:
         return int(self.offset[-1])
 
     def split(self, flat: np.ndarray) -> list[np.ndarray]:
-        """Views of ``flat`` as one 2-D table per pair (no copy)."""
-        return [
-            flat[self.offset[q]:self.offset[q + 1]].reshape(shape)
-            for q, shape in enumerate(self.shapes)
-        ]
+        """One 2-D int64 table per pair: the sum of its copies."""
+        out = []
+        for q, (rows, cols) in enumerate(self.shapes):
+            pitch = int(self.pitch[q])
+            copies = flat[self.offset[q]:self.offset[q + 1]].reshape(COPIES, pitch)
+            out.append(copies[:, : rows * cols].sum(axis=0).reshape(rows, cols))
+        return out
 
 
 def pair_layout(ks: Sequence[int], pairs: Sequence[tuple[int, int]], names=None) -> PairLayout:
@@ -81,11 +100,11 @@ def pair_layout(ks: Sequence[int], pairs: Sequence[tuple[int, int]], names=None)
                 "(e.g. a smaller max_categories) before counting pairs"
             )
         shapes.append(shape)
-    sizes = np.array([r * c for r, c in shapes], dtype=np.intp)
+    pitch = np.array([_pitch(r * c) for r, c in shapes], dtype=np.intp)
     offset = np.zeros(len(pairs) + 1, dtype=np.intp)
-    np.cumsum(sizes, out=offset[1:])
+    np.cumsum(COPIES * pitch, out=offset[1:])
     stride = np.array([c for _, c in shapes], dtype=np.intp)
-    return PairLayout(first, second, stride, offset, tuple(shapes))
+    return PairLayout(first, second, stride, pitch, offset, tuple(shapes))
 
 
 def block_dtype(ks: Sequence[int]) -> np.dtype:
@@ -127,8 +146,9 @@ def count_block_numpy(block: np.ndarray, layout: PairLayout, out: np.ndarray) ->
         a, b = int(layout.first[q]), int(layout.second[q])
         if a not in wide:
             wide[a] = block[a].astype(np.intp)
-        lo, hi = int(layout.offset[q]), int(layout.offset[q + 1])
-        out[lo:hi] += np.bincount(wide[a] * int(layout.stride[q]) + block[b], minlength=hi - lo)
+        lo = int(layout.offset[q])  # the first copy is enough here
+        size = layout.shapes[q][0] * layout.shapes[q][1]
+        out[lo:lo + size] += np.bincount(wide[a] * int(layout.stride[q]) + block[b], minlength=size)
 
 
 # Below this many increments (rows x pairs) a chunk is counted in the calling thread:
@@ -144,7 +164,7 @@ def count_block_numba(block: np.ndarray, layout: PairLayout, out: np.ndarray, *,
 
     small = block.shape[1] * len(layout.shapes) < SERIAL_INCREMENTS
     kernel = _numba_kernels.count_pairs if parallel and not small else _numba_kernels.count_pairs_serial
-    kernel(block, layout.first, layout.second, layout.stride, layout.offset, out)
+    kernel(block, layout.first, layout.second, layout.stride, layout.pitch, layout.offset, out)
 
 
 KERNELS = {"numpy": count_block_numpy, "numba": count_block_numba}

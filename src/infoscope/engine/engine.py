@@ -2,7 +2,6 @@
 from __future__ import annotations
 
 import contextlib
-import functools
 import hashlib
 import numbers
 from collections import OrderedDict
@@ -361,10 +360,7 @@ class PairEngine:
         flat = np.zeros(layout.cells, dtype=np.int64)  # a temporary until every chunk is in
         report, bar = self._progress_reporter(rows, len(pairs))
         threads = self._threads or available_threads()
-        scope = contextlib.nullcontext()
-        if self._backend == "numba":
-            scope = _numba_threads(threads) if threads > 1 else scope
-            kernel = functools.partial(kernel, parallel=threads > 1)
+        scope = _numba_threads(threads) if self._backend == "numba" else contextlib.nullcontext()
         step = self._chunk_rows
         block = np.empty((len(involved), min(step, rows)), dtype=dtype)
         try:
