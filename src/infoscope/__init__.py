@@ -59,6 +59,8 @@ _PUBLIC = {
     "PairEngine": "infoscope.engine.engine",
     # frame level
     "InfoProfileAccessor": "infoscope.frame.accessor",
+    "ProfileSession": "infoscope.frame.session",
+    "PairTable": "infoscope.frame.results",
     # demo data
     "datasets": "infoscope.datasets",
 }
