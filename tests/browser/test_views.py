@@ -310,7 +310,9 @@ def test_sort_select_column_and_override_its_bins(harness, web):
     row.hover()
     tip = page.locator(".isc-tip").text_content()
     assert "efficiency" in tip and "effective categories" in tip and "maximum log K" in tip
+    page.mouse.move(0, 0)
     row.focus()
+    assert "maximum log K" in page.locator(".isc-tip").text_content()  # focus shows the details too
     page.keyboard.press("Enter")  # keyboard selects the column
     page.wait_for_function("window.__model.get('selected_column') === 'distance_km'")
     page.wait_for_timeout(80)

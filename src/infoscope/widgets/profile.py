@@ -280,6 +280,8 @@ class _ProfileBase(anywidget.AnyWidget):
         if self._reverting:
             return
         name = change["name"]
+        if name == "alpha" and self.estimator != "dirichlet":
+            return  # the pseudocount only matters to the Dirichlet estimator
         parts = set(self._parts)
         if name == "min_count":
             parts = {"pair"} & parts

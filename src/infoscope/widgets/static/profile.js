@@ -410,7 +410,7 @@ function entropyView(ctx) {
   sortSel.input.addEventListener("change", () => { ctx.model.set("sort_by", sortSel.input.value); ctx.model.save_changes(); draw(); });
   const unitEl = h("span", { class: "isc-punit" });
   const head = h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Entropy bars"), unitEl, sortSel.el);
-  const body = h("div", { class: "isc-bars", role: "list" });
+  const body = h("div", { class: "isc-bars" });
   const legend = h("div", { class: "isc-legend" },
     h("span", null, h("span", { class: "isc-swatch", style: { background: "var(--isc-bar)" } }), "estimate"),
     h("span", null, h("span", { class: "isc-swatch", style: { background: "#f5f7fa", borderColor: "#c5cfda" } }), "maximum, log K"),
@@ -453,9 +453,11 @@ function entropyView(ctx) {
       const flagBox = h("span", { class: "isc-flags" }, flags.map((f) => h("span", { class: "isc-flag", title: FLAG_HELP[f] || f }, FLAG_LABELS[f] || f)));
       const label = `${r.column}: entropy ${num(r.entropy)} ${unit}, 95% interval ${num(r.ci_low)} to ${num(r.ci_high)}, maximum ${num(r.max_entropy)}`;
       const btn = h("button", {
-        class: "isc-erow", type: "button", role: "listitem", "aria-pressed": String(selected === r.column), "aria-label": label,
+        class: "isc-erow", type: "button", "aria-pressed": String(selected === r.column), "aria-label": label,
         "data-column": r.column,
         onclick: () => ctx.set("selected_column", ctx.get("selected_column") === r.column ? null : r.column),
+        onfocus: () => { const b = btn.getBoundingClientRect(); btn.dispatchEvent(new MouseEvent("mousemove", { clientX: b.left + 140, clientY: b.bottom - 10 })); },
+        onblur: () => ctx.tip.hide(),
         onmousemove: (ev) => ctx.tip.show([
           String(r.column),
           `${r.kind}, K = ${count(r.k)} symbols`,
@@ -505,7 +507,7 @@ function gridView(ctx) {
     st.values = asFloat32(ctx.get("_grid_values"));
     st.n = asInt32(ctx.get("_grid_n"));
     st.q = asFloat32(ctx.get("_grid_q"));
-    st.alpha = meta.alpha || ctx.get("alpha_fdr") || 0.05;
+    st.alpha = ctx.get("alpha_fdr") ?? meta.alpha ?? 0.05;
     st.measure = meta.measure || ctx.get("measure") || "mi";
     st.unit = meta.unit || ctx.unit();
     if (st.values.length !== st.size * st.size) st.size = 0; // incomplete update: draw nothing stale
@@ -807,8 +809,10 @@ function relevanceView(ctx) {
         r.leakage ? h("span", { class: "isc-flag isc-leak", title: "carries at least 95% of the target's entropy: check it is not derived from the target" }, "possible leak") : null,
         r.sparse ? h("span", { class: "isc-flag", title: FLAG_HELP.sparse_cells }, "sparse cells") : null,
         !sig ? h("span", { class: "isc-flag", title: "not significant after Benjamini\u2013Hochberg" }, "n.s.") : null);
-      body.append(h("div", {
-        class: "isc-erow", role: "listitem", style: { cursor: "default" }, tabindex: 0,
+      const rowEl = h("div", {
+        class: "isc-erow", style: { cursor: "default" }, tabindex: 0,
+        onfocus: () => { const bb = rowEl.getBoundingClientRect(); rowEl.dispatchEvent(new MouseEvent("mousemove", { clientX: bb.left + 140, clientY: bb.bottom - 10 })); },
+        onblur: () => ctx.tip.hide(),
         "aria-label": `${r.column}: ${num(r.mi)} ${unit} about ${data.target}${r.leakage ? ", possible leak" : ""}`,
         onmousemove: (ev) => ctx.tip.show([String(r.column),
           `I(${r.column}; ${data.target}) = ${num(r.mi)} ${unit}  (95%: ${num(r.ci_low)} \u2013 ${num(r.ci_high)})`,
@@ -816,7 +820,8 @@ function relevanceView(ctx) {
           `p = ${pval(r.p_value)}, q = ${pval(r.q_value)} \u00b7 n = ${count(r.n)}`,
           r.leakage ? "\u25b8 possible leak: nearly determines the target" : null].filter(Boolean), ev.clientX, ev.clientY),
         onmouseleave: () => ctx.tip.hide(),
-      }, h("span", { class: "isc-name" }, String(r.column)), track, h("span", { class: "isc-val" }, val(r.mi)), marks));
+      }, h("span", { class: "isc-name" }, String(r.column)), track, h("span", { class: "isc-val" }, val(r.mi)), marks);
+      body.append(rowEl);
     }
   }
   draw();
