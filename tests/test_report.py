@@ -9,6 +9,7 @@ libraries (``scipy.stats.entropy``, ``sklearn.metrics.mutual_info_score``,
 from __future__ import annotations
 
 import json
+import re
 import time
 import xml.etree.ElementTree as ET
 
@@ -386,3 +387,91 @@ def test_cli_error_from_the_installed_command_has_no_traceback(tmp_path):
     assert done.returncode == 2
     assert done.stderr.strip().count("\n") == 0 and "no such file" in done.stderr
     assert "Traceback" not in done.stderr
+
+
+# ----------------------------------------------------------------- on a real profile
+@pytest.fixture(scope="module")
+def demo_session():
+    import warnings
+
+    from infoscope.datasets import make_deliveries
+    from infoscope.frame.session import ProfileSession
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # the demo's planted data-quality warnings
+        session = ProfileSession(make_deliveries(50_000, seed=0), target="late", n_boot=0)
+        session.entropy(), session.matrix(order="cluster"), session.relevance("late")
+    return session
+
+
+def test_picture_of_the_demo_is_fast_and_shows_every_view(demo_session):
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        start = time.perf_counter()
+        svg = picture.profile_svg(demo_session)
+        elapsed = time.perf_counter() - start
+    assert elapsed < 1.5, f"the picture took {elapsed:.2f} s"
+    texts = _svg_texts(svg)
+    assert "Entropy bars" in texts and any(t.startswith("Information grid") for t in texts)
+    assert "Relevance to late" in texts
+    # the planted leak (compensation paid after a late delivery) is drawn as leakage
+    assert any("possible leakage" in t for t in texts)
+
+
+def test_profile_charts_of_the_demo(demo_session):
+    import warnings
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        out = charts.profile_charts(demo_session, pair=("weight_kg", "weight_lb"), min_count=10)
+    assert set(out) == {"entropy", "grid", "pair", "relevance"}
+    pair_spec = out["pair"].to_dict()
+    true = demo_session.pair("weight_kg", "weight_lb").counts.to_numpy()
+    cells = pair_spec["layer"][0]["data"]["values"] if "data" in pair_spec["layer"][0] else pair_spec["data"]["values"]
+    assert len(cells) == true.size
+    for cell, count in zip(cells, true.ravel()):
+        if 0 < count < 10:
+            assert cell["count"] is None and cell["shown"] == "<10"
+    json.dumps(pair_spec)  # the spec is plain JSON
+
+
+def test_suppress_payload_leaves_the_input_alone():
+    from infoscope.report.html import suppress_payload
+
+    view = {"counts": [[50, 3], [40, 60]], "pmi": [[0.1, -1.0], [0.2, 0.0]], "min_count": 0,
+            "row_totals": [53, 100], "col_totals": [90, 63]}
+    payload = {"state": {"_pair": view, "min_count": 0}, "pair_cache": {"a\u0000b": view}}
+    before = json.dumps(payload)
+    out = suppress_payload(payload, 10)
+    assert json.dumps(payload) == before
+    for v in (out["state"]["_pair"], out["pair_cache"]["a\u0000b"]):
+        assert v["counts"] == [[None, None], [None, None]] and v["row_totals"] is None
+    assert out["state"]["min_count"] == 10
+
+
+def test_script_json_cannot_close_its_element():
+    from infoscope.report.html import _script_json
+
+    text = _script_json({"name": "</script><script>alert(1)</script>", "v": "a\u2028b & c"})
+    assert "</" not in text and "<" not in text and "&" not in text and "\u2028" not in text
+    assert json.loads(text)["name"] == "</script><script>alert(1)</script>"
+
+
+def test_to_html_of_a_session_writes_an_offline_page(demo_session, tmp_path):
+    import warnings
+
+    from infoscope.report.html import CONTENT_SECURITY_POLICY, to_html
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        path = to_html(demo_session, tmp_path / "p.html", min_count=10, title='Q3 <log> "final"')
+    text = path.read_text(encoding="utf-8")
+    assert "<title>Q3 &lt;log&gt; &quot;final&quot;</title>" in text
+    import html
+
+    assert "connect-src 'none'" in CONTENT_SECURITY_POLICY
+    assert f'content="{html.escape(CONTENT_SECURITY_POLICY, quote=True)}"' in text
+    assert not re.search(r"""(src|href)=["']?https?:""", text), "nothing loads from the network"
+    assert "counts below 10 are hidden" in text
