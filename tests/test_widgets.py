@@ -407,3 +407,19 @@ def test_esm_never_parses_markup_or_reaches_the_network():
         assert banned not in text.replace("never through innerHTML", ""), banned
     assert not re.search(r"https?://", text), "no URL may appear in the front end"
     assert "export { render, modelFromPayload" in text
+
+
+@pytest.mark.parametrize("name", ["ProfileWidget", "EntropyBarsWidget", "InformationGridWidget",
+                                  "PairViewWidget", "RelevanceWidget"])
+def test_public_widgets_have_numpydoc(name):
+    import inspect
+
+    import infoscope.widgets as widgets
+
+    doc = inspect.getdoc(getattr(widgets, name))
+    for section in ("Parameters", "Returns", "References", "Examples"):
+        assert f"\n{section}\n---" in doc, f"{name} lacks {section}"
+    for method in ("payload", "wait", "cancel", "picture_svg"):
+        doc = inspect.getdoc(getattr(getattr(widgets, name), method))
+        for section in ("Returns", "References", "Examples"):
+            assert f"\n{section}\n---" in doc, f"{name}.{method} lacks {section}"

@@ -784,8 +784,19 @@ class ProfileWidget(_ProfileBase):
 class EntropyBarsWidget(_ProfileBase):
     """Entropy bars alone: one bar per column with its CI and maximum log K.
 
-    Parameters, Returns, References and Examples as :class:`ProfileWidget`
-    (settings are set from Python: ``w.bins = 8``).
+    Parameters
+    ----------
+    session : infoscope.frame.session.ProfileSession
+        The state the view shows; settings start from ``session.settings``.
+    **options
+        As :class:`ProfileWidget` (``debounce``, ``threaded``, ``preview_rows``,
+        ``picture_delay``, initial trait values). Settings are changed from Python
+        (``w.bins = 8``): a single view has no controls strip.
+
+    Returns
+    -------
+    EntropyBarsWidget
+        An anywidget; display it in a notebook.
 
     References
     ----------
@@ -803,6 +814,20 @@ class EntropyBarsWidget(_ProfileBase):
 class InformationGridWidget(_ProfileBase):
     """The information grid alone: every column pair, coloured by the pair measure.
 
+    Parameters
+    ----------
+    session : infoscope.frame.session.ProfileSession
+        The state the view shows; settings start from ``session.settings``.
+    **options
+        As :class:`ProfileWidget` (``debounce``, ``threaded``, ``preview_rows``,
+        ``picture_delay``, initial trait values). Settings are changed from Python
+        (``w.bins = 8``): a single view has no controls strip.
+
+    Returns
+    -------
+    InformationGridWidget
+        An anywidget; display it in a notebook.
+
     References
     ----------
     Benjamini, Y. & Hochberg, Y. (1995). J. R. Stat. Soc. B 57(1), 289-300.
@@ -818,6 +843,20 @@ class InformationGridWidget(_ProfileBase):
 
 class PairViewWidget(_ProfileBase):
     """The pair view alone: one pair's joint counts with pointwise MI per cell.
+
+    Parameters
+    ----------
+    session : infoscope.frame.session.ProfileSession
+        The state the view shows; settings start from ``session.settings``.
+    **options
+        As :class:`ProfileWidget` (``debounce``, ``threaded``, ``preview_rows``,
+        ``picture_delay``, initial trait values). Settings are changed from Python
+        (``w.bins = 8``): a single view has no controls strip.
+
+    Returns
+    -------
+    PairViewWidget
+        An anywidget; display it in a notebook.
 
     References
     ----------
@@ -835,6 +874,20 @@ class PairViewWidget(_ProfileBase):
 
 class RelevanceWidget(_ProfileBase):
     """Relevance alone: the information each column gives about ``target``.
+
+    Parameters
+    ----------
+    session : infoscope.frame.session.ProfileSession
+        The state the view shows; settings start from ``session.settings``.
+    **options
+        As :class:`ProfileWidget` (``debounce``, ``threaded``, ``preview_rows``,
+        ``picture_delay``, initial trait values). Settings are changed from Python
+        (``w.bins = 8``): a single view has no controls strip.
+
+    Returns
+    -------
+    RelevanceWidget
+        An anywidget; display it in a notebook.
 
     References
     ----------
