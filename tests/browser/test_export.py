@@ -107,3 +107,32 @@ def test_suppression_holds_in_the_file(exported):
 def test_export_refuses_a_missing_folder(exported, tmp_path):
     with pytest.raises(FileNotFoundError, match="does not exist"):
         to_html(exported["widget"], tmp_path / "nope" / "p.html")
+
+
+def test_export_stays_interactive_sort_and_saved_pairs(exported, served, web):
+    text = exported["path"].read_text(encoding="utf-8")
+    payload = _payload(text)
+    names = payload["state"]["_grid_meta"]["names"]
+    a, b = "weight_kg", "weight_lb"
+    assert a + "\u0000" + b in payload["pair_cache"] or b + "\u0000" + a in payload["pair_cache"]
+    url = served.put("/export/interactive.html", exported["path"].read_bytes())
+    page = web.page
+    web.goto(url)
+    page.wait_for_selector("body[data-rendered='yes']", timeout=20_000)
+    # sort the entropy bars by name: the rows follow
+    page.locator(".isc-root select").filter(has=page.locator("option[value=name]")).first.select_option("name")
+    labels = page.eval_on_selector_all(".isc-erow[aria-pressed]", "rows => rows.map(r => r.getAttribute('aria-label'))")
+    shown = [next(n for n in exported["session"].names if label.startswith(n)) for label in labels]
+    assert shown == sorted(shown, key=str.lower) or shown == sorted(shown)
+    # open a saved pair by clicking its grid cell: the pair view shows it without a kernel
+    canvas = page.locator(".isc-gridwrap canvas")
+    cell = float(canvas.get_attribute("data-cell"))
+    offset = float(canvas.get_attribute("data-offset"))
+    i, j = names.index(a), names.index(b)
+    heads = page.eval_on_selector_all(".isc-phead", "hs => hs.map(h => h.textContent)")
+    assert not any(h.startswith("Pair view") and "weight_lb" in h for h in heads)  # another pair first
+    canvas.click(position={"x": offset + (j + 0.5) * cell, "y": offset + (i + 0.5) * cell})
+    page.wait_for_function("() => [...document.querySelectorAll('.isc-phead')].some((t) => "
+                           "t.textContent.startsWith('Pair view') && t.textContent.includes('weight_kg') "
+                           "&& t.textContent.includes('weight_lb'))", timeout=5_000)
+    assert web.outside_requests == [] and web.page_errors == []
