@@ -78,7 +78,7 @@ const CSS = `
 .isc-ptable th{font-weight:500;color:var(--isc-ink2);padding:1px 5px;white-space:nowrap;max-width:11em;overflow:hidden;text-overflow:ellipsis}
 .isc-ptable thead th{vertical-align:bottom;text-align:center}
 .isc-ptable tbody th{text-align:right}
-.isc-ptable td{min-width:2.6em;text-align:center;padding:2px 4px;border-radius:2px}
+.isc-ptable td{min-width:2.3em;text-align:center;padding:2px 3px;border-radius:2px}
 .isc-ptable td.isc-hid{background:repeating-linear-gradient(45deg,#eeece6 0 3px,#f8f7f3 3px 6px);color:var(--isc-ink3)}
 .isc-ptable .isc-tot{color:var(--isc-ink2);background:none;font-weight:600}
 .isc-corner{font-size:10px;text-align:left!important;color:var(--isc-ink3)}
@@ -577,7 +577,7 @@ function gridView(ctx) {
       }
     }
     if (st.mx) { // labels: left (right-aligned) and top (rotated), truncated to the margin
-      g.fillStyle = "#57606a"; g.font = `${Math.min(11, st.cell)}px system-ui, sans-serif`; g.textBaseline = "middle";
+      g.fillStyle = getComputedStyle(ctx.root).getPropertyValue("--isc-ink2").trim() || "#57606a"; g.font = `${Math.min(11, st.cell)}px system-ui, sans-serif`; g.textBaseline = "middle";
       for (let i = 0; i < st.size; i++) {
         const text = fitText(g, st.names[i], st.mx - 6);
         g.textAlign = "right";
@@ -775,18 +775,25 @@ function relevanceView(ctx) {
   const el = h("section", { class: "isc-panel isc-relevance", "aria-label": "relevance" });
   const sub = h("span", { class: "isc-punit" });
   const body = h("div", { class: "isc-bars" });
-  el.append(h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Relevance"), sub), body);
+  const legend = h("div", { class: "isc-legend" });
+  el.append(h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Relevance"), sub), body, legend);
   function draw() {
     clear(body);
     const data = parseJSON(ctx.get("_relevance"));
     if (!data || data.target == null) {
       sub.textContent = "";
+      clear(legend);
       body.append(h("div", { class: "isc-empty" }, ctx.get("target") != null ? "Computing\u2026"
         : "Pick a relevance target in the controls to see how much each column tells about it."));
       return;
     }
     const unit = data.unit || ctx.unit();
     sub.textContent = `mutual information with \u201c${data.target}\u201d, ${unit}`;
+    clear(legend);
+    legend.append(h("span", null, h("span", { class: "isc-swatch", style: { background: "#b9c7d6" } }),
+      `n.s.: not significant after Benjamini\u2013Hochberg (q \u2265 ${num(ctx.get("alpha_fdr") ?? 0.05)})`),
+    h("span", null, h("span", { class: "isc-flag isc-leak" }, "possible leak"), " carries \u2265 95% of the target's entropy"),
+    h("span", null, "\u251c\u2500\u2524 95% interval"));
     const rows = table(data).sort((a, b) => (b.mi ?? -1) - (a.mi ?? -1));
     let top = 0;
     for (const r of rows) for (const f of ["mi", "ci_high"]) if (Number.isFinite(r[f])) top = Math.max(top, r[f]);
