@@ -394,3 +394,25 @@ def test_cache_budget_is_respected(rng):
     eng = PairEngine(cols, progress=False, cache_bytes=5 * 16 * 16 * 8)
     assert_all_pairs_match_crosstab(eng, cols)
     assert 0 < eng.cached_bytes <= 5 * 16 * 16 * 8
+
+
+def test_engines_in_two_threads_count_correctly(rng):
+    import threading
+
+    cols = [make_col(f"c{i}", k, 3000, rng) for i, k in enumerate([3, 7, 16, 2])]
+    results = []
+
+    def work():
+        results.append(PairEngine(cols, progress=False, chunk_rows=100, threads=2).tables())
+
+    with parallel_kernel_forced():
+        workers = [threading.Thread(target=work) for _ in range(2)]
+        for w in workers:
+            w.start()
+        for w in workers:
+            w.join()
+    assert len(results) == 2
+    for tables in results:
+        for (a, b), t in tables.items():
+            # reference: pandas.crosstab
+            np.testing.assert_array_equal(t, crosstab_reference(cols[int(a[1:])], cols[int(b[1:])]))

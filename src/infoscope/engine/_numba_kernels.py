@@ -14,7 +14,7 @@ from numba import njit, prange
 def _count_one(a, b, stride, pitch, out):
     # The table of one pair over one chunk: two streamed code columns, and four copies
     # of a small table (row r into copy r % 4, `pitch` cells apart) so that repeated
-    # codes in consecutive rows do not serialise on one counter.
+    # codes in consecutive rows do not serialise on one counter; pitch 0 is one copy.
     m = a.shape[0]
     m4 = m - m % 4
     for r in range(0, m4, 4):

@@ -196,11 +196,34 @@ class PairEngine:
         pairs stay cached. A column whose codes equal an earlier version's finds
         that version's tables again (the cache is keyed by content).
 
+        Parameters
+        ----------
+        col : EncodedColumn
+            Its ``name``, ``codes`` (1-D unsigned, ``k`` marks missing) and ``k``.
+
+        Returns
+        -------
+        None
+
         Raises
         ------
         TypeError, ValueError
             When the name, codes or ``k`` are unusable, or the row count differs from
             the other columns'. The message names the column.
+
+        References
+        ----------
+        .. [1] DEVELOPERS.md, "Engine" (the contract this implements).
+
+        Examples
+        --------
+        >>> import numpy as np
+        >>> from types import SimpleNamespace as Col
+        >>> eng = PairEngine([Col(name="a", codes=np.array([0, 1, 0], np.uint8), k=2),
+        ...                   Col(name="b", codes=np.array([0, 0, 1], np.uint8), k=2)], progress=False)
+        >>> eng.set_column(Col(name="a", codes=np.array([1, 1, 0], np.uint8), k=2))
+        >>> eng.table("a", "b").tolist()
+        [[0, 1], [2, 0]]
         """
         name = getattr(col, "name", None)
         if not isinstance(name, str):
@@ -234,7 +257,29 @@ class PairEngine:
         self._marginals.pop(name, None)
 
     def remove_column(self, name: str) -> None:
-        """Forget a column (its tables leave the cache as the budget needs room)."""
+        """Forget a column (its tables leave the cache as the budget needs room).
+
+        Parameters
+        ----------
+        name : str
+            A column of the engine.
+
+        Returns
+        -------
+        None
+
+        References
+        ----------
+        .. [1] DEVELOPERS.md, "Engine".
+
+        Examples
+        --------
+        >>> import numpy as np
+        >>> from types import SimpleNamespace as Col
+        >>> eng = PairEngine([Col(name="a", codes=np.zeros(2, np.uint8), k=1)])
+        >>> eng.remove_column("a"); eng.names
+        []
+        """
         self._check_name(name)
         for store in (self._columns, self._codes, self._keys, self._marginals):
             store.pop(name, None)
@@ -246,10 +291,26 @@ class PairEngine:
     def marginal(self, name: str) -> np.ndarray:
         """Counts of each symbol ``0 .. k-1`` of one column (missing rows left out).
 
+        Parameters
+        ----------
+        name : str
+            A column of the engine.
+
         Returns
         -------
         numpy.ndarray
             int64 of shape ``(k,)`` (read-only).
+
+        References
+        ----------
+        .. [1] DEVELOPERS.md, "Engine".
+
+        Examples
+        --------
+        >>> import numpy as np
+        >>> from types import SimpleNamespace as Col
+        >>> PairEngine([Col(name="a", codes=np.array([0, 2, 1, 0], np.uint8), k=2)]).marginal("a").tolist()
+        [2, 1]
         """
         self._check_name(name)
         if name not in self._marginals:
@@ -263,10 +324,30 @@ class PairEngine:
     def table(self, a: str, b: str) -> np.ndarray:
         """Pairwise-complete joint counts of columns ``a`` (rows) and ``b`` (columns).
 
+        Parameters
+        ----------
+        a, b : str
+            Two different columns of the engine.
+
         Returns
         -------
         numpy.ndarray
-            int64 of shape ``(k_a, k_b)`` (read-only; copy it to modify).
+            int64 of shape ``(k_a, k_b)`` (read-only; copy it to modify): the counts of
+            the rows where both columns are present.
+
+        References
+        ----------
+        .. [1] DEVELOPERS.md, "Engine"; Agresti, A. (2013). *Categorical Data
+           Analysis*, 3rd ed., Wiley, sec. 2.1.
+
+        Examples
+        --------
+        >>> import numpy as np
+        >>> from types import SimpleNamespace as Col
+        >>> eng = PairEngine([Col(name="a", codes=np.array([0, 1, 2], np.uint8), k=2),
+        ...                   Col(name="b", codes=np.array([1, 1, 0], np.uint8), k=2)], progress=False)
+        >>> eng.table("a", "b").tolist()  # the third row is missing in a
+        [[0, 1], [0, 1]]
         """
         return self.tables([(a, b)])[(a, b)]
 
@@ -282,6 +363,22 @@ class PairEngine:
         -------
         dict
             ``{(a, b): table}``, int64 tables of shape ``(k_a, k_b)``, in the order asked.
+
+        References
+        ----------
+        .. [1] DEVELOPERS.md, "Engine".
+
+        Examples
+        --------
+        >>> import numpy as np
+        >>> from types import SimpleNamespace as Col
+        >>> cols = [Col(name=c, codes=np.array([0, 1, 1], np.uint8), k=2) for c in "xyz"]
+        >>> eng = PairEngine(cols, progress=False)
+        >>> list(eng.tables())
+        [('x', 'y'), ('x', 'z'), ('y', 'z')]
+        >>> eng.set_column(Col(name="z", codes=np.array([1, 1, 0], np.uint8), k=2))
+        >>> _ = eng.tables(); eng.last_counted  # only the pairs touching z
+        (('x', 'z'), ('y', 'z'))
         """
         if pairs is None:
             names = self.names
