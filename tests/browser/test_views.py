@@ -340,3 +340,18 @@ def test_cancel_button_sends_cancel(harness, web, artifacts):
     page.locator(".isc-head").screenshot(path=str(artifacts / "status-computing.png"))
     button.click()
     page.wait_for_function("window.__sent.some(m => m.type === 'cancel')")
+
+
+def test_sampled_first_view_is_labelled(harness, web):
+    page = harness()
+    page.evaluate("""() => {
+      const m = window.__model, e = JSON.parse(m.get('_entropy'));
+      e.sampled = 200;
+      m.set('_meta', { ...m.get('_meta'), n_rows: 800 });
+      m.set('_status', { state: 'computing', message: 'Counting all pairs...', generation: 2, progress: 0.4, notes: [] });
+      m.set('_entropy', JSON.stringify(e));
+    }""")
+    page.wait_for_timeout(100)
+    label = page.locator(".isc-caution .isc-sampled")
+    assert label.is_visible()
+    assert "seeded sample of 200 rows of 800" in label.text_content() and "full data follow" in label.text_content()
