@@ -178,7 +178,8 @@ def bootstrap_entropy_ci(
     -----
     A percentile interval is centred on the estimator's own sampling distribution:
     for a biased estimator it is centred near the biased estimate, not near the
-    true entropy.  With cells that were never observed, the replicates cannot
+    true entropy; for the plug-in estimate on undersampled data the replicates are
+    biased once more, and the interval can lie wholly below the estimate.  With cells that were never observed, the replicates cannot
     observe them either, so the interval reflects only the observed support.
 
     References
