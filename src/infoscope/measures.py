@@ -105,19 +105,69 @@ def _to_series(values, name: str):
         raise TypeError(f"{name} must be a 1-D sequence of values, got a single {type(values).__name__}")
     if not isinstance(values, np.ndarray) and hasattr(values, "to_numpy"):  # Polars and friends
         values = values.to_numpy()
-    if isinstance(values, np.ndarray):
-        arr = values
-    else:
+    if not isinstance(values, np.ndarray):
         try:
-            arr = np.asarray(list(values), dtype=object)
+            cells = list(values)
         except TypeError:
             raise TypeError(f"{name} must be a 1-D sequence of values, got {type(values).__name__}") from None
+        # One cell per item, whatever it holds: numpy would turn a list of tuples (or of
+        # equally long lists) into a 2-D array, or fail on ragged ones.
+        return pd.Series(cells, dtype=object).infer_objects()
+    arr = values
     if arr.ndim == 2 and arr.shape[1] == 1:
         arr = arr[:, 0]
     if arr.ndim != 1:
         raise ValueError(f"{name} must be 1-D (one value per row), got shape {arr.shape}")
     series = pd.Series(arr)
     return series.infer_objects() if series.dtype == object else series
+
+
+def _label_codes(present_values, name: str, stacklevel: int = 5) -> tuple[np.ndarray, int]:
+    """Codes 0..k-1 of present label values (a Series without missing rows), and k.
+
+    Object columns get two policies of :func:`infoscope.encode.columns.encode_column`,
+    so that the functional API and the profile read a column the same way: unhashable
+    cells (lists, dicts, arrays) are read by a stable text form of their contents, and
+    values of different types that Python counts as equal (``1``, ``1.0``, ``True``)
+    stay different labels.  Each is announced with a DataQualityWarning.
+    """
+    import pandas as pd
+
+    if present_values.dtype != object or len(present_values) == 0:
+        codes, uniques = pd.factorize(present_values, use_na_sentinel=True)
+        return codes.astype(np.int64, copy=False), len(uniques)
+    from infoscope.encode.columns import _hashable, _plain, _stable_text
+
+    cells = np.frompyfunc(_plain, 1, 1)(present_values.to_numpy(dtype=object))
+    types = np.frompyfunc(type, 1, 1)(cells)
+    type_codes, type_list = pd.factorize(types)
+    first = np.zeros(len(type_list), dtype=np.intp)
+    first[type_codes[::-1]] = np.arange(len(type_codes))[::-1]  # first cell of each type
+    bad_types = [i for i in range(len(type_list)) if not _hashable(cells[first[i]])]
+    if bad_types:
+        bad = np.isin(type_codes, bad_types)
+        names = ", ".join(sorted(type_list[i].__name__ for i in bad_types))
+        warnings.warn(
+            f"{name} has {int(bad.sum())} unhashable cell(s) ({names}); they are read as labels "
+            "by a stable text form of their contents",
+            DataQualityWarning,
+            stacklevel=stacklevel,  # the caller of the public function
+        )
+        cells = cells.copy()
+        # a (type, text) tuple never equals a string cell of the same text
+        cells[bad] = np.frompyfunc(lambda v: (type(v).__name__, _stable_text(v)), 1, 1)(cells[bad])
+    codes, uniques = pd.factorize(pd.Series(cells, dtype=object), use_na_sentinel=True)
+    if len(type_list) > 1:
+        pairs, pair_uniques = pd.factorize(codes.astype(np.int64) * len(type_list) + type_codes)
+        if len(pair_uniques) > len(uniques):
+            warnings.warn(
+                f"{name} holds values of different types that compare equal (such as 1, 1.0 and "
+                "True); they are kept apart as different labels",
+                DataQualityWarning,
+                stacklevel=stacklevel,  # the caller of the public function
+            )
+            return pairs.astype(np.int64, copy=False), len(pair_uniques)
+    return codes.astype(np.int64, copy=False), len(uniques)
 
 
 def _is_numeric(series) -> bool:
@@ -138,7 +188,7 @@ def _is_binnable(series) -> bool:
     return _is_numeric(series) or pd.api.types.is_datetime64_any_dtype(dtype) or pd.api.types.is_timedelta64_dtype(dtype)
 
 
-def _missing_mask(series, name: str) -> np.ndarray:
+def _missing_mask(series, name: str, stacklevel: int = 5) -> np.ndarray:
     mask = np.array(series.isna(), dtype=bool)  # a writable copy
     if _is_numeric(series):
         with np.errstate(invalid="ignore"):
@@ -147,7 +197,7 @@ def _missing_mask(series, name: str) -> np.ndarray:
             warnings.warn(
                 f"{name} has {int(inf.sum())} infinite value(s); they are treated as missing",
                 DataQualityWarning,
-                stacklevel=5,  # the caller of the public function
+                stacklevel=stacklevel,  # the caller of the public function
             )
             mask |= inf
     return mask
@@ -188,9 +238,7 @@ def _code_column(series, name: str, *, bins, strategy, missing) -> _Coded:
         present = ~_missing_mask(series, name)
         codes = np.zeros(len(series), dtype=np.int64)
         if present.any():
-            sub, uniques = pd.factorize(series[present], use_na_sentinel=True)
-            codes[present] = sub
-            k = len(uniques)
+            codes[present], k = _label_codes(series[present], name)
         else:
             k = 0
         if bins is None:
@@ -416,7 +464,8 @@ def _knn_mi(x, y, *, algorithm, k, base, missing, discrete, seed) -> float:
     if missing == "category":
         raise ValueError("missing='category' cannot be used with a kNN estimator: continuous values have no missing symbol")
     sx, sy = _to_series(x, _describe(x, "x")), _to_series(y, _describe(y, "y"))
-    check_same_length(x=sx, y=sy)
+    if check_same_length(x=sx, y=sy) == 0:
+        raise ValueError("x and y are empty (no rows)")
     if discrete is None:
         dx, dy = not _is_numeric(sx), not _is_numeric(sy)
     else:
@@ -426,7 +475,7 @@ def _knn_mi(x, y, *, algorithm, k, base, missing, discrete, seed) -> float:
             "x and y are both discrete (non-numeric); a kNN estimator needs a continuous side: "
             "use a count estimator such as estimator='miller_madow'"
         )
-    present = ~_missing_mask(sx, _describe(x, "x")) & ~_missing_mask(sy, _describe(y, "y"))
+    present = ~_missing_mask(sx, _describe(x, "x"), 4) & ~_missing_mask(sy, _describe(y, "y"), 4)
     if not present.all():
         if missing == "error":
             raise ValueError(
@@ -445,7 +494,7 @@ def _knn_mi(x, y, *, algorithm, k, base, missing, discrete, seed) -> float:
         if algorithm != 1:
             raise ValueError("estimator='ksg2' has no mixed discrete/continuous form; use estimator='ksg'")
         xc, yd = (cont(sy, "y"), sx[present]) if dx else (cont(sx, "x"), sy[present])
-        labels = pd.factorize(yd)[0]
+        labels, _ = _label_codes(yd, _describe(x if dx else y, "x" if dx else "y"), stacklevel=4)
         return continuous.mixed_mutual_information(xc, labels, k=k, base=base, seed=seed)
     return continuous.ksg_mutual_information(cont(sx, "x"), cont(sy, "y"), k=k, algorithm=algorithm, base=base, seed=seed)
 

@@ -60,7 +60,10 @@ def _numeric_array(values, parameter: str = "values") -> np.ndarray:
         else:
             arr = values.to_numpy()
     else:
-        arr = np.asarray(values)
+        try:
+            arr = np.asarray(values)
+        except (TypeError, ValueError):  # ragged nesting: numpy cannot make one array of it
+            raise TypeError(f"{parameter} must be a 1-D sequence of numbers; got nested or ragged values") from None
     if arr.ndim == 0:
         arr = arr.reshape(1)
     if arr.ndim != 1:
@@ -107,7 +110,12 @@ def _check_bins(bins, parameter: str = "bins"):
         return int(bins)
     if isinstance(bins, float):
         raise TypeError(f"{parameter}={bins!r}: the number of bins must be an integer")
-    edges = np.asarray(bins)
+    if bins is None:
+        raise TypeError(f"{parameter}=None is not valid here; give a number of bins, a rule name or edges")
+    try:
+        edges = np.asarray(bins)
+    except (TypeError, ValueError):
+        raise TypeError(f"{parameter}: bin edges must be a flat sequence of numbers; got nested or ragged values") from None
     if edges.ndim != 1 or edges.size < 2:
         raise ValueError(f"{parameter}: a sequence of bin edges needs at least two values, got shape {edges.shape}")
     if edges.dtype.kind in "mM":

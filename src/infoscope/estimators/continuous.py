@@ -59,7 +59,10 @@ _DEFAULT_MI_JITTER = 1e-10
 # ----------------------------------------------------------------------------
 def _as_samples(values, parameter: str) -> np.ndarray:
     """Return ``values`` as a fresh float64 array of shape (n, d), or raise naming ``parameter``."""
-    arr = np.asarray(values)
+    try:
+        arr = np.asarray(values)
+    except (TypeError, ValueError):  # ragged nesting: numpy cannot make one array of it
+        raise TypeError(f"{parameter} must be numbers of shape (n,) or (n, d); got nested or ragged values") from None
     if arr.dtype == bool:
         raise TypeError(
             f"{parameter} is boolean; the nearest-neighbour estimators need continuous "
@@ -484,7 +487,10 @@ def _plain(value):
 
 def _as_labels(values, parameter: str) -> np.ndarray:
     """Integer codes 0..m-1 of a 1-D sequence of discrete labels, or raise naming ``parameter``."""
-    arr = np.asarray(values)
+    try:
+        arr = np.asarray(values)
+    except (TypeError, ValueError):  # ragged nesting: numpy cannot make one array of it
+        raise TypeError(f"{parameter} must be a 1-D sequence of labels; got nested or ragged values") from None
     if arr.ndim == 2 and arr.shape[1] == 1:
         arr = arr[:, 0]
     if arr.ndim != 1:

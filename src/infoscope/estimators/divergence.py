@@ -79,7 +79,10 @@ def as_distribution(v, *, parameter: str = "p", counts=None, pseudocount=0.0) ->
     [0.25, 0.75]
     """
     a = _check_pseudocount(pseudocount)
-    raw = np.asarray(v)
+    try:
+        raw = np.asarray(v)
+    except (TypeError, ValueError):  # ragged nesting: numpy cannot make one array of it
+        raise TypeError(f"{parameter} must be a flat vector of numbers; got nested or ragged values") from None
     if raw.dtype == object or not (np.issubdtype(raw.dtype, np.number) or raw.dtype == bool):
         raise TypeError(f"{parameter} must be a numeric vector, got dtype {raw.dtype}")
     if raw.ndim != 1:
@@ -267,7 +270,8 @@ def psi(expected, actual, *, pseudocount=None, counts=None) -> float:
     actual : array_like of shape (K,)
         The distribution being checked (e.g. a new batch) over the same bins.
     pseudocount : float or None, default=None
-        Added to every bin of count vectors before normalising.  ``None`` means
+        Added to every bin of count vectors before normalising (a vector of all
+        zeros is an error either way: it has no distribution).  ``None`` means
         0.5 for count vectors (the Jeffreys pseudocount, so that one empty bin does
         not make the index infinite) and 0 for probability vectors, which cannot be
         smoothed in count units.  Pass 0 to see the raw index, which is ``inf``
@@ -302,6 +306,17 @@ def psi(expected, actual, *, pseudocount=None, counts=None) -> float:
     if pseudocount is not None:
         _check_pseudocount(pseudocount)
     def prepare(v, name):
+        # A side with no observations has no distribution to compare: smoothing it
+        # (the default pseudocount) would make it uniform and give a made-up index.
+        try:
+            as_distribution(v, parameter=name, counts=counts, pseudocount=0.0)
+        except ValueError as err:
+            if "no observations" not in str(err):
+                raise
+            raise ValueError(
+                f"{name} has no observations (all counts are 0): the index compares two "
+                "distributions, and smoothing an empty one would only make it uniform"
+            ) from None
         a = pseudocount
         if a is None:  # the default: 0.5 for counts, 0 for probabilities
             a = 0.5 if _reads_as_counts(v, counts) else 0.0

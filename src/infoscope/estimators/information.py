@@ -85,19 +85,22 @@ def _entropy_nats(counts: np.ndarray, estimator: str, alpha) -> float:
     return float(entropy_from_counts(counts.ravel(), **kwargs))
 
 
-def _check_estimator(estimator) -> str:
-    if estimator == "plugin":
-        return estimator
-    try:
-        from infoscope.estimators.entropy import ENTROPY_ESTIMATORS
-    except ImportError:  # pragma: no cover - the entropy module is part of the package
-        valid = ["plugin"]
-    else:
-        valid = list(ENTROPY_ESTIMATORS)
-    return check_choice(estimator, valid, "estimator")
+def _check_estimator(estimator, alpha=None) -> str:
+    """Validate ``estimator`` (and ``alpha``: only ``"dirichlet"`` takes one, as in entropy_from_counts)."""
+    from infoscope.estimators.entropy import ENTROPY_ESTIMATORS, resolve_alpha
+
+    if estimator != "plugin":
+        check_choice(estimator, list(ENTROPY_ESTIMATORS), "estimator")
+    resolve_alpha(estimator, alpha)  # raises, naming alpha, when it does not apply or is invalid
+    return estimator
 
 
 def _check_table(table, parameter: str = "table", ndim: int | None = 2) -> np.ndarray:
+    if not isinstance(table, np.ndarray):
+        try:
+            table = np.asarray(table)
+        except (TypeError, ValueError):  # ragged rows: numpy cannot make one array of them
+            raise TypeError(f"{parameter} must be a rectangular table of counts; its rows differ in length") from None
     arr = check_counts(table, parameter, ndim=ndim)
     if ndim is None and arr.ndim < 1:
         raise ValueError(f"{parameter} must have at least one axis, got a scalar")
@@ -175,7 +178,7 @@ def joint_entropy_from_counts(counts, *, estimator: str = "miller_madow", base=2
     2.0
     """
     arr = _check_table(counts, "counts", ndim=None)
-    estimator = _check_estimator(estimator)
+    estimator = _check_estimator(estimator, alpha)
     return _entropy_nats(arr, estimator, alpha) / log_base(base)
 
 
@@ -230,7 +233,7 @@ def conditional_entropy_from_table(
             f"given_axis={given_axis!r} is invalid for a table of shape {arr.shape}: "
             f"name between 1 and {arr.ndim - 1} distinct axes in range(-{arr.ndim}, {arr.ndim})"
         )
-    estimator = _check_estimator(estimator)
+    estimator = _check_estimator(estimator, alpha)
     other = tuple(a for a in range(arr.ndim) if a not in axes)
     h = _entropy_nats(arr, estimator, alpha) - _entropy_nats(arr.sum(axis=other), estimator, alpha)
     if estimator == "plugin":
@@ -277,7 +280,7 @@ def mutual_information_from_table(table, *, estimator: str = "miller_madow", bas
     1.0
     """
     t = _check_table(table)
-    estimator = _check_estimator(estimator)
+    estimator = _check_estimator(estimator, alpha)
     return _mi_nats(t, estimator, alpha) / log_base(base)
 
 
@@ -320,7 +323,7 @@ def conditional_mutual_information_from_table(
     1.0
     """
     t = _check_table(table3d, "table3d", ndim=3)
-    estimator = _check_estimator(estimator)
+    estimator = _check_estimator(estimator, alpha)
     h = lambda a: _entropy_nats(a, estimator, alpha)  # noqa: E731
     cmi = h(t.sum(axis=1)) + h(t.sum(axis=0)) - h(t) - h(t.sum(axis=(0, 1)))
     if estimator == "plugin":
@@ -387,7 +390,7 @@ def normalized_mutual_information_from_table(
     """
     t = _check_table(table)
     normalization = check_choice(normalization, NORMALIZATIONS, "normalization")
-    estimator = _check_estimator(estimator)
+    estimator = _check_estimator(estimator, alpha)
     rows, cols = t.sum(axis=1), t.sum(axis=0)
     if _n_nonempty(rows) == 1 and _n_nonempty(cols) == 1:
         return 1.0  # no split on either side: a perfect match (scikit-learn's convention)
@@ -593,7 +596,7 @@ def variation_of_information_from_table(table, *, estimator: str = "plugin", bas
     2.0
     """
     t = _check_table(table)
-    estimator = _check_estimator(estimator)
+    estimator = _check_estimator(estimator, alpha)
     h = lambda a: _entropy_nats(a, estimator, alpha)  # noqa: E731
     vi = 2.0 * h(t) - h(t.sum(axis=1)) - h(t.sum(axis=0))
     if estimator == "plugin":
