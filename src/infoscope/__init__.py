@@ -61,6 +61,8 @@ _PUBLIC = {
     "InfoProfileAccessor": "infoscope.frame.accessor",
     "ProfileSession": "infoscope.frame.session",
     "PairTable": "infoscope.frame.results",
+    # live views (anywidget; imported only when asked for)
+    "ProfileWidget": "infoscope.widgets.profile",
     # demo data
     "datasets": "infoscope.datasets",
 }
