@@ -386,3 +386,13 @@ def test_rows_with_no_observations_are_named():
 @given(st.lists(st.integers(min_value=0, max_value=30), min_size=2, max_size=6).filter(lambda c: sum(c) > 0))
 def test_integer_and_float_counts_agree(counts):
     assert entropy_from_counts(np.array(counts, dtype=np.int32)) == entropy_from_counts(np.array(counts, dtype=float))
+
+
+@given(counts_vectors, st.sampled_from([("james_stein", None), ("dirichlet", 0.5), ("dirichlet", "perks"),
+                                        ("dirichlet", "minimax"), ("dirichlet", 3.0)]))
+def test_smoothed_estimates_are_entropies_of_a_distribution(counts, choice):
+    # james_stein and dirichlet are plug-ins of a smoothed probability vector over the
+    # K cells, so (Shannon 1948) they lie in [0, log K].
+    estimator, alpha = choice
+    h = entropy_from_counts(counts, estimator=estimator, alpha=alpha, base="nats")
+    assert 0.0 <= h <= math.log(len(counts)) + 1e-12

@@ -246,3 +246,36 @@ def test_nsb_has_smaller_error_than_plugin_when_undersampled(rng):
         mae = {e: np.mean(np.abs(v)) for e, v in errors.items()}
         assert mae["nsb"] < 0.5 * mae["plugin"], (kind, mae)
         assert mae["nsb"] < mae["miller_madow"], (kind, mae)
+
+
+# --------------------------------------------------------------------------- properties
+
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+small_counts = st.lists(st.integers(min_value=0, max_value=40), min_size=2, max_size=10).filter(lambda c: sum(c) > 0)
+
+
+@settings(max_examples=25)
+@given(small_counts)
+def test_nsb_is_a_posterior_mean_so_it_lies_between_zero_and_log_k(counts):
+    # H(p) is in [0, ln K] for every p on the simplex, hence so is any posterior mean.
+    post = nsb_posterior(counts, base="nats")
+    assert 0.0 <= post.entropy <= math.log(len(counts)) + 1e-12
+    assert 0.0 <= post.std <= math.log(len(counts))
+
+
+@settings(max_examples=15)
+@given(small_counts, st.randoms(use_true_random=False))
+def test_nsb_bits_equal_nats_over_ln2_and_order_does_not_matter(counts, random):
+    shuffled = list(counts)
+    random.shuffle(shuffled)
+    nats = nsb_posterior(counts, base="nats").entropy
+    assert nsb_posterior(shuffled, base=2).entropy == pytest.approx(nats / math.log(2), rel=1e-9)
+
+
+@settings(max_examples=15)
+@given(small_counts, st.integers(min_value=1, max_value=20))
+def test_nsb_depends_on_the_declared_alphabet(counts, extra):
+    # The prior is over K cells: declaring more (empty) cells raises the estimate.
+    assert nsb_posterior(list(counts) + [0] * extra).entropy > nsb_posterior(counts).entropy
