@@ -617,7 +617,11 @@ def _cell_texts(cells: np.ndarray, notes: _Notes) -> np.ndarray:
 
 def _factorized(series: pd.Series, kind: str) -> _Levels:
     raw, uniques = pd.factorize(series, use_na_sentinel=True)
-    labels = [str(u) for u in uniques]
+    # one array conversion, not a Python loop over the levels: an ID column has as
+    # many levels as rows, and iterating an Arrow-backed Index cell by cell is slow
+    labels = uniques.to_numpy(dtype=object)
+    if labels.size and pd.api.types.infer_dtype(labels, skipna=False) != "string":
+        labels = np.frompyfunc(str, 1, 1)(labels).astype(object)
     return _Levels(raw.astype(np.int64, copy=False), labels, False, kind, len(uniques))
 
 
@@ -749,12 +753,16 @@ def _finish_levels(d: _Levels, notes: _Notes, missing: str, max_categories):
     counts = np.bincount(raw[raw >= 0], minlength=n_levels) if n_levels else np.zeros(0, np.int64)
     n_missing = int(raw.size - counts.sum())
     with_missing_symbol = missing == "category" and n_missing > 0
-    labels = [_reserve(lab) for lab in d.labels]
+    labels = np.empty(n_levels, dtype=object)  # a data label, or an array of them (vectorised)
+    labels[:] = list(d.labels) if not isinstance(d.labels, np.ndarray) else d.labels
+    if n_levels:
+        reserved = np.flatnonzero((labels == MISSING_LABEL) | (labels == OTHER_LABEL))
+        labels[reserved] = [_reserve(labels[i]) for i in reserved]
     if d.natural:
         order = np.arange(n_levels)
     else:
         # most frequent first; ties in label order so the result does not depend on row order
-        order = np.lexsort((np.array(labels, dtype=object).astype(str), -counts)) if n_levels else np.arange(0)
+        order = np.lexsort((labels.astype(str), -counts)) if n_levels else np.arange(0)
     kept = order
     folded = False
     if max_categories is not None and n_levels + with_missing_symbol > max_categories:
@@ -778,7 +786,7 @@ def _finish_levels(d: _Levels, notes: _Notes, missing: str, max_categories):
         )
     new_index = np.full(n_levels + 1, -1, dtype=np.int64)
     new_index[kept] = np.arange(kept.size)
-    out_labels = [labels[i] for i in kept]
+    out_labels = labels[kept].tolist()
     if folded:
         new_index[:n_levels][new_index[:n_levels] < 0] = len(out_labels)
         out_labels.append(OTHER_LABEL)
