@@ -33,7 +33,7 @@ import numbers
 
 import numpy as np
 
-__all__ = ["check_min_count", "suppression_mask", "SUPPRESSED_LABEL"]
+__all__ = ["check_min_count", "suppression_mask", "suppressed_label", "SUPPRESSED_LABEL"]
 
 #: What an export shows in place of a hidden count (``"<10"`` for ``min_count=10``).
 SUPPRESSED_LABEL = "<{min_count}"
@@ -201,5 +201,26 @@ def _close_bridges(mask: np.ndarray, grid: np.ndarray) -> bool:
 
 
 def suppressed_label(min_count: int) -> str:
-    """The text an export shows in place of a hidden count, e.g. ``"<10"``."""
+    """The text an export shows in place of a hidden count.
+
+    Parameters
+    ----------
+    min_count : int
+        The threshold.
+
+    Returns
+    -------
+    str
+        ``"<"`` followed by the threshold.
+
+    References
+    ----------
+    Showing a symbol in place of a suppressed count is common practice in official
+    statistics.
+
+    Examples
+    --------
+    >>> suppressed_label(10)
+    '<10'
+    """
     return SUPPRESSED_LABEL.format(min_count=int(min_count))
