@@ -125,7 +125,7 @@ def _nsb(n: np.ndarray) -> np.ndarray:
     from infoscope.estimators.nsb import nsb_posterior_nats
 
     flat = n.reshape(-1, n.shape[-1])
-    out = np.array([nsb_posterior_nats(row)[0] for row in flat])
+    out = np.array([nsb_posterior_nats(row, with_std=False)[0] for row in flat])
     return out.reshape(n.shape[:-1])
 
 
