@@ -475,3 +475,13 @@ def test_to_html_of_a_session_writes_an_offline_page(demo_session, tmp_path):
     assert f'content="{html.escape(CONTENT_SECURITY_POLICY, quote=True)}"' in text
     assert not re.search(r"""(src|href)=["']?https?:""", text), "nothing loads from the network"
     assert "counts below 10 are hidden" in text
+
+
+def test_cli_demo_out_writes_the_page(tmp_path, capsys):
+    from infoscope.cli import main
+
+    page = tmp_path / "demo.html"
+    assert main(["demo", "--rows", "2000", "--batch-rows", "500", "--out", str(page), "--min-count", "5"]) == 0
+    assert f"wrote {page}" in capsys.readouterr().out
+    text = page.read_text(encoding="utf-8")
+    assert 'id="isc-payload"' in text and "counts below 5 are hidden" in text
