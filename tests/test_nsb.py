@@ -104,6 +104,18 @@ def test_nsb_matches_direct_quadrature_in_extreme_cases(counts):
     assert nsb_posterior(counts, base="nats").entropy == pytest.approx(mean, rel=1e-9, abs=1e-12)
 
 
+def test_nsb_matches_direct_quadrature_when_the_posterior_is_sharp():
+    # Many counts in many cells make the posterior over ln(beta) narrow (width about
+    # 1/sqrt(K)); reference as above, scipy.integrate.quad over beta.
+    import warnings
+
+    counts = np.random.default_rng(3).multinomial(10**7, np.random.default_rng(4).dirichlet(np.full(300, 0.3)))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        mean, _ = _naive_nsb(counts, with_std=False)
+    assert nsb_posterior(counts, base="nats").entropy == pytest.approx(mean, rel=1e-11)
+
+
 # --------------------------------------------------------------------------- the pieces
 
 @pytest.mark.parametrize("K", [2, 10, 1000])
