@@ -383,3 +383,25 @@ def test_bad_given_axis_is_named():
         conditional_entropy_from_table([[1, 2], [3, 4]], given_axis=5)
     with pytest.raises(ValueError, match=r"given_axis=\(0, 1\) is invalid"):
         conditional_entropy_from_table([[1, 2], [3, 4]], given_axis=(0, 1))
+
+
+@pytest.mark.parametrize("method", ["min", "geometric", "arithmetic", "max"])
+@pytest.mark.parametrize("n", [3, 4, 7, 50])
+def test_ami_of_an_id_like_side_is_zero_not_rounding_noise(rng, method, n):
+    # An all-distinct column x: every relabelling gives the same table up to row
+    # order, so I = E[I] exactly (Vinh, Epps & Bailey 2010, eq. for E[I] under the
+    # permutation model) and AMI's numerator is 0.  With "min" the denominator is 0
+    # too; scikit-learn's adjusted_mutual_info_score then returns rounding noise
+    # (1.0, -1.0 or 0.98 for such inputs, checked with 1.9.1), so it is not the reference here.
+    x = np.arange(n)
+    y = np.r_[0, 1, rng.integers(0, 3, size=n - 2)]
+    t = np.zeros((n, 3), dtype=int)
+    np.add.at(t, (x, y), 1)
+    assert adjusted_mutual_information_from_table(t, normalization=method) == 0.0
+    assert adjusted_mutual_information_from_table(t.T, normalization=method) == 0.0
+    # where the formula is not 0/0, scikit-learn agrees to rounding
+    if method != "min":
+        assert metrics.adjusted_mutual_info_score(x, y, average_method=method) == pytest.approx(0.0, abs=1e-12)
+    # identical partitions (both sides all distinct): 1, scikit-learn's value
+    assert adjusted_mutual_information_from_table(np.eye(n, dtype=int), normalization=method) == 1.0
+    assert metrics.adjusted_mutual_info_score(x, x, average_method=method) == 1.0

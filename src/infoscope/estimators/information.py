@@ -522,7 +522,10 @@ def adjusted_mutual_information_from_table(table, *, normalization: str = "arith
         exact expected MI under the permutation model.  1 for identical partitions,
         about 0 for independent ones, can be negative.  Degenerate cases follow
         scikit-learn's ``adjusted_mutual_info_score``: both variables constant ->
-        1.0; exactly one constant -> 0.0.
+        1.0; exactly one constant -> 0.0.  When one side puts every row in a class
+        of its own (an ID-like column), every relabelling gives the same MI, so
+        :math:`I = E[I]`: the result is 0.0 (1.0 if both sides do: identical
+        partitions), where the formula would be 0/0 for some normalisations.
 
     Notes
     -----
@@ -552,17 +555,27 @@ def adjusted_mutual_information_from_table(table, *, normalization: str = "arith
         return 1.0
     if nr == 1 or nc == 1:
         return 0.0
+    rows_singletons = bool(np.all(rows[rows > 0] == 1))
+    cols_singletons = bool(np.all(cols[cols > 0] == 1))
+    if rows_singletons or cols_singletons:
+        # Every row of the sample is a class of its own on one side (an ID-like
+        # column): each relabelling gives the same table up to the order of its
+        # rows, so I = E[I] exactly and, for the normalisations where f = I (such as
+        # "min"), the index is 0/0; its floating-point value is rounding noise
+        # (scikit-learn returns 1, -1 or 0.98 for such tables).  The observed MI is
+        # exactly what chance gives: 0, unless both sides are singletons, which is
+        # two identical partitions: 1 (scikit-learn's value for identical labels).
+        return 1.0 if rows_singletons and cols_singletons else 0.0
     mi = _plugin_mi_nats(t)
     emi = _emi_nats(t)
     hx, hy = _plugin_entropy_nats(rows), _plugin_entropy_nats(cols)
     denominator = _normaliser(hx, hy, math.nan, normalization) - emi
-    numerator = mi - emi
-    # A perfect match gives 0/0 in exact arithmetic when E[I] equals the normaliser;
-    # keep the sign and move away from 0 by one ulp (the convention of scikit-learn).
+    # The normaliser is >= E[I] in exact arithmetic, and equal only in the singleton
+    # case handled above; keep the sign and stay one ulp away from 0 against
+    # rounding (as scikit-learn's adjusted_mutual_info_score does).
     eps = np.finfo(np.float64).eps
     denominator = min(denominator, -eps) if denominator < 0 else max(denominator, eps)
-    numerator = min(numerator, -eps) if numerator < 0 else max(numerator, eps)
-    return float(numerator / denominator)
+    return float((mi - emi) / denominator)
 
 
 def variation_of_information_from_table(table, *, estimator: str = "plugin", base=2, alpha=None) -> float:
