@@ -89,6 +89,13 @@ def test_flagged_columns_have_their_property(reference):
     assert reference["contents"].nunique() > 64                        # more levels than the default cap
     shares = reference["contents"].value_counts(normalize=True)
     assert (shares < 0.005).sum() > 50                                 # many rare levels
+    # rare_levels as documented (levels under 1% hold at least 5% of the rows), by
+    # pandas value_counts alone; and the count of stops has only a thin rare tail
+    for column in PLANTED["more_flags"]:
+        shares = reference[column].value_counts(normalize=True)
+        assert shares[shares < 0.01].sum() >= 0.05, column
+    stops = reference["stops_before"].value_counts(normalize=True)
+    assert stops[stops < 0.01].sum() < 0.05
     # heavy tail: sample kurtosis (scipy.stats.kurtosis, Fisher) far above a normal's 0
     assert scipy.stats.kurtosis(reference["declared_value_eur"]) > 50
     # the weights and distances are skewed but not heavy-tailed in that sense

@@ -119,10 +119,35 @@ def test_planted_flags_are_found(session):
     flags = session.entropy().set_index("column")["flags"].str.split(",")
     for column, flag in PLANTED["flags"].items():
         assert flag in flags[column], (column, flags[column])
+    for column, more in PLANTED["more_flags"].items():
+        assert set(more) <= set(flags[column]), (column, flags[column])
     # a flag planted on one column is not sprayed over the others
     for flag in ("id_like", "constant", "heavy_tail"):
         holders = [c for c, f in flags.items() if flag in f]
         assert holders == [c for c, f in PLANTED["flags"].items() if f == flag], flag
+    # rare_levels: the long-tailed goods column only (not the identifier, not the
+    # count of stops with a few rare large values)
+    holders = [c for c, f in flags.items() if "rare_levels" in f]
+    assert holders == [c for c, f in PLANTED["more_flags"].items() if "rare_levels" in f]
+
+
+def test_rare_levels_threshold():
+    # The documented rule (common practice: fewer than 5 rows or under 1% of the rows
+    # is a rare level; flagged when rare levels hold at least 5% of the rows), checked
+    # on both sides of the 5% line: 1,000 rows, one common level and 49 or 50 levels of
+    # one row each; 4 rows (<5) then 1 row per level; and a binned column never.
+    def flags(counts):
+        values = np.repeat([f"v{i:03d}" for i in range(len(counts))], counts)
+        frame = pd.DataFrame({"c": values, "x": np.linspace(0, 1, len(values))})
+        return ProfileSession(frame, n_boot=0, max_categories=200).entropy().set_index("column")["flags"]
+
+    assert "rare_levels" in flags([950] + [1] * 50)["c"]          # 50 of 1000 rows: 5%
+    assert "rare_levels" not in flags([951] + [1] * 49)["c"]      # 49 of 1000 rows: 4.9%
+    assert "rare_levels" not in flags([951] + [1] * 49)["x"]      # binned: its bins are meant
+    # a level of 9 rows out of 1,000 is under 1%: ten of them are 9% of the rows
+    assert "rare_levels" in flags([910] + [9] * 10)["c"]
+    # 11 rows each (1.1%) is not rare, however many such levels there are
+    assert "rare_levels" not in flags([912] + [11] * 8)["c"]
 
 
 def test_drift_flags_exactly_the_drifted_columns(log):
@@ -181,9 +206,18 @@ def test_matrix_is_symmetric_and_clusters_duplicates(session):
     assert abs(order.index(a) - order.index(b)) == 1
     by_name = session.matrix("mi")
     assert list(by_name.index) == session.names
-    # the diagonal of the MI matrix is each column's entropy (I(X;X) = H(X))
-    e = session.entropy().set_index("column")["entropy"]
-    np.testing.assert_allclose(np.diag(by_name.to_numpy()), e[session.names].to_numpy())
+    # the diagonal of the MI matrix is each column's entropy (I(X;X) = H(X),
+    # Cover & Thomas 2006, eq. 2.47) on the alphabet of the grid: the entropy
+    # table's value, except for folded columns, whose grid alphabet is folded
+    table = session.entropy()
+    e = table.set_index("column")["entropy"]
+    diag = pd.Series(np.diag(by_name.to_numpy()), index=session.names)
+    folded = table.attrs["folded_in_pairs"]
+    assert set(folded) == {"parcel_ref", "contents"}
+    plain = [k for k in session.names if k not in folded]
+    np.testing.assert_allclose(diag[plain].to_numpy(), e[plain].to_numpy())
+    for key in folded:
+        assert diag[key] < e[key]
 
 
 def test_pair_table(session, log):

@@ -193,3 +193,58 @@ def test_drift_divergences_equal_scipy():
     assert d["p_value"] == pytest.approx(p)
     assert d["k"] == 4 and d["n"] == 100 and d["n_reference"] == 100
     assert d["flag"] == "major"
+
+
+# ------------------------------------------------------------------ folded columns
+# The demo log (infoscope.datasets) has an identifier and a long-tailed goods
+# column with more levels than max_categories; the pair tables fold them, but the
+# column's own entropy must be that of every level: scipy.stats.entropy of
+# pandas value_counts is the reference.
+@pytest.mark.filterwarnings("ignore:column '(parcel_ref|contents|courier_note)'.*folded:UserWarning")
+def test_entropy_of_folded_columns_equals_scipy_of_unfolded_value_counts():
+    from infoscope.datasets import make_deliveries
+
+    log = make_deliveries(5_000, seed=0)[["parcel_ref", "contents", "depot"]]
+    s = ProfileSession(log, estimator="plugin", n_boot=0, max_categories=64)
+    table = s.entropy().set_index("column")
+    for column in ("parcel_ref", "contents"):
+        counts = log[column].value_counts(dropna=True)
+        # scipy.stats.entropy(value_counts, base=2): the plug-in entropy of all levels
+        assert table.loc[column, "entropy"] == pytest.approx(scipy.stats.entropy(counts, base=2), rel=1e-12)
+        assert table.loc[column, "k"] == counts.size
+        assert table.loc[column, "max_entropy"] == pytest.approx(np.log2(counts.size), rel=1e-12)
+        assert table.loc[column, "effective_categories"] == pytest.approx(
+            np.exp(scipy.stats.entropy(counts)), rel=1e-9)
+        assert "levels_folded" in table.loc[column, "flags"]
+    # an identifier of 5,000 distinct values: log2(5000) = 12.29 bits (closed form)
+    assert table.loc["parcel_ref", "entropy"] == pytest.approx(np.log2(5_000), rel=1e-12)
+    # the pair tables keep the folded alphabet, and the table says so
+    assert table.attrs["folded_in_pairs"] == {"parcel_ref": 64, "contents": 64}
+    pairs = s.pairs().set_index(["a", "b"])
+    assert pairs.loc[("parcel_ref", "contents"), "k_a"] == 64
+    # the interval comes from the unfolded counts too: it lies far above the plug-in
+    # entropy of the folded codes (scipy.stats.entropy of their bincount) and near
+    # the unfolded value (percentile bootstrap, Efron & Tibshirani 1993)
+    t = ProfileSession(log[["contents"]], estimator="plugin", n_boot=100).entropy()
+    codes = s.column("contents").codes
+    folded = scipy.stats.entropy(np.bincount(codes[codes < 64]), base=2)
+    unfolded = scipy.stats.entropy(log["contents"].value_counts(), base=2)
+    assert unfolded - folded > 0.3
+    assert folded + 0.2 < t.loc[0, "ci_low"] < unfolded < t.loc[0, "ci_high"] < unfolded + 0.1
+
+
+@pytest.mark.filterwarnings("ignore:column 'courier_note'.*folded:UserWarning")
+def test_entropy_of_folded_column_with_missing_symbol():
+    from infoscope.datasets import make_deliveries
+
+    log = make_deliveries(3_000, seed=4)[["courier_note"]]
+    s = ProfileSession(log, estimator="miller_madow", base="nats", n_boot=0, max_categories=4,
+                       missing="category")
+    row = s.entropy().iloc[0]
+    counts = log["courier_note"].value_counts(dropna=False).to_numpy()
+    n, m = counts.sum(), np.count_nonzero(counts)
+    # Miller (1955): H_MM = H_plugin + (m - 1) / (2 N) nats, plug-in via scipy.stats.entropy,
+    # over every note and the missing symbol (value_counts(dropna=False))
+    assert row["entropy"] == pytest.approx(scipy.stats.entropy(counts) + (m - 1) / (2 * n), rel=1e-12)
+    assert row["k"] == log["courier_note"].nunique() + 1
+    assert s.column("courier_note").k == 4

@@ -77,6 +77,11 @@ PLANTED = MappingProxyType({
         "declared_value_eur": "heavy_tail",
         "contents": "levels_folded",
     }),
+    # further flags each planted column must carry (a goods category with a long
+    # tail of rare levels: about 30% of the rows in levels under 1% each)
+    "more_flags": MappingProxyType({
+        "contents": ("rare_levels",),
+    }),
     # make_deliveries_batch(drift=True) against make_deliveries(): expected flag
     # per column; every other common column is expected "stable".
     "drift": MappingProxyType({

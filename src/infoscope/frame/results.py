@@ -17,6 +17,9 @@ __all__ = [
     "ENTROPY_COLUMNS",
     "LEAKAGE_SHARE",
     "PAIRS_COLUMNS",
+    "RARE_LEVEL_ROWS",
+    "RARE_LEVEL_SHARE",
+    "RARE_LEVELS_TOTAL",
     "RELEVANCE_COLUMNS",
     "SPARSE_CELL_COUNT",
     "PairTable",
@@ -40,6 +43,16 @@ DRIFT_COLUMNS = ("column", "kind", "k", "n", "n_reference", "psi", "kl", "js", "
 #: Fewer than this many observations per cell on average marks a table as sparse
 #: (common practice for chi-square style tables: expected counts of at least 5).
 SPARSE_CELL_COUNT = 5.0
+
+#: ``rare_levels``: a level is rare when it has fewer than this many rows (common
+#: practice: 5 is the usual small-cell threshold of official statistics and the
+#: minimum expected count of chi-square tables) ...
+RARE_LEVEL_ROWS = 5
+#: ... or holds under this share of the non-missing rows (common practice: the
+#: usual share below which a category is grouped as rare);
+RARE_LEVEL_SHARE = 0.01
+#: a column is flagged when its rare levels together hold at least this share.
+RARE_LEVELS_TOTAL = 0.05
 
 #: A column whose MI with the target is at least this share of H(target) is
 #: flagged as a possible leak: it nearly determines the target.

@@ -26,6 +26,9 @@ from infoscope.frame.results import (
     ENTROPY_COLUMNS,
     LEAKAGE_SHARE,
     PAIRS_COLUMNS,
+    RARE_LEVEL_ROWS,
+    RARE_LEVEL_SHARE,
+    RARE_LEVELS_TOTAL,
     RELEVANCE_COLUMNS,
     SPARSE_CELL_COUNT,
     PairTable,
@@ -550,7 +553,28 @@ class ProfileSession:
             base ** entropy`` (the number of equally likely symbols with the same
             entropy; the same number in every unit); ``flags`` comma-separated,
             from the encoder plus ``sparse_cells`` (fewer than 5 observations per
-            symbol on average).  ``attrs``: unit, estimator, sampled.
+            symbol on average) and ``rare_levels`` (see below).  ``attrs``: unit,
+            estimator, sampled, and ``folded_in_pairs``: ``{column: k}`` for the
+            columns whose levels were folded.
+
+            **Folded columns.**  When ``max_categories`` folds rare levels into
+            ``"(other)"`` (flag ``levels_folded``), the pair tables, the
+            information grid and :meth:`matrix` use the folded alphabet (``k`` of
+            :meth:`pairs`, ``attrs["folded_in_pairs"]``), but this table estimates
+            the column's own entropy, interval, ``k`` (= distinct non-missing
+            values, plus the missing symbol under ``missing="category"``), max H,
+            efficiency and effective categories from the counts of every level
+            before folding: an identifier of 50,000 distinct values reads about
+            15.6 bits, not the 0.02 bits of its folded codes.
+
+            **Rare levels.**  A column kept as levels (not binned, not ID-like) is
+            flagged ``rare_levels`` when its rare levels (each fewer than 5 rows or
+            under 1% of the non-missing rows, whichever is more) together hold at
+            least 5% of the non-missing rows: such a tail spreads rows over many
+            thin cells in every pair table and its small counts can identify
+            people (common practice: 5 as the small-cell threshold of official
+            statistics and of chi-square tables, 1% as the usual share below
+            which a category is grouped as rare).
 
         References
         ----------
@@ -571,9 +595,13 @@ class ProfileSession:
             from infoscope.estimators.resampling import bootstrap_entropy_ci
         divisor = log_base(s["base"])
         rows = []
+        folded_in_pairs: dict[str, int] = {}
         for i, key in enumerate(self._names):
             col = self._encoded[key]
-            counts = np.asarray(self._engine.marginal(key), dtype=np.int64)
+            marginal = np.asarray(self._engine.marginal(key), dtype=np.int64)
+            counts, k = self._symbol_counts(col, marginal)
+            if counts is not marginal:
+                folded_in_pairs[key] = int(col.k)
             observed = int(counts.sum())
             flags = list(col.flags)
             h = self._entropy(counts)
@@ -586,11 +614,13 @@ class ProfileSession:
                                                  seed=_child_seed(s["seed"], i), **self._kw())
             elif s["n_boot"] > 0:
                 low = high = h  # one symbol: every resample is the same
-            if observed and observed / col.k < SPARSE_CELL_COUNT and "sparse_cells" not in flags:
+            if observed and observed / k < SPARSE_CELL_COUNT and "sparse_cells" not in flags:
                 flags.append("sparse_cells")
-            max_h = math.log(col.k) / divisor if col.k >= 1 else math.nan
+            if _has_rare_levels(col, counts, s["missing"]):
+                flags.append("rare_levels")
+            max_h = math.log(k) / divisor if k >= 1 else math.nan
             rows.append({
-                "column": key, "kind": col.kind, "k": int(col.k), "n": int(col.n),
+                "column": key, "kind": col.kind, "k": int(k), "n": int(col.n),
                 "missing": int(col.n_missing),
                 "missing_share": col.n_missing / col.n if col.n else math.nan,
                 "entropy": h, "ci_low": float(low), "ci_high": float(high),
@@ -599,7 +629,25 @@ class ProfileSession:
                 "effective_categories": math.exp(h * divisor) if not math.isnan(h) else math.nan,
                 "flags": ",".join(flags),
             })
-        return result_frame(rows, ENTROPY_COLUMNS, **self._attrs())
+        return result_frame(rows, ENTROPY_COLUMNS, **self._attrs(folded_in_pairs=folded_in_pairs))
+
+    def _symbol_counts(self, col, marginal: np.ndarray) -> tuple[np.ndarray, int]:
+        """The counts and alphabet size a column's own entropy is estimated from.
+
+        When levels were folded into ``"(other)"`` (``col.level_counts`` is set),
+        the unfolded counts of every level (plus the missing symbol under
+        ``missing="category"``) and ``K = n_distinct`` (+ 1); otherwise the
+        engine's marginal (the pair tables' alphabet) and ``col.k``.
+        """
+        level_counts = getattr(col, "level_counts", None)
+        if level_counts is None:
+            return marginal, int(col.k)
+        counts = np.asarray(level_counts, dtype=np.int64)
+        k = int(col.n_distinct)
+        if self._settings["missing"] == "category" and col.n_missing:
+            counts = np.append(counts, np.int64(col.n_missing))
+            k += 1
+        return counts, k
 
     # ---------------------------------------------------------- pairs
     def _pair_list(self, columns=None) -> list[tuple[str, str]]:
@@ -1042,6 +1090,31 @@ def _stacks(tabs: list[np.ndarray], live: list[int], *, pad: bool) -> list[list[
     if batch:
         out.append(batch)
     return out
+
+
+def _has_rare_levels(col, counts: np.ndarray, missing: str) -> bool:
+    """Whether a levels column has a tail of rare levels (the ``rare_levels`` flag).
+
+    ``counts`` are the column's own symbol counts (unfolded when folded).  Binned,
+    ID-like and constant columns never get the flag: their bins are the intended
+    symbols, or ``id_like`` / ``constant`` already say more.
+    """
+    if col.edges is not None or "id_like" in col.flags or "constant" in col.flags:
+        return False
+    levels = np.asarray(counts, dtype=np.int64)
+    if missing == "category" and col.n_missing:
+        from infoscope.encode.columns import MISSING_LABEL
+
+        if getattr(col, "level_counts", None) is not None:
+            levels = levels[:-1]  # the missing symbol was appended last
+        elif MISSING_LABEL in col.labels:
+            levels = np.delete(levels, col.labels.index(MISSING_LABEL))
+    levels = levels[levels > 0]  # unused categories are not rare, they are absent
+    total = int(levels.sum())
+    if total == 0 or levels.size < 2:
+        return False
+    threshold = max(RARE_LEVEL_ROWS, RARE_LEVEL_SHARE * total)
+    return bool(levels[levels < threshold].sum() >= RARE_LEVELS_TOTAL * total)
 
 
 def _child_seed(seed, i: int):
