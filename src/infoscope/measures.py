@@ -133,7 +133,12 @@ def _label_codes(present_values, name: str, stacklevel: int = 5) -> tuple[np.nda
     """
     import pandas as pd
 
-    if present_values.dtype != object or len(present_values) == 0:
+    homogeneous = ("string", "bytes", "integer", "floating", "boolean", "datetime", "date", "timedelta")
+    if (
+        present_values.dtype != object
+        or len(present_values) == 0
+        or pd.api.types.infer_dtype(present_values, skipna=False) in homogeneous  # one kind, hashable: no per-cell pass
+    ):
         codes, uniques = pd.factorize(present_values, use_na_sentinel=True)
         return codes.astype(np.int64, copy=False), len(uniques)
     from infoscope.encode.columns import _hashable, _plain, _stable_text
