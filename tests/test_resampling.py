@@ -39,7 +39,8 @@ def test_entropy_interval_matches_scipy_percentile_bootstrap(rng):
     counts = np.bincount(sample, minlength=8)
     ref = scipy.stats.bootstrap((sample,), _plugin_bits_of_samples, n_resamples=4000, method="percentile",
                                 confidence_level=0.9, vectorized=True, random_state=np.random.default_rng(1))
-    low, high = bootstrap_entropy_ci(counts, estimator="plugin", level=0.9, n_boot=4000, seed=2)
+    low, high = bootstrap_entropy_ci(counts, estimator="plugin", level=0.9, n_boot=4000, seed=2,
+                                     method="percentile")
     assert low == pytest.approx(ref.confidence_interval.low, abs=0.015)
     assert high == pytest.approx(ref.confidence_interval.high, abs=0.015)
 
@@ -67,7 +68,7 @@ def test_plugin_interval_is_centred_on_the_biased_estimate():
     counts = np.zeros(200, dtype=int)
     counts[:100] = 1                      # 100 distinct symbols seen once
     truth = math.log2(200)
-    low, high = bootstrap_entropy_ci(counts, estimator="plugin", n_boot=100, seed=0)
+    low, high = bootstrap_entropy_ci(counts, estimator="plugin", n_boot=100, seed=0, method="percentile")
     assert high < truth
     assert high < math.log2(100)
 
@@ -147,7 +148,8 @@ def test_mi_interval_matches_scipy_paired_bootstrap(rng):
     np.add.at(table, (x, y), 1)
     ref = scipy.stats.bootstrap((x, y), _plugin_mi_nats_of_samples, paired=True, vectorized=True, n_resamples=3000,
                                 method="percentile", random_state=np.random.default_rng(0))
-    low, high = bootstrap_mi_ci(table, estimator="plugin", base="nats", n_boot=3000, seed=1)
+    low, high = bootstrap_mi_ci(table, estimator="plugin", base="nats", n_boot=3000, seed=1,
+                                method="percentile")
     assert low == pytest.approx(ref.confidence_interval.low, abs=0.015)
     assert high == pytest.approx(ref.confidence_interval.high, abs=0.015)
 
@@ -319,3 +321,41 @@ def test_inputs_are_not_modified():
     np.testing.assert_array_equal(x, xc)
     np.testing.assert_array_equal(y, yc)
     np.testing.assert_array_equal(counts, [3, 1, 0])
+
+
+# --------------------------------------------------------------------------- centred intervals
+
+@pytest.mark.parametrize("estimator", ["plugin", "miller_madow", "chao_shen", "grassberger"])
+def test_centred_interval_always_contains_its_estimate(estimator):
+    # Undersampled long tail: the percentile interval of these estimates lies wholly on
+    # one side of the estimate (resampling loses rare symbols); the centred interval is
+    # the percentile interval shifted by the bootstrap bias estimate (Efron &
+    # Tibshirani 1993, ch. 10) and must contain the estimate by construction.
+    from infoscope.estimators.entropy import entropy_from_counts
+
+    counts = np.r_[np.full(20, 1), np.full(5, 40)]
+    estimate = entropy_from_counts(counts, estimator=estimator)
+    low, high = bootstrap_entropy_ci(counts, estimator=estimator, n_boot=300, seed=7)
+    assert low <= estimate <= high
+    p_low, p_high = bootstrap_entropy_ci(counts, estimator=estimator, n_boot=300, seed=7, method="percentile")
+    # same spread: a translation of the percentile interval
+    assert high - low == pytest.approx(p_high - p_low, rel=1e-9)
+
+
+def test_centred_mi_interval_contains_a_near_zero_corrected_estimate(rng):
+    # Independent X, Y with many levels: the Miller-Madow MI is near 0 and its
+    # percentile interval can sit wholly above it; the centred one contains it.
+    from infoscope.estimators.information import mutual_information_from_table
+
+    x = rng.integers(0, 30, size=2000)
+    y = rng.integers(0, 30, size=2000)
+    table = np.zeros((30, 30))
+    np.add.at(table, (x, y), 1)
+    estimate = mutual_information_from_table(table, estimator="miller_madow")
+    low, high = bootstrap_mi_ci(table, n_boot=200, seed=3)
+    assert low <= estimate <= high
+
+
+def test_unknown_interval_method_lists_the_valid_ones():
+    with pytest.raises(ValueError, match="method='bca'.*'centred', 'percentile'"):
+        bootstrap_entropy_ci([3, 4], method="bca")

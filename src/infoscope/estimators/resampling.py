@@ -7,12 +7,21 @@ count vector from Multinomial(N, n / N).  So each replicate is one multinomial d
 by the vectorised estimator kernels of :mod:`infoscope.estimators.entropy` -- the
 rows of the data are never re-read.
 
-The intervals are *percentile* intervals: the (1 - level)/2 and (1 + level)/2
-quantiles of the replicate estimates.  The percentile method reproduces the
-sampling spread of the estimator but not a correction of its bias: the interval of
-a biased estimator (plug-in most of all) is centred near the biased estimate, not
-near the true value (Efron & Tibshirani 1993, ch. 13).  Use a bias-corrected
-estimator (the default ``miller_madow``, or ``nsb``) when that matters.
+Two kinds of interval (``method=``):
+
+- ``"percentile"``: the (1 - level)/2 and (1 + level)/2 quantiles of the replicate
+  estimates (Efron & Tibshirani 1993, ch. 13).  It reproduces the sampling spread of
+  the estimator but is centred on the replicates, and the replicates of an entropy
+  or MI estimate are biased once more by the resampling itself (a resample of N rows
+  sees fewer distinct symbols than the sample did).  For a bias-corrected estimate
+  near 0 or near log K the whole percentile interval can lie on one side of the
+  estimate it is meant to qualify.
+- ``"centred"`` (the default): the same interval translated so that the median of
+  the replicates sits on the estimate, i.e. the percentile interval corrected by the
+  bootstrap estimate of bias (Efron & Tibshirani 1993, ch. 10, bias correction
+  ``theta_hat - (median* - theta_hat)`` applied to both ends).  It always contains
+  the estimate, keeps the spread of the percentile interval, and is what the
+  profile shows.
 """
 from __future__ import annotations
 
@@ -26,6 +35,7 @@ from infoscope.estimators.entropy import ENTROPY_ESTIMATORS, entropy_nats, resol
 
 __all__ = [
     "ConfidenceInterval",
+    "INTERVAL_METHODS",
     "PermutationTestResult",
     "bootstrap_entropy_ci",
     "bootstrap_mi_ci",
@@ -102,8 +112,15 @@ def _check_codes(codes, parameter: str) -> np.ndarray:
     return arr
 
 
-def _percentile_interval(values: np.ndarray, level: float) -> ConfidenceInterval:
-    lo, hi = np.quantile(values, [(1.0 - level) / 2.0, (1.0 + level) / 2.0])
+INTERVAL_METHODS = ("centred", "percentile")
+
+
+def _interval(values: np.ndarray, level: float, method: str, estimate: float) -> ConfidenceInterval:
+    lo, med, hi = np.quantile(values, [(1.0 - level) / 2.0, 0.5, (1.0 + level) / 2.0])
+    if method == "centred":
+        # shift by the bootstrap bias (median of the replicates minus the estimate)
+        shift = med - estimate
+        lo, hi = lo - shift, hi - shift
     return ConfidenceInterval(float(lo), float(hi))
 
 
@@ -138,9 +155,10 @@ def _resampling_inputs(counts, parameter, ndim, estimator, alpha, base, level, n
 # --------------------------------------------------------------------------- public
 
 def bootstrap_entropy_ci(
-    counts, *, estimator="miller_madow", base=2, alpha=None, level=0.95, n_boot=200, seed=None
+    counts, *, estimator="miller_madow", base=2, alpha=None, level=0.95, n_boot=200, seed=None,
+    method="centred",
 ) -> ConfidenceInterval:
-    r"""Percentile bootstrap confidence interval of an entropy estimate from counts.
+    r"""Bootstrap confidence interval of an entropy estimate from counts.
 
     Each replicate draws a count vector :math:`n^* \sim \mathrm{Multinomial}(N, n/N)`
     (equivalent to resampling the N rows with replacement) and applies the same
@@ -168,6 +186,10 @@ def bootstrap_entropy_ci(
         (a few milliseconds each); the other estimators are vectorised.
     seed : None, int or numpy.random.Generator, optional
         Source of randomness; an integer makes the interval reproducible.
+    method : {"centred", "percentile"}, default="centred"
+        ``"percentile"`` is the textbook percentile interval shown above;
+        ``"centred"`` translates it so the replicates' median sits on the estimate
+        (see the module notes), so the interval always contains the estimate.
 
     Returns
     -------
@@ -199,9 +221,11 @@ def bootstrap_entropy_ci(
     n, total, estimator, a, divisor, level, n_boot, rng = _resampling_inputs(
         counts, "counts", 1, estimator, alpha, base, level, n_boot, seed
     )
+    method = check_choice(method, INTERVAL_METHODS, "method")
     p = n / total
     values = np.concatenate([entropy_nats(block, estimator, a) for block in _multinomial_blocks(rng, total, p, n_boot)])
-    return _percentile_interval(values / divisor, level)
+    estimate = float(entropy_nats(n[None, :], estimator, a)[0]) / divisor
+    return _interval(values / divisor, level, method, estimate)
 
 
 def _mi_of_tables_nats(flat: np.ndarray, shape: tuple[int, int], estimator: str, a) -> np.ndarray:
@@ -220,9 +244,10 @@ def _mi_of_tables_nats(flat: np.ndarray, shape: tuple[int, int], estimator: str,
 
 
 def bootstrap_mi_ci(
-    table, *, estimator="miller_madow", base=2, alpha=None, level=0.95, n_boot=200, seed=None
+    table, *, estimator="miller_madow", base=2, alpha=None, level=0.95, n_boot=200, seed=None,
+    method="centred",
 ) -> ConfidenceInterval:
-    r"""Percentile bootstrap confidence interval of mutual information from a table.
+    r"""Bootstrap confidence interval of mutual information from a table.
 
     Each replicate draws the r x c cells jointly from
     :math:`\mathrm{Multinomial}(N, T/N)` and scores
@@ -251,6 +276,8 @@ def bootstrap_mi_ci(
         Number of bootstrap replicates.
     seed : None, int or numpy.random.Generator, optional
         Source of randomness.
+    method : {"centred", "percentile"}, default="centred"
+        As in :func:`bootstrap_entropy_ci`.
 
     Returns
     -------
@@ -282,12 +309,14 @@ def bootstrap_mi_ci(
     t, total, estimator, a, divisor, level, n_boot, rng = _resampling_inputs(
         table, "table", 2, estimator, alpha, base, level, n_boot, seed
     )
+    method = check_choice(method, INTERVAL_METHODS, "method")
     shape = t.shape
     p = (t / total).ravel()
     values = np.concatenate(
         [_mi_of_tables_nats(block, shape, estimator, a) for block in _multinomial_blocks(rng, total, p, n_boot)]
     )
-    return _percentile_interval(values / divisor, level)
+    estimate = float(_mi_of_tables_nats(t.ravel()[None, :], shape, estimator, a)[0]) / divisor
+    return _interval(values / divisor, level, method, estimate)
 
 
 def _plugin_entropy_of_rows_nats(counts: np.ndarray, total: float) -> np.ndarray:
