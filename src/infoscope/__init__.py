@@ -16,6 +16,12 @@ _PUBLIC = {
     # estimators on counts / probability vectors (numpy + scipy only)
     "entropy_from_counts": "infoscope.estimators.entropy",
     "ENTROPY_ESTIMATORS": "infoscope.estimators.entropy",
+    "DIRICHLET_PRIORS": "infoscope.estimators.entropy",
+    "entropy_of_count_rows": "infoscope.estimators.entropy",
+    "nsb_posterior": "infoscope.estimators.nsb",
+    "NSBPosterior": "infoscope.estimators.nsb",
+    "ConfidenceInterval": "infoscope.estimators.resampling",
+    "PermutationTestResult": "infoscope.estimators.resampling",
     "mutual_information_from_table": "infoscope.estimators.information",
     "conditional_mutual_information_from_table": "infoscope.estimators.information",
     "g_test_from_table": "infoscope.estimators.information",
