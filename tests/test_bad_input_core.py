@@ -587,3 +587,50 @@ def test_sample_functions_never_modify_inputs(rng):
         call_unchanged(I.kl_divergence, np.array([2, 0]), np.array([3, 1]), pseudocount=0.5)
         call_unchanged(I.mutual_information_from_table, np.array([[1, 2], [3, 4]]))
     assert not ro.flags.writeable  # still read-only
+
+
+# --------------------------------------------------------------------------- other containers and dtypes
+
+
+@pytest.mark.parametrize("values, match", [
+    ({3, 1, 2, 4}, "got a set .*no row order"),
+    (frozenset({1, 2}), "got a frozenset"),
+    ({"a": 1, "b": 2}, r"got a dict; say whether its keys or its values are the rows"),
+], ids=["set", "frozenset", "dict"])
+def test_unordered_containers_are_refused(values, match):
+    raises_clearly(TypeError, f"values must be a sequence in row order, {match}", I.entropy, values)
+    raises_clearly(TypeError, f"x must be a sequence in row order, {match}", I.mutual_information, values, [1, 2, 3, 4])
+    raises_clearly(TypeError, f"column 'c': expected a sequence in row order, {match}", I.encode_column, values, name="c")
+
+
+def test_complex_values_are_labels_and_cannot_be_binned():
+    z = np.array([1 + 2j, 3j, 1 + 2j, 0j])
+    # labels: counts 2, 1, 1 -> scipy.stats.entropy([2, 1, 1], base=2) = 1.5 bits, no ComplexWarning
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", np.exceptions.ComplexWarning)
+        assert call_unchanged(I.entropy, z, estimator="plugin") == scipy.stats.entropy([2, 1, 1], base=2)
+    raises_clearly(TypeError, "values holds complex numbers", I.bin_edges, z)
+
+
+def test_nested_arrow_cells_are_read_by_their_contents():
+    pa = pytest.importorskip("pyarrow")
+    lists = pd.Series(pd.array([[1], [2], [1], None, [1]], dtype=pd.ArrowDtype(pa.list_(pa.int64()))))
+    # labels [1] x3, [2] x1 (the missing row dropped): scipy.stats.entropy([3, 1], base=2)
+    with pytest.warns(DataQualityWarning, match=r"values has 4 unhashable cell\(s\) \(ndarray\)"):
+        got = call_unchanged(I.entropy, lists, estimator="plugin")
+    assert got == pytest.approx(scipy.stats.entropy([3, 1], base=2), rel=1e-12)
+
+
+@pytest.mark.parametrize("func", [
+    lambda: I.entropy([1.0] * 4, estimator="plugin"),
+    lambda: I.joint_entropy_from_counts([[4]], estimator="plugin"),
+    lambda: I.mutual_information_from_table([[4]], estimator="plugin"),
+    lambda: I.mutual_information(["a"] * 30, ["b"] * 30, estimator="plugin"),
+    lambda: I.cross_entropy([1, 0], [1, 0]),
+    lambda: I.kl_divergence([1, 0], [1, 0]),
+    lambda: I.variation_of_information_from_table([[4, 0], [0, 4]]),
+])
+def test_zero_results_are_positive_zero(func):
+    # max(-0.0, 0.0) is -0.0 in Python, which a table or a widget shows as "-0"
+    value = func()
+    assert value == 0.0 and math.copysign(1.0, value) == 1.0

@@ -31,6 +31,7 @@ from __future__ import annotations
 import math
 import numbers
 import warnings
+from collections.abc import Mapping
 
 import numpy as np
 
@@ -103,6 +104,16 @@ def _to_series(values, name: str):
         return pd.Series(values)
     if isinstance(values, (str, bytes)) or np.isscalar(values) or values is None:
         raise TypeError(f"{name} must be a 1-D sequence of values, got a single {type(values).__name__}")
+    if isinstance(values, (set, frozenset)):
+        raise TypeError(
+            f"{name} must be a sequence in row order, got a {type(values).__name__} (it has no row "
+            "order to pair with other columns); pass a list, an array or a Series"
+        )
+    if isinstance(values, Mapping):
+        raise TypeError(
+            f"{name} must be a sequence in row order, got a {type(values).__name__}; say whether its "
+            "keys or its values are the rows: pass list(d.values()), list(d) or a Series"
+        )
     if not isinstance(values, np.ndarray) and hasattr(values, "to_numpy"):  # Polars and friends
         values = values.to_numpy()
     if not isinstance(values, np.ndarray):
@@ -139,8 +150,12 @@ def _label_codes(present_values, name: str, stacklevel: int = 5) -> tuple[np.nda
         or len(present_values) == 0
         or pd.api.types.infer_dtype(present_values, skipna=False) in homogeneous  # one kind, hashable: no per-cell pass
     ):
-        codes, uniques = pd.factorize(present_values, use_na_sentinel=True)
-        return codes.astype(np.int64, copy=False), len(uniques)
+        try:
+            codes, uniques = pd.factorize(present_values, use_na_sentinel=True)
+            return codes.astype(np.int64, copy=False), len(uniques)
+        except (TypeError, NotImplementedError):
+            # nested Arrow types (lists, structs) have no hash kernel: read their cells
+            present_values = pd.Series(present_values.to_numpy(dtype=object), dtype=object)
     from infoscope.encode.columns import _hashable, _plain, _stable_text
 
     cells = np.frompyfunc(_plain, 1, 1)(present_values.to_numpy(dtype=object))
@@ -182,6 +197,7 @@ def _is_numeric(series) -> bool:
     return (
         pd.api.types.is_numeric_dtype(dtype)
         and not pd.api.types.is_bool_dtype(dtype)
+        and not pd.api.types.is_complex_dtype(dtype)  # complex numbers are labels: no order to bin by
         and not isinstance(dtype, pd.CategoricalDtype)
     )
 

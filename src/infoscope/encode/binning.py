@@ -70,6 +70,8 @@ def _numeric_array(values, parameter: str = "values") -> np.ndarray:
         raise ValueError(f"{parameter} must be one-dimensional, got shape {arr.shape}")
     if arr.dtype == bool:
         arr = arr.astype(np.int8)
+    if arr.dtype.kind == "c":
+        raise TypeError(f"{parameter} holds complex numbers; bin edges need real numbers (complex values have no order)")
     if arr.dtype.kind in "mM":
         raise TypeError(
             f"{parameter} holds {arr.dtype} values; bin_edges works on numbers. "

@@ -14,7 +14,7 @@ from __future__ import annotations
 import dataclasses
 import re
 import warnings
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 
 import numpy as np
 import pandas as pd
@@ -255,6 +255,16 @@ def _as_series(values, name: str) -> pd.Series:
         return pd.Series(converted, copy=False)
     if isinstance(values, (str, bytes)) or np.isscalar(values) or values is None:
         raise TypeError(f"column {name!r}: expected a sequence of values, got a scalar {type(values).__name__}")
+    if isinstance(values, (set, frozenset)):
+        raise TypeError(
+            f"column {name!r}: expected a sequence in row order, got a {type(values).__name__} "
+            "(it has no row order); pass a list, an array or a Series"
+        )
+    if isinstance(values, Mapping):
+        raise TypeError(
+            f"column {name!r}: expected a sequence in row order, got a {type(values).__name__}; say "
+            "whether its keys or its values are the rows: pass list(d.values()), list(d) or a Series"
+        )
     if not isinstance(values, np.ndarray):
         # pandas infers a list's dtype cell by cell (numpy would turn [1, "1"] into
         # two equal strings, and nested lists into a 2-D array)

@@ -181,7 +181,7 @@ def kl_divergence(p, q, *, base=2, pseudocount=0.0, counts=None) -> float:
     """
     pp, qq = _pair(p, q, ("p", "q"), counts, pseudocount)
     kl = float(np.sum(special.rel_entr(pp, qq)))
-    return max(kl, 0.0) / log_base(base)  # >= 0 by Gibbs' inequality; a negative is rounding
+    return (kl if kl > 0.0 else 0.0) / log_base(base)  # >= 0 by Gibbs' inequality; a negative is rounding
 
 
 def cross_entropy(p, q, *, base=2, pseudocount=0.0, counts=None) -> float:
@@ -217,7 +217,7 @@ def cross_entropy(p, q, *, base=2, pseudocount=0.0, counts=None) -> float:
     """
     pp, qq = _pair(p, q, ("p", "q"), counts, pseudocount)
     with np.errstate(divide="ignore"):
-        h = float(-np.sum(special.xlogy(pp, qq)))
+        h = float(-np.sum(special.xlogy(pp, qq))) + 0.0  # + 0.0 turns -0.0 into 0.0
     return h / log_base(base)
 
 
@@ -256,7 +256,7 @@ def js_divergence(p, q, *, base=2, pseudocount=0.0, counts=None) -> float:
     pp, qq = _pair(p, q, ("p", "q"), counts, pseudocount)
     m = 0.5 * (pp + qq)
     js = 0.5 * float(np.sum(special.rel_entr(pp, m))) + 0.5 * float(np.sum(special.rel_entr(qq, m)))
-    js = min(max(js, 0.0), math.log(2.0))  # bounded by ln 2 exactly; outside is rounding
+    js = min(js if js > 0.0 else 0.0, math.log(2.0))  # bounded by ln 2 exactly; outside is rounding
     return js / log_base(base)
 
 
@@ -330,4 +330,4 @@ def psi(expected, actual, *, pseudocount=None, counts=None) -> float:
         )
     # PSI = KL(a||e) + KL(e||a): each is >= 0 and inf when the supports differ.
     value = float(np.sum(special.rel_entr(a, e)) + np.sum(special.rel_entr(e, a)))
-    return max(value, 0.0)
+    return value if value > 0.0 else 0.0  # never -0.0

@@ -58,6 +58,11 @@ _EMI_SD_WINDOW = 20.0
 
 
 # --------------------------------------------------------------------------- helpers
+def _nonnegative(value: float) -> float:
+    """``value`` clipped at 0, and never ``-0.0`` (``max(-0.0, 0.0)`` is ``-0.0``, shown as "-0")."""
+    return value if value > 0.0 else 0.0
+
+
 def _plugin_entropy_nats(counts: np.ndarray) -> float:
     """Plug-in entropy in nats of a non-negative count array (any shape)."""
     flat = counts.ravel()
@@ -65,7 +70,7 @@ def _plugin_entropy_nats(counts: np.ndarray) -> float:
     if total <= 0:
         return 0.0
     p = flat[flat > 0] / total
-    return float(max(-np.sum(p * np.log(p)), 0.0))  # a tiny negative is rounding
+    return _nonnegative(float(-np.sum(p * np.log(p))))  # a tiny negative is rounding
 
 
 def _entropy_nats(counts: np.ndarray, estimator: str, alpha) -> float:
@@ -125,7 +130,7 @@ def _plugin_mi_nats(t: np.ndarray) -> float:
     expected = (rows * cols)[nz] / n
     mi = float(np.sum(t[nz] * np.log(t[nz] / expected)) / n)
     # Exactly >= 0 in real arithmetic (a KL divergence); a tiny negative is rounding.
-    return max(mi, 0.0)
+    return _nonnegative(mi)
 
 
 def _mi_nats(t: np.ndarray, estimator: str, alpha) -> float:
@@ -237,7 +242,7 @@ def conditional_entropy_from_table(
     other = tuple(a for a in range(arr.ndim) if a not in axes)
     h = _entropy_nats(arr, estimator, alpha) - _entropy_nats(arr.sum(axis=other), estimator, alpha)
     if estimator == "plugin":
-        h = max(h, 0.0)  # H(all) >= H(given) exactly; a negative is rounding
+        h = _nonnegative(h)  # H(all) >= H(given) exactly; a negative is rounding
     return h / log_base(base)
 
 
@@ -327,7 +332,7 @@ def conditional_mutual_information_from_table(
     h = lambda a: _entropy_nats(a, estimator, alpha)  # noqa: E731
     cmi = h(t.sum(axis=1)) + h(t.sum(axis=0)) - h(t) - h(t.sum(axis=(0, 1)))
     if estimator == "plugin":
-        cmi = max(cmi, 0.0)  # a weighted sum of plug-in MIs; a negative is rounding
+        cmi = _nonnegative(cmi)  # a weighted sum of plug-in MIs; a negative is rounding
     return cmi / log_base(base)
 
 
@@ -613,7 +618,7 @@ def variation_of_information_from_table(table, *, estimator: str = "plugin", bas
     h = lambda a: _entropy_nats(a, estimator, alpha)  # noqa: E731
     vi = 2.0 * h(t) - h(t.sum(axis=1)) - h(t.sum(axis=0))
     if estimator == "plugin":
-        vi = max(vi, 0.0)  # sum of two conditional entropies; a negative is rounding
+        vi = _nonnegative(vi)  # sum of two conditional entropies; a negative is rounding
     return vi / log_base(base)
 
 
