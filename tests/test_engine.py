@@ -329,11 +329,11 @@ def test_progress_bar_runs(rng, capsys):
 def test_numba_thread_count_is_restored(rng):
     import numba
 
-    before = numba.get_num_threads()
+    before = numba.get_num_threads(), numba.get_parallel_chunksize()
     eng = PairEngine([make_col("a", 3, 100, rng), make_col("b", 3, 100, rng)], threads=1, progress=False,
                      backend="numba")
     eng.tables()
-    assert numba.get_num_threads() == before
+    assert (numba.get_num_threads(), numba.get_parallel_chunksize()) == before
 
 
 # --------------------------------------------------------------------- sampling

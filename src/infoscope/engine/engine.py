@@ -21,10 +21,12 @@ from infoscope.engine.sampling import sample_rows
 __all__ = ["PairEngine", "DEFAULT_CACHE_BYTES", "DEFAULT_CHUNK_ROWS"]
 
 DEFAULT_CACHE_BYTES = 256 * 1024 * 1024
-# Rows per chunk: the chunk of every involved column (50 columns x 65,536 rows of
-# uint8 = 3.2 MiB) stays in the shared L3 cache while every pair is counted over it,
-# and the progress bar / Ctrl-C get a chance between chunks.
-DEFAULT_CHUNK_ROWS = 1 << 16
+# Rows per chunk. Each chunk ends with all threads meeting (and lets the progress bar
+# and Ctrl-C in); per pair the kernel streams two code columns of the chunk, so the
+# chunk need not fit in cache. 262,144 rows x 50 uint8 columns = 12.5 MiB of copies;
+# on the benchmark frame 65,536 to 262,144 rows measured alike (within the noise of
+# the shared machine), the larger meeting less often.
+DEFAULT_CHUNK_ROWS = 1 << 18
 # Above this many counter increments (rows x pairs, about a second of counting on
 # two cores) progress="auto" shows a bar.
 _AUTO_PROGRESS_INCREMENTS = 1_000_000_000
@@ -40,13 +42,22 @@ def _positive_int(value, parameter: str, *, allow_none: bool = True):
 
 @contextlib.contextmanager
 def _numba_threads(threads: int):
+    """numba's thread count for the duration, with pairs handed out one at a time.
+
+    Handing out pairs dynamically (chunk size 1) instead of in one static block per
+    thread keeps a thread that the operating system has paused (a shared machine)
+    from holding up the whole chunk.
+    """
     import numba
 
     previous = numba.get_num_threads()
+    previous_chunk = numba.get_parallel_chunksize()
     numba.set_num_threads(max(1, min(threads, numba.config.NUMBA_NUM_THREADS)))
+    numba.set_parallel_chunksize(1)
     try:
         yield
     finally:
+        numba.set_parallel_chunksize(previous_chunk)
         numba.set_num_threads(previous)
 
 
@@ -73,7 +84,7 @@ class PairEngine:
         Threads of the numba kernel; None uses every core. The numpy back-end counts
         in the calling thread.
     chunk_rows : int or None, default=None
-        Rows per chunk (None: 65,536). Any size gives the same tables.
+        Rows per chunk (None: 262,144). Any size gives the same tables.
     cache_bytes : int, default=256 MiB
         Memory budget of the table cache; the least recently used tables are dropped
         beyond it (and recounted when asked for again).
