@@ -289,6 +289,12 @@ class ProfileSession:
         self._bins_override: dict[str, object] = {}
         self._encoded: dict[str, object] = {}
         self._engine = None
+        # pair key -> (column a, column b, estimator key, numbers): see _pair_stats
+        self._pair_cache: dict = {}
+        self._measure_cache: dict = {}
+        # measure -> (memo key, the last full pairs() table): matrix() reuses it
+        self._pairs_memo: dict = {}
+        self._pairs_estimated: list[tuple[str, str]] = []
         self._check_target(self._settings["target"], "target")
         self._encode(self._names)
 
@@ -307,6 +313,16 @@ class ProfileSession:
     def n_rows(self) -> int:
         """Number of rows of the frame (before any sample)."""
         return self._n_rows
+
+    @property
+    def last_estimated(self) -> tuple:
+        """The pairs whose numbers the last :meth:`pairs` / :meth:`matrix` call estimated.
+
+        The others came from the session's pair cache (their two encoded columns
+        and the estimator settings were unchanged); a call answered from the last
+        table of the same settings estimates none.
+        """
+        return tuple(self._pairs_estimated)
 
     @property
     def column_bins(self) -> dict:
@@ -691,44 +707,125 @@ class ProfileSession:
         >>> s.pairs("nmi")[["a", "b", "value"]].round(3).values.tolist()
         [['x', 'y', 1.0], ['x', 'z', 0.0], ['y', 'z', 0.0]]
         """
+        from infoscope.estimators.information import benjamini_hochberg
+
+        s = self._settings
+        measure = check_choice(measure if measure is not None else s["measure"], MEASURES, "measure")
+        memo_key = self._pairs_memo_key(measure) if columns is None else None
+        memo = self._pairs_memo.get(measure)
+        if memo_key is not None and memo is not None and memo[0] == memo_key:
+            self._pairs_estimated = []
+            return memo[1].copy()
+        pair_list = self._pair_list(columns)
+        stats = self._pair_stats(pair_list)
+        m = len(pair_list)
+        divisor = log_base(s["base"])
+        n = stats[:, 0].astype(np.int64)
+        mi = stats[:, 1] / divisor
+        nmi = stats[:, 2]
+        p_value = stats[:, 5]
+        if measure == "mi":
+            value = mi
+        elif measure == "nmi":
+            value = nmi
+        else:
+            value = self._pair_measure_values(pair_list, measure)
+            if measure == "vi":
+                value = value / divisor
+        q = benjamini_hochberg(p_value) if m else np.zeros(0)
+        enc = self._encoded
+        out = pd.DataFrame({
+            "a": [a for a, _ in pair_list],
+            "b": [b for _, b in pair_list],
+            "k_a": np.array([enc[a].k for a, _ in pair_list], dtype=np.int64),
+            "k_b": np.array([enc[b].k for _, b in pair_list], dtype=np.int64),
+            "n": n, "mi": mi, "nmi": nmi, "value": np.asarray(value, dtype=float),
+            "g": stats[:, 3], "dof": stats[:, 4].astype(np.int64), "p_value": p_value,
+            "q_value": np.asarray(q, dtype=float), "sparse": stats[:, 6].astype(bool),
+        }, columns=list(PAIRS_COLUMNS))
+        if not m:
+            out = result_frame([], PAIRS_COLUMNS)
+        out.attrs.update(self._attrs(measure=measure, normalization=s["normalization"]))
+        if memo_key is not None:
+            self._pairs_memo[measure] = (memo_key, out.copy())
+        return out
+
+    # ---------------------------------------------------------- the pair cache
+    # The live views call pairs() and matrix() after every control change.  The
+    # numbers of one pair depend only on the two encoded columns (their codes fix
+    # the joint table) and on the estimator settings, so they are cached per pair
+    # with the two EncodedColumn objects (compared by identity: a re-encoded
+    # column is a new object) and the settings they were computed with; after
+    # update() / set_column_bins() only the pairs touching a re-encoded column miss.
+    # Values are kept in nats, so a change of unit re-estimates nothing.
+    def _estimator_key(self) -> tuple:
+        s = self._settings
+        return (s["estimator"], s["alpha"] if s["estimator"] == "dirichlet" else None,
+                s["normalization"])
+
+    def _pairs_memo_key(self, measure: str) -> tuple:
+        s = self._settings
+        return (measure, self._estimator_key(), s["base"], self.sampled,
+                tuple(self._encoded[k] for k in self._names))
+
+    def _pair_stats(self, pair_list: list[tuple[str, str]]) -> np.ndarray:
+        """``(n, mi [nats], nmi, g, dof, p_value, sparse)`` per pair, from the cache or estimated."""
+        est = self._estimator_key()
+        enc = self._encoded
+        cache = self._pair_cache
+        out = np.empty((len(pair_list), 7))
+        todo: list[int] = []
+        for i, (a, b) in enumerate(pair_list):
+            hit = cache.get((a, b))
+            if hit is not None and hit[0] is enc[a] and hit[1] is enc[b] and hit[2] == est:
+                out[i] = hit[3]
+            else:
+                todo.append(i)
+        self._pairs_estimated = [pair_list[i] for i in todo]
+        if todo:
+            wanted = [pair_list[i] for i in todo]
+            tables = self._engine.tables(wanted)
+            tabs = [np.asarray(tables[p], dtype=np.int64) for p in wanted]
+            tm = self._table_measures(tabs, nats=True)
+            for j, i in enumerate(todo):
+                t = tabs[j]
+                n = int(t.sum())
+                row = np.array([n, tm["mi"][j], tm["nmi"][j], tm["g"][j], tm["dof"][j],
+                                tm["p_value"][j], n / max(t.size, 1) < SPARSE_CELL_COUNT], dtype=float)
+                out[i] = row
+                a, b = pair_list[i]
+                cache[(a, b)] = (enc[a], enc[b], est, row)
+        return out
+
+    def _pair_measure_values(self, pair_list: list[tuple[str, str]], measure: str) -> np.ndarray:
+        """AMI (unit-free) or VI (nats) per pair, cached like :meth:`_pair_stats`."""
         from infoscope.estimators.information import (
             adjusted_mutual_information_from_table,
-            benjamini_hochberg,
             variation_of_information_from_table,
         )
 
         s = self._settings
-        measure = check_choice(measure if measure is not None else s["measure"], MEASURES, "measure")
-        pair_list = self._pair_list(columns)
-        tables = self._engine.tables(pair_list) if pair_list else {}
-        tabs = [np.asarray(tables[p], dtype=np.int64) for p in pair_list]
-        tm = self._table_measures(tabs)
-        mi, nmi = tm["mi"], tm["nmi"]
-        q = benjamini_hochberg(tm["p_value"]) if tabs else np.zeros(0)
-        rows = []
+        key = (measure, self._estimator_key())
+        enc = self._encoded
+        cache = self._measure_cache
+        out = np.empty(len(pair_list))
         for i, (a, b) in enumerate(pair_list):
-            t = tabs[i]
-            n = int(t.sum())
-            if measure == "mi":
-                value = mi[i]
-            elif measure == "nmi":
-                value = nmi[i]
-            elif n == 0:
+            hit = cache.get((measure, a, b))
+            if hit is not None and hit[0] is enc[a] and hit[1] is enc[b] and hit[2] == key:
+                out[i] = hit[3]
+                continue
+            t = np.asarray(self._engine.table(a, b), dtype=np.int64)
+            if t.sum() == 0:
                 value = math.nan
             elif measure == "adjusted_mi":
                 value = adjusted_mutual_information_from_table(t, normalization=s["normalization"])
             else:
-                value = variation_of_information_from_table(t, **self._kw())
-            rows.append({
-                "a": a, "b": b, "k_a": int(self._encoded[a].k), "k_b": int(self._encoded[b].k),
-                "n": n, "mi": mi[i], "nmi": nmi[i], "value": float(value),
-                "g": float(tm["g"][i]), "dof": int(tm["dof"][i]), "p_value": float(tm["p_value"][i]),
-                "q_value": float(q[i]), "sparse": bool(n / max(t.size, 1) < SPARSE_CELL_COUNT),
-            })
-        return result_frame(rows, PAIRS_COLUMNS,
-                            **self._attrs(measure=measure, normalization=s["normalization"]))
+                value = variation_of_information_from_table(t, **{**self._kw(), "base": "nats"})
+            out[i] = float(value)
+            cache[(measure, a, b)] = (enc[a], enc[b], key, float(value))
+        return out
 
-    def _table_measures(self, tabs: list[np.ndarray]) -> dict[str, np.ndarray]:
+    def _table_measures(self, tabs: list[np.ndarray], *, nats: bool = False) -> dict[str, np.ndarray]:
         """MI, NMI and the G-test of many tables at once (vectorised across tables).
 
         ``mi`` / ``nmi`` follow the definitions and degenerate-case conventions of
@@ -752,7 +849,7 @@ class ProfileSession:
         s = self._settings
         kw = self._kw()
         kw["base"] = "nats"
-        divisor = log_base(s["base"])
+        divisor = 1.0 if nats else log_base(s["base"])
         m = len(tabs)
         out = {"mi": np.full(m, np.nan), "nmi": np.full(m, np.nan), "g": np.zeros(m),
                "dof": np.zeros(m, dtype=np.int64), "p_value": np.full(m, np.nan)}
@@ -829,11 +926,11 @@ class ProfileSession:
         table = self.pairs(measure)
         measure = table.attrs["measure"]
         keys = self._names
-        square = pd.DataFrame(np.nan, index=pd.Index(keys), columns=pd.Index(keys), dtype=float)
+        position = {k: i for i, k in enumerate(keys)}
         values = table["value"].to_numpy(dtype=float)
-        ia = [keys.index(a) for a in table["a"]]
-        ib = [keys.index(b) for b in table["b"]]
-        arr = square.to_numpy(copy=True)
+        ia = [position[a] for a in table["a"]]
+        ib = [position[b] for b in table["b"]]
+        arr = np.full((len(keys), len(keys)), np.nan)
         arr[ia, ib] = values
         arr[ib, ia] = values
         if measure == "mi":
