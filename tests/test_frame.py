@@ -166,8 +166,38 @@ def test_batch_without_drift_is_stable(log):
 
 def test_drift_of_a_frame_from_itself_is_zero(log):
     d = ProfileSession(log).drift(log)
-    assert (d["psi"].abs() < 1e-12).all() and (d["flag"] == "stable").all()
+    assert (d["psi"].abs() < 1e-12).all()
+    # the identifier keeps its own flag: its PSI never reads as a distribution
+    flags = d.set_index("column")["flag"]
+    assert flags.to_dict() == {c: ("id_like" if c == "parcel_ref" else "stable") for c in log.columns}
     assert (d["p_value"] > 0.999).all()
+
+
+def test_drift_flags_of_identifier_and_time_axis_keep_the_numbers(log):
+    # the demo batch (make_deliveries_batch): new parcel references and the four
+    # weeks after the reference period.  PSI itself is unchanged: it equals the
+    # closed form sum (a - e) ln(a / e) of the pseudocounted shares (Siddiqi 2006,
+    # common practice), recomputed here from pandas value_counts for the IDs.
+    from infoscope.frame.results import DRIFT_FLAGS, DRIFT_THRESHOLDS
+
+    batch = make_deliveries_batch(3_000, seed=1, drift=True)
+    ref = log.iloc[:6_000]
+    d = ProfileSession(batch).drift(ref).set_index("column")
+    assert d.loc["parcel_ref", "flag"] == "id_like"
+    assert d.loc["dispatched_at", "flag"] == "time_axis"
+    assert d.loc["parcel_ref", "psi"] > DRIFT_THRESHOLDS[1] and d.loc["dispatched_at", "psi"] > 1.0
+    # the identifiers share no value, so everything of the batch is "(unseen)" and the
+    # reference's 6,000 IDs fold to 63 kept levels plus "(other)" (max_categories=64)
+    ref_counts = ref["parcel_ref"].value_counts().to_numpy()
+    kept = np.r_[ref_counts[:63], ref_counts[63:].sum(), 0] + 0.5
+    cur = np.r_[np.zeros(64), len(batch)] + 0.5
+    e, a = kept / kept.sum(), cur / cur.sum()
+    assert d.loc["parcel_ref", "psi"] == pytest.approx(float(np.sum((a - e) * np.log(a / e))), rel=1e-9)
+    # a datetime column inside the reference's period is read as usual
+    same_period = make_deliveries_batch(3_000, seed=2, drift=False)
+    assert ProfileSession(same_period).drift(ref).set_index("column").loc["dispatched_at", "flag"] == "stable"
+    # every flag has a legend text for the views
+    assert set(d["flag"]) <= set(DRIFT_FLAGS)
 
 
 # ------------------------------------------------------------------ incremental session

@@ -88,11 +88,14 @@ PLANTED = MappingProxyType({
         "weight_kg": "major",        # parcels got heavier (log-mean + 0.5)
         "weight_lb": "major",        # the same weight in pounds
         "booking_channel": "moderate",  # app share 45% -> 60%, counter 15% -> 5%
-        "dispatched_at": "major",    # the batch covers the four weeks after the reference
-        "parcel_ref": "major",       # identifiers never repeat across batches
+        # the batch covers the four weeks after the reference: a time axis, whose
+        # large PSI is flagged "time_axis" rather than "major"
+        "dispatched_at": "time_axis",
+        # identifiers never repeat across batches: flagged "id_like", not "major"
+        "parcel_ref": "id_like",
     }),
     # make_deliveries_batch(drift=False): only the identifiers differ
-    "no_drift": MappingProxyType({"parcel_ref": "major"}),
+    "no_drift": MappingProxyType({"parcel_ref": "id_like"}),
 })
 """What :func:`make_deliveries` and :func:`make_deliveries_batch` plant, by column."""
 

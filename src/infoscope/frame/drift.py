@@ -15,7 +15,13 @@ Method (per common column):
    pseudocount (default 0.5 per cell, Jeffreys) so that an empty cell gives a
    finite value, JS divergence (finite without smoothing), and the p-value of a
    G-test of homogeneity on the 2 x K table of raw counts.  The flag reads PSI
-   with the common-practice thresholds 0.10 / 0.25.
+   with the common-practice thresholds 0.10 / 0.25 ("stable" / "moderate" /
+   "major"), except for two kinds of column that drift by construction, whose
+   numbers are kept but whose flag says why: ``"id_like"`` (an identifier: every
+   new batch brings new values) and ``"time_axis"`` (a datetime column of which
+   at least half of this frame's values lie outside the reference's range: a
+   later or earlier period).  :data:`infoscope.frame.results.DRIFT_FLAGS` holds
+   the legend text of every flag for the views.
 
 Missing values follow the profile's policy: under ``missing="drop"`` they are left
 out of both sides; under ``"category"`` they are a symbol like any other.
@@ -31,8 +37,12 @@ import pandas as pd
 from infoscope._warnings import DataQualityWarning
 from infoscope.frame.results import drift_flag
 
-__all__ = ["UNSEEN_LABEL", "align_to_reference", "drift_table"]
+__all__ = ["TIME_AXIS_SHARE", "UNSEEN_LABEL", "align_to_reference", "drift_table"]
 
+#: A datetime column is a time axis (drift flag ``"time_axis"``) when at least this
+#: share of this frame's values lie outside the reference's range: the batch
+#: covers another period, so its bins are all new by construction.
+TIME_AXIS_SHARE = 0.5
 #: Label of the symbol that collects levels the reference never had.
 UNSEEN_LABEL = "(unseen)"
 # categorical_threshold that keeps every distinct value of a column as a level
@@ -206,6 +216,31 @@ def drift_table(current: dict, reference: dict, *, encoding: dict, pseudocount: 
                                   counts=True)
         row["js"] = js_divergence(cur_counts, ref_counts, base=base, counts=True)
         row["p_value"] = float(g_test_from_table(np.vstack([ref_counts, cur_counts])).p_value)
-        row["flag"] = drift_flag(value)
+        row["flag"] = _axis_flag(values, reference[key], key, encoding[key], kind) or drift_flag(value)
         rows.append(row)
     return rows
+
+
+def _axis_flag(current: pd.Series, reference: pd.Series, name: str, settings: tuple, kind: str) -> str:
+    """``"id_like"`` or ``"time_axis"`` when a column drifts by construction, else ``""``.
+
+    An identifier (the encoder's ``id_like`` flag on the reference) has new values
+    in every new batch; a datetime column of which at least half of this frame's
+    values lie outside the reference's range (:data:`TIME_AXIS_SHARE`) is a time
+    axis of another period.  Both show a large PSI that says nothing about a
+    change of distribution; the numbers are kept, the flag says why.
+    """
+    ref = _quiet_encode(reference, name, settings)
+    if "id_like" in ref.flags:
+        return "id_like"
+    if kind != "datetime":
+        return ""
+    try:
+        ref_time = pd.to_datetime(pd.Series(reference), utc=True, errors="coerce").dropna()
+        cur_time = pd.to_datetime(pd.Series(current), utc=True, errors="coerce").dropna()
+    except (TypeError, ValueError, OverflowError):
+        return ""
+    if ref_time.empty or cur_time.empty:
+        return ""
+    outside = (cur_time < ref_time.min()) | (cur_time > ref_time.max())
+    return "time_axis" if float(outside.mean()) >= TIME_AXIS_SHARE else ""

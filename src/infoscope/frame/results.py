@@ -13,6 +13,7 @@ import pandas as pd
 
 __all__ = [
     "DRIFT_COLUMNS",
+    "DRIFT_FLAGS",
     "DRIFT_THRESHOLDS",
     "ENTROPY_COLUMNS",
     "LEAKAGE_SHARE",
@@ -61,6 +62,17 @@ LEAKAGE_SHARE = 0.95
 #: PSI thresholds (common practice in credit scoring, e.g. Siddiqi 2006):
 #: below 0.10 stable, 0.10 to 0.25 moderate, 0.25 and above major.
 DRIFT_THRESHOLDS = (0.10, 0.25)
+
+
+#: The values of the drift table's ``flag`` column and their legend text (for the
+#: CLI, the widget and the exports).
+DRIFT_FLAGS = {
+    "stable": "PSI below 0.10: no material change",
+    "moderate": "PSI 0.10 to 0.25: a moderate change, worth a look",
+    "major": "PSI 0.25 or more: a major change of distribution",
+    "id_like": "identifier: new values in every batch by construction (PSI not a change of distribution)",
+    "time_axis": "time axis: the batch covers another period (PSI not a change of distribution)",
+}
 
 
 def drift_flag(psi_value: float) -> str:

@@ -1111,7 +1111,14 @@ class ProfileSession:
         Returns
         -------
         pandas.DataFrame
-            ``column, kind, k, n, n_reference, psi, kl, js, p_value, flag``.
+            ``column, kind, k, n, n_reference, psi, kl, js, p_value, flag``;
+            ``flag`` is ``"stable"`` (PSI < 0.10), ``"moderate"`` (0.10 to 0.25)
+            or ``"major"`` (>= 0.25), except ``"id_like"`` for an identifier (new
+            values in every batch by construction) and ``"time_axis"`` for a
+            datetime column of which at least half of this frame lies outside the
+            reference's range (another period); for those two the numbers are
+            kept but do not mean a change of distribution.  ``""`` when nothing
+            was compared.  Legend texts: ``infoscope.frame.results.DRIFT_FLAGS``.
 
         References
         ----------
