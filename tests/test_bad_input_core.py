@@ -634,3 +634,15 @@ def test_zero_results_are_positive_zero(func):
     # max(-0.0, 0.0) is -0.0 in Python, which a table or a widget shows as "-0"
     value = func()
     assert value == 0.0 and math.copysign(1.0, value) == 1.0
+
+
+def test_new_warnings_point_at_the_callers_line():
+    # contract of the functional API: a warning names the caller's line, not ours
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        I.entropy([[1], [2], [1]] * 10)
+        I.entropy([1, True, 2] * 10)
+        I.mutual_information(np.linspace(0, 1, 40), [[0], [1]] * 20, estimator="ksg")
+        I.mutual_information(np.r_[np.linspace(0, 1, 39), np.inf], [0, 1] * 20, estimator="ksg", discrete="y")
+    assert len(caught) == 4
+    assert all(w.filename == __file__ for w in caught), [(w.filename, str(w.message)) for w in caught]
