@@ -69,6 +69,10 @@ _PUBLIC = {
     "PairTable": "infoscope.frame.results",
     # live views (anywidget; imported only when asked for)
     "ProfileWidget": "infoscope.widgets.profile",
+    # static outputs
+    "to_html": "infoscope.report.html",
+    "profile_svg": "infoscope.report.picture",
+    "profile_charts": "infoscope.report.charts",
     # demo data
     "datasets": "infoscope.datasets",
 }
