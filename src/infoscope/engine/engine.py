@@ -470,13 +470,14 @@ class PairEngine:
         threads = self._threads or available_threads()
         scope = _numba_threads(threads) if self._backend == "numba" else contextlib.nullcontext()
         step = self._chunk_rows
-        block = np.empty((len(involved), min(step, rows)), dtype=dtype)
+        # One buffer for every chunk; the shorter last chunk is a C-contiguous view of
+        # its start, so no second buffer is allocated.
+        buffer = np.empty(len(involved) * min(step, rows), dtype=dtype)
         try:
             with scope:
                 for start in range(0, rows, step):
                     stop = min(start + step, rows)
-                    if stop - start != block.shape[1]:
-                        block = np.empty((len(involved), stop - start), dtype=dtype)
+                    block = buffer[: len(involved) * (stop - start)].reshape(len(involved), stop - start)
                     for i, c in enumerate(codes):
                         block[i] = c[start:stop]
                     kernel(block, layout, flat)
