@@ -574,6 +574,27 @@ def test_content_key_branches_see_values_missingness_and_zone():
     assert content_key(t) != content_key(t + pd.Timedelta(1, "ns"))
 
 
+def test_content_key_of_a_small_slice_hashes_only_the_slice():
+    # speed guard: a 1,000-row slice of a 1M-row arrow string column shares the
+    # parent's buffers; hashing them all took about 0.05 s per column.  The floor is
+    # pandas.util.hash_pandas_object on the same slice.
+    import time
+
+    parent = pd.Series([f"user-{i}" for i in range(1_000_000)], dtype="string[pyarrow]")
+    head = parent.iloc[1000:2000]
+    start = time.perf_counter()
+    pd.util.hash_pandas_object(head, index=False)
+    floor = time.perf_counter() - start
+    start = time.perf_counter()
+    key = content_key(head)
+    elapsed = time.perf_counter() - start
+    assert elapsed < max(20 * floor, 0.01), (elapsed, floor)
+    # the key is the content's: equal to that of a fresh column with the same cells,
+    # different from a neighbouring slice
+    assert key == content_key(pd.Series(head.tolist(), dtype="string[pyarrow]"))
+    assert key != content_key(parent.iloc[1001:2001])
+
+
 def test_small_integer_range_path_equals_the_sorting_path(rng):
     # the counting shortcut for integers must agree with numpy.unique's sorted levels
     x = rng.integers(-3, 20, size=3000)
