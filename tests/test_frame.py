@@ -342,7 +342,8 @@ def test_drift_missing_policy_on_binned_columns():
 
 @pytest.mark.parametrize("module_name", ["infoscope.datasets", "infoscope.frame.session",
                                          "infoscope.frame.results", "infoscope.frame.drift",
-                                         "infoscope.frame.accessor", "infoscope.cli"])
+                                         "infoscope.frame.accessor", "infoscope.frame.polars",
+                                         "infoscope.cli"])
 def test_public_functions_have_numpydoc_sections(module_name):
     import importlib
     import inspect
@@ -374,7 +375,7 @@ def test_public_functions_have_numpydoc_sections(module_name):
 
 @pytest.mark.parametrize("module_name", ["infoscope.datasets", "infoscope.frame.session",
                                          "infoscope.frame.results", "infoscope.frame.drift",
-                                         "infoscope.frame.accessor"])
+                                         "infoscope.frame.accessor", "infoscope.frame.polars"])
 def test_docstring_examples_run(module_name):
     import doctest
     import importlib
@@ -439,3 +440,43 @@ def test_widget_call_returns_the_live_profile(log):
     widget = df.info_profile(target=TARGET, n_boot=0)
     assert isinstance(widget, profile.ProfileWidget)
     assert widget.session.names == ["depot", "service", TARGET]
+
+
+# ------------------------------------------------------------------ Polars namespace
+def test_polars_namespace_equals_the_pandas_accessor(log):
+    pl = pytest.importorskip("polars")
+    import infoscope.frame.polars  # noqa: F401  (the explicit registration)
+
+    small = log[["depot", "weight_kg", "stops_before", "fragile", "courier_note", "contents", TARGET]]
+    pl_df = pl.from_pandas(small)
+    # pl_df.info_profile.entropy() equals the pandas accessor's table (pandas.testing);
+    # only "kind" may differ, as Polars' own dtypes convert to pandas' (e.g. no Categorical)
+    via_polars = pl_df.info_profile.entropy(n_boot=20)
+    via_pandas = small.info_profile.entropy(n_boot=20)
+    pd.testing.assert_frame_equal(via_polars.drop(columns="kind"), via_pandas.drop(columns="kind"))
+    assert via_polars.attrs == via_pandas.attrs
+    pd.testing.assert_frame_equal(pl_df.info_profile.pairs("nmi"), small.info_profile.pairs("nmi"),
+                                  check_dtype=False)
+    lazy = pl_df.lazy().info_profile
+    assert lazy.matrix(order="cluster").shape == (7, 7)
+    assert pl_df.info_profile.pair("depot", TARGET).n == len(small)
+    assert pl_df.info_profile.relevance(TARGET, n_boot=0).iloc[0]["column"] in small.columns
+    assert pl_df.info_profile.drift(small)["psi"].abs().max() < 1e-12
+    # the user's Polars frame is untouched
+    assert pl_df.equals(pl.from_pandas(small))
+
+
+def test_import_infoscope_never_imports_polars_and_registers_when_present():
+    import subprocess
+
+    code = ("import sys, infoscope, infoscope.frame.accessor; "
+            "assert 'polars' not in sys.modules, 'polars imported'; "
+            "import polars as pl; assert not hasattr(pl.DataFrame, 'info_profile'); "
+            "import infoscope.frame.polars; assert hasattr(pl.DataFrame, 'info_profile'); "
+            "assert hasattr(pl.LazyFrame, 'info_profile')")
+    subprocess.run([sys.executable, "-c", code], check=True, timeout=120)
+    # polars first, then infoscope: registered without the explicit import
+    code = ("import polars as pl, infoscope; "
+            "from infoscope.frame.polars import PolarsInfoProfile; "
+            "assert isinstance(pl.DataFrame({'a': [1, 2]}).info_profile, PolarsInfoProfile)")
+    subprocess.run([sys.executable, "-c", code], check=True, timeout=120)

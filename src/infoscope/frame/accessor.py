@@ -11,6 +11,8 @@ are imported on the first call.
 from __future__ import annotations
 
 import hashlib
+import importlib
+import sys
 from collections import OrderedDict
 
 import numpy as np
@@ -364,3 +366,19 @@ class InfoProfileAccessor:
                 f"{error}. The tables work without it: df.info_profile.entropy(), .pairs(), ..."
             ) from error
         return ProfileWidget(self.session(**settings))
+
+
+def _register_polars_if_imported() -> None:
+    """Register ``polars.DataFrame.info_profile`` when Polars is already imported.
+
+    Never imports Polars itself; ``import infoscope.frame.polars`` is the explicit
+    way when Polars is imported after infoscope.
+    """
+    if "polars" in sys.modules:
+        try:
+            importlib.import_module("infoscope.frame.polars")
+        except ImportError:  # a broken or partial Polars install: the pandas accessor still works
+            pass
+
+
+_register_polars_if_imported()

@@ -1,0 +1,70 @@
+"""``polars.DataFrame.info_profile`` (and ``LazyFrame.info_profile``): the Polars namespace.
+
+``import infoscope.frame.polars`` registers the namespace explicitly.  It is also
+registered when ``infoscope`` is imported after Polars (the pandas accessor module
+checks ``sys.modules``); infoscope never imports Polars itself when the user has
+not, so ``import infoscope`` stays free of it.
+
+The namespace converts the frame to pandas (``to_pandas()``; a LazyFrame is
+collected first) and delegates to the same :class:`ProfileSession` as the pandas
+accessor, reused by the frame's content and settings, so
+``pl_df.info_profile.entropy()`` equals ``pl_df.to_pandas().info_profile.entropy()``
+except for the ``kind`` of Polars-specific dtypes.  The Polars frame is never
+modified.
+"""
+from __future__ import annotations
+
+import polars as pl
+
+from infoscope.frame.accessor import InfoProfileAccessor
+
+__all__ = ["PolarsInfoProfile"]
+
+
+class PolarsInfoProfile(InfoProfileAccessor):
+    """Information profile of a Polars frame: ``pl_df.info_profile.<method>(**settings)``.
+
+    The methods and settings are those of the pandas accessor
+    (:class:`~infoscope.frame.accessor.InfoProfileAccessor`): ``entropy``,
+    ``pairs``, ``matrix``, ``pair``, ``relevance``, ``drift``, ``session`` and the
+    call that returns the live profile widget.
+
+    Parameters
+    ----------
+    frame : polars.DataFrame or polars.LazyFrame
+        The frame the namespace is attached to (never modified; a LazyFrame is
+        collected when a method is called).
+
+    References
+    ----------
+    .. [1] Polars documentation, "polars.api.register_dataframe_namespace".
+
+    Examples
+    --------
+    >>> import polars as pl
+    >>> import infoscope.frame.polars  # registers pl.DataFrame.info_profile
+    >>> df = pl.DataFrame({"a": [1, 2, 1, 2] * 5, "b": list("xyxy") * 5})
+    >>> df.info_profile.pairs(estimator="plugin")[["a", "b", "nmi"]].values.tolist()
+    [['a', 'b', 1.0]]
+    """
+
+    def __init__(self, frame):
+        self._source = frame
+        self._converted = None
+
+    @property
+    def _frame(self):
+        # converted once per namespace object, on the first method call
+        if self._converted is None:
+            from infoscope.frame.session import as_pandas
+
+            self._converted = as_pandas(self._source)
+        return self._converted
+
+
+def _register() -> None:
+    for register in (pl.api.register_dataframe_namespace, pl.api.register_lazyframe_namespace):
+        register("info_profile")(PolarsInfoProfile)
+
+
+_register()
