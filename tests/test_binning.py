@@ -12,7 +12,7 @@ from hypothesis import strategies as st
 from hypothesis.extra import numpy as hnp
 from scipy.special import gammaln
 
-from infoscope import DataQualityWarning, bin_edges
+from infoscope import DataQualityWarning, bin_edges, encode_column
 from infoscope.encode.binning import (
     NUMPY_RULES,
     assign_bins,
@@ -255,3 +255,44 @@ def test_input_is_not_modified(rng):
     for bins in ("knuth", "fd", 8):
         bin_edges(x, bins=bins, strategy="quantile")
     np.testing.assert_array_equal(x, before)
+
+
+# ---------------------------------------------------------------- runaway width rules
+
+
+@pytest.mark.parametrize("outlier", [1e3, 1e5])
+@pytest.mark.parametrize("rule", ["fd", "scott"])
+def test_width_rule_bin_count_equals_numpys(rule, outlier):
+    # reference: numpy.histogram_bin_edges(x, bins=rule) -- the count it builds
+    from infoscope.encode.binning import _width_rule_bin_count
+
+    x = np.r_[np.random.default_rng(3).normal(size=1000), outlier]
+    for sample in (x, np.round(x * 3).astype(np.int64)):  # integer data: width floored at 1
+        want = np.histogram_bin_edges(sample, bins=rule).size - 1
+        assert _width_rule_bin_count(np.sort(sample), rule, float(sample.min()), float(sample.max())) == want
+
+
+def test_a_far_outlier_does_not_make_fd_allocate_billions_of_bins():
+    # numpy.histogram_bin_edges(x, bins="fd") on this sample asks for about 3.8e9
+    # bins (a 28 GiB array, MemoryError); we use RULE_MAX_BINS equal-width bins and say so
+    from infoscope.encode.binning import RULE_MAX_BINS
+
+    x = np.r_[np.random.default_rng(4).normal(size=1000), 1e9]
+    with pytest.warns(DataQualityWarning, match=r"rule 'fd' asks for [\d,]+ bins .*10,000 equal-width bins"):
+        edges = bin_edges(x, bins="fd")
+    np.testing.assert_array_equal(edges, np.linspace(x.min(), x.max(), RULE_MAX_BINS + 1))  # numpy.linspace
+    with pytest.warns(DataQualityWarning, match=r"column 'v': rule 'fd' asks for"):
+        col = encode_column(x, name="v", bins="fd", cache=False)
+    assert col.k <= RULE_MAX_BINS
+
+
+def test_ranges_beyond_the_float_range_and_huge_bin_counts_are_clear_errors():
+    x = np.array([-1.7e308, 0.0, 1.7e308])
+    with pytest.raises(ValueError, match="wider than the largest float"):
+        bin_edges(x, bins=4)
+    with pytest.raises(ValueError, match="wider than the largest float"):
+        bin_edges(x, bins="fd")
+    # quantiles need no differences: numpy.quantile works on this sample
+    np.testing.assert_array_equal(bin_edges(x, bins=2, strategy="quantile"), np.quantile(x, [0, 0.5, 1]))
+    with pytest.raises(ValueError, match="bins=1000000000 is too many bins"):
+        bin_edges(np.arange(5.0), bins=10**9)
