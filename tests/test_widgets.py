@@ -423,3 +423,45 @@ def test_public_widgets_have_numpydoc(name):
         doc = inspect.getdoc(getattr(getattr(widgets, name), method))
         for section in ("Returns", "References", "Examples"):
             assert f"\n{section}\n---" in doc, f"{name}.{method} lacks {section}"
+
+
+# ------------------------------------------------------------------ exports
+def test_to_html_writes_the_report_of_this_view(frame, tmp_path):
+    import html as html_lib
+
+    from infoscope.report.html import to_html
+
+    evil = "<b onmouseover=alert(1)>depot</b>"
+    df = frame.rename(columns={"depot": evil})
+    w = quiet(ProfileWidget, quiet(ProfileSession, df, n_boot=0), threaded=False)
+    out = quiet(w.to_html, tmp_path / "p.html", min_count=10)
+    assert out == tmp_path / "p.html" and out.exists()
+    text = out.read_text(encoding="utf-8")
+    assert text == quiet(to_html, w, None, min_count=10)       # the same call, path or not
+    assert text == quiet(w.to_html, min_count=10)               # no path: the text itself
+    assert evil not in text                                     # column names are data
+    assert html_lib.escape(evil) in text or "\\u003c" in text   # ... shown escaped
+    assert "http://" not in text.replace("http://www.w3.org", "") and "https://" not in text
+    # min_count reaches the report: a threshold above every cell count hides more
+    assert quiet(w.to_html, min_count=10_000) != text
+
+
+def test_charts_are_the_profile_charts_of_this_session(frame):
+    import scipy.stats
+
+    w = widget(frame, target="late")
+    w.session.update(estimator="plugin")
+    charts = quiet(w.charts, pair=("depot", "service"), min_count=1)
+    assert {"entropy", "grid", "pair", "relevance"} <= set(charts)
+    rows = {r["column"]: r for r in charts["entropy"].to_dict()["data"]["values"]}
+    # plug-in entropy of a complete column: scipy.stats.entropy of its value counts, base 2
+    expected = scipy.stats.entropy(frame["service"].value_counts().to_numpy(), base=2)
+    assert rows["service"]["entropy"] == pytest.approx(expected, rel=1e-12)
+    # the pair chart counts what pandas.crosstab counts (kw passed through)
+    cells = {(r["row"], r["col"]): r["count"] for r in charts["pair"].to_dict()["data"]["values"]}
+    table = pd.crosstab(frame["depot"], frame["service"])
+    for a in table.index:
+        for b in table.columns:
+            assert cells.get((str(a), str(b)), 0) == table.loc[a, b]
+    with pytest.raises(TypeError):
+        w.charts(no_such_option=1)

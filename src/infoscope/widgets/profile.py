@@ -780,6 +780,73 @@ class ProfileWidget(_ProfileBase):
 
     _view = t.Unicode("profile").tag(sync=True)
 
+    def to_html(self, path=None, *, min_count=None):
+        """Write the profile as one self-contained HTML file that works offline.
+
+        A thin call of :func:`infoscope.report.html.to_html` with this view: the
+        file carries the numbers of the current settings, with every column name
+        and value escaped, and no script or style from the network.
+
+        Parameters
+        ----------
+        path : str or os.PathLike, optional
+            File to write. Without it the HTML text is returned.
+        min_count : int, optional
+            Small-cell threshold of every pair view in the file: cells with 1 ..
+            ``min_count - 1`` rows are hidden (small counts can identify people).
+            None keeps the report's default.
+
+        Returns
+        -------
+        pathlib.Path or str
+            The path written, or the HTML text when ``path`` is None.
+
+        References
+        ----------
+        W3C (2016). Content Security Policy Level 2. Small-cell suppression:
+        common practice in official statistics.
+
+        Examples
+        --------
+        >>> w = ProfileWidget(ProfileSession(df))          # doctest: +SKIP
+        >>> w.to_html("profile.html", min_count=10)        # doctest: +SKIP
+        PosixPath('profile.html')
+        """
+        from infoscope.report.html import to_html
+        return to_html(self, path, min_count=min_count)
+
+    def charts(self, **kw):
+        """The views of this profile as Altair charts, keyed by view name.
+
+        A thin call of :func:`infoscope.report.charts.profile_charts` on this
+        view's session (its current settings).
+
+        Parameters
+        ----------
+        **kw
+            Passed on: ``reference`` (a frame: adds the drift chart), ``pair``
+            (the pair of the pair view), ``min_count`` (small-cell threshold).
+
+        Returns
+        -------
+        dict of str to altair chart
+            ``"entropy"``, ``"grid"``, ``"pair"``, ``"relevance"`` (with a
+            target) and ``"drift"`` (with a reference), as ``profile_charts`` gives.
+
+        References
+        ----------
+        Satyanarayan, A., Moritz, D., Wongsuphasawat, K. & Heer, J. (2017).
+        Vega-Lite: A grammar of interactive graphics. IEEE TVCG 23(1), 341-350.
+
+        Examples
+        --------
+        >>> charts = ProfileWidget(ProfileSession(df)).charts()   # doctest: +SKIP
+        >>> charts["grid"].save("grid.svg")                      # doctest: +SKIP
+        """
+        from infoscope.report.charts import profile_charts
+        with self._session_lock:
+            return profile_charts(self.session, **kw)
+
 
 class EntropyBarsWidget(_ProfileBase):
     """Entropy bars alone: one bar per column with its CI and maximum log K.
