@@ -234,6 +234,7 @@ def test_unhashable_cells_entropy_value_and_knn_side():
     (I.psi, ([1, 1], [[1, 2], [3]])),
     (I.mutual_information_from_table, ([[1, 2], [3]],)),
     (I.g_test_from_table, ([[1, 2], [3]],)),
+    (I.g_test_from_tables, ([[[1, 2], [3]]],)),
 ], ids=lambda v: getattr(v, "__name__", ""))
 def test_ragged_nested_input_is_a_clear_type_error(func, args):
     raises_clearly(TypeError, "nested or ragged|rows differ in length", func, *args)

@@ -100,7 +100,7 @@ def _check_estimator(estimator, alpha=None) -> str:
     return estimator
 
 
-def _check_table(table, parameter: str = "table", ndim: int | None = 2) -> np.ndarray:
+def _check_table(table, parameter: str = "table", ndim: int | None = 2, *, allow_empty: bool = False) -> np.ndarray:
     if not isinstance(table, np.ndarray):
         try:
             table = np.asarray(table)
@@ -109,7 +109,7 @@ def _check_table(table, parameter: str = "table", ndim: int | None = 2) -> np.nd
     arr = check_counts(table, parameter, ndim=ndim)
     if ndim is None and arr.ndim < 1:
         raise ValueError(f"{parameter} must have at least one axis, got a scalar")
-    if arr.sum() <= 0:
+    if not allow_empty and arr.sum() <= 0:
         raise ValueError(f"{parameter} has no observations (all counts are 0)")
     return arr
 
@@ -708,7 +708,7 @@ def g_test_from_tables(tables) -> GTestResult:
         items = [tables[i] for i in range(tables.shape[0])]
     else:
         items = list(tables)
-    checked = [check_counts(t, f"tables[{i}]", ndim=2) for i, t in enumerate(items)]
+    checked = [_check_table(t, f"tables[{i}]", allow_empty=True) for i, t in enumerate(items)]
     m = len(checked)
     stat = np.zeros(m)
     dof = np.zeros(m, dtype=np.int64)
