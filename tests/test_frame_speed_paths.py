@@ -54,8 +54,9 @@ def test_random_changes_give_the_tables_of_a_fresh_session(wide, seed):
         "alpha": [None, 0.5, 1.0], "base": [2, "nats", 10], "measure": ["mi", "nmi", "vi"],
         "normalization": ["arithmetic", "max"], "missing": ["drop", "category"],
         "max_categories": [8, 64], "strategy": ["quantile", "uniform"],
+        "n_boot": [0, 10], "ci": [0.9, 0.95], "seed": [0, 5],
     }
-    for _ in range(10):
+    for _ in range(12):
         if rng.random() < 0.35:
             name = str(rng.choice(numeric))
             bins = [None, 3, 6, "fd"][rng.integers(4)]
@@ -69,7 +70,7 @@ def test_random_changes_give_the_tables_of_a_fresh_session(wide, seed):
             value = choices[key][rng.integers(len(choices[key]))]
             s.update(**{key: value})
             settings[key] = value
-        s.pairs(); s.matrix()  # what the widget calls after every control change
+        s.entropy(); s.pairs(); s.matrix()  # what the widget calls after every control change
     assert s.settings == {**s.settings, **settings}
     _assert_same(s, _fresh(wide, settings, overrides))
 
@@ -131,3 +132,31 @@ def test_resampling_re_estimates(wide):
 def test_n_rows_is_public(wide):
     s = ProfileSession(wide.iloc[:, :3], sample=100)
     assert s.n_rows == s._n_rows == len(wide)
+
+
+def test_entropy_rows_are_cached_per_column_and_still_warn(wide):
+    from infoscope._warnings import DataQualityWarning
+
+    frame = wide.iloc[:, :4].copy()
+    frame["gone"] = np.nan
+    s = ProfileSession(frame, n_boot=10)
+    with pytest.warns(DataQualityWarning, match="'gone' has no non-missing values"):
+        first = s.entropy()
+    with pytest.warns(DataQualityWarning, match="'gone' has no non-missing values"):
+        again = s.entropy()  # from the cache: the same table and the same warning
+    pd.testing.assert_frame_equal(first, again)
+    column = s.numeric_keys()[0]
+    s.set_column_bins(column, 3)
+    with pytest.warns(DataQualityWarning, match="'gone'"):
+        changed = s.entropy().set_index("column")
+    assert changed.loc[column, "k"] == 3
+    # the re-encoded column's entropy is that of its new codes: plug-in check against
+    # scipy.stats.entropy of the bincount (estimator "plugin")
+    import scipy.stats
+
+    s.update(estimator="plugin")
+    with pytest.warns(DataQualityWarning, match="'gone'"):
+        plugin = s.entropy().set_index("column")
+    codes = s.column(column).codes
+    ref = scipy.stats.entropy(np.bincount(codes[codes < 3]), base=2)
+    assert plugin.loc[column, "entropy"] == pytest.approx(ref, rel=1e-12)

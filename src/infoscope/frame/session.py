@@ -292,6 +292,7 @@ class ProfileSession:
         # pair key -> (column a, column b, estimator key, numbers): see _pair_stats
         self._pair_cache: dict = {}
         self._measure_cache: dict = {}
+        self._entropy_cache: dict = {}  # column key -> (column, settings, row): see entropy()
         # measure -> (memo key, the last full pairs() table): matrix() reuses it
         self._pairs_memo: dict = {}
         self._pairs_estimated: list[tuple[str, str]] = []
@@ -612,12 +613,24 @@ class ProfileSession:
         divisor = log_base(s["base"])
         rows = []
         folded_in_pairs: dict[str, int] = {}
+        settings_key = (s["estimator"], s["alpha"] if s["estimator"] == "dirichlet" else None,
+                        s["base"], s["missing"], s["ci"], s["n_boot"], s["seed"])
         for i, key in enumerate(self._names):
             col = self._encoded[key]
+            if getattr(col, "level_counts", None) is not None:
+                folded_in_pairs[key] = int(col.k)
+            # the live views ask for this table after every control change: a row
+            # depends only on the encoded column, its position (the bootstrap seed)
+            # and these settings, so unchanged columns are served from the cache
+            hit = self._entropy_cache.get(key)
+            if hit is not None and hit[0] is col and hit[1] == (i, settings_key):
+                if hit[3]:  # no observed value: the warning of a fresh computation
+                    warnings.warn(f"column {key!r} has no non-missing values: its entropy is "
+                                  "undefined (NaN)", DataQualityWarning, stacklevel=2)
+                rows.append(dict(hit[2]))
+                continue
             marginal = np.asarray(self._engine.marginal(key), dtype=np.int64)
             counts, k = self._symbol_counts(col, marginal)
-            if counts is not marginal:
-                folded_in_pairs[key] = int(col.k)
             observed = int(counts.sum())
             flags = list(col.flags)
             h = self._entropy(counts)
@@ -645,6 +658,7 @@ class ProfileSession:
                 "effective_categories": math.exp(h * divisor) if not math.isnan(h) else math.nan,
                 "flags": ",".join(flags),
             })
+            self._entropy_cache[key] = (col, (i, settings_key), dict(rows[-1]), observed == 0)
         return result_frame(rows, ENTROPY_COLUMNS, **self._attrs(folded_in_pairs=folded_in_pairs))
 
     def _symbol_counts(self, col, marginal: np.ndarray) -> tuple[np.ndarray, int]:
