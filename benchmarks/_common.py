@@ -48,3 +48,21 @@ def machine_note() -> str:
     except OSError:  # pragma: no cover
         load = "unknown"
     return f"{cores} cores, load average {load}"
+
+
+def interleaved_best(repeat: int, tasks: dict) -> tuple[dict, dict]:
+    """Best wall time of each task over ``repeat`` rounds, the tasks taking turns.
+
+    Each round runs every task once, so that a method and its baseline see the same
+    spells of load from other processes on a shared machine; the ratio of their best
+    times is then steadier than that of timings taken minutes apart.
+    Returns ``({name: best seconds}, {name: last result})``.
+    """
+    best = {name: float("inf") for name in tasks}
+    results = {}
+    for _ in range(repeat):
+        for name, fn in tasks.items():
+            start = time.perf_counter()
+            results[name] = fn()
+            best[name] = min(best[name], time.perf_counter() - start)
+    return best, results

@@ -35,7 +35,7 @@ import numpy as np
 import pandas as pd
 
 sys.path.insert(0, str(Path(__file__).resolve().parent))
-from _common import best_of, machine_note, traced_peak  # noqa: E402
+from _common import best_of, interleaved_best, machine_note, traced_peak  # noqa: E402
 
 from infoscope.engine import PairEngine  # noqa: E402
 
@@ -222,8 +222,21 @@ def main(argv=None) -> None:
         return PairEngine(columns, progress=False, backend=backend, threads=threads).tables()
 
     PairEngine(columns[:2], progress=False).tables()  # load numba first (timed separately below)
-    t_count, tables = best_of(args.repeat, count)
-    t_count_1, _ = best_of(args.repeat, count, threads=1)
+    sklearn_loop(columns, pairs[:1])  # and import scikit-learn outside the timings
+    step = max(1, len(pairs) // max(1, args.sklearn_pairs))
+    subset = pairs[::step][: args.sklearn_pairs]
+    share = min(1.0, max(args.bincount_share, 1 / len(pairs)))
+    bsub = pairs if share >= 1 else pairs[:: max(1, round(1 / share))]
+    # the engine and its baselines take turns in every round (see interleaved_best)
+    best, out = interleaved_best(args.repeat, {
+        "count": count,
+        "count_1": lambda: count(threads=1),
+        "numpy": lambda: count(backend="numpy"),
+        "sklearn": lambda: sklearn_loop(columns, subset),
+        "bincount": lambda: bincount_loop(columns, bsub),
+    })
+    t_count, tables = best["count"], out["count"]
+    t_count_1 = best["count_1"]
     t_estimate, mi = best_of(args.repeat, mi_miller_madow_all, tables)
     t_engine = t_count + t_estimate
     t_end = t_encode + t_engine
@@ -233,7 +246,7 @@ def main(argv=None) -> None:
     print(f"end to end (encode + count + estimate): {t_end:.3f} s")
 
     # ---- kernels against each other (same run)
-    t_numpy, tables_np = best_of(args.repeat, count, backend="numpy")
+    t_numpy, tables_np = best["numpy"], out["numpy"]
     t_comb, tables_comb = best_of(1, combined_bincount, columns)
     assert all(np.array_equal(tables[p], tables_np[p]) and np.array_equal(tables[p], tables_comb[p]) for p in pairs)
     print(f"kernels: (a) numba all-pairs {t_count:.3f} s | (b) numpy bincount per pair {t_numpy:.3f} s "
@@ -241,9 +254,7 @@ def main(argv=None) -> None:
           f"({t_comb / t_count:.1f}x slower; 1 run); identical tables")
 
     # ---- baseline: sklearn loop (subset, scaled)
-    step = max(1, len(pairs) // max(1, args.sklearn_pairs))
-    subset = pairs[::step][: args.sklearn_pairs]
-    t_sk_sub, mi_sk = best_of(args.repeat, sklearn_loop, columns, subset)
+    t_sk_sub, mi_sk = best["sklearn"], out["sklearn"]
     t_sk = t_sk_sub * len(pairs) / len(subset)
     from infoscope.estimators.information import mutual_information_from_table
 
@@ -258,9 +269,7 @@ def main(argv=None) -> None:
     print(f"  ratio, end to end vs encode + sklearn loop: {(t_encode + t_sk) / t_end:.0f}x faster (target >= 150x)")
 
     # ---- baseline: per-pair numpy.bincount loop (+ the same estimator stage)
-    share = min(1.0, max(args.bincount_share, 1 / len(pairs)))
-    bsub = pairs if share >= 1 else pairs[:: max(1, round(1 / share))]
-    t_bc_sub, tables_bc = best_of(args.repeat, bincount_loop, columns, bsub)
+    t_bc_sub, tables_bc = best["bincount"], out["bincount"]
     assert all(np.array_equal(tables_bc[p], tables[p]) for p in bsub)
     t_bc = t_bc_sub * len(pairs) / len(bsub)
     scaled = "measured on all pairs" if len(bsub) == len(pairs) else f"SCALED from {len(bsub)} pairs"
