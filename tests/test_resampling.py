@@ -359,3 +359,121 @@ def test_centred_mi_interval_contains_a_near_zero_corrected_estimate(rng):
 def test_unknown_interval_method_lists_the_valid_ones():
     with pytest.raises(ValueError, match="method='bca'.*'centred', 'percentile'"):
         bootstrap_entropy_ci([3, 4], method="bca")
+
+
+# ------------------------------------------------------------------ large alphabets
+from infoscope.estimators.entropy import entropy_nats  # noqa: E402
+from infoscope.estimators.resampling import (  # noqa: E402
+    _fingerprint_entropy_nats,
+    _grouped_blocks,
+    _grouped_draws,
+    _use_grouped,
+)
+
+# 2000 symbols seen once, 500 twice, 100 five times: K = 2600 occupied cells,
+# N = 3500 rows -- above the grouped-resampling threshold
+LARGE = np.concatenate([np.ones(2000, np.int64), np.full(500, 2), np.full(100, 5), np.zeros(40, np.int64)])
+
+
+def test_large_alphabets_take_the_grouped_draw_small_ones_do_not():
+    assert _use_grouped(LARGE, int(LARGE.sum()))
+    assert not _use_grouped(np.ones(1999, np.int64), 1999)          # too few cells
+    assert not _use_grouped(np.full(5000, 10), 50_000)              # 10 rows per cell: dense
+
+
+def test_grouped_draw_of_singletons_follows_the_occupancy_law():
+    # N rows resampled from N distinct rows: each cell's count is Binomial(N, 1/N),
+    # so the expected number of cells seen j times is N * binom.pmf(j, N, 1/N)
+    # (classical occupancy problem; Feller, An Introduction to Probability Theory,
+    # vol. 1, 3rd ed. 1968, ch. IV -- from memory); checked with scipy.stats.binom.
+    n_cells, reps = 5000, 200
+    fps = np.array([np.bincount(g[0], minlength=8)[:8]
+                    for g in _grouped_draws(np.random.default_rng(4), np.ones(n_cells, np.int64), n_cells, reps)])
+    expected = n_cells * scipy.stats.binom.pmf(np.arange(8), n_cells, 1 / n_cells)
+    # per replicate F_0 has sd ~ sqrt(N e^-1 (1 - 2 e^-1)) ~ 22 (occupancy variance);
+    # the mean of 200 has sd ~ 1.6: 8 is five of them
+    np.testing.assert_allclose(fps.mean(axis=0)[:4], expected[:4], atol=8)
+    assert (np.array([sum(int(c.sum()) for c in g) for g in
+                      _grouped_draws(np.random.default_rng(5), LARGE, int(LARGE.sum()), 20)]) == LARGE.sum()).all()
+
+
+def test_grouped_draw_keeps_each_cells_expected_count():
+    # E[n*_i] = n_i under the multinomial bootstrap (Efron 1979): groups of 1, 2 and 5
+    draws = [g for g in _grouped_draws(np.random.default_rng(6), LARGE, int(LARGE.sum()), 300)]
+    for index, c in enumerate((1, 2, 5)):
+        mean = np.mean([g[index].mean() for g in draws])
+        assert mean == pytest.approx(c, rel=0.01)
+
+
+def test_fingerprint_scoring_equals_the_estimator_kernels():
+    # same seed, same draws: regrouped sums equal infoscope's plugin / Miller-Madow
+    # kernels on the full count vectors (Miller 1955 correction (m - 1) / 2N)
+    total = int(LARGE.sum())
+    for estimator in ("plugin", "miller_madow"):
+        fast = _fingerprint_entropy_nats(np.random.default_rng(7), LARGE, total, 30, estimator)
+        full = np.concatenate([entropy_nats(b, estimator, None)
+                               for b in _grouped_blocks(np.random.default_rng(7), LARGE, total, 30)])
+        np.testing.assert_allclose(fast, full, rtol=1e-12)
+
+
+def _plugin_nats_of_rows(x, axis=-1):
+    """Plug-in entropy (nats) of each resample of integer codes (for scipy.stats.bootstrap)."""
+    x = np.sort(np.moveaxis(np.asarray(x), axis, -1), axis=-1)
+    n = x.shape[-1]
+    out = np.empty(x.shape[:-1])
+    for idx in np.ndindex(*x.shape[:-1]):
+        counts = np.diff(np.flatnonzero(np.diff(np.r_[-1, x[idx], -2]) != 0))
+        out[idx] = -np.sum(counts / n * np.log(counts / n))
+    return out
+
+
+def test_grouped_interval_matches_scipy_bootstrap_of_the_rows():
+    # Reference: scipy.stats.bootstrap(method="percentile") resampling the 3500 rows
+    # themselves; our grouped count draw must give the same interval up to Monte Carlo
+    # error (1000 replicates each; tolerance a quarter of the interval width).
+    codes = np.repeat(np.arange(LARGE.size), LARGE)
+    ref = scipy.stats.bootstrap((codes,), _plugin_nats_of_rows, n_resamples=1000, method="percentile",
+                                confidence_level=0.95, random_state=np.random.default_rng(8), vectorized=True,
+                                batch=100)
+    lo, hi = bootstrap_entropy_ci(LARGE, estimator="plugin", base="nats", n_boot=1000, seed=9,
+                                  method="percentile")
+    width = ref.confidence_interval.high - ref.confidence_interval.low
+    assert abs(lo - ref.confidence_interval.low) < width / 4
+    assert abs(hi - ref.confidence_interval.high) < width / 4
+
+
+@pytest.mark.parametrize("estimator", ["miller_madow", "chao_shen", "james_stein", "dirichlet", "grassberger"])
+def test_grouped_and_multinomial_draws_give_the_same_interval(estimator, monkeypatch):
+    # The two draws are the same distribution (n ~ Multinomial(N, n/N), Efron 1979);
+    # the intervals differ by Monte Carlo error only (400 replicates; a third of the width)
+    grouped = bootstrap_entropy_ci(LARGE, estimator=estimator, n_boot=400, seed=10, method="percentile")
+    import infoscope.estimators.resampling as resampling
+
+    monkeypatch.setattr(resampling, "_GROUPED_MIN_CELLS", 10**9)
+    assert not resampling._use_grouped(LARGE, int(LARGE.sum()))
+    multinomial = bootstrap_entropy_ci(LARGE, estimator=estimator, n_boot=400, seed=11, method="percentile")
+    width = multinomial.high - multinomial.low
+    assert width > 0
+    assert abs(grouped.low - multinomial.low) < width / 3 and abs(grouped.high - multinomial.high) < width / 3
+
+
+def test_fifty_thousand_singletons_resample_fast():
+    # speed guard: the grouped draw (integers + bincount) against numpy's multinomial
+    # draw of the same 50,000 cells, measured here on this machine
+    import time
+
+    n = np.ones(50_000, np.int64)
+    rng = np.random.default_rng(12)
+    t0 = time.perf_counter()
+    rng.multinomial(50_000, n / 50_000, size=50)
+    multinomial_200 = 4 * (time.perf_counter() - t0)
+    t0 = time.perf_counter()
+    low, high = bootstrap_entropy_ci(n, n_boot=200, seed=13)
+    fast = time.perf_counter() - t0
+    assert fast < multinomial_200 / 2, (fast, multinomial_200)
+    from infoscope.estimators.entropy import entropy_from_counts
+
+    # Miller-Madow of N singletons: log2 N + (N - 1) / (2 N ln 2) bits (Miller 1955)
+    estimate = entropy_from_counts(n)
+    assert estimate == pytest.approx(math.log2(50_000) + 49_999 / (2 * 50_000 * math.log(2)), rel=1e-12)
+    assert low <= estimate <= high and high - low < 0.1
