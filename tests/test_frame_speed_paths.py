@@ -38,6 +38,8 @@ def _assert_same(s, fresh):
                                       fresh.matrix(measure, order="cluster"))
         assert s.pairs(measure).attrs == fresh.pairs(measure).attrs
     pd.testing.assert_frame_equal(s.entropy(), fresh.entropy())
+    for target in (s.names[1], s.names[4]):
+        pd.testing.assert_frame_equal(s.relevance(target), fresh.relevance(target))
 
 
 @pytest.mark.filterwarnings("ignore:column .* folded into:UserWarning")
@@ -70,7 +72,8 @@ def test_random_changes_give_the_tables_of_a_fresh_session(wide, seed):
             value = choices[key][rng.integers(len(choices[key]))]
             s.update(**{key: value})
             settings[key] = value
-        s.entropy(); s.pairs(); s.matrix()  # what the widget calls after every control change
+        # what the widget calls after every control change
+        s.entropy(); s.pairs(); s.matrix(); s.relevance(s.names[1])
     assert s.settings == {**s.settings, **settings}
     _assert_same(s, _fresh(wide, settings, overrides))
 

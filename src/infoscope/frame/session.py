@@ -293,6 +293,7 @@ class ProfileSession:
         self._pair_cache: dict = {}
         self._measure_cache: dict = {}
         self._entropy_cache: dict = {}  # column key -> (column, settings, row): see entropy()
+        self._relevance_cache: dict = {}  # (column, target) -> (columns, settings, row)
         # measure -> (memo key, the last full pairs() table): matrix() reuses it
         self._pairs_memo: dict = {}
         self._pairs_estimated: list[tuple[str, str]] = []
@@ -1076,30 +1077,47 @@ class ProfileSession:
         others = [k for k in self._names if k != target]
         if not others:
             raise ValueError(f"the profile has only the target column {target!r}: nothing to relate to it")
-        tabs = [np.asarray(self._engine.table(k, target), dtype=np.int64) for k in others]
-        tm = self._table_measures(tabs)
-        mi, nmi = tm["mi"], tm["nmi"]
-        q = benjamini_hochberg(tm["p_value"])
         if np.count_nonzero(self._engine.marginal(target)) <= 1:
             warnings.warn(f"target {target!r} has at most one value: no column can inform it",
                           DataQualityWarning, stacklevel=2)
-        rows = []
+        # rows cached like the pairs (see _pair_stats): a row depends on the column,
+        # the target, its position (the bootstrap seed) and these settings
+        enc = self._encoded
+        settings_key = (self._estimator_key(), s["base"], s["ci"], s["n_boot"], s["seed"])
+        rows: list = [None] * len(others)
+        todo = []
         for i, key in enumerate(others):
-            t = tabs[i]
+            hit = self._relevance_cache.get((key, target))
+            if (hit is not None and hit[0] is enc[key] and hit[1] is enc[target]
+                    and hit[2] == (i, settings_key)):
+                rows[i] = dict(hit[3])
+            else:
+                todo.append(i)
+        tabs = [np.asarray(self._engine.table(others[i], target), dtype=np.int64) for i in todo]
+        tm = self._table_measures(tabs)
+        mi, nmi = tm["mi"], tm["nmi"]
+        for j, i in enumerate(todo):
+            key = others[i]
+            t = tabs[j]
             n = int(t.sum())
             h_target = self._entropy(t.sum(axis=0)) if n else math.nan
             low = high = math.nan
             if n and s["n_boot"] > 0:
                 low, high = bootstrap_mi_ci(t, level=s["ci"], n_boot=s["n_boot"],
                                             seed=_child_seed(s["seed"], i), **self._kw())
-            share = mi[i] / h_target if h_target and h_target > 0 else math.nan
-            rows.append({
-                "column": key, "k": int(self._encoded[key].k), "n": n, "mi": mi[i],
-                "ci_low": float(low), "ci_high": float(high), "nmi": nmi[i],
-                "p_value": float(tm["p_value"][i]), "q_value": float(q[i]),
+            share = mi[j] / h_target if h_target and h_target > 0 else math.nan
+            rows[i] = {
+                "column": key, "k": int(enc[key].k), "n": n, "mi": mi[j],
+                "ci_low": float(low), "ci_high": float(high), "nmi": nmi[j],
+                "p_value": float(tm["p_value"][j]), "q_value": math.nan,
                 "share_of_target": share, "leakage": bool(share >= LEAKAGE_SHARE),
                 "sparse": bool(n / max(t.size, 1) < SPARSE_CELL_COUNT),
-            })
+            }
+            self._relevance_cache[(key, target)] = (enc[key], enc[target], (i, settings_key),
+                                                    dict(rows[i]))
+        q = benjamini_hochberg(np.array([r["p_value"] for r in rows], dtype=float))
+        for r, qv in zip(rows, q):
+            r["q_value"] = float(qv)
         out = result_frame(rows, RELEVANCE_COLUMNS, **self._attrs(target=target))
         out = out.sort_values("mi", ascending=False, na_position="last", kind="stable")
         out = out.reset_index(drop=True)
