@@ -205,6 +205,32 @@ def test_burst_of_50_changes_shows_the_final_setting(frame):
     w.close()
 
 
+def test_first_change_after_a_quiet_spell_starts_at_once(frame):
+    # Leading-edge debounce: with a 1.5 s debounce, a lone change is answered well
+    # before 1.5 s; changes that follow it within the debounce wait for the trailing
+    # recompute, which shows the last of them (generation rule kept).
+    w = quiet(ProfileWidget, session_of(frame), debounce=1.5)
+    assert w.wait(30)
+    time.sleep(1.6)                      # quiet spell longer than the debounce
+    runs = []
+    original = w._compute
+    w._compute = lambda gen, parts, snap: (runs.append(snap["session"]["bins"]), original(gen, parts, snap))[1]
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        t0 = time.monotonic()
+        w.bins = 8
+        assert w.wait(1.2), "the first change should not wait for the debounce"
+        assert time.monotonic() - t0 < 1.2 and w.session.settings["bins"] == 8
+        w.bins = 9                       # right after: these two collapse ...
+        w.bins = 10
+        time.sleep(0.3)
+        assert w._timer is not None and w.session.settings["bins"] == 8   # ... and wait
+        assert w.wait(10)
+    assert runs == [8, 10]
+    assert_same_entropy(w, direct_entropy(frame, bins=10))
+    w.close()
+
+
 class SlowSession(ProfileSession):
     """A session whose entropy() is slow for bins=3 (to race two requests)."""
 
