@@ -92,6 +92,13 @@ def test_only_pairs_touching_a_re_encoded_column_are_re_estimated(wide):
     s.matrix()
     assert {frozenset(p) for p in s.last_estimated} == {
         frozenset((column, other)) for other in names if other != column}
+    # no cached entry keeps a replaced encoding (and its codes) alive
+    s.relevance(names[0]); s.entropy()
+    s.set_column_bins(column, 7)
+    current = {id(s.column(k)) for k in names}
+    for cache in (s._pair_cache, s._relevance_cache, s._entropy_cache):
+        assert cache and all(id(entry[0]) in current for entry in cache.values())
+    s.matrix()
     s.update(base="nats")                  # numbers are kept in nats: nothing to re-estimate
     s.pairs()
     assert s.last_estimated == ()

@@ -513,11 +513,26 @@ class ProfileSession:
             done.add(key)
             if self._engine is not None:
                 self._engine.set_column(encoded)
+        if done:
+            self._prune_caches()
         if self._engine is None:
             from infoscope.engine.engine import PairEngine
 
             self._engine = PairEngine([self._encoded[k] for k in self._names], progress=False)
         return done
+
+    def _prune_caches(self) -> None:
+        """Drop cached numbers of replaced encodings (they would keep old codes alive)."""
+        enc = self._encoded
+        for cache, width in ((self._pair_cache, 2), (self._measure_cache, 2),
+                             (self._relevance_cache, 2), (self._entropy_cache, 1)):
+            stale = []
+            for key, entry in cache.items():
+                names = key[-2:] if width == 2 else (key,)
+                if any(enc.get(name) is not entry[j] for j, name in enumerate(names)):
+                    stale.append(key)
+            for key in stale:
+                del cache[key]
 
     # ---------------------------------------------------------- helpers
     def _check_name(self, name, parameter: str) -> str:
