@@ -60,7 +60,10 @@ def check_counts(counts, parameter: str = "counts", *, ndim: int | None = 1) -> 
     Returns a float64 array (float so that huge totals do not overflow and the
     estimators can work without casting); the values are exactly integral.
     """
-    arr = np.asarray(counts)
+    try:
+        arr = np.asarray(counts)
+    except (TypeError, ValueError):  # ragged nesting: numpy cannot make one array of it
+        raise TypeError(f"{parameter} must be a rectangular array of counts; got nested or ragged values") from None
     if arr.dtype == object or not (np.issubdtype(arr.dtype, np.number) or arr.dtype == bool):
         raise TypeError(f"{parameter} must be numeric counts, got dtype {arr.dtype}")
     if ndim is not None and arr.ndim != ndim:
@@ -81,7 +84,10 @@ def check_counts(counts, parameter: str = "counts", *, ndim: int | None = 1) -> 
 
 def check_probabilities(p, parameter: str = "p", *, atol: float = 1e-9) -> np.ndarray:
     """Validate a probability vector: finite, >= 0, summing to 1 within ``atol``."""
-    arr = np.asarray(p, dtype=np.float64)
+    try:
+        arr = np.asarray(p, dtype=np.float64)
+    except (TypeError, ValueError):
+        raise TypeError(f"{parameter} must be a flat vector of probabilities; got nested, ragged or non-numeric values") from None
     if arr.ndim != 1:
         raise ValueError(f"{parameter} must be a 1-D vector, got shape {arr.shape}")
     if not np.all(np.isfinite(arr)) or np.any(arr < 0):
