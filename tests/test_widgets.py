@@ -231,6 +231,27 @@ def test_first_change_after_a_quiet_spell_starts_at_once(frame):
     w.close()
 
 
+def test_pairs_are_estimated_once_per_recompute(frame):
+    # the grid's matrix comes from the pairs table of the same recompute: after a
+    # bins change the matrix call estimates no pair again (ProfileSession.last_estimated),
+    # and the pairs estimated are only those touching a re-binned (numeric or datetime) column
+    w = widget(frame)
+    estimated = []
+    original = w.session.pairs
+    w.session.pairs = lambda *a, **k: (original(*a, **k), estimated.append(w.session.last_estimated))[0]
+    quiet(setattr, w, "bins", 5)
+    assert len(estimated) >= 1 and all(e == () for e in estimated[1:]), estimated
+    kinds = entropy_rows(w)["kind"]
+    binned = set(kinds.index[kinds.isin(["numeric", "datetime"])])
+    assert binned and estimated[0]
+    assert all(a in binned or b in binned for a, b in estimated[0])
+    # and the grid is the matrix of a fresh session with those settings
+    names = w._grid_meta["names"]
+    got = np.frombuffer(w._grid_values, dtype=np.float32).reshape(len(names), len(names))
+    expected = quiet(session_of(frame, bins=5).matrix, order="cluster")
+    np.testing.assert_allclose(got, expected.loc[names, names].to_numpy(dtype=float), rtol=1e-5, atol=1e-6)
+
+
 class SlowSession(ProfileSession):
     """A session whose entropy() is slow for bins=3 (to race two requests)."""
 
