@@ -216,3 +216,32 @@ def test_session_does_not_see_later_edits():
     df.loc[:, "c"] = "a"
     s.update(bins=4)
     pd.testing.assert_frame_equal(s.entropy(), before)
+
+
+def test_polars_namespace_bad_input_is_named():
+    pl = pytest.importorskip("polars")
+    import infoscope.frame.polars  # noqa: F401
+
+    with pytest.raises(ValueError, match="no columns"):
+        pl.DataFrame().info_profile.entropy()
+    with pytest.raises(ValueError, match="no rows"):
+        pl.DataFrame({"a": []}, schema={"a": pl.Int64}).info_profile.pairs()
+    df = pl.DataFrame({"a": [1, 2, 1, 2] * 10, "b": list("xyxy") * 10})
+    with pytest.raises(KeyError, match="target='nope' is not a column"):
+        df.info_profile.relevance("nope")
+    with pytest.raises(TypeError, match="unknown setting"):
+        df.info_profile.entropy(bins_per_column=3)
+    assert df.equals(pl.DataFrame({"a": [1, 2, 1, 2] * 10, "b": list("xyxy") * 10}))
+
+
+def test_drift_of_a_datetime_column_with_unparseable_reference_is_read_as_usual(unchanged):
+    # time_axis needs comparable times; a reference of another type gets the
+    # type-mismatch warning and the usual PSI verdict, never a crash
+    times = pd.Series(pd.date_range("2026-01-01", periods=200, freq="h"))
+    batch = unchanged(pd.DataFrame({"t": times + pd.Timedelta(days=30)}))
+    ref = unchanged(pd.DataFrame({"t": times.astype(str).str.slice(0, 4)}))
+    with pytest.warns(DataQualityWarning, match="'t'"):
+        d = ProfileSession(batch).drift(ref)
+    assert d.loc[0, "flag"] in ("major", "moderate", "stable")
+    later = ProfileSession(batch).drift(unchanged(pd.DataFrame({"t": times})))
+    assert later.loc[0, "flag"] == "time_axis"
