@@ -170,11 +170,13 @@ FIRST_CALL = textwrap.dedent(
     t0 = time.perf_counter()
     import numpy as np
     import infoscope
-    from infoscope.engine import PairEngine
+    from infoscope.engine import PairEngine, counting
     from types import SimpleNamespace as Col
+    counting.SERIAL_INCREMENTS = 0  # compile / load the threaded kernel too
     t1 = time.perf_counter()
     cols = [Col(name=f"c{i}", codes=np.zeros(1000, np.uint8), k=3) for i in range(3)]
-    PairEngine(cols, progress=False, backend="numba").tables()
+    PairEngine(cols, progress=False, backend="numba", threads=2).tables()
+    PairEngine(cols, progress=False, backend="numba", threads=1).tables()
     t2 = time.perf_counter()
     print(f"{t1 - t0:.3f} {t2 - t1:.3f}")
     """
