@@ -229,8 +229,9 @@ class ProfileSession:
         ``"drop"``: a row missing in a column is left out of that column's counts
         (pairwise-complete cases for pairs); ``"category"``: missing is a symbol.
     max_categories : int, default=64
-        Categorical columns keep at most this many symbols; rarer levels are folded
-        into one (flag ``levels_folded``).
+        Categorical columns keep at most this many symbols in the pair tables;
+        rarer levels are folded into one (flag ``levels_folded``).  The entropy
+        table still counts every level (see :meth:`entropy`).
     target : str, optional
         Column key used by :meth:`relevance` when no target is passed.
     measure : {"mi", "nmi", "adjusted_mi", "vi"}, default="mi"
@@ -253,6 +254,14 @@ class ProfileSession:
         Unique column keys, in frame order.
     settings : dict
         The current settings (a copy).
+    n_rows : int
+        Rows of the frame (before any sample).
+    last_estimated : tuple of (str, str)
+        The pairs the last :meth:`pairs` / :meth:`matrix` call estimated; the
+        others came from the session's cache (per pair: the two encoded columns
+        and the estimator settings), so after :meth:`update` or
+        :meth:`set_column_bins` only the pairs touching a re-encoded column are
+        re-estimated.  Entropy and relevance rows are cached the same way.
 
     References
     ----------
