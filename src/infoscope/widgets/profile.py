@@ -5,8 +5,9 @@ Protocol (front end <-> kernel)
 The front end (``static/profile.js``) sets the *public* traits (the settings) and
 calls ``save_changes``. The kernel answers by filling the ``_``-prefixed data traits.
 Every settings change gets a new *generation* number; recomputes are debounced
-(``debounce`` seconds, 0.15 by default; leading edge: a change after a quiet spell
-starts at once, the changes right after it collapse into one trailing recompute),
+(``debounce`` seconds, 0.15 by default; leading edge: a change while nothing is
+pending starts at once, the changes made while it runs collapse into one trailing
+recompute),
 run on one worker thread (the kernel's
 message thread stays free), report progress in ``_status`` and are applied with
 ``hold_sync`` so a view never shows half an update. A result whose generation is
@@ -180,7 +181,6 @@ class _ProfileBase(anywidget.AnyWidget):
         self._outstanding = 0                   # requests not yet finished
         self._timer: threading.Timer | None = None
         self._timer_gen: int | None = None
-        self._last_request = -float("inf")      # monotonic time of the newest request
         self._cancel = threading.Event()
         self._shown_settings: dict = {}
         self._reverting = False
@@ -312,12 +312,10 @@ class _ProfileBase(anywidget.AnyWidget):
         superseded while it waited in the debounce timer, which releases its count).
         """
         with self._lock:
-            # Leading edge: a change after a quiet spell (no timer waiting, no request
-            # in the last `debounce` seconds) starts at once; the changes that follow
-            # it within `debounce` collapse into one trailing recompute.
-            now = time.monotonic()
-            quiet = self._timer is None and now - self._last_request >= self._debounce
-            self._last_request = now
+            # Leading edge: a change while nothing is pending (no timer waiting, no
+            # recompute queued or running) starts at once; the changes that follow it
+            # while it runs collapse into one trailing recompute after `debounce`.
+            quiet = self._timer is None and self._outstanding == 0
             self._requested += 1
             gen = self._requested
             self._pending_parts |= parts
@@ -754,9 +752,9 @@ class ProfileWidget(_ProfileBase):
     session : infoscope.frame.session.ProfileSession
         The state the view shows; settings start from ``session.settings``.
     debounce : float, default=0.15
-        Rapid changes collapse into one recompute: a change after ``debounce``
-        quiet seconds recomputes at once; later changes within ``debounce`` of the
-        previous one wait until the controls have been still that long.
+        Rapid changes collapse into one recompute: a change while nothing is
+        pending recomputes at once; changes made while a recompute runs (or waits)
+        wait until the controls have been still this many seconds.
     preview_rows : int or None, default=200_000
         A frame with more rows gets its first view from a seeded sample of this many
         rows (labelled "sampled"), then the full data; None always uses every row.
