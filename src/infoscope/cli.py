@@ -191,7 +191,8 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
                                          "q_value", "leakage"]]), out)
         drift = ProfileSession(batch, bins=args.bins).drift(frame)
         _section(f"drift of a later batch ({len(batch)} rows) from the log "
-                 "(PSI: < 0.10 stable, 0.10-0.25 moderate, >= 0.25 major)",
+                 "(PSI: < 0.10 stable, 0.10-0.25 moderate, >= 0.25 major; id_like / time_axis: "
+                 "drift by construction (identifiers; another period), not a change of distribution)",
                  format_table(drift[["column", "kind", "k", "psi", "js", "p_value", "flag"]]), out)
     notes = sorted({str(w.message) for w in caught})
     if notes:

@@ -20,6 +20,8 @@ PALETTE = {
     "stable": "#8db3c7",
     "moderate": "#e0a43a",
     "major": "#a8401a",
+    "id_like": "#b9b4a8",       # drift by construction (identifiers), neutral
+    "time_axis": "#cfc9bb",     # drift by construction (another period), neutral
 }
 
 SAMPLE_CAUTION = "Estimates from a sample; whiskers are confidence intervals."

@@ -284,7 +284,7 @@ def drift_chart(table: pd.DataFrame, *, width: int = 360) -> alt.LayerChart:
     """
     data = alt.Data(values=rec.drift_records(table))
     base = alt.Chart(data)
-    flags = ["stable", "moderate", "major"]
+    flags = ["stable", "moderate", "major", "id_like", "time_axis"]
     bars = base.mark_bar(height={"band": 0.6}).encode(
         y=alt.Y("column:N", sort=alt.EncodingSortField(field="psi", order="descending"), title=None,
                 axis=alt.Axis(labelLimit=180)),
