@@ -131,13 +131,16 @@ class InfoProfileAccessor:
     def __init__(self, frame: pd.DataFrame):
         self._frame = frame
 
-    def _session(self, settings: dict):
+    def _checked_frame(self):
         frame = self._frame
         if frame.shape[1] == 0:
             raise ValueError("the DataFrame has no columns: there is nothing to profile")
         if frame.shape[0] == 0:
             raise ValueError("the DataFrame has no rows: there is nothing to profile")
-        return session_for(frame, **settings)
+        return frame
+
+    def _session(self, settings: dict):
+        return session_for(self._checked_frame(), **settings)
 
     def session(self, **settings):
         """A new :class:`ProfileSession` of this frame (yours to ``update``).
@@ -163,8 +166,8 @@ class InfoProfileAccessor:
         """
         from infoscope.frame.session import ProfileSession
 
-        self._session({})  # the same checks
-        return ProfileSession(self._frame, **settings)
+        # the checks of the other methods, without hashing the frame for a cached session
+        return ProfileSession(self._checked_frame(), **settings)
 
     def entropy(self, **settings) -> pd.DataFrame:
         """Entropy of every column: see :meth:`ProfileSession.entropy`.
