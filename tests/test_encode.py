@@ -657,6 +657,67 @@ def test_encode_frame_accepts_polars():
     assert [(c.name, c.n_missing) for c in cols] == [("n", 1), ("s", 1)]
 
 
+def _threaded_frame(rows: int = 60_000) -> pd.DataFrame:
+    rng = np.random.default_rng(7)
+    x = rng.normal(size=rows)
+    x[:3] = [np.inf, -np.inf, np.nan]
+    many = pd.Categorical.from_codes(rng.integers(0, 90, size=rows), categories=[f"v{i}" for i in range(90)])
+    mixed = np.array([1, "1"] * (rows // 2), dtype=object)
+    return pd.DataFrame({"x": x, "many": many, "t": rng.choice(["p", "q", "r"], size=rows),
+                         "mixed": mixed, "i": rng.integers(0, 5, size=rows)})
+
+
+def test_encode_frame_threads_match_the_serial_path_and_warn_in_column_order():
+    df = _threaded_frame()
+    with pytest.warns(DataQualityWarning) as serial_w:
+        serial = [encode_column(df[c], name=c, cache=False) for c in df.columns]
+    for threads in (1, 2, 4):
+        with pytest.warns(DataQualityWarning) as got_w:
+            cols = encode_frame(df, threads=threads, cache=False)
+        # contract: the same EncodedColumn as encode_column, column by column
+        for a, b in zip(cols, serial):
+            assert (a.name, a.k, a.labels, a.kind, a.n_missing, a.flags, a.n_distinct) == \
+                   (b.name, b.k, b.labels, b.kind, b.n_missing, b.flags, b.n_distinct)
+            assert np.array_equal(a.codes, b.codes) and a.codes.dtype == b.codes.dtype
+        # the same warnings, each naming its column, in column order
+        assert [str(w.message) for w in got_w] == [str(w.message) for w in serial_w]
+    assert [str(w.message).split(":")[0] for w in got_w] == ["column 'x'", "column 'many'", "column 'mixed'"]
+    # numpy reference: 16 quantile bins of the finite values are numpy.quantile edges
+    # and numpy.digitize on the interior edges (the numpy.histogram convention)
+    finite = df["x"].to_numpy()[3:]
+    edges = np.quantile(finite, np.linspace(0, 1, 17))
+    assert np.array_equal(cols[0].codes[3:], np.digitize(finite, edges[1:-1]))
+
+
+def test_encode_frame_threads_raise_the_first_failing_column():
+    df = _threaded_frame()
+    df["many2"] = df["many"]
+    # max_categories=2 leaves no room beside '(other)' and '(missing)' in 'many' (the
+    # first column that needs folding and has missing rows)
+    df.loc[5, "many"] = np.nan
+    df.loc[6, "many2"] = np.nan
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        for threads in (1, 2):
+            with pytest.raises(ValueError, match=r"column 'many': max_categories=2 leaves no room"):
+                encode_frame(df, threads=threads, cache=False, missing="category", max_categories=2)
+    with pytest.raises(ValueError, match="threads: expected a positive integer"):
+        encode_frame(df, threads=0)
+    with pytest.raises(TypeError, match=r"unknown setting\(s\) \['bin'\]"):
+        encode_frame(df, bin=3)
+
+
+def test_encode_frame_threads_share_the_cache():
+    df = _threaded_frame(1_000)
+    store = EncodingCache()
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        first = encode_frame(df, threads=2, cache=store)
+        again = encode_frame(df, threads=2, cache=store)
+    assert len(store) == df.shape[1]
+    assert all(a is b for a, b in zip(first, again))  # contract: a hit returns the stored column
+
+
 # ---------------------------------------------------------------- bad input
 
 

@@ -976,6 +976,18 @@ def encode_column(
     >>> encode_column(["b", "a", "b", None], name="t", missing="category", cache=False).labels
     ('b', 'a', '(missing)')
     """
+    col, messages = _encode(values, name, bins, strategy, missing, max_categories, categorical_threshold, cache)
+    for m in messages:
+        warnings.warn(m, DataQualityWarning, stacklevel=2)
+    return col
+
+
+def _encode(values, name, bins, strategy, missing, max_categories, categorical_threshold, cache):
+    """:func:`encode_column` without issuing its warnings: ``(column, messages)``.
+
+    Safe to call from worker threads (it touches no warning filters); the caller
+    issues the messages, in column order, from its own thread.
+    """
     if not isinstance(name, str):
         raise TypeError(f"name must be a str (the column's key), got {type(name).__name__}; see column_keys")
     bins, strategy, missing, max_categories, threshold, settings = _check_settings(
@@ -1003,15 +1015,11 @@ def encode_column(
                     col = dataclasses.replace(col, name=name)
                     old = f"column {hit[0].name!r}: "
                     messages = tuple(f"column {name!r}: " + m[len(old):] for m in messages)
-                for m in messages:
-                    warnings.warn(m, DataQualityWarning, stacklevel=2)
-                return col
+                return col, messages
     col, messages = _build(series, name, bins, strategy, missing, max_categories, threshold, settings)
     if key is not None:
         store.put(key, (col, messages), _entry_bytes(col, messages))
-    for m in messages:
-        warnings.warn(m, DataQualityWarning, stacklevel=2)
-    return col
+    return col, messages
 
 
 # --------------------------------------------------------------------------- frames
@@ -1081,13 +1089,44 @@ def column_keys(columns: Sequence, *, warn: bool = True, _stacklevel: int = 2) -
     return out
 
 
-def encode_frame(frame, **settings) -> list[EncodedColumn]:
+# Columns of at least this many rows are worth a worker thread (below it the pool
+# costs more than it saves); small frames are encoded in the calling thread.
+PARALLEL_MIN_ROWS = 50_000
+
+_FRAME_SETTINGS = {
+    "bins": 16, "strategy": "quantile", "missing": "drop", "max_categories": 64,
+    "categorical_threshold": DEFAULT_CATEGORICAL_THRESHOLD, "cache": True,
+}
+
+
+def _frame_threads(threads, n_columns: int, n_rows: int) -> int:
+    if threads is None:
+        try:
+            import os
+
+            cores = len(os.sched_getaffinity(0))
+        except AttributeError:  # pragma: no cover - not Linux
+            cores = os.cpu_count() or 1
+        threads = cores if n_rows >= PARALLEL_MIN_ROWS else 1
+    elif isinstance(threads, bool) or not isinstance(threads, int) or threads < 1:
+        raise ValueError(f"threads: expected a positive integer or None, got {threads!r}")
+    return max(1, min(threads, n_columns))
+
+
+def encode_frame(frame, *, threads: int | None = None, **settings) -> list[EncodedColumn]:
     """Encode every column of a table (pandas or Polars DataFrame), keyed uniquely.
 
     Parameters
     ----------
     frame : pandas.DataFrame or polars.DataFrame
         The table; never modified.
+    threads : int or None, default=None
+        Worker threads that encode columns side by side (sorting, comparisons and
+        hashing in numpy / hashlib release the GIL). None: every core for frames of
+        at least 50,000 rows, else 1 (the calling thread). The result and the
+        warnings (issued in column order from the calling thread, each naming its
+        column) are the same whatever the number of threads; an error is the one
+        of the first column that fails, as with one thread.
     **settings
         Passed to :func:`encode_column` for every column (``bins``, ``strategy``,
         ``missing``, ``max_categories``, ``categorical_threshold``, ``cache``).
@@ -1101,6 +1140,7 @@ def encode_frame(frame, **settings) -> list[EncodedColumn]:
     ----------
     .. [1] pandas, ``pandas.DataFrame.iloc`` (columns by position, so repeated
        labels stay separate).
+    .. [2] Python, ``concurrent.futures.ThreadPoolExecutor``.
 
     Examples
     --------
@@ -1111,17 +1151,45 @@ def encode_frame(frame, **settings) -> list[EncodedColumn]:
     """
     if "name" in settings:
         raise TypeError("encode_frame: 'name' is not a setting (columns are keyed by their labels)")
+    unknown = sorted(set(settings) - set(_FRAME_SETTINGS))
+    if unknown:
+        raise TypeError(f"encode_frame: unknown setting(s) {unknown}; valid: {sorted(_FRAME_SETTINGS)}")
+    args = {**_FRAME_SETTINGS, **settings}
     if not isinstance(frame, pd.DataFrame):
         if hasattr(frame, "to_pandas"):
             frame = frame.to_pandas()
         else:
             raise TypeError(f"frame must be a pandas or Polars DataFrame, got {type(frame).__name__}")
     keys = column_keys(list(frame.columns), _stacklevel=3)
+    n_threads = _frame_threads(threads, len(keys), len(frame))
+    # columns are taken out of the frame here, in the calling thread
+    jobs = [(frame.iloc[:, i], key) for i, key in enumerate(keys)]
+
+    def one(job):
+        values, key = job
+        return _encode(values, key, args["bins"], args["strategy"], args["missing"], args["max_categories"],
+                       args["categorical_threshold"], args["cache"])
+
     out = []
-    for i, key in enumerate(keys):
-        with warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always")
-            out.append(encode_column(frame.iloc[:, i], name=key, **settings))
-        for w in caught:  # re-issued so that they point at the caller's line
-            warnings.warn(w.message, w.category, stacklevel=2)
+    if n_threads == 1:
+        for job in jobs:
+            col, messages = one(job)
+            for m in messages:  # issued here so that they point at the caller's line
+                warnings.warn(m, DataQualityWarning, stacklevel=2)
+            out.append(col)
+        return out
+    from concurrent.futures import ThreadPoolExecutor
+
+    with ThreadPoolExecutor(max_workers=n_threads, thread_name_prefix="infoscope-encode") as pool:
+        futures = [pool.submit(one, job) for job in jobs]
+        try:
+            for future in futures:
+                col, messages = future.result()  # the first failing column raises, as serially
+                for m in messages:
+                    warnings.warn(m, DataQualityWarning, stacklevel=2)
+                out.append(col)
+        except BaseException:
+            for future in futures:
+                future.cancel()
+            raise
     return out
