@@ -54,6 +54,17 @@ def _require(table: pd.DataFrame, columns: tuple[str, ...], what: str) -> None:
         raise ValueError(f"{what} lacks the result-table column(s) {missing}; see DEVELOPERS.md, result tables")
 
 
+def _row_records(table: pd.DataFrame, fields: tuple[str, ...], what: str) -> list[tuple[Any, dict]]:
+    """(row, record) for each row of a result table: ``fields`` cleaned, ``column`` as text."""
+    _require(table, fields, what)
+    out = []
+    for row in table.itertuples(index=False):
+        rec = {f: clean(getattr(row, f)) for f in fields}
+        rec["column"] = str(row.column)
+        out.append((row, rec))
+    return out
+
+
 ENTROPY_FIELDS = ("column", "kind", "k", "n", "missing", "entropy", "ci_low", "ci_high",
                   "max_entropy", "efficiency", "flags")
 
@@ -65,12 +76,10 @@ def entropy_records(table: pd.DataFrame, *, min_count=None) -> list[dict]:
     rows missing), not cells of a joint table, and the number of rows used gives the
     missing count back anyway, so nothing is hidden here.
     """
-    _require(table, ENTROPY_FIELDS, "the entropy table")
+    rows = _row_records(table, ENTROPY_FIELDS, "the entropy table")
     check_min_count(min_count)
     out = []
-    for row in table.itertuples(index=False):
-        rec = {f: clean(getattr(row, f)) for f in ENTROPY_FIELDS}
-        rec["column"] = str(row.column)
+    for row, rec in rows:
         rec["flags"] = str(row.flags or "")
         share = getattr(row, "missing_share", None)
         rec["missing_share"] = clean(share)
@@ -155,11 +164,8 @@ RELEVANCE_FIELDS = ("column", "k", "n", "mi", "ci_low", "ci_high", "nmi", "p_val
 
 def relevance_records(table: pd.DataFrame) -> list[dict]:
     """One record per column of a ``relevance(target)`` table."""
-    _require(table, RELEVANCE_FIELDS, "the relevance table")
     out = []
-    for row in table.itertuples(index=False):
-        rec = {f: clean(getattr(row, f)) for f in RELEVANCE_FIELDS}
-        rec["column"] = str(row.column)
+    for row, rec in _row_records(table, RELEVANCE_FIELDS, "the relevance table"):
         rec["leakage"] = bool(row.leakage)
         rec["sparse"] = bool(row.sparse)
         out.append(rec)
@@ -171,10 +177,4 @@ DRIFT_FIELDS = ("column", "kind", "k", "n", "n_reference", "psi", "kl", "js", "p
 
 def drift_records(table: pd.DataFrame) -> list[dict]:
     """One record per column of a ``drift(reference)`` table."""
-    _require(table, DRIFT_FIELDS, "the drift table")
-    out = []
-    for row in table.itertuples(index=False):
-        rec = {f: clean(getattr(row, f)) for f in DRIFT_FIELDS}
-        rec["column"] = str(row.column)
-        out.append(rec)
-    return out
+    return [rec for _, rec in _row_records(table, DRIFT_FIELDS, "the drift table")]
