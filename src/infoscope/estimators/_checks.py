@@ -54,18 +54,28 @@ def check_choice(value, valid: Iterable[str], parameter: str) -> str:
     return value
 
 
+def numeric_array(values, parameter: str, *, shape_words: str, dtype_words: str) -> np.ndarray:
+    """``np.asarray(values)`` if it is numeric (or boolean); otherwise a TypeError naming ``parameter``.
+
+    The messages read "<parameter> must be <shape_words>; got nested or ragged values"
+    and "<parameter> must be <dtype_words>, got dtype <dtype>".
+    """
+    try:
+        arr = np.asarray(values)
+    except (TypeError, ValueError):  # ragged nesting: numpy cannot make one array of it
+        raise TypeError(f"{parameter} must be {shape_words}; got nested or ragged values") from None
+    if arr.dtype == object or not (np.issubdtype(arr.dtype, np.number) or arr.dtype == bool):
+        raise TypeError(f"{parameter} must be {dtype_words}, got dtype {arr.dtype}")
+    return arr
+
+
 def check_counts(counts, parameter: str = "counts", *, ndim: int | None = 1) -> np.ndarray:
     """Validate a vector (or table) of counts: finite, >= 0, whole numbers.
 
     Returns a float64 array (float so that huge totals do not overflow and the
     estimators can work without casting); the values are exactly integral.
     """
-    try:
-        arr = np.asarray(counts)
-    except (TypeError, ValueError):  # ragged nesting: numpy cannot make one array of it
-        raise TypeError(f"{parameter} must be a rectangular array of counts; got nested or ragged values") from None
-    if arr.dtype == object or not (np.issubdtype(arr.dtype, np.number) or arr.dtype == bool):
-        raise TypeError(f"{parameter} must be numeric counts, got dtype {arr.dtype}")
+    arr = numeric_array(counts, parameter, shape_words="a rectangular array of counts", dtype_words="numeric counts")
     if ndim is not None and arr.ndim != ndim:
         shape = "a 1-D vector" if ndim == 1 else f"a {ndim}-D table"
         raise ValueError(f"{parameter} must be {shape}, got shape {arr.shape}")

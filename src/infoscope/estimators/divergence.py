@@ -25,7 +25,7 @@ import numbers
 import numpy as np
 from scipy import special
 
-from infoscope.estimators._checks import log_base
+from infoscope.estimators._checks import log_base, numeric_array
 
 __all__ = ["as_distribution", "cross_entropy", "js_divergence", "kl_divergence", "psi"]
 
@@ -79,12 +79,7 @@ def as_distribution(v, *, parameter: str = "p", counts=None, pseudocount=0.0) ->
     [0.25, 0.75]
     """
     a = _check_pseudocount(pseudocount)
-    try:
-        raw = np.asarray(v)
-    except (TypeError, ValueError):  # ragged nesting: numpy cannot make one array of it
-        raise TypeError(f"{parameter} must be a flat vector of numbers; got nested or ragged values") from None
-    if raw.dtype == object or not (np.issubdtype(raw.dtype, np.number) or raw.dtype == bool):
-        raise TypeError(f"{parameter} must be a numeric vector, got dtype {raw.dtype}")
+    raw = numeric_array(v, parameter, shape_words="a flat vector of numbers", dtype_words="a numeric vector")
     if raw.ndim != 1:
         raise ValueError(f"{parameter} must be a 1-D vector, got shape {raw.shape}")
     if raw.size == 0:
@@ -309,7 +304,7 @@ def psi(expected, actual, *, pseudocount=None, counts=None) -> float:
         # A side with no observations has no distribution to compare: smoothing it
         # (the default pseudocount) would make it uniform and give a made-up index.
         try:
-            as_distribution(v, parameter=name, counts=counts, pseudocount=0.0)
+            unsmoothed = as_distribution(v, parameter=name, counts=counts, pseudocount=0.0)
         except ValueError as err:
             if "no observations" not in str(err):
                 raise
@@ -320,6 +315,8 @@ def psi(expected, actual, *, pseudocount=None, counts=None) -> float:
         a = pseudocount
         if a is None:  # the default: 0.5 for counts, 0 for probabilities
             a = 0.5 if _reads_as_counts(v, counts) else 0.0
+        if a == 0:
+            return unsmoothed  # the same call as above: no need to read v again
         return as_distribution(v, parameter=name, counts=counts, pseudocount=a)
 
     e = prepare(expected, "expected")
