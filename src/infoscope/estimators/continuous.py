@@ -312,6 +312,22 @@ def differential_entropy(x, *, k=3, base=2, metric="chebyshev", jitter=None, see
 # ----------------------------------------------------------------------------
 # Mutual information between continuous variables: KSG (2004)
 # ----------------------------------------------------------------------------
+def _check_noise_options(jitter, seed, standardize):
+    """The checked ``jitter`` and the noise generator of the MI estimators (``standardize`` checked too)."""
+    jitter = _check_jitter(jitter, allow_none=False)
+    rng = _rng(seed)
+    if not isinstance(standardize, (bool, np.bool_)):
+        raise TypeError(f"standardize must be True or False, got {standardize!r}")
+    return jitter, rng
+
+
+def _in_unit(mi_nats: float, clip: bool, ln_base: float) -> float:
+    """An MI estimate in nats, clipped at 0 if asked, in the unit of ``ln_base``."""
+    if clip:
+        mi_nats = max(mi_nats, 0.0)
+    return mi_nats / ln_base
+
+
 def _prepare_for_mi(samples: np.ndarray, standardize: bool, jitter: float, rng):
     scales = _column_scales(samples)
     if standardize:
@@ -436,10 +452,7 @@ def ksg_mutual_information(
     k = _check_k(k, n)
     if isinstance(algorithm, bool) or algorithm not in (1, 2):
         raise ValueError(f"algorithm={algorithm!r} is not valid; choose 1 or 2 (KSG I(1) or I(2))")
-    jitter = _check_jitter(jitter, allow_none=False)
-    rng = _rng(seed)
-    if not isinstance(standardize, (bool, np.bool_)):
-        raise TypeError(f"standardize must be True or False, got {standardize!r}")
+    jitter, rng = _check_noise_options(jitter, seed, standardize)
 
     if np.all(np.ptp(xs, axis=0) == 0) or np.all(np.ptp(ys, axis=0) == 0):
         return 0.0  # a constant variable shares no information with anything
@@ -471,10 +484,7 @@ def ksg_mutual_information(
         nx = _inclusive_counts(tree_x, xs, eps_x)
         ny = _inclusive_counts(tree_y, ys, eps_y)
         mi = digamma(k) - 1.0 / k + digamma(n) - np.mean(digamma(nx.astype(float)) + digamma(ny.astype(float)))
-    mi = float(mi)
-    if clip:
-        mi = max(mi, 0.0)
-    return mi / ln_base
+    return _in_unit(float(mi), clip, ln_base)
 
 
 # ----------------------------------------------------------------------------
@@ -621,10 +631,7 @@ def mixed_mutual_information(
     n = check_same_length(x_continuous=xs, y_discrete=codes)
     k = _check_k(k, n)
     small_classes = check_choice(small_classes, ("shrink", "error"), "small_classes")
-    jitter = _check_jitter(jitter, allow_none=False)
-    rng = _rng(seed)
-    if not isinstance(standardize, (bool, np.bool_)):
-        raise TypeError(f"standardize must be True or False, got {standardize!r}")
+    jitter, rng = _check_noise_options(jitter, seed, standardize)
 
     class_sizes = np.bincount(codes)
     small = np.flatnonzero(class_sizes <= k)
@@ -678,7 +685,4 @@ def mixed_mutual_information(
     m = _strict_counts(cKDTree(xs), xs, radius) + 1
     sizes_used = np.bincount(codes)[codes].astype(float)
     mi = digamma(n_used) + np.mean(digamma(k_used)) - np.mean(digamma(sizes_used)) - np.mean(digamma(m.astype(float)))
-    mi = float(mi)
-    if clip:
-        mi = max(mi, 0.0)
-    return mi / ln_base
+    return _in_unit(float(mi), clip, ln_base)
