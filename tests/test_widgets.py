@@ -280,6 +280,22 @@ def test_late_result_for_old_setting_never_replaces_newer(frame):
     w.close()
 
 
+def test_progress_lines_only_for_slow_recomputes(frame):
+    # a quick recompute goes from "computing" straight to its numbers (no progress
+    # messages in between); a slow one (SlowSession sleeps 0.6 s for bins=3) reports
+    # its steps with increasing progress
+    s = quiet(SlowSession, frame, n_boot=0)
+    w = quiet(ProfileWidget, s, threaded=False)
+    seen = []
+    w.observe(lambda ch: seen.append(ch["new"]), names="_status")
+    quiet(setattr, w, "bins", 5)
+    assert [st["state"] for st in seen] == ["computing", "idle"]
+    seen.clear()
+    quiet(setattr, w, "bins", 3)
+    steps = [st["progress"] for st in seen if st["state"] == "computing"][1:]
+    assert len(steps) >= 2 and steps == sorted(steps) and seen[-1]["state"] == "idle"
+
+
 def test_cancel_message_stops_and_restores_controls(frame):
     s = quiet(SlowSession, frame, n_boot=0)
     w = quiet(ProfileWidget, s, debounce=0.0)

@@ -54,6 +54,9 @@ SORTS = ("entropy", "name", "efficiency", "missing_share")
 #: Frames longer than this get a first view from a seeded sample of this many rows.
 PREVIEW_ROWS = 200_000
 
+#: Seconds a recompute runs before it reports progress steps in ``_status``.
+PROGRESS_AFTER = 0.25
+
 #: Pair views precomputed into ``payload()`` for an offline export.
 PAYLOAD_TOP_PAIRS = 12
 
@@ -181,6 +184,7 @@ class _ProfileBase(anywidget.AnyWidget):
         self._outstanding = 0                   # requests not yet finished
         self._timer: threading.Timer | None = None
         self._timer_gen: int | None = None
+        self._run_started = 0.0                 # monotonic start of the running recompute
         self._cancel = threading.Event()
         self._shown_settings: dict = {}
         self._reverting = False
@@ -369,6 +373,7 @@ class _ProfileBase(anywidget.AnyWidget):
                 parts = set(self._pending_parts)
                 self._pending_parts = set()
                 snapshot = self._snapshot()
+                self._run_started = time.monotonic()
             try:
                 result, notes = self._compute(gen, parts, snapshot)
             except Cancelled:
@@ -410,8 +415,11 @@ class _ProfileBase(anywidget.AnyWidget):
     def _step(self, gen: int, progress: float, message: str) -> None:
         if self._cancel.is_set() or gen != self._requested:
             raise Cancelled()
-        self._status = {"state": "computing", "message": message, "generation": gen,
-                        "progress": progress, "notes": []}
+        # A quick recompute sends no progress lines (each is one more comm message
+        # and one more redraw before the numbers arrive); a slow one reports them.
+        if time.monotonic() - self._run_started >= PROGRESS_AFTER:
+            self._status = {"state": "computing", "message": message, "generation": gen,
+                            "progress": progress, "notes": []}
 
     def _compute(self, gen: int, parts: set[str], snap: dict):
         """Call the session for ``parts``; returns the trait values to set."""
