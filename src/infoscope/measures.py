@@ -289,7 +289,8 @@ def _check_common(missing, bins, strategy) -> None:
 
 def _coded_columns(named, *, bins, strategy, missing) -> list[_Coded]:
     _check_common(missing, bins, strategy)
-    prepared = [(_describe(v, p), p, _to_series(v, _describe(v, p))) for p, v in named]
+    described = [(_describe(v, p), p, v) for p, v in named]
+    prepared = [(name, p, _to_series(v, name)) for name, p, v in described]
     n = check_same_length(**{p: series for _, p, series in prepared})
     if n == 0:
         raise ValueError(f"{' and '.join(p for p, _ in named)} {'is' if len(named) == 1 else 'are'} empty (no rows)")
@@ -484,7 +485,8 @@ def _knn_mi(x, y, *, algorithm, k, base, missing, discrete, seed) -> float:
         raise ValueError(f"discrete={discrete!r} is not valid; choose one of: None, 'x', 'y', 'neither'")
     if missing == "category":
         raise ValueError("missing='category' cannot be used with a kNN estimator: continuous values have no missing symbol")
-    sx, sy = _to_series(x, _describe(x, "x")), _to_series(y, _describe(y, "y"))
+    name_x, name_y = _describe(x, "x"), _describe(y, "y")
+    sx, sy = _to_series(x, name_x), _to_series(y, name_y)
     if check_same_length(x=sx, y=sy) == 0:
         raise ValueError("x and y are empty (no rows)")
     if discrete is None:
@@ -496,7 +498,7 @@ def _knn_mi(x, y, *, algorithm, k, base, missing, discrete, seed) -> float:
             "x and y are both discrete (non-numeric); a kNN estimator needs a continuous side: "
             "use a count estimator such as estimator='miller_madow'"
         )
-    present = ~_missing_mask(sx, _describe(x, "x"), 4) & ~_missing_mask(sy, _describe(y, "y"), 4)
+    present = ~_missing_mask(sx, name_x, 4) & ~_missing_mask(sy, name_y, 4)
     if not present.all():
         if missing == "error":
             raise ValueError(
@@ -515,7 +517,7 @@ def _knn_mi(x, y, *, algorithm, k, base, missing, discrete, seed) -> float:
         if algorithm != 1:
             raise ValueError("estimator='ksg2' has no mixed discrete/continuous form; use estimator='ksg'")
         xc, yd = (cont(sy, "y"), sx[present]) if dx else (cont(sx, "x"), sy[present])
-        labels, _ = _label_codes(yd, _describe(x if dx else y, "x" if dx else "y"), stacklevel=4)
+        labels, _ = _label_codes(yd, name_x if dx else name_y, stacklevel=4)
         return continuous.mixed_mutual_information(xc, labels, k=k, base=base, seed=seed)
     return continuous.ksg_mutual_information(cont(sx, "x"), cont(sy, "y"), k=k, algorithm=algorithm, base=base, seed=seed)
 
