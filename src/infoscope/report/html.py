@@ -58,17 +58,16 @@ def _suppress_view(view: dict, threshold: int) -> dict:
     # takes part in the complementary suppression like any other small cell.
     raw = np.array([[1 if c is None else c for c in row] for row in counts], dtype=np.float64)
     mask = suppression_mask(raw, threshold)
+    n_rows, n_cols = raw.shape
+
+    def hide(grid: list) -> list:
+        return [[None if mask[i, j] else grid[i][j] for j in range(n_cols)] for i in range(n_rows)]
+
     out = dict(view)
-    out["counts"] = [[None if mask[i, j] else counts[i][j] for j in range(raw.shape[1])]
-                     for i in range(raw.shape[0])]
-    pmi = view.get("pmi")
-    if isinstance(pmi, list):
-        out["pmi"] = [[None if mask[i, j] else pmi[i][j] for j in range(raw.shape[1])]
-                      for i in range(raw.shape[0])]
-    for key in ("expected",):
+    out["counts"] = hide(counts)
+    for key in ("pmi", "expected"):  # per-cell numbers that would give a hidden count back
         if isinstance(view.get(key), list):
-            out[key] = [[None if mask[i, j] else view[key][i][j] for j in range(raw.shape[1])]
-                        for i in range(raw.shape[0])]
+            out[key] = hide(view[key])
     hidden = int(mask.sum())
     if hidden:
         out["row_totals"] = None
