@@ -281,8 +281,7 @@ def _code_column(series, name: str, *, bins, strategy, missing) -> _Coded:
 
 def _check_common(missing, bins, strategy) -> None:
     check_choice(missing, MISSING_POLICIES, "missing")
-    if strategy not in ("uniform", "quantile"):
-        raise ValueError(f"strategy={strategy!r} is not valid; choose one of: 'uniform', 'quantile'")
+    check_choice(strategy, ("uniform", "quantile"), "strategy")
     if bins is not None and (isinstance(bins, bool) or (isinstance(bins, numbers.Integral) and bins < 1)):
         raise ValueError(f"bins={bins!r} is invalid: give a number of bins >= 1, a rule name or edges")
 
