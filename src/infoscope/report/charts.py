@@ -172,7 +172,7 @@ def pair_chart(pair, *, min_count=None, unit: str = "bits", cell: int = 28) -> a
     3
     """
     data = rec.pair_records(pair, min_count=min_count)
-    threshold = check_min_count(min_count)
+    threshold = data["min_count"]  # min_count as checked by pair_records
     values = alt.Data(values=data["cells"])
     x = alt.X("col:N", sort=data["cols"], title=data["b"] or None,
               axis=alt.Axis(labelAngle=-45, labelLimit=120, orient="top"))
