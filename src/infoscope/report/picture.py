@@ -73,9 +73,9 @@ def _fmt(value: float | None, digits: int = 2) -> str:
 
 
 def _bars(items, *, x0: float, y0: float, label_w: float, bar_w: float, row_h: float,
-          unit: str, title: str, colour_of, whiskers: bool, outline_key: str | None,
+          unit: str, title: str, colour_of, outline_key: str | None,
           value_key: str, scale_max: float) -> tuple[list[str], float]:
-    """Horizontal bars with labels; returns the SVG parts and the height used."""
+    """Horizontal bars with labels and CI whiskers; returns the SVG parts and the height used."""
     parts = [f'<text x="{x0:.1f}" y="{y0 + 12:.1f}" font-size="13" font-weight="bold" {FONT}>{svg_text(title)}</text>']
     top = y0 + 22
     scale = bar_w / scale_max if scale_max > 0 else 0.0
@@ -94,7 +94,7 @@ def _bars(items, *, x0: float, y0: float, label_w: float, bar_w: float, row_h: f
             parts.append(f'<rect x="{bx:.1f}" y="{y + 3:.1f}" width="{max(value, 0) * scale:.1f}" '
                          f'height="{row_h - 6:.1f}" fill="{colour_of(item)}"/>')
         lo, hi = item.get("ci_low"), item.get("ci_high")
-        if whiskers and lo is not None and hi is not None:
+        if lo is not None and hi is not None:
             ym = y + row_h / 2
             parts.append(f'<line x1="{bx + lo * scale:.1f}" x2="{bx + hi * scale:.1f}" y1="{ym:.1f}" y2="{ym:.1f}" '
                          f'stroke="{PALETTE["whisker"]}" stroke-width="1.2"/>')
@@ -162,7 +162,7 @@ def profile_svg_from_tables(entropy: pd.DataFrame, matrix: pd.DataFrame | None =
     x = 10.0
     scale_max = max([b["max_entropy"] or 0.0 for b in bars] + [b["ci_high"] or 0.0 for b in bars] + [1e-9])
     body, h_bars = _bars(bars, x0=x, y0=28, label_w=150, bar_w=170, row_h=row_h, unit=unit,
-                         title="Entropy bars", colour_of=lambda _: PALETTE["bar"], whiskers=True,
+                         title="Entropy bars", colour_of=lambda _: PALETTE["bar"],
                          outline_key="max_entropy", value_key="entropy", scale_max=scale_max)
     parts += body
     width = x + 150 + 170 + 20
@@ -209,7 +209,7 @@ def profile_svg_from_tables(entropy: pd.DataFrame, matrix: pd.DataFrame | None =
         title = f"Relevance to {target}" if target else "Relevance"
         body, h_rel = _bars(items, x0=x, y0=ry, label_w=150, bar_w=170, row_h=row_h, unit=unit, title=title,
                             colour_of=lambda r: PALETTE["leak"] if r["leakage"] else PALETTE["bar"],
-                            whiskers=True, outline_key=None, value_key="mi", scale_max=top)
+                            outline_key=None, value_key="mi", scale_max=top)
         parts += body
         if any(r["leakage"] for r in items):
             parts.append(f'<text x="{x + 330:.1f}" y="{ry + 34:.1f}" font-size="10" fill="{PALETTE["leak"]}" {FONT}>'
