@@ -223,7 +223,7 @@ const SORT_LABELS = { entropy: "entropy", name: "name", efficiency: "efficiency"
 const FLAG_LABELS = {
   constant: "constant", id_like: "ID-like", mostly_missing: "mostly missing", sparse_cells: "sparse cells",
   heavy_tail: "heavy tail", levels_folded: "levels folded", mixed_types: "mixed types",
-  infinite_values: "infinite values",
+  infinite_values: "infinite values", rare_levels: "rare levels",
 };
 const FLAG_HELP = {
   constant: "one value only: carries no information",
@@ -231,9 +231,10 @@ const FLAG_HELP = {
   mostly_missing: "most rows missing",
   sparse_cells: "fewer than 5 rows per cell on average: estimates unreliable",
   heavy_tail: "heavy tail: equal-width bins would crowd",
-  levels_folded: "rare levels folded into one",
+  levels_folded: "rare levels folded into one: the grid and pair views use the folded levels, the entropy bar counts every level",
   mixed_types: "values of mixed types",
   infinite_values: "infinite values treated as missing",
+  rare_levels: "many thin levels (fewer than 5 rows or under 1% each) hold at least 5% of rows",
 };
 
 // ------------------------------------------------------------------ DOM helpers
