@@ -416,3 +416,46 @@ def test_engines_in_two_threads_count_correctly(rng):
         for (a, b), t in tables.items():
             # reference: pandas.crosstab
             np.testing.assert_array_equal(t, crosstab_reference(cols[int(a[1:])], cols[int(b[1:])]))
+
+
+# ------------------------------------------------------------- three-column tables
+@pytest.mark.parametrize("backend", ["numba", "numpy"])
+def test_three_column_tables_equal_pandas_crosstab(rng, backend):
+    # eight columns, small and large alphabets, some missing: the layout covers the
+    # low-cardinality pairs with triples (checked, so the test cannot pass without
+    # them) and counts the rest directly
+    ks = [2, 3, 5, 16, 16, 40, 64, 7]
+    cols = [make_col(f"c{i}", k, 3_000, rng, missing=0.05 * (i % 3)) for i, k in enumerate(ks)]
+    pairs = [(i, j) for i in range(len(ks)) for j in range(i + 1, len(ks))]
+    layout = counting.pair_layout(ks, pairs, triples=True, rows=3_000)
+    assert layout.triples.shape[0] >= 3 and layout.first.shape[0] >= 1
+    covered = {tuple(sorted(p)) for t in layout.triples.tolist() for p in ((t[0], t[1]), (t[0], t[2]), (t[1], t[2]))}
+    assert len(covered) == 3 * layout.triples.shape[0]  # every pair in at most one triple
+    assert all((ks[a] + 1) * (ks[b] + 1) * (ks[c] + 1) <= counting.TRIPLE_MAX_CELLS for a, b, c in layout.triples)
+    block = np.stack([c.codes for c in cols])
+    flat = np.zeros(layout.cells, np.int64)
+    counting.KERNELS[backend](block, layout, flat)
+    for (i, j), t in zip(pairs, layout.split(flat)):
+        # reference: pandas.crosstab over pairwise-complete rows
+        np.testing.assert_array_equal(t[:-1, :-1], crosstab_reference(cols[i], cols[j]), err_msg=f"{(i, j)}")
+        assert t.sum() == 3_000  # the sentinel row and column keep every row
+    # pairs asked for against column order come back transposed
+    reversed_pairs = [(j, i) for i, j in pairs]
+    rev = counting.pair_layout(ks, reversed_pairs, triples=True, rows=3_000)
+    flat = np.zeros(rev.cells, np.int64)
+    counting.KERNELS[backend](block, rev, flat)
+    for (j, i), t in zip(reversed_pairs, rev.split(flat)):
+        np.testing.assert_array_equal(t[:-1, :-1], crosstab_reference(cols[j], cols[i]))
+    # and the engine, through chunks of several sizes and the threaded kernel
+    with parallel_kernel_forced():
+        for chunk_rows in (700, 3_000):
+            eng = PairEngine(cols, progress=False, backend=backend, chunk_rows=chunk_rows, threads=2)
+            assert_all_pairs_match_crosstab(eng, cols)
+            assert eng.table("c7", "c0").tolist() == crosstab_reference(cols[7], cols[0]).tolist()
+
+
+def test_no_triples_when_tables_would_outgrow_the_rows():
+    # a triple table with more cells than rows counted gains nothing: pairs stay direct
+    layout = counting.pair_layout([16, 16, 16], [(0, 1), (0, 2), (1, 2)], triples=True, rows=100)
+    assert layout.triples.shape[0] == 0 and layout.first.shape[0] == 3
+    assert counting.pair_layout([16] * 3, [(0, 1), (0, 2), (1, 2)], triples=True).triples.shape[0] == 1

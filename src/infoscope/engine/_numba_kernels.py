@@ -26,20 +26,40 @@ def _count_one(a, b, stride, pitch, out):
         out[np.intp(a[r]) * stride + np.intp(b[r])] += 1
 
 
-@njit(parallel=True, nogil=True, cache=True, boundscheck=False)
-def count_pairs(block, first, second, stride, pitch, offset, out):
-    """Add the sentinel tables of every pair over ``block`` (columns, rows) into ``out``.
-
-    Threads split the pairs; each pair owns ``out[offset[q]:offset[q + 1]]``, so no
-    two threads write the same counter and nothing needs merging.
-    """
-    for q in prange(first.shape[0]):
-        _count_one(block[first[q]], block[second[q]], stride[q], pitch[q], out[offset[q]:offset[q + 1]])
+@njit(nogil=True, cache=True, boundscheck=False)
+def _count_three(a, b, c, s_a, s_b, out):
+    # The three-column table of one triple over one chunk: one counter per row for
+    # three pairs (row-major, strides s_a = (k_b + 1)(k_c + 1) and s_b = k_c + 1).
+    for r in range(a.shape[0]):
+        out[np.intp(a[r]) * s_a + np.intp(b[r]) * s_b + np.intp(c[r])] += 1
 
 
 @njit(nogil=True, cache=True, boundscheck=False)
-def count_pairs_serial(block, first, second, stride, pitch, offset, out):
+def _task(t, block, first, second, stride, pitch, offset, triples, tstride, toffset, out):
+    n_triples = triples.shape[0]
+    if t < n_triples:
+        _count_three(block[triples[t, 0]], block[triples[t, 1]], block[triples[t, 2]],
+                     tstride[t, 0], tstride[t, 1], out[toffset[t]:toffset[t + 1]])
+    else:
+        q = t - n_triples
+        _count_one(block[first[q]], block[second[q]], stride[q], pitch[q], out[offset[q]:offset[q + 1]])
+
+
+@njit(parallel=True, nogil=True, cache=True, boundscheck=False)
+def count_pairs(block, first, second, stride, pitch, offset, triples, tstride, toffset, out):
+    """Add the sentinel tables of every triple and direct pair over ``block`` (columns, rows).
+
+    Threads split the tasks (triples first: they are the longer ones); each task owns
+    its slice of ``out``, so no two threads write the same counter and nothing needs
+    merging.
+    """
+    for t in prange(triples.shape[0] + first.shape[0]):
+        _task(t, block, first, second, stride, pitch, offset, triples, tstride, toffset, out)
+
+
+@njit(nogil=True, cache=True, boundscheck=False)
+def count_pairs_serial(block, first, second, stride, pitch, offset, triples, tstride, toffset, out):
     """As :func:`count_pairs` in the calling thread: small chunks, where waking the
     thread pool would cost more than the counting."""
-    for q in range(first.shape[0]):
-        _count_one(block[first[q]], block[second[q]], stride[q], pitch[q], out[offset[q]:offset[q + 1]])
+    for t in range(triples.shape[0] + first.shape[0]):
+        _task(t, block, first, second, stride, pitch, offset, triples, tstride, toffset, out)

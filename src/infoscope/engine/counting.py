@@ -63,14 +63,33 @@ def _pitch(size: int) -> int:
     return pitch
 
 
+# Three-column tables: a triple of low-cardinality columns (a, b, c) is counted as one
+# (k_a + 1)(k_b + 1)(k_c + 1) table, one increment per row for three pairs; the three
+# pair tables are its sums over one axis each. A triple table at most this big (int64:
+# 128 KiB, inside a core's L2 cache) is used; bigger ones would spill the cache and
+# those pairs are counted directly. 0 turns triples off.
+TRIPLE_MAX_CELLS = 1 << 14
+
+
 @dataclass(frozen=True)
 class PairLayout:
-    """Where each pair's sentinel table lives inside one flat int64 counter array.
+    """Where the counters of each pair live inside one flat int64 counter array.
 
-    ``first[q]``/``second[q]`` index the code columns of pair ``q``, ``stride[q]`` is
-    ``k_second + 1``; the pair owns ``flat[offset[q]:offset[q + 1]]``, which holds
-    its row-major table once (``pitch[q] == 0``) or ``COPIES`` copies of it,
-    ``pitch[q]`` cells apart.
+    A pair is counted either directly or inside a three-column table.
+
+    Direct pairs ``d``: ``first[d]``/``second[d]`` index the code columns,
+    ``stride[d]`` is ``k_second + 1``, ``dshapes[d]`` the sentinel shape; the pair owns
+    ``flat[offset[d]:offset[d + 1]]``, which holds its row-major table once
+    (``pitch[d] == 0``) or ``COPIES`` copies of it, ``pitch[d]`` cells apart.
+
+    Triples ``g``: columns ``triples[g]`` (three indices, increasing), the table
+    ``flat[toffset[g]:toffset[g + 1]]`` row-major with strides ``tstride[g]``
+    (``(k_y + 1)(k_z + 1)`` and ``k_z + 1``).
+
+    ``shapes[q]`` is the sentinel shape of pair ``q`` as asked for, ``source[q]``
+    where it is counted: ``(0, d)`` direct pair ``d`` or ``(1, g, axis)`` triple
+    ``g`` summed over ``axis``; ``transpose[q]`` when the pair asked for runs
+    against the order of the counted table.
     """
 
     first: np.ndarray
@@ -78,31 +97,88 @@ class PairLayout:
     stride: np.ndarray
     pitch: np.ndarray
     offset: np.ndarray
+    dshapes: tuple[tuple[int, int], ...]
+    triples: np.ndarray
+    tstride: np.ndarray
+    toffset: np.ndarray
     shapes: tuple[tuple[int, int], ...]
+    source: tuple
+    transpose: tuple
 
     @property
     def cells(self) -> int:
-        return int(self.offset[-1])
+        return int(self.toffset[-1])
+
+    @property
+    def tasks(self) -> int:
+        """Counting tasks (direct pairs plus triples); each adds one count per row."""
+        return int(self.first.shape[0] + self.triples.shape[0])
 
     def split(self, flat: np.ndarray) -> list[np.ndarray]:
-        """One 2-D int64 table per pair: the sum of its copies."""
+        """One 2-D int64 sentinel table per pair asked for, in their order."""
+        cubes: dict = {}
         out = []
-        for q, (rows, cols) in enumerate(self.shapes):
-            pitch = int(self.pitch[q])
-            own = flat[self.offset[q]:self.offset[q + 1]]
-            if pitch:
-                own = own.reshape(COPIES, pitch)[:, : rows * cols].sum(axis=0)
-            out.append(own.reshape(rows, cols))
+        for q, src in enumerate(self.source):
+            if src[0] == 0:
+                d = src[1]
+                rows, cols = self.dshapes[d]
+                pitch = int(self.pitch[d])
+                own = flat[self.offset[d]:self.offset[d + 1]]
+                if pitch:
+                    own = own.reshape(COPIES, pitch)[:, : rows * cols].sum(axis=0)
+                t = own.reshape(rows, cols)
+            else:
+                _, g, axis = src
+                if g not in cubes:
+                    kz = int(self.tstride[g, 1])
+                    ky = int(self.tstride[g, 0]) // kz
+                    cubes[g] = flat[self.toffset[g]:self.toffset[g + 1]].reshape(-1, ky, kz)
+                t = cubes[g].sum(axis=axis)
+            out.append(t.T if self.transpose[q] else t)
         return out
 
 
-def pair_layout(ks: Sequence[int], pairs: Sequence[tuple[int, int]], names=None) -> PairLayout:
-    """Offsets of the sentinel tables of ``pairs`` (indices into ``ks``) in one flat array."""
+def _plan_triples(ks: Sequence[int], pairs, max_cells: int) -> list[tuple[int, int, int]]:
+    """Greedy cover of ``pairs`` (a < b) by column triples of at most ``max_cells`` cells.
+
+    Pairs are taken smallest table first; each gets the smallest third column whose
+    two other pairs are also wanted and not yet covered. The rest stay direct.
+    """
+    if max_cells <= 0 or len(pairs) < 3:
+        return []
+    p = len(ks)
+    kk = np.array([int(k) + 1 for k in ks], dtype=np.int64)
+    wanted = np.zeros((p, p), dtype=bool)
+    for a, b in pairs:
+        wanted[a, b] = wanted[b, a] = True
+    out = []
+    for a, b in sorted(pairs, key=lambda ab: (int(kk[ab[0]] * kk[ab[1]]), ab)):
+        if not wanted[a, b]:
+            continue
+        fits = wanted[a] & wanted[b] & (kk[a] * kk[b] * kk <= max_cells)
+        candidates = np.flatnonzero(fits)
+        if candidates.size == 0:
+            continue
+        c = int(candidates[np.argmin(kk[candidates])])
+        x, y, z = sorted((a, b, c))
+        out.append((x, y, z))
+        for u, v in ((x, y), (x, z), (y, z)):
+            wanted[u, v] = wanted[v, u] = False
+    return out
+
+
+def pair_layout(ks: Sequence[int], pairs: Sequence[tuple[int, int]], names=None, *,
+                triples: bool = False, rows: int | None = None) -> PairLayout:
+    """Offsets of the sentinel tables of ``pairs`` (indices into ``ks``) in one flat array.
+
+    With ``triples=True``, low-cardinality pairs are grouped into three-column tables
+    of at most :data:`TRIPLE_MAX_CELLS` cells (and fewer cells than ``rows``, the
+    rows to be counted, when given: a sparser table gains nothing).
+    """
     ks = [int(k) for k in ks]
-    first = np.fromiter((int(a) for a, _ in pairs), dtype=np.intp, count=len(pairs))
-    second = np.fromiter((int(b) for _, b in pairs), dtype=np.intp, count=len(pairs))
+    pairs = [(int(a), int(b)) for a, b in pairs]
     shapes = []
-    for a, b in zip(first.tolist(), second.tolist()):
+    for a, b in pairs:
         shape = (ks[a] + 1, ks[b] + 1)
         if shape[0] * shape[1] > MAX_TABLE_CELLS:
             label = (names[a], names[b]) if names is not None else (a, b)
@@ -112,12 +188,45 @@ def pair_layout(ks: Sequence[int], pairs: Sequence[tuple[int, int]], names=None)
                 "(e.g. a smaller max_categories) before counting pairs"
             )
         shapes.append(shape)
-    pitch = np.array([_pitch(r * c) for r, c in shapes], dtype=np.intp)
-    offset = np.zeros(len(pairs) + 1, dtype=np.intp)
-    sizes = np.array([r * c for r, c in shapes], dtype=np.intp)
+    limit = TRIPLE_MAX_CELLS if triples else 0
+    if rows is not None:
+        limit = min(limit, int(rows) - 1)
+    unordered = sorted({(min(a, b), max(a, b)) for a, b in pairs if a != b})
+    trip = _plan_triples(ks, unordered, limit)
+    in_triple = {}
+    for g, (x, y, z) in enumerate(trip):
+        in_triple[(y, z)] = (g, 0)
+        in_triple[(x, z)] = (g, 1)
+        in_triple[(x, y)] = (g, 2)
+    direct: dict = {}
+    source, transpose = [], []
+    for a, b in pairs:
+        key = (min(a, b), max(a, b))
+        if a != b and key in in_triple:
+            source.append((1, *in_triple[key]))
+            transpose.append(a > b)
+        else:
+            direct.setdefault((a, b), len(direct))
+            source.append((0, direct[(a, b)]))
+            transpose.append(False)
+    dpairs = list(direct)
+    first = np.fromiter((a for a, _ in dpairs), dtype=np.intp, count=len(dpairs))
+    second = np.fromiter((b for _, b in dpairs), dtype=np.intp, count=len(dpairs))
+    dshapes = tuple((ks[a] + 1, ks[b] + 1) for a, b in dpairs)
+    pitch = np.array([_pitch(r * c) for r, c in dshapes], dtype=np.intp)
+    offset = np.zeros(len(dpairs) + 1, dtype=np.intp)
+    sizes = np.array([r * c for r, c in dshapes], dtype=np.intp)
     np.cumsum(np.where(pitch > 0, COPIES * pitch, sizes), out=offset[1:])
-    stride = np.array([c for _, c in shapes], dtype=np.intp)
-    return PairLayout(first, second, stride, pitch, offset, tuple(shapes))
+    stride = np.array([c for _, c in dshapes], dtype=np.intp)
+    tarr = np.array(trip, dtype=np.intp).reshape(len(trip), 3)
+    tstride = np.array([[(ks[y] + 1) * (ks[z] + 1), ks[z] + 1] for _, y, z in trip], dtype=np.intp).reshape(-1, 2)
+    tsizes = np.array([(ks[x] + 1) * (ks[y] + 1) * (ks[z] + 1) for x, y, z in trip], dtype=np.intp)
+    toffset = np.empty(len(trip) + 1, dtype=np.intp)
+    toffset[0] = offset[-1]
+    np.cumsum(tsizes, out=toffset[1:])
+    toffset[1:] += offset[-1]
+    return PairLayout(first, second, stride, pitch, offset, dshapes, tarr, tstride, toffset,
+                      tuple(shapes), tuple(source), tuple(transpose))
 
 
 def block_dtype(ks: Sequence[int]) -> np.dtype:
@@ -155,13 +264,22 @@ def available_threads() -> int:
 def count_block_numpy(block: np.ndarray, layout: PairLayout, out: np.ndarray) -> None:
     """Add the counts of ``block`` (shape ``(columns, rows)``) into ``out`` (flat int64)."""
     wide = {}  # a column's codes as intp, converted once per block
-    for q in range(len(layout.shapes)):
-        a, b = int(layout.first[q]), int(layout.second[q])
-        if a not in wide:
-            wide[a] = block[a].astype(np.intp)
-        lo = int(layout.offset[q])  # the first copy is enough here
-        size = layout.shapes[q][0] * layout.shapes[q][1]
-        out[lo:lo + size] += np.bincount(wide[a] * int(layout.stride[q]) + block[b], minlength=size)
+
+    def as_intp(i):
+        if i not in wide:
+            wide[i] = block[i].astype(np.intp)
+        return wide[i]
+
+    for d in range(layout.first.shape[0]):
+        a, b = int(layout.first[d]), int(layout.second[d])
+        lo = int(layout.offset[d])  # the first copy is enough here
+        size = layout.dshapes[d][0] * layout.dshapes[d][1]
+        out[lo:lo + size] += np.bincount(as_intp(a) * int(layout.stride[d]) + block[b], minlength=size)
+    for g in range(layout.triples.shape[0]):
+        x, y, z = (int(v) for v in layout.triples[g])
+        lo, hi = int(layout.toffset[g]), int(layout.toffset[g + 1])
+        idx = as_intp(x) * int(layout.tstride[g, 0]) + as_intp(y) * int(layout.tstride[g, 1]) + block[z]
+        out[lo:hi] += np.bincount(idx, minlength=hi - lo)
 
 
 # Below this many increments (rows x pairs) a chunk is counted in the calling thread:
@@ -172,12 +290,13 @@ _PARALLEL_LOCK = threading.Lock()
 
 def count_block_numba(block: np.ndarray, layout: PairLayout, out: np.ndarray, *, parallel: bool = True) -> None:
     """Add the counts of ``block`` (shape ``(columns, rows)``) into ``out`` (flat int64)."""
-    if block.shape[1] == 0 or len(layout.shapes) == 0:
+    if block.shape[1] == 0 or layout.tasks == 0:
         return
     from infoscope.engine import _numba_kernels  # numba loads here, on the first count
 
-    args = (block, layout.first, layout.second, layout.stride, layout.pitch, layout.offset, out)
-    if not parallel or block.shape[1] * len(layout.shapes) < SERIAL_INCREMENTS:
+    args = (block, layout.first, layout.second, layout.stride, layout.pitch, layout.offset,
+            layout.triples, layout.tstride, layout.toffset, out)
+    if not parallel or block.shape[1] * layout.tasks < SERIAL_INCREMENTS:
         _numba_kernels.count_pairs_serial(*args)
         return
     # numba's default thread pool (workqueue) aborts the process when two threads
@@ -267,7 +386,7 @@ def count_chunk(codes_block, ks, pairs, *, backend: str = "auto") -> dict:
         if not (0 <= a < len(ks) and 0 <= b < len(ks)):
             raise ValueError(f"pairs: index pair {(a, b)} out of range for {len(ks)} columns")
     block = _as_block(codes_block, ks)
-    layout = pair_layout(ks, pairs)
+    layout = pair_layout(ks, pairs, triples=backend == "numba", rows=block.shape[1])
     flat = np.zeros(layout.cells, dtype=np.int64)
     KERNELS[backend](block, layout, flat)
     return dict(zip(pairs, layout.split(flat)))

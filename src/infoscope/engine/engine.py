@@ -460,7 +460,8 @@ class PairEngine:
         involved = list(dict.fromkeys(name for pair in pairs for name in pair))
         index = {name: i for i, name in enumerate(involved)}
         ks = [self._keys[name][1] for name in involved]
-        layout = pair_layout(ks, [(index[a], index[b]) for a, b in pairs], names=involved)
+        layout = pair_layout(ks, [(index[a], index[b]) for a, b in pairs], names=involved,
+                             triples=self._backend == "numba", rows=self.n or 0)
         dtype = block_dtype(ks)
         codes = [self._codes[name] for name in involved]
         rows = self.n or 0
