@@ -193,6 +193,20 @@ def test_assign_bins_matches_numpy_histogram_and_digitize(rng):
         np.testing.assert_array_equal(np.bincount(codes, minlength=edges.size - 1), np.histogram(x, edges)[0])
 
 
+def test_assign_bins_over_several_blocks_matches_numpy_digitize(rng):
+    # reference: numpy.digitize(x, edges[1:-1]) and numpy.histogram counts, on more
+    # values than one comparison block (2**16) and a length that is not a multiple of it
+    x = rng.lognormal(size=200_003)
+    x[::997] = 7.0  # ties on and near an edge
+    edges = np.quantile(x, np.linspace(0, 1, 17))
+    edges[9] = 7.0
+    edges.sort()
+    codes = assign_bins(x, edges)
+    assert codes.dtype == np.uint8
+    np.testing.assert_array_equal(codes, np.digitize(x, edges[1:-1], right=False))
+    np.testing.assert_array_equal(np.bincount(codes, minlength=16), np.histogram(x, edges)[0])
+
+
 def test_assign_bins_matches_pandas_cut_left_closed(rng):
     # reference: pandas.cut(x, edges, right=False, labels=False) (half-open [a, b)); pandas
     # leaves the maximum (== last edge) out, numpy.histogram closes the last bin
