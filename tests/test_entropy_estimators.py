@@ -396,3 +396,91 @@ def test_smoothed_estimates_are_entropies_of_a_distribution(counts, choice):
     estimator, alpha = choice
     h = entropy_from_counts(counts, estimator=estimator, alpha=alpha, base="nats")
     assert 0.0 <= h <= math.log(len(counts)) + 1e-12
+
+
+# --------------------------------------------------------------------------- fingerprint kernels
+from infoscope.estimators.entropy import (  # noqa: E402
+    FINGERPRINT_ESTIMATORS,
+    count_fingerprint,
+    entropy_nats,
+    fingerprint_entropy_nats,
+)
+from infoscope.estimators import entropy as _entropy_module  # noqa: E402
+
+# every estimator with the options that change its formula
+FINGERPRINT_CASES = [(e, None) for e in ENTROPY_ESTIMATORS if e != "dirichlet"] + [
+    ("dirichlet", a) for a in ("jeffreys", "laplace", "perks", "minimax", 2.5)
+]
+# few distinct values (so the fingerprint is really shorter) over up to 40 cells
+repeated_counts = st.lists(st.sampled_from([0, 1, 1, 2, 3, 7, 50]), min_size=2, max_size=40)
+with_zeros = repeated_counts.filter(lambda c: sum(c) > 0 and 0 in c)
+without_zeros = st.lists(st.integers(min_value=1, max_value=9), min_size=2, max_size=40)
+
+
+def _check_fingerprint_equals_cells(counts, estimator, alpha):
+    # Reference: the per-cell kernels ENTROPY_ESTIMATORS, each checked above against
+    # scipy.stats.entropy, dit, pyitlib and the published formulas; the estimators are
+    # symmetric in the cells, so regrouping the sums by count value changes rounding only.
+    n = np.asarray(counts, dtype=np.float64)
+    values, mult = count_fingerprint(n)
+    fast = float(fingerprint_entropy_nats(values, mult, n.size, n.sum(), estimator, alpha))
+    cells = float(entropy_nats(n, estimator, alpha))
+    assert fast == pytest.approx(cells, rel=1e-12, abs=1e-15)
+
+
+@settings(max_examples=40, deadline=None)
+@given(st.one_of(with_zeros, without_zeros), st.sampled_from(FINGERPRINT_CASES))
+def test_fingerprint_kernels_equal_the_per_cell_kernels(counts, case):
+    _check_fingerprint_equals_cells(counts, *case)
+
+
+@pytest.mark.parametrize("case", FINGERPRINT_CASES)
+@pytest.mark.parametrize("counts", [*COUNT_VECTORS, [1, 1, 1], [1, 1, 0, 0], [5, 0], [1, 0], [4, 4, 4]])
+def test_fingerprint_kernels_equal_the_per_cell_kernels_on_edge_cases(counts, case):
+    # all singletons (Chao-Shen's f1 = N - 1), one observed cell, one observation,
+    # a uniform vector (James-Stein's misfit 0): the special branches of each kernel
+    _check_fingerprint_equals_cells(counts, *case)
+
+
+def test_fingerprint_kernels_vectorise_over_rows():
+    # A (B, V) stack of multiplicities over shared values, as the bootstrap passes them,
+    # equals one call per row (and the per-cell kernel on each row).
+    rng = np.random.default_rng(3)
+    rows = rng.integers(0, 4, size=(6, 30)).astype(np.float64)
+    values = np.arange(4.0)
+    mult = np.stack([np.bincount(r.astype(int), minlength=4) for r in rows]).astype(np.float64)
+    for estimator, alpha in FINGERPRINT_CASES:
+        got = fingerprint_entropy_nats(values, mult, 30, rows.sum(axis=1), estimator, alpha)
+        np.testing.assert_allclose(got, entropy_nats(rows, estimator, alpha), rtol=1e-12, atol=1e-15)
+
+
+def test_count_fingerprint_of_a_vector():
+    values, mult = count_fingerprint([0, 3, 1, 1, 0, 1, 10**9])
+    assert values.tolist() == [0.0, 1.0, 3.0, 1e9] and mult.tolist() == [2.0, 3.0, 1.0, 1.0]
+    with pytest.raises(ValueError, match="counts"):
+        count_fingerprint([1, -1])
+    assert set(FINGERPRINT_ESTIMATORS) == set(ENTROPY_ESTIMATORS)
+
+
+@pytest.mark.parametrize("case", FINGERPRINT_CASES)
+def test_entropy_from_counts_takes_the_fingerprint_on_id_like_columns(case, monkeypatch):
+    # 30,000 cells holding 1, 2 or 3 rows: entropy_from_counts scores the fingerprint;
+    # forcing the per-cell kernel (threshold out of reach) gives the same number.
+    estimator, alpha = case
+    counts = np.tile([1.0, 1.0, 2.0, 3.0, 0.0], 6000)
+    fast = entropy_from_counts(counts, estimator=estimator, alpha=alpha)
+    monkeypatch.setattr(_entropy_module, "_FINGERPRINT_MIN_CELLS", 10**12)
+    assert fast == pytest.approx(entropy_from_counts(counts, estimator=estimator, alpha=alpha), rel=1e-12)
+
+
+def test_fingerprint_path_matches_scipy_and_closed_forms_on_singletons():
+    n = np.ones(100_000)
+    # Reference: scipy.stats.entropy(n, base=2) (the plug-in estimate, log2 N here)
+    assert entropy_from_counts(n, estimator="plugin") == pytest.approx(scipy.stats.entropy(n, base=2), rel=1e-12)
+    # Miller (1955): plug-in + (m - 1) / (2N) nats, m = N occupied cells
+    assert entropy_from_counts(n, estimator="miller_madow", base="nats") == pytest.approx(
+        math.log(1e5) + (1e5 - 1) / 2e5, rel=1e-12)
+    # Chao & Shen (2003) with f1 == N replaced by N - 1: C = 1/N, every pa = 1/N^2
+    pa = 1e-10
+    expected = 1e5 * (-pa * math.log(pa)) / -math.expm1(1e5 * math.log1p(-pa))
+    assert entropy_from_counts(n, estimator="chao_shen", base="nats") == pytest.approx(expected, rel=1e-12)

@@ -169,7 +169,7 @@ def test_log_rising_factorial_matches_the_product_form(x, n):
 def test_posterior_moments_of_h_match_dirichlet_monte_carlo(counts, beta, rng):
     # E[H | n, beta] and E[H^2 | n, beta] under the Dirichlet(n + beta) posterior
     # (NSB 2002; Wolpert & Wolf 1995) against numpy's Dirichlet sampler, 20000 draws.
-    post = _Posterior(np.array(counts, dtype=float))
+    post = _Posterior.of_counts(np.array(counts, dtype=float))
     mean, second = post.moments(np.array([math.log(beta)]))
     p = rng.dirichlet(np.array(counts, dtype=float) + beta, size=20000)
     h = scipy.stats.entropy(p, axis=1)

@@ -21,7 +21,14 @@ from scipy.special import digamma, xlogy
 
 from infoscope.estimators._checks import check_choice, check_counts, log_base
 
-__all__ = ["ENTROPY_ESTIMATORS", "DIRICHLET_PRIORS", "entropy_from_counts", "entropy_of_count_rows"]
+__all__ = [
+    "ENTROPY_ESTIMATORS",
+    "FINGERPRINT_ESTIMATORS",
+    "DIRICHLET_PRIORS",
+    "count_fingerprint",
+    "entropy_from_counts",
+    "entropy_of_count_rows",
+]
 
 
 # ---------------------------------------------------------------------------
@@ -139,6 +146,196 @@ ENTROPY_ESTIMATORS = {
     "grassberger": _grassberger,
     "nsb": _nsb,
 }
+
+
+# ---------------------------------------------------------------------------
+# fingerprint kernels: the same estimators from counts-of-counts
+# ---------------------------------------------------------------------------
+#
+# Every estimator above is symmetric in the cells, so it depends on the counts only
+# through their fingerprint: the distinct count values j (0 included when there are
+# empty cells) and the number m_j of cells holding each, with K = sum m_j and
+# N = sum j m_j.  The kernels below take
+#
+#   values (..., V)  distinct counts j (float64; a shared (V,) vector broadcasts)
+#   mult   (..., V)  multiplicities m_j (float64; m_j == 0 is allowed and ignored)
+#   K                the declared alphabet size (int, the same for every row)
+#   N      (...)     total counts, > 0
+#
+# and return nats (...).  Each is the per-cell kernel with every sum over cells
+# written as a sum over j of m_j times the term of one cell with count j: an
+# ID-like column with 100,000 singletons costs one term instead of 100,000.
+
+def _fp_plugin_of_frequencies(p: np.ndarray, mult: np.ndarray) -> np.ndarray:
+    return -(mult * xlogy(p, p)).sum(axis=-1) + 0.0
+
+
+def _fp_plugin(values, mult, K, N):
+    """Plug-in entropy in nats from a fingerprint."""
+    N = np.asarray(N, dtype=np.float64)
+    return _fp_plugin_of_frequencies(values / N[..., None], mult)
+
+
+def _fp_miller_madow(values, mult, K, N):
+    """Miller-Madow entropy in nats from a fingerprint (m = cells with j > 0)."""
+    N = np.asarray(N, dtype=np.float64)
+    m = (mult * (values > 0)).sum(axis=-1)
+    return _fp_plugin(values, mult, K, N) + (m - 1) / (2.0 * N)
+
+
+def _fp_chao_shen(values, mult, K, N):
+    """Chao-Shen entropy in nats from a fingerprint (f1 = m_1)."""
+    N = np.asarray(N, dtype=np.float64)
+    f1 = (mult * (values == 1)).sum(axis=-1)
+    f1 = np.where(f1 == N, N - 1.0, f1)
+    coverage = 1.0 - f1 / N
+    pa = coverage[..., None] * (values / N[..., None])
+    with np.errstate(divide="ignore", invalid="ignore"):
+        inclusion = -np.expm1(N[..., None] * np.log1p(-pa))
+        terms = np.where((values > 0) & (mult > 0), -xlogy(pa, pa) / inclusion, 0.0)
+    return (mult * terms).sum(axis=-1)
+
+
+def _fp_james_stein(values, mult, K, N):
+    """James-Stein shrinkage entropy in nats from a fingerprint (target 1/K)."""
+    N = np.asarray(N, dtype=np.float64)
+    p = values / N[..., None]
+    target = 1.0 / K
+    misfit = (mult * (target - p) ** 2).sum(axis=-1)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        lam = (1.0 - (mult * (p * p)).sum(axis=-1)) / ((N - 1.0) * misfit)
+    lam = np.where((N <= 1.0) | (misfit == 0.0) | ~np.isfinite(lam), 1.0, lam)
+    lam = np.clip(lam, 0.0, 1.0)
+    shrunk = lam[..., None] * target + (1.0 - lam[..., None]) * p
+    return _fp_plugin_of_frequencies(shrunk, mult)
+
+
+def _fp_dirichlet(values, mult, K, N, alpha=DEFAULT_DIRICHLET_PRIOR):
+    """Entropy in nats of the posterior-mean frequencies, from a fingerprint."""
+    N = np.asarray(N, dtype=np.float64)
+    if isinstance(alpha, str):
+        a = np.asarray(DIRICHLET_PRIORS[alpha](N, K), dtype=np.float64)
+    else:
+        a = np.broadcast_to(np.float64(alpha), N.shape)
+    p = (values + a[..., None]) / (N + K * a)[..., None]
+    return _fp_plugin_of_frequencies(p, mult)
+
+
+def _fp_grassberger(values, mult, K, N):
+    """Grassberger (2003, eq. 35) entropy in nats from a fingerprint."""
+    N = np.asarray(N, dtype=np.float64)
+    return np.log(N) - (mult * (values * _grassberger_g(values))).sum(axis=-1) / N
+
+
+def _fp_nsb(values, mult, K, N):
+    """NSB posterior-mean entropy in nats from a fingerprint (one integral per row)."""
+    from infoscope.estimators.nsb import nsb_fingerprint_nats
+
+    N = np.asarray(N, dtype=np.float64)
+    values, mult = np.broadcast_arrays(values, mult)
+    flat_v = values.reshape(-1, values.shape[-1])
+    flat_m = mult.reshape(-1, mult.shape[-1])
+    flat_n = np.broadcast_to(N, values.shape[:-1]).reshape(-1)
+    out = np.empty(flat_n.size)
+    for r in range(flat_n.size):
+        keep = flat_m[r] > 0
+        out[r] = nsb_fingerprint_nats(flat_v[r][keep], flat_m[r][keep], K, flat_n[r], with_std=False)[0]
+    return out.reshape(values.shape[:-1])
+
+
+#: Estimator name -> fingerprint kernel: (values, mult, K, N) -> entropy in nats,
+#: equal (to rounding) to the kernel of the same name in :data:`ENTROPY_ESTIMATORS`.
+FINGERPRINT_ESTIMATORS = {
+    "plugin": _fp_plugin,
+    "miller_madow": _fp_miller_madow,
+    "chao_shen": _fp_chao_shen,
+    "james_stein": _fp_james_stein,
+    "dirichlet": _fp_dirichlet,
+    "grassberger": _fp_grassberger,
+    "nsb": _fp_nsb,
+}
+
+
+def count_fingerprint(counts) -> tuple[np.ndarray, np.ndarray]:
+    r"""Counts-of-counts of a count vector: its distinct values and their multiplicities.
+
+    Parameters
+    ----------
+    counts : array_like of shape (K,)
+        Non-negative whole-number counts, one per possible symbol (zeros included).
+
+    Returns
+    -------
+    values : numpy.ndarray of float64, shape (V,)
+        The distinct counts j in increasing order (0 first when some cell is empty).
+    mult : numpy.ndarray of float64, shape (V,)
+        :math:`m_j`, how many cells hold count j; ``mult.sum() == K`` and
+        ``(values * mult).sum() == N``.
+
+    Raises
+    ------
+    ValueError
+        If ``counts`` is not 1-D, is negative, non-integral or NaN/inf.
+
+    Notes
+    -----
+    Every estimator of :data:`ENTROPY_ESTIMATORS` is symmetric in the cells, so it
+    is a function of (values, mult) alone; the kernels of
+    :data:`FINGERPRINT_ESTIMATORS` compute it from them.  The fingerprint is also
+    called the "profile" of the sample in the estimation literature (Orlitsky et al.
+    2004) -- common practice; from memory.
+
+    References
+    ----------
+    .. [1] A. Orlitsky, N. P. Santhanam, K. Viswanathan, J. Zhang, "On modeling
+       profiles instead of values", Proceedings of the 20th Conference on Uncertainty
+       in Artificial Intelligence (2004) 426-435.
+
+    Examples
+    --------
+    >>> from infoscope.estimators.entropy import count_fingerprint
+    >>> values, mult = count_fingerprint([1, 1, 3, 0, 1])
+    >>> values.tolist(), mult.tolist()
+    ([0.0, 1.0, 3.0], [1.0, 3.0, 1.0])
+    """
+    return _fingerprint(check_counts(counts, "counts"))
+
+
+def _fingerprint(n: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """(values, mult) of a validated 1-D float64 count vector."""
+    if n.size and n.max() <= 4.0 * n.size + 1024.0:
+        # small counts: one bincount (O(K)) instead of a sort
+        freq = np.bincount(n.astype(np.int64))
+        values = np.flatnonzero(freq)
+        return values.astype(np.float64), freq[values].astype(np.float64)
+    values, mult = np.unique(n, return_counts=True)
+    return values.astype(np.float64), mult.astype(np.float64)
+
+
+def fingerprint_entropy_nats(values, mult, K: int, N, estimator: str, alpha) -> np.ndarray:
+    """Dispatch a fingerprint to its kernel; K == 1 gives exactly 0."""
+    N = np.asarray(N, dtype=np.float64)
+    if K == 1:
+        return np.zeros(np.broadcast_shapes(np.shape(mult)[:-1], N.shape))
+    kernel = FINGERPRINT_ESTIMATORS[estimator]
+    if estimator == "dirichlet":
+        return kernel(values, mult, K, N, alpha)
+    return kernel(values, mult, K, N)
+
+
+# A vector with at least this many cells and at most one distinct count per
+# _FINGERPRINT_RATIO cells is scored from its fingerprint.
+_FINGERPRINT_MIN_CELLS = 1024
+_FINGERPRINT_RATIO = 8
+
+
+def vector_entropy_nats(n: np.ndarray, estimator: str, alpha) -> float:
+    """Entropy (nats) of one validated count vector with N > 0, by the cheaper kernel."""
+    if n.size >= _FINGERPRINT_MIN_CELLS:
+        values, mult = _fingerprint(n)
+        if values.size * _FINGERPRINT_RATIO <= n.size:
+            return float(fingerprint_entropy_nats(values, mult, n.size, n.sum(), estimator, alpha))
+    return float(entropy_nats(n, estimator, alpha))
 
 
 # ---------------------------------------------------------------------------
@@ -287,7 +484,7 @@ def entropy_from_counts(counts, *, estimator="miller_madow", base=2, alpha=None)
         raise ValueError("counts is empty: pass one count per possible symbol (K >= 1)")
     if n.sum() == 0:
         raise ValueError("counts has no observations (every count is 0): the entropy is undefined")
-    return float(entropy_nats(n, estimator, a)) / divisor
+    return vector_entropy_nats(n, estimator, a) / divisor
 
 
 def entropy_of_count_rows(counts, *, estimator="miller_madow", base=2, alpha=None) -> np.ndarray:

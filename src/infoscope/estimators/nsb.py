@@ -43,7 +43,7 @@ from scipy.special import digamma, gammaln
 
 from infoscope.estimators._checks import check_counts, log_base
 
-__all__ = ["NSBPosterior", "nsb_posterior", "nsb_posterior_nats"]
+__all__ = ["NSBPosterior", "nsb_fingerprint_nats", "nsb_posterior", "nsb_posterior_nats"]
 
 # grid in t = ln(beta); the integrand decays like beta**(observed cells) for small
 # beta and like 1/beta for large beta, so [-60, 60] holds all but ~e**-40 of it.
@@ -134,14 +134,19 @@ def _dxi_dbeta(beta: np.ndarray, K: int) -> np.ndarray:
 class _Posterior:
     """The NSB integrand for one count vector, as functions of t = ln(beta)."""
 
-    def __init__(self, counts: np.ndarray):
-        self.K = counts.size
-        self.N = float(counts.sum())
-        values, mult = np.unique(counts, return_counts=True)
-        self.values = values.astype(float)           # distinct counts (0 included if any)
-        self.mult = mult.astype(float)               # how many cells have each count
+    def __init__(self, values: np.ndarray, mult: np.ndarray, K: int, N: float):
+        self.K = K
+        self.N = float(N)
+        self.values = np.asarray(values, float)      # distinct counts (0 included if any)
+        self.mult = np.asarray(mult, float)          # how many cells have each count
         seen = self.values > 0
         self.seen_values, self.seen_mult = self.values[seen], self.mult[seen]
+
+    @classmethod
+    def of_counts(cls, counts: np.ndarray) -> "_Posterior":
+        """The integrand of a validated float64 count vector (its fingerprint taken here)."""
+        values, mult = np.unique(counts, return_counts=True)
+        return cls(values.astype(float), mult.astype(float), counts.size, counts.sum())
 
     def log_weight(self, t) -> np.ndarray:
         """ln of rho(beta | n) * beta (the Jacobian of t = ln beta), up to a constant."""
@@ -220,7 +225,21 @@ def nsb_posterior_nats(counts: np.ndarray, with_std: bool = True) -> tuple[float
     """
     if counts.size == 1:
         return 0.0, 0.0, math.nan
-    post = _Posterior(counts)
+    values, mult = np.unique(counts, return_counts=True)
+    return nsb_fingerprint_nats(values.astype(float), mult.astype(float), counts.size, counts.sum(), with_std)
+
+
+def nsb_fingerprint_nats(values, mult, K: int, N: float, with_std: bool = True) -> tuple[float, float, float]:
+    """:func:`nsb_posterior_nats` from the fingerprint of the counts.
+
+    ``values`` are the distinct counts (0 included when some cell is empty),
+    ``mult`` how many of the K cells hold each (``mult.sum() == K``), N > 0 the total.
+    The posterior only ever sees the counts through these, so the result is the
+    same as from the full vector.
+    """
+    if K == 1:
+        return 0.0, 0.0, math.nan
+    post = _Posterior(values, mult, K, N)
     grid = np.arange(_T_LOW, _T_HIGH + _T_STEP / 2, _T_STEP)
     lw = post.log_weight(grid)
     i = int(np.nanargmax(lw))

@@ -11,9 +11,9 @@ Large alphabets (an ID-like column: tens of thousands of cells, few rows each) a
 drawn by groups of equal counts instead (``_grouped_draws``): numpy's multinomial
 draw costs one binomial per cell per replicate, while every entropy estimator here
 is symmetric in the cells, so the cells seen c times can share one uniform draw of
-the rows that fall in their group.  The distribution of the replicates is the same;
-for the plug-in and Miller-Madow estimators a replicate is scored from its
-fingerprint (how many cells were seen j times) without building the K-cell vector.
+the rows that fall in their group.  The distribution of the replicates is the same,
+and each replicate is scored from its fingerprint (how many cells were seen j
+times) by the estimator's counts-of-counts kernel, without building the K-cell vector.
 
 Two kinds of interval (``method=``):
 
@@ -39,7 +39,13 @@ from typing import NamedTuple
 import numpy as np
 
 from infoscope.estimators._checks import check_choice, check_counts, check_same_length, log_base
-from infoscope.estimators.entropy import ENTROPY_ESTIMATORS, entropy_nats, resolve_alpha
+from infoscope.estimators.entropy import (
+    ENTROPY_ESTIMATORS,
+    entropy_nats,
+    fingerprint_entropy_nats,
+    resolve_alpha,
+    vector_entropy_nats,
+)
 
 __all__ = [
     "ConfidenceInterval",
@@ -175,7 +181,8 @@ def _grouped_draws(rng, n: np.ndarray, n_total: int, n_boot: int):
         out = []
         for g in range(values.size):
             m, t = int(sizes[g]), int(totals[r, g])
-            draws = rng.integers(0, m, size=t, dtype=np.int32 if m < 2**31 else np.int64)
+            # intp draws: np.bincount would otherwise copy them to intp first
+            draws = rng.integers(0, m, size=t, dtype=np.intp)
             out.append(np.bincount(draws, minlength=m))
         yield out
 
@@ -204,34 +211,39 @@ def _grouped_blocks(rng, n: np.ndarray, n_total: int, n_boot: int):
             block = None
 
 
-#: Estimators scored straight from the fingerprint of a replicate (the number F_j of
-#: cells seen j times): for these two the value depends on N and the F_j only.
-_FINGERPRINT_ESTIMATORS = ("plugin", "miller_madow")
+def _grouped_fingerprints(rng, n: np.ndarray, n_total: int, n_boot: int) -> np.ndarray:
+    """(n_boot, J) fingerprints of grouped replicates: F[r, j] cells of replicate r seen j times.
 
-
-def _fingerprint_entropy_nats(rng, n: np.ndarray, n_total: int, n_boot: int, estimator: str) -> np.ndarray:
-    r"""Plug-in or Miller-Madow entropy (nats) of n_boot grouped replicates.
-
-    With :math:`F_j` cells seen j times in a replicate of N rows,
-    :math:`\hat H = \ln N - \sum_j F_j\, j \ln j / N` (the plug-in estimate
-    :math:`-\sum_i (n_i/N) \ln(n_i/N)` regrouped), plus :math:`(m - 1)/(2N)`,
-    :math:`m = \sum_{j \ge 1} F_j`, for Miller-Madow (Miller 1955).
+    Column 0 counts every cell of the declared alphabet left empty, the
+    never-observed ones included, so that each row sums to K = ``n.size``.
     """
-    out = np.empty(n_boot)
-    log_n = np.log(n_total)
-    for r, groups in enumerate(_grouped_draws(rng, n, n_total, n_boot)):
+    rows = []
+    for groups in _grouped_draws(rng, n, n_total, n_boot):
         fps = [np.bincount(counts) for counts in groups]
-        fp = np.zeros(max(f.size for f in fps))
+        fp = np.zeros(max(f.size for f in fps), dtype=np.int64)
         for f in fps:
             fp[:f.size] += f
-        j = np.arange(fp.size, dtype=np.float64)
-        nlogn = np.zeros(fp.size)
-        nlogn[2:] = j[2:] * np.log(j[2:])
-        h = log_n - float(fp @ nlogn) / n_total
-        if estimator == "miller_madow":
-            h += (float(fp[1:].sum()) - 1.0) / (2.0 * n_total)
-        out[r] = h
+        rows.append(fp)
+    out = np.zeros((n_boot, max(f.size for f in rows)), dtype=np.float64)
+    for r, fp in enumerate(rows):
+        out[r, :fp.size] = fp
+    out[:, 0] = n.size - out[:, 1:].sum(axis=1)
     return out
+
+
+def _fingerprint_entropy_nats(rng, n: np.ndarray, n_total: int, n_boot: int, estimator: str,
+                              alpha=None) -> np.ndarray:
+    r"""Entropy (nats) of n_boot grouped replicates, each scored from its fingerprint.
+
+    A replicate of N rows over K cells with :math:`F_j` cells seen j times is scored
+    by the estimator's kernel in :data:`infoscope.estimators.entropy.FINGERPRINT_ESTIMATORS`
+    (values j = 0, 1, ..., multiplicities :math:`F_j`), which equals the per-cell
+    kernel on the K-cell vector; the vector itself is never built.  For the plug-in
+    estimate this is :math:`\ln N - \sum_j F_j\, j \ln j / N`.
+    """
+    fps = _grouped_fingerprints(rng, n, n_total, n_boot)
+    values = np.arange(fps.shape[1], dtype=np.float64)
+    return fingerprint_entropy_nats(values, fps, n.size, np.full(n_boot, float(n_total)), estimator, alpha)
 
 
 def _resampling_inputs(counts, parameter, ndim, estimator, alpha, base, level, n_boot, seed):
@@ -329,15 +341,12 @@ def bootstrap_entropy_ci(
         counts, "counts", 1, estimator, alpha, base, level, n_boot, seed
     )
     method = check_choice(method, INTERVAL_METHODS, "method")
-    if _use_grouped(n, total) and estimator in _FINGERPRINT_ESTIMATORS:
-        values = _fingerprint_entropy_nats(rng, n, total, n_boot, estimator)
+    if _use_grouped(n, total):
+        values = _fingerprint_entropy_nats(rng, n, total, n_boot, estimator, a)
     else:
-        if _use_grouped(n, total):
-            blocks = _grouped_blocks(rng, n, total, n_boot)
-        else:
-            blocks = _multinomial_blocks(rng, total, n / total, n_boot)
+        blocks = _multinomial_blocks(rng, total, n / total, n_boot)
         values = np.concatenate([entropy_nats(block, estimator, a) for block in blocks])
-    estimate = float(entropy_nats(n[None, :], estimator, a)[0]) / divisor
+    estimate = vector_entropy_nats(n, estimator, a) / divisor
     return _interval(values / divisor, level, method, estimate)
 
 
