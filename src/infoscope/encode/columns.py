@@ -681,15 +681,25 @@ def _boolean(x: np.ndarray, na: np.ndarray | None) -> _Levels:
 
 def _categorical(series: pd.Series, notes: _Notes) -> _Levels:
     cats = series.cat.categories
-    raw = series.cat.codes.to_numpy().astype(np.int64)
+    raw = series.cat.codes.to_numpy()  # int8 / int16 / ..., -1 missing (kept narrow)
     if cats.dtype.kind in "iuf":
         labels = _format_numbers(cats.to_numpy())
     elif cats.dtype.kind in "mM":
         labels = [str(c) for c in cats]
     else:
         labels = list(_cell_texts(cats.to_numpy(dtype=object), notes))
-    used = np.bincount(raw[raw >= 0], minlength=len(cats))
+    used = _level_counts(raw, len(cats))
     return _Levels(raw, labels, bool(series.cat.ordered), "categorical", int(np.count_nonzero(used)))
+
+
+def _level_counts(raw: np.ndarray, n_levels: int) -> np.ndarray:
+    """Rows of each level ``0 .. n_levels-1`` of ``raw`` (``-1`` missing rows left out)."""
+    if raw.dtype.kind == "i" and raw.dtype.itemsize <= 2 and n_levels <= 1 << (8 * raw.dtype.itemsize - 1):
+        # narrow codes: -1 reads as the top unsigned value, so one bincount without
+        # a masked copy (pandas' categorical codes are int8 up to 127 categories)
+        unsigned = raw.view(np.uint8 if raw.dtype.itemsize == 1 else np.uint16)
+        return np.bincount(unsigned, minlength=1 << (8 * raw.dtype.itemsize))[:n_levels]
+    return np.bincount(raw[raw >= 0], minlength=n_levels)[:n_levels]
 
 
 def _draft(series: pd.Series, notes: _Notes, bins, strategy, threshold):
@@ -762,7 +772,7 @@ def _distinct_labels(labels: list) -> tuple:
 def _finish_levels(d: _Levels, notes: _Notes, missing: str, max_categories):
     n_levels = len(d.labels)
     raw = d.raw
-    counts = np.bincount(raw[raw >= 0], minlength=n_levels) if n_levels else np.zeros(0, np.int64)
+    counts = _level_counts(raw, n_levels) if n_levels else np.zeros(0, np.int64)
     n_missing = int(raw.size - counts.sum())
     with_missing_symbol = missing == "category" and n_missing > 0
     labels = np.empty(n_levels, dtype=object)  # a data label, or an array of them (vectorised)
@@ -807,7 +817,8 @@ def _finish_levels(d: _Levels, notes: _Notes, missing: str, max_categories):
     k = len(out_labels)
     # raw == -1 picks the last entry: the missing code
     new_index[n_levels] = k - 1 if with_missing_symbol else k
-    codes = new_index[raw] if raw.size else raw
+    # every entry of new_index is set by now; gathered straight into the codes' dtype
+    codes = new_index.astype(codes_dtype(k))[raw] if raw.size else raw.astype(np.int64)
     level_counts = None
     if folded:
         # every present level, most frequent first (ties in label order, as `order`)
