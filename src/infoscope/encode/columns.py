@@ -292,6 +292,7 @@ class _Levels:
     natural: bool  # keep the given order (ordered values) instead of most-frequent-first
     kind: str
     n_distinct: int
+    counts: np.ndarray | None = None  # rows per level, when the draft counted them already
 
 
 @dataclasses.dataclass
@@ -689,7 +690,7 @@ def _categorical(series: pd.Series, notes: _Notes) -> _Levels:
     else:
         labels = list(_cell_texts(cats.to_numpy(dtype=object), notes))
     used = _level_counts(raw, len(cats))
-    return _Levels(raw, labels, bool(series.cat.ordered), "categorical", int(np.count_nonzero(used)))
+    return _Levels(raw, labels, bool(series.cat.ordered), "categorical", int(np.count_nonzero(used)), used)
 
 
 def _level_counts(raw: np.ndarray, n_levels: int) -> np.ndarray:
@@ -772,7 +773,10 @@ def _distinct_labels(labels: list) -> tuple:
 def _finish_levels(d: _Levels, notes: _Notes, missing: str, max_categories):
     n_levels = len(d.labels)
     raw = d.raw
-    counts = _level_counts(raw, n_levels) if n_levels else np.zeros(0, np.int64)
+    if d.counts is not None and d.counts.shape == (n_levels,):
+        counts = d.counts
+    else:
+        counts = _level_counts(raw, n_levels) if n_levels else np.zeros(0, np.int64)
     n_missing = int(raw.size - counts.sum())
     with_missing_symbol = missing == "category" and n_missing > 0
     labels = np.empty(n_levels, dtype=object)  # a data label, or an array of them (vectorised)
