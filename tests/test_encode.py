@@ -25,6 +25,7 @@ from infoscope.encode import (
     column_keys,
     content_key,
     encode_column,
+    encode_columns,
     encode_frame,
 )
 from infoscope.encode.columns import HEAVY_TAIL_INDEX, tail_index
@@ -705,6 +706,32 @@ def test_encode_frame_threads_raise_the_first_failing_column():
         encode_frame(df, threads=0)
     with pytest.raises(TypeError, match=r"unknown setting\(s\) \['bin'\]"):
         encode_frame(df, bin=3)
+
+
+def test_encode_columns_with_per_column_settings_match_encode_column():
+    df = _threaded_frame()
+    jobs = [("x", df["x"], {"bins": 8}), ("many", df["many"]), ("i", df["i"].to_numpy(), {"categorical_threshold": 0,
+                                                                                         "bins": 3})]
+    with warnings.catch_warnings(record=True) as serial_w:
+        warnings.simplefilter("always")
+        serial = [encode_column(job[1], name=job[0], cache=False, max_categories=20, **(job[2] if len(job) > 2 else {}))
+                  for job in jobs]
+    for threads in (1, 2):
+        with warnings.catch_warnings(record=True) as got_w:
+            warnings.simplefilter("always")
+            cols = encode_columns(jobs, threads=threads, cache=False, max_categories=20)
+        assert [str(w.message) for w in got_w] == [str(w.message) for w in serial_w]
+        for a, b in zip(cols, serial):  # contract: encode_column with the merged settings
+            assert (a.name, a.k, a.labels, a.flags) == (b.name, b.k, b.labels, b.flags)
+            assert np.array_equal(a.codes, b.codes)
+    assert [c.k for c in cols] == [8, 20, 3]
+    # numpy reference: 3 quantile bins of the integers are numpy.quantile edges + digitize
+    edges = np.quantile(df["i"].to_numpy(), np.linspace(0, 1, 4))
+    assert np.array_equal(cols[2].codes, np.digitize(df["i"].to_numpy(), edges[1:-1]))
+    with pytest.raises(TypeError, match=r"column 'x': unknown setting\(s\) \['bin'\]"):
+        encode_columns([("x", df["x"], {"bin": 3})])
+    with pytest.raises(TypeError, match="expected \\(name, values\\)"):
+        encode_columns([df["x"]])
 
 
 def test_encode_frame_threads_share_the_cache():

@@ -14,6 +14,7 @@ from infoscope.encode.columns import (
     codes_dtype,
     column_keys,
     encode_column,
+    encode_columns,
     encode_frame,
 )
 
@@ -21,5 +22,5 @@ __all__ = [
     "BIN_RULES", "NUMPY_RULES", "bin_edges", "knuth_bin_count", "knuth_log_posterior",
     "EncodingCache", "clear_cache", "content_key", "default_cache",
     "FLAGS", "KINDS", "MISSING_LABEL", "OTHER_LABEL", "EncodedColumn", "codes_dtype",
-    "column_keys", "encode_column", "encode_frame",
+    "column_keys", "encode_column", "encode_columns", "encode_frame",
 ]
