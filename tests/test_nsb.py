@@ -291,3 +291,39 @@ def test_nsb_bits_equal_nats_over_ln2_and_order_does_not_matter(counts, random):
 def test_nsb_depends_on_the_declared_alphabet(counts, extra):
     # The prior is over K cells: declaring more (empty) cells raises the estimate.
     assert nsb_posterior(list(counts) + [0] * extra).entropy > nsb_posterior(counts).entropy
+
+
+# --------------------------------------------------------------------------- fingerprints
+from hypothesis import given, settings  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+from infoscope.estimators.entropy import ENTROPY_ESTIMATORS, count_fingerprint  # noqa: E402
+from infoscope.estimators.nsb import nsb_fingerprint_nats, nsb_fingerprints_nats, nsb_posterior_nats  # noqa: E402
+
+
+@settings(max_examples=15, deadline=None)
+@given(st.lists(st.lists(st.sampled_from([0, 0, 1, 1, 2, 3, 8]), min_size=12, max_size=12)
+                .filter(lambda c: sum(c) > 0), min_size=1, max_size=4))
+def test_batched_nsb_equals_one_integral_per_vector(rows):
+    # Reference: the per-vector NSB kernel (ENTROPY_ESTIMATORS["nsb"], checked above
+    # against the paper's formulas, dit-free closed forms and Monte Carlo); the batch
+    # runs the same grid / multisection / Gauss-Legendre steps for all rows at once.
+    counts = np.array(rows, dtype=float)
+    values = np.arange(9.0)
+    mult = np.stack([np.bincount(r.astype(int), minlength=9) for r in counts]).astype(float)
+    batched = nsb_fingerprints_nats(values, mult, 12, counts.sum(axis=1))
+    per_cell = ENTROPY_ESTIMATORS["nsb"](counts)
+    np.testing.assert_allclose(batched, per_cell, rtol=1e-12)
+    for row, got in zip(counts, batched):
+        v, m = count_fingerprint(row)
+        assert got == pytest.approx(nsb_fingerprint_nats(v, m, 12, row.sum(), with_std=False)[0], rel=1e-12)
+
+
+def test_nsb_of_a_fingerprint_is_the_nsb_of_its_vector():
+    # 100,000 singletons and a few repeats over K = 150,000 cells: the fingerprint has
+    # 4 entries; the posterior (mean, std, beta_map) is the one of the full vector
+    counts = np.concatenate([np.ones(100_000), np.full(2_000, 3.0), np.zeros(47_999), [40.0]])
+    v, m = count_fingerprint(counts)
+    assert v.tolist() == [0.0, 1.0, 3.0, 40.0]
+    got = nsb_fingerprint_nats(v, m, counts.size, counts.sum())
+    assert got == pytest.approx(nsb_posterior_nats(counts), rel=1e-12)

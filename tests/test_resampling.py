@@ -405,15 +405,18 @@ def test_grouped_draw_keeps_each_cells_expected_count():
         assert mean == pytest.approx(c, rel=0.01)
 
 
-def test_fingerprint_scoring_equals_the_estimator_kernels():
-    # same seed, same draws: regrouped sums equal infoscope's plugin / Miller-Madow
-    # kernels on the full count vectors (Miller 1955 correction (m - 1) / 2N)
+@pytest.mark.parametrize(("estimator", "alpha"), [(e, None) for e in ENTROPY_ESTIMATORS if e != "dirichlet"]
+                         + [("dirichlet", "jeffreys"), ("dirichlet", "minimax"), ("dirichlet", 2.0)])
+def test_fingerprint_scoring_equals_the_estimator_kernels(estimator, alpha):
+    # same seed, same draws: each replicate scored from its fingerprint equals the
+    # per-cell kernel (ENTROPY_ESTIMATORS, checked against scipy / pyitlib / dit and the
+    # published formulas in test_entropy_estimators.py) on the full K-cell vector,
+    # the 40 never-observed cells included
     total = int(LARGE.sum())
-    for estimator in ("plugin", "miller_madow"):
-        fast = _fingerprint_entropy_nats(np.random.default_rng(7), LARGE, total, 30, estimator)
-        full = np.concatenate([entropy_nats(b, estimator, None)
-                               for b in _grouped_blocks(np.random.default_rng(7), LARGE, total, 30)])
-        np.testing.assert_allclose(fast, full, rtol=1e-12)
+    fast = _fingerprint_entropy_nats(np.random.default_rng(7), LARGE, total, 12, estimator, alpha)
+    full = np.concatenate([entropy_nats(b, estimator, alpha)
+                           for b in _grouped_blocks(np.random.default_rng(7), LARGE, total, 12)])
+    np.testing.assert_allclose(fast, full, rtol=1e-12)
 
 
 def _plugin_nats_of_rows(x, axis=-1):
@@ -455,6 +458,21 @@ def test_grouped_and_multinomial_draws_give_the_same_interval(estimator, monkeyp
     width = multinomial.high - multinomial.low
     assert width > 0
     assert abs(grouped.low - multinomial.low) < width / 3 and abs(grouped.high - multinomial.high) < width / 3
+
+
+@pytest.mark.parametrize("estimator", [e for e in ENTROPY_ESTIMATORS if e != "nsb"])
+def test_every_estimator_resamples_an_id_column_about_as_fast_as_plugin(estimator):
+    # speed guard: with the fingerprint kernels the scoring is negligible next to the
+    # draw, so every estimator costs about what the plug-in interval costs (timed here)
+    import time
+
+    n = np.ones(50_000, np.int64)
+    t0 = time.perf_counter()
+    bootstrap_entropy_ci(n, estimator="plugin", n_boot=100, seed=14)
+    plugin = time.perf_counter() - t0
+    t0 = time.perf_counter()
+    bootstrap_entropy_ci(n, estimator=estimator, n_boot=100, seed=14)
+    assert time.perf_counter() - t0 < 2 * plugin + 0.05
 
 
 def test_fifty_thousand_singletons_resample_fast():

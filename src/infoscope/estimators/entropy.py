@@ -228,19 +228,29 @@ def _fp_grassberger(values, mult, K, N):
 
 
 def _fp_nsb(values, mult, K, N):
-    """NSB posterior-mean entropy in nats from a fingerprint (one integral per row)."""
-    from infoscope.estimators.nsb import nsb_fingerprint_nats
+    """NSB posterior-mean entropy in nats from a fingerprint (all rows in one batch)."""
+    from infoscope.estimators.nsb import nsb_fingerprint_nats, nsb_fingerprints_nats
 
     N = np.asarray(N, dtype=np.float64)
-    values, mult = np.broadcast_arrays(values, mult)
-    flat_v = values.reshape(-1, values.shape[-1])
-    flat_m = mult.reshape(-1, mult.shape[-1])
-    flat_n = np.broadcast_to(N, values.shape[:-1]).reshape(-1)
+    values, mult = np.broadcast_arrays(np.asarray(values, dtype=np.float64), np.asarray(mult, dtype=np.float64))
+    shape = np.broadcast_shapes(values.shape[:-1], N.shape)
+    if values.ndim == 1:
+        # one vector: the path of the per-cell kernel (zero multiplicities dropped)
+        keep = mult > 0
+        return np.asarray(nsb_fingerprint_nats(values[keep], mult[keep], K, float(N), with_std=False)[0])
+    flat_m = np.broadcast_to(mult, (*shape, mult.shape[-1])).reshape(-1, mult.shape[-1])
+    flat_v = np.broadcast_to(values, (*shape, values.shape[-1])).reshape(-1, values.shape[-1])
+    if not (flat_v == flat_v[:1]).all():
+        raise ValueError("the NSB fingerprint kernel needs the same values in every row")
+    flat_n = np.broadcast_to(N, shape).reshape(-1)
     out = np.empty(flat_n.size)
-    for r in range(flat_n.size):
-        keep = flat_m[r] > 0
-        out[r] = nsb_fingerprint_nats(flat_v[r][keep], flat_m[r][keep], K, flat_n[r], with_std=False)[0]
-    return out.reshape(values.shape[:-1])
+    for lo in range(0, flat_n.size, _NSB_BATCH):   # bounded memory: (batch, 480, V) arrays
+        out[lo:lo + _NSB_BATCH] = nsb_fingerprints_nats(
+            flat_v[0], flat_m[lo:lo + _NSB_BATCH], K, flat_n[lo:lo + _NSB_BATCH])
+    return out.reshape(shape)
+
+
+_NSB_BATCH = 64
 
 
 #: Estimator name -> fingerprint kernel: (values, mult, K, N) -> entropy in nats,
