@@ -346,12 +346,23 @@ class _Posteriors:
         self.mult = np.asarray(mult, float)
         seen = self.values > 0
         self.seen_values, self.seen_mult = self.values[seen], self.mult[:, seen]
+        # Seen values 1, 2, ..., J (a bootstrap fingerprint): ln Gamma(b + j) - ln Gamma(b)
+        # = sum_{k < j} ln(b + k), so one log per k and a cumulative sum replace J
+        # gammaln differences (each log is correct to an ulp, for any b).
+        J = self.seen_values.size
+        self.consecutive = J > 0 and np.array_equal(self.seen_values, np.arange(1.0, J + 1.0))
+
+    def _seen_log_rising(self, beta: np.ndarray) -> np.ndarray:
+        if self.consecutive:
+            k = np.arange(float(self.seen_values.size))
+            return np.cumsum(np.log(beta[:, :, None] + k), axis=2)
+        return _log_rising(beta[:, :, None], self.seen_values[None, None, :])
 
     def log_weight(self, t: np.ndarray) -> np.ndarray:
         """(B, T) log-weights at per-row points t of shape (B, T)."""
         beta = np.exp(t)
         loglik = -_log_rising(self.K * beta, self.N[:, None]) + (
-            _log_rising(beta[:, :, None], self.seen_values[None, None, :]) * self.seen_mult[:, None, :]
+            self._seen_log_rising(beta) * self.seen_mult[:, None, :]
         ).sum(axis=2)
         return loglik + np.log(_dxi_dbeta(beta, self.K)) + t
 
