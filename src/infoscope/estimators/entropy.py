@@ -459,6 +459,11 @@ def entropy_from_counts(counts, *, estimator="miller_madow", base=2, alpha=None)
     ``chao_shen`` give 0, while the estimators that spread mass over unseen cells
     (``james_stein``, ``dirichlet``, ``nsb``) and ``grassberger`` give a positive value.
 
+    Every estimator is symmetric in the cells.  A vector of at least 1,024 cells with
+    at most one distinct count per 8 cells (an ID-like column) is scored from its
+    fingerprint (:func:`count_fingerprint`, :data:`FINGERPRINT_ESTIMATORS`): the same
+    value up to rounding (about 1e-15 relative), at the cost of the distinct counts.
+
     References
     ----------
     .. [1] C. E. Shannon, "A mathematical theory of communication", Bell System

@@ -295,7 +295,8 @@ def bootstrap_entropy_ci(
         Confidence level, in (0, 1).
     n_boot : int, default=200
         Number of bootstrap replicates.  ``nsb`` costs one integral per replicate
-        (a few milliseconds each); the other estimators are vectorised.
+        (a few milliseconds each; on large alphabets all replicates share one batched
+        integration); the other estimators are vectorised.
     seed : None, int or numpy.random.Generator, optional
         Source of randomness; an integer makes the interval reproducible.
     method : {"centred", "percentile"}, default="centred"
@@ -319,8 +320,10 @@ def bootstrap_entropy_ci(
     With at least 2,000 occupied cells and at most 4 rows per occupied cell, the
     replicates are drawn by groups of cells with equal counts (the same
     multinomial distribution, by the symmetry of every estimator in its cells;
-    see the module notes): 50,000 singletons take a fraction of a second instead
-    of seconds.  The random stream differs from the per-cell draw, so a seeded
+    see the module notes), and each replicate is scored from its counts-of-counts
+    by :data:`infoscope.estimators.entropy.FINGERPRINT_ESTIMATORS` (equal to the
+    per-cell estimate up to rounding): 100,000 singletons take a fraction of a
+    second for every estimator instead of seconds.  The random stream differs from the per-cell draw, so a seeded
     interval of such counts is not the one earlier versions gave.
 
     References
