@@ -18,6 +18,8 @@ _PUBLIC = {
     "ENTROPY_ESTIMATORS": "infoscope.estimators.entropy",
     "DIRICHLET_PRIORS": "infoscope.estimators.entropy",
     "entropy_of_count_rows": "infoscope.estimators.entropy",
+    "count_fingerprint": "infoscope.estimators.entropy",
+    "FINGERPRINT_ESTIMATORS": "infoscope.estimators.entropy",
     "nsb_posterior": "infoscope.estimators.nsb",
     "NSBPosterior": "infoscope.estimators.nsb",
     "ConfidenceInterval": "infoscope.estimators.resampling",
