@@ -30,6 +30,7 @@ def _count_one(a, b, stride, pitch, out):
 def _count_three(a, b, c, s_a, s_b, out):
     # The three-column table of one triple over one chunk: one counter per row for
     # three pairs (row-major, strides s_a = (k_b + 1)(k_c + 1) and s_b = k_c + 1).
+    # (An int32 scratch copy, half the cache footprint, measured no faster.)
     for r in range(a.shape[0]):
         out[np.intp(a[r]) * s_a + np.intp(b[r]) * s_b + np.intp(c[r])] += 1
 

@@ -72,12 +72,12 @@ def _pitch(size: int) -> int:
 # Three-column tables: a triple of low-cardinality columns (a, b, c) is counted as one
 # (k_a + 1)(k_b + 1)(k_c + 1) table, one increment per row for three pairs; the three
 # pair tables are its sums over one axis each. A triple table at most this big (int64:
-# 512 KiB, a core's L2 cache here) is used; bigger ones would spill the cache and
-# those pairs are counted directly. 0 turns triples off. On the benchmark frame (one
-# thread, best of 3): pairs only 4.30 s; at most 2**14 cells 3.32 s, 2**15 3.12 s,
-# 2**16 2.89 s (326 triples cover 978 of the 1,225 pairs; 33 MiB of counters; the
-# planner of _plan_triples now covers 1,071 pairs in 357 triples, 44 MiB).
-TRIPLE_MAX_CELLS = 1 << 16
+# 256 KiB, half a core's L2 cache here) is used; bigger ones would spill the cache
+# and those pairs are counted directly. 0 turns triples off. On the benchmark frame
+# (best of 3, quiet machine, planner of _plan_triples): 2 threads, at most 2**14
+# cells 1.95 s, 2**15 1.76 s (354 triples cover 1,062 of 1,225 pairs; 34 MiB of
+# counters), 2**16 1.79 s (357 triples, 42 MiB); pairs only 2.22 s.
+TRIPLE_MAX_CELLS = 1 << 15
 
 
 @dataclass(frozen=True)
