@@ -174,7 +174,10 @@ def test_pair_records_ship_no_hidden_count(wine_codes):
     assert len(hidden) == out["hidden_cells"] >= 2
     for cell in hidden:
         assert cell["count"] is None and cell["expected"] is None and cell["pmi"] is None
-        assert cell["shown"] == "<10"
+        i, j = pair.counts.index.get_loc(cell["row"]), pair.counts.columns.get_loc(cell["col"])
+        # "<10" only where the pandas.crosstab count really is below 10; the others are
+        # complementary cells and carry their own marker
+        assert cell["shown"] == ("<10" if 0 < raw[i, j] < 10 else "\u00b7"), cell
     assert "row_totals" not in out and "col_totals" not in out
     visible = {(c["row"], c["col"]): c["count"] for c in out["cells"] if not c["hidden"]}
     for (i, row) in enumerate(pair.counts.index):
@@ -434,6 +437,8 @@ def test_profile_charts_of_the_demo(demo_session):
     for cell, count in zip(cells, true.ravel()):
         if 0 < count < 10:
             assert cell["count"] is None and cell["shown"] == "<10"
+        elif cell["count"] is None:  # complementary: never labelled as a small count
+            assert cell["shown"] == "\u00b7" and cell["reason"] == "complement"
     json.dumps(pair_spec)  # the spec is plain JSON
 
 

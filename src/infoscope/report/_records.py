@@ -14,7 +14,8 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from infoscope.report.suppression import check_min_count, suppressed_label, suppression_mask
+from infoscope.report.suppression import (SMALL, check_min_count, complement_label, suppressed_label,
+                                          suppression_kinds)
 
 UNITS = {"bits", "nats", "hartleys"}
 
@@ -111,14 +112,17 @@ def pair_records(pair, *, min_count=None) -> dict:
 
     Hidden cells (see :func:`~infoscope.report.suppression.suppression_mask`) carry
     no count, no expected count and no pointwise MI, and the table then carries no
-    row or column totals, so the hidden counts cannot be read back.
+    row or column totals, so the hidden counts cannot be read back. Their ``shown``
+    text is ``"<10"`` only for cells below the threshold; complementary cells show
+    :data:`~infoscope.report.suppression.COMPLEMENT_LABEL` and ``reason`` says which.
     """
     counts = getattr(pair, "counts", None)
     if not isinstance(counts, pd.DataFrame):
         raise TypeError("a pair view needs a PairTable with a .counts DataFrame (ProfileSession.pair)")
     threshold = check_min_count(min_count)
     raw = counts.to_numpy(dtype=np.float64)
-    mask = suppression_mask(raw, threshold)
+    kinds = suppression_kinds(raw, threshold)
+    mask = kinds != 0
     expected = getattr(pair, "expected", None)
     pmi = getattr(pair, "pmi", None)
     exp = expected.to_numpy(dtype=np.float64) if isinstance(expected, pd.DataFrame) else None
@@ -126,6 +130,7 @@ def pair_records(pair, *, min_count=None) -> dict:
     rows = [str(x) for x in counts.index]
     cols = [str(x) for x in counts.columns]
     label = suppressed_label(threshold) if threshold else None
+    other = complement_label()
     cells = []
     for i, r in enumerate(rows):
         for j, c in enumerate(cols):
@@ -136,8 +141,10 @@ def pair_records(pair, *, min_count=None) -> dict:
                 "count": None if hidden else clean(raw[i, j]),
                 "expected": None if (hidden or exp is None) else clean(exp[i, j]),
                 "pmi": None if (hidden or pm is None) else clean(pm[i, j]),
-                "shown": label if hidden else f"{int(raw[i, j]):d}",
+                "shown": (label if kinds[i, j] == SMALL else other) if hidden else f"{int(raw[i, j]):d}",
                 "hidden": hidden,
+                # why: "small" (below min_count) or "complement" (hidden to protect a small cell)
+                "reason": None if not hidden else ("small" if kinds[i, j] == SMALL else "complement"),
             })
     n_hidden = int(mask.sum())
     rec = {

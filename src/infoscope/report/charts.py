@@ -12,7 +12,7 @@ import pandas as pd
 
 from infoscope.report import _records as rec
 from infoscope.report._style import DEPENDENCE_CAUTION, PALETTE, SAMPLE_CAUTION
-from infoscope.report.suppression import check_min_count
+from infoscope.report.suppression import COMPLEMENT_LABEL, check_min_count
 
 __all__ = [
     "PALETTE", "entropy_chart", "grid_chart", "pair_chart", "relevance_chart", "drift_chart",
@@ -145,7 +145,8 @@ def pair_chart(pair, *, min_count=None, unit: str = "bits", cell: int = 28) -> a
         The result of ``ProfileSession.pair(a, b)`` (``.counts``, ``.expected``, ``.pmi``).
     min_count : int, optional
         Hide counts ``1 .. min_count - 1`` (with complementary cells, see
-        :mod:`infoscope.report.suppression`); hidden cells are grey and show ``"<10"``.
+        :mod:`infoscope.report.suppression`); hidden cells are grey and show ``"<10"`` (below the
+        threshold) or ``"\u00b7"`` (hidden to protect a small cell).
     unit : str, default="bits"
         Unit of the pointwise MI in the legend.
     cell : int, default=28
@@ -191,7 +192,12 @@ def pair_chart(pair, *, min_count=None, unit: str = "bits", cell: int = 28) -> a
     text = base.mark_text(fontSize=10, color=PALETTE["whisker"]).encode(text="shown:N")
     subtitle = ["Colour: more (blue) or fewer (orange) rows than independence predicts.", DEPENDENCE_CAUTION]
     if data["hidden_cells"]:
-        subtitle.append(f"{data['hidden_cells']} cells hidden (counts below {threshold}, and cells that would reveal them).")
+        small = sum(1 for c in data["cells"] if c.get("reason") == "small")
+        other = data["hidden_cells"] - small
+        note = f"{small} cells with counts below {threshold} hidden (\u201c<{threshold}\u201d)"
+        if other:
+            note += f"; {other} more hidden to protect them (\u201c{COMPLEMENT_LABEL}\u201d, any size)"
+        subtitle.append(note + ".")
     title = f"Pair view: {data['a']} × {data['b']}" if data["a"] or data["b"] else "Pair view"
     return alt.layer(ground, coloured, text).properties(
         width=max(cell * len(data["cols"]), 60), height=max(cell * len(data["rows"]), 60),

@@ -26,7 +26,7 @@ import json
 import os
 from pathlib import Path
 
-from infoscope.report.suppression import check_min_count, suppression_mask
+from infoscope.report.suppression import SMALL, check_min_count, suppression_kinds
 
 __all__ = ["to_html", "profile_html", "suppress_payload", "CONTENT_SECURITY_POLICY"]
 
@@ -57,8 +57,22 @@ def _suppress_view(view: dict, threshold: int) -> dict:
     # A cell the widget already hid is fed in as a count of 1: it stays hidden and
     # takes part in the complementary suppression like any other small cell.
     raw = np.array([[1 if c is None else c for c in row] for row in counts], dtype=np.float64)
-    mask = suppression_mask(raw, threshold)
+    kinds = suppression_kinds(raw, threshold)
+    mask = kinds != 0
     n_rows, n_cols = raw.shape
+    before = view.get("hidden_reasons")
+    reasons = []
+    for i in range(n_rows):
+        line = []
+        for j in range(n_cols):
+            if counts[i][j] is None:  # hidden by the widget already: keep its reason
+                old = before[i][j] if isinstance(before, list) else None
+                line.append(old if old in ("small", "complement") else "small")
+            elif mask[i, j]:
+                line.append("small" if kinds[i, j] == SMALL else "complement")
+            else:
+                line.append(None)
+        reasons.append(line)
 
     def hide(grid: list) -> list:
         return [[None if mask[i, j] else grid[i][j] for j in range(n_cols)] for i in range(n_rows)]
@@ -73,6 +87,7 @@ def _suppress_view(view: dict, threshold: int) -> dict:
         out["row_totals"] = None
         out["col_totals"] = None
     out["hidden_cells"] = hidden
+    out["hidden_reasons"] = reasons if hidden else None
     out["min_count"] = max(int(view.get("min_count") or 0), threshold)
     return out
 

@@ -19,7 +19,9 @@ Shapes (the ESM in ``static/profile.js`` reads exactly these):
 ``pair_view`` -> dict
     ``{"a", "b", "rows", "cols", "counts" (null = hidden), "pmi" (null = hidden),
     "row_totals"/"col_totals" (null when any cell is hidden), "n", "mi", "nmi",
-    "p_value", "g", "dof", "unit", "min_count", "hidden_cells", "generation"}``.
+    "p_value", "g", "dof", "unit", "min_count", "hidden_cells", "hidden_reasons"
+    (null when nothing is hidden, else per cell null / "small" / "complement"),
+    "generation"}``.
 ``relevance_json`` -> JSON text
     ``{"target", "fields": [...RELEVANCE_FIELDS], "rows": [...], "unit", "generation"}``.
 """
@@ -33,7 +35,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from infoscope.report.suppression import check_min_count, suppression_mask
+from infoscope.frame.suppression import SMALL, check_min_count, suppression_kinds
 
 ENTROPY_FIELDS = ("column", "kind", "k", "n", "missing", "missing_share", "entropy", "ci_low",
                   "ci_high", "max_entropy", "efficiency", "effective_categories", "flags")
@@ -157,7 +159,8 @@ def pair_view(pair, a: str, b: str, *, unit: str = "bits", min_count: int | None
         raise TypeError("a pair view needs a PairTable with a .counts DataFrame (ProfileSession.pair)")
     threshold = check_min_count(min_count)
     raw = counts.to_numpy(dtype=np.float64)
-    mask = suppression_mask(raw, threshold)
+    kinds = suppression_kinds(raw, threshold)
+    mask = kinds != 0
     pmi_frame = getattr(pair, "pmi", None)
     pmi = pmi_frame.to_numpy(dtype=np.float64) if isinstance(pmi_frame, pd.DataFrame) else np.full_like(raw, np.nan)
     cell_counts = [[None if mask[i, j] else scalar(raw[i, j]) for j in range(raw.shape[1])]
@@ -166,6 +169,7 @@ def pair_view(pair, a: str, b: str, *, unit: str = "bits", min_count: int | None
     cell_pmi = [[None if mask[i, j] else scalar(pmi[i, j]) for j in range(raw.shape[1])]
                 for i in range(raw.shape[0])]
     hidden = int(mask.sum())
+    reasons = hidden_reasons(kinds) if hidden else None
     g, dof, p = _g_parts(getattr(pair, "g_test", None))
     return {
         "a": str(a), "b": str(b),
@@ -176,8 +180,19 @@ def pair_view(pair, a: str, b: str, *, unit: str = "bits", min_count: int | None
         "n": scalar(getattr(pair, "n", None)), "mi": scalar(getattr(pair, "mi", None)),
         "nmi": scalar(getattr(pair, "nmi", None)), "g": g, "dof": dof, "p_value": p,
         "unit": str(unit), "min_count": threshold, "hidden_cells": hidden,
-        "generation": int(generation),
+        "hidden_reasons": reasons, "generation": int(generation),
     }
+
+
+def hidden_reasons(kinds: np.ndarray) -> list:
+    """Per cell: ``None`` (shown), ``"small"`` (below min_count) or ``"complement"``.
+
+    A complementary cell is hidden only so that a small one cannot be worked out
+    from the totals; its count may be large, so the front end must not label it
+    "fewer than min_count".
+    """
+    return [[None if k == 0 else ("small" if k == SMALL else "complement") for k in row]
+            for row in np.asarray(kinds).tolist()]
 
 
 def relevance_json(table: pd.DataFrame | None, target: str | None, *, generation: int = 0) -> str:

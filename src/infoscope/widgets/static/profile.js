@@ -80,6 +80,7 @@ const CSS = `
 .isc-ptable tbody th{text-align:right}
 .isc-ptable td{min-width:2.3em;text-align:center;padding:2px 3px;border-radius:2px}
 .isc-ptable td.isc-hid{background:repeating-linear-gradient(45deg,#eeece6 0 3px,#f8f7f3 3px 6px);color:var(--isc-ink3)}
+.isc-ptable td.isc-hid2{background:repeating-linear-gradient(-45deg,#f1efe9 0 3px,#fbfaf7 3px 6px)}
 .isc-ptable .isc-tot{color:var(--isc-ink2);background:none;font-weight:600}
 .isc-corner{font-size:10px;text-align:left!important;color:var(--isc-ink3)}
 .isc-note{font-size:11px;color:var(--isc-ink2);margin-top:6px}
@@ -696,6 +697,17 @@ function pairFor(ctx) { // the view to show for selected_pair: the kernel's answ
   return { view: live.a != null ? live : null, pending: true, wanted: sel };
 }
 
+const COMPLEMENT_MARK = "\u00b7"; // a cell hidden to protect a small one (not itself small)
+
+function hiddenNote(view) {
+  let small = 0, other = 0;
+  for (const row of view.hidden_reasons || []) for (const r of row || []) { if (r === "complement") other++; else if (r) small++; }
+  if (!view.hidden_reasons) small = view.hidden_cells;
+  const parts = [`${small} cell${small === 1 ? "" : "s"} with fewer than ${view.min_count} rows hidden (\u201c<${view.min_count}\u201d)`];
+  if (other) parts.push(`${other} more hidden to protect them (\u201c${COMPLEMENT_MARK}\u201d, any size)`);
+  return `${parts.join("; ")}; totals are hidden too.`;
+}
+
 function pairView(ctx) {
   const el = h("section", { class: "isc-panel isc-pair", "aria-label": "pair view" });
   const titleEl = h("span", { class: "isc-punit" });
@@ -737,7 +749,16 @@ function pairView(ctx) {
       (view.cols || []).forEach((colLabel, j) => {
         const n = view.counts[i][j], p = view.pmi[i][j];
         if (n == null) {
-          tr.append(h("td", { class: "isc-hid", "aria-label": `${rowLabel}, ${colLabel}: hidden, fewer than ${view.min_count} rows` }, hiddenLabel));
+          // a complementary cell (hidden only so a small one cannot be worked out from
+          // the totals) may hold many rows: it must not say "fewer than"
+          const why = (view.hidden_reasons && view.hidden_reasons[i]) ? view.hidden_reasons[i][j] : "small";
+          const small = why !== "complement";
+          tr.append(h("td", {
+            class: small ? "isc-hid" : "isc-hid isc-hid2", "data-hidden": small ? "small" : "complement",
+            title: small ? `hidden: fewer than ${view.min_count} rows` : "hidden to protect a small cell",
+            "aria-label": small ? `${rowLabel}, ${colLabel}: hidden, fewer than ${view.min_count} rows`
+              : `${rowLabel}, ${colLabel}: hidden to protect a small cell`,
+          }, small ? hiddenLabel : COMPLEMENT_MARK));
           return;
         }
         const rgb = p == null || !Number.isFinite(p) ? PAPER : DIVERGING.at(0.5 + p / (2 * top));
@@ -762,7 +783,7 @@ function pairView(ctx) {
       h("span", null, "colour: pointwise MI, log of observed over independent share")));
     if (view.min_count) {
       holder.append(h("div", { class: "isc-note" }, view.hidden_cells
-        ? `${view.hidden_cells} cell${view.hidden_cells === 1 ? "" : "s"} hidden: counts below ${view.min_count} rows, plus cells that would give them away; totals are hidden too.`
+        ? hiddenNote(view)
         : `Cells with fewer than ${view.min_count} rows would be hidden; none are.`));
     }
     body.append(holder);

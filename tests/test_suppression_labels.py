@@ -1,0 +1,118 @@
+"""Labels of hidden cells: "<10" only for counts really below the threshold.
+
+Complementary cells (hidden only so a small cell cannot be worked out from the
+totals; primary and secondary suppression is common practice in official
+statistics) get their own marker. The reference for "below the threshold" is the
+count itself, from pandas.crosstab of the raw columns.
+"""
+from __future__ import annotations
+
+import ast
+import json
+import warnings
+from pathlib import Path
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from infoscope.frame.suppression import COMPLEMENTARY, SMALL, VISIBLE, suppression_kinds, suppression_mask
+
+SRC = Path(__file__).resolve().parents[1] / "src" / "infoscope"
+
+
+def quiet(fn, *args, **kwargs):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        return fn(*args, **kwargs)
+
+
+def test_kinds_split_the_mask_by_the_count_itself():
+    table = np.array([[2904, 3, 282], [115, 69, 4], [500, 600, 700]])
+    kinds = suppression_kinds(table, 10)
+    mask = suppression_mask(table, 10)
+    assert ((kinds != VISIBLE) == mask).all()
+    primary = (table > 0) & (table < 10)  # the threshold rule itself (common practice)
+    assert (kinds[primary] == SMALL).all()
+    assert (kinds[mask & ~primary] == COMPLEMENTARY).all()
+    assert (kinds == COMPLEMENTARY).any(), "this table needs complementary cells"
+
+
+def test_frame_never_imports_report():
+    # data flows frame -> report: no module of frame/ may import infoscope.report
+    for path in (SRC / "frame").glob("*.py"):
+        tree = ast.parse(path.read_text(encoding="utf-8"))
+        for node in ast.walk(tree):
+            names = []
+            if isinstance(node, ast.ImportFrom) and node.module:
+                names = [node.module]
+            elif isinstance(node, ast.Import):
+                names = [a.name for a in node.names]
+            assert not any(n.startswith("infoscope.report") for n in names), path.name
+
+
+def test_report_names_still_work():
+    from infoscope.report import suppression as rs
+
+    assert rs.suppression_mask is suppression_mask and rs.suppressed_label(10) == "<10"
+    assert rs.SUPPRESSED_LABEL.format(min_count=5) == "<5" and rs.complement_label() == rs.COMPLEMENT_LABEL
+
+
+@pytest.fixture(scope="module")
+def demo():
+    from infoscope.datasets import make_deliveries
+    from infoscope.frame.session import ProfileSession
+
+    frame = make_deliveries(20_000, seed=0)
+    return frame, quiet(ProfileSession, frame, n_boot=0)
+
+
+def _pair_with_complements(session, threshold=10):
+    for a, b in (("weight_kg", "weight_lb"), ("depot", "service")):
+        pair = quiet(session.pair, a, b)
+        kinds = suppression_kinds(pair.counts.to_numpy(), threshold)
+        if (kinds == COMPLEMENTARY).any():
+            return a, b, pair
+    pytest.skip("no demo pair needs complementary cells")
+
+
+def test_widget_pair_view_marks_complementary_cells(demo):
+    from infoscope.widgets._serialize import pair_view
+
+    _, session = demo
+    a, b, pair = _pair_with_complements(session)
+    view = pair_view(pair, a, b, min_count=10)
+    raw = pair.counts.to_numpy()
+    seen = set()
+    for i in range(raw.shape[0]):
+        for j in range(raw.shape[1]):
+            why = view["hidden_reasons"][i][j]
+            assert (why is None) == (view["counts"][i][j] is not None)
+            if why is not None:
+                assert why == ("small" if 0 < raw[i, j] < 10 else "complement"), (raw[i, j], why)
+                seen.add(why)
+    assert seen == {"small", "complement"}
+
+
+def test_export_labels_and_ships_no_hidden_count(demo, tmp_path):
+    from infoscope.report.html import suppress_payload
+
+    _, session = demo
+    a, b, pair = _pair_with_complements(session)
+    from infoscope.widgets._serialize import pair_view
+
+    view = pair_view(pair, a, b)  # the widget hid nothing; the export hides
+    out = suppress_payload({"state": {"_pair": view}, "pair_cache": {f"{a}\u0000{b}": view}}, 10)
+    shipped = out["pair_cache"][f"{a}\u0000{b}"]
+    raw = pair.counts.to_numpy()
+    for i in range(raw.shape[0]):
+        for j in range(raw.shape[1]):
+            why = shipped["hidden_reasons"][i][j]
+            if why is not None:
+                assert shipped["counts"][i][j] is None and shipped["pmi"][i][j] is None
+                assert why == ("small" if 0 < raw[i, j] < 10 else "complement")
+    text = json.dumps(shipped)
+    assert '"complement"' in text and shipped["row_totals"] is None
+    # a second pass (widget already hid cells) keeps each cell's reason
+    again = suppress_payload({"state": {"_pair": shipped}, "pair_cache": {}}, 10)["state"]["_pair"]
+    assert again["hidden_reasons"] == shipped["hidden_reasons"]
