@@ -595,7 +595,8 @@ class ProfileSession:
             base ** entropy`` (the number of equally likely symbols with the same
             entropy; the same number in every unit); ``flags`` comma-separated,
             from the encoder plus ``sparse_cells`` (fewer than 5 observations per
-            symbol on average) and ``rare_levels`` (see below).  ``attrs``: unit,
+            symbol on average), ``rare_levels`` (see below) and ``exceeds_log_k``
+            (see below).  ``attrs``: unit,
             estimator, sampled, and ``folded_in_pairs``: ``{column: k}`` for the
             columns whose levels were folded.
 
@@ -617,6 +618,13 @@ class ProfileSession:
             people (common practice: 5 as the small-cell threshold of official
             statistics and of chi-square tables, 1% as the usual share below
             which a category is grouped as rare).
+
+            **Above log K.**  ``exceeds_log_k``: the estimate is above log K of
+            the observed levels: the bias correction credits levels the sample
+            has not seen; K is a lower bound of the true alphabet.  The numbers
+            are kept as computed (not clipped), so ``efficiency`` is then above 1
+            and ``effective_categories`` above ``k`` (an all-distinct identifier
+            under Miller-Madow reads log K + (K - 1) / (2 n) nats).
 
         References
         ----------
@@ -673,6 +681,12 @@ class ProfileSession:
             if _has_rare_levels(col, counts, s["missing"]):
                 flags.append("rare_levels")
             max_h = math.log(k) / divisor if k >= 1 else math.nan
+            # a bias correction adds to the plug-in estimate and can carry it past
+            # log K of the observed levels; the number is kept as computed and the
+            # row says so (tolerance: float rounding of a uniform plug-in)
+            if (not math.isnan(h) and not math.isnan(max_h)
+                    and h > max_h + 1e-12 * max(1.0, abs(max_h))):
+                flags.append("exceeds_log_k")
             rows.append({
                 "column": key, "kind": col.kind, "k": int(k), "n": int(col.n),
                 "missing": int(col.n_missing),
@@ -1176,6 +1190,12 @@ class ProfileSession:
             kept but do not mean a change of distribution.  ``""`` when nothing
             was compared.  Legend texts: ``infoscope.frame.results.DRIFT_FLAGS``.
 
+            **Units.**  ``psi`` is always in nats (natural logarithm: the
+            0.10 / 0.25 thresholds assume it); ``kl`` and ``js`` are in the
+            session's unit.  ``attrs["units"]`` says so per column:
+            ``{"psi": "nats", "kl": unit, "js": unit}``; ``attrs["unit"]`` is
+            the session's unit (of ``kl`` and ``js`` only).
+
         References
         ----------
         .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (PSI and its
@@ -1218,7 +1238,9 @@ class ProfileSession:
             encoding={k: self._encoding_settings(k, s) for k in common},
             pseudocount=pseudocount, base=s["base"],
         )
-        return result_frame(rows, DRIFT_COLUMNS, **self._attrs(pseudocount=pseudocount))
+        unit = unit_name(s["base"])
+        return result_frame(rows, DRIFT_COLUMNS, **self._attrs(
+            pseudocount=pseudocount, units={"psi": "nats", "kl": unit, "js": unit}))
 
 
 # ------------------------------------------------------------------ module helpers

@@ -1,0 +1,63 @@
+"""Tests for the fixes of the result-table review (flags, drift units, CLI, matrix).
+
+Each check names its outside reference beside it.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import pandas as pd
+import pytest
+import scipy.stats
+
+import infoscope  # noqa: F401
+from infoscope.frame.session import ProfileSession
+
+
+# ------------------------------------------------------------ exceeds_log_k
+@pytest.mark.filterwarnings("ignore:column 'ident'")
+def test_all_distinct_column_is_flagged_above_log_k():
+    n = 2000
+    df = pd.DataFrame({"ident": [f"r{i}" for i in range(n)],
+                       "grp": list("abcd") * (n // 4)})
+    row = ProfileSession(df, estimator="miller_madow", n_boot=0, base=2).entropy().set_index("column")
+    ident = row.loc["ident"]
+    # reference: scipy.stats.entropy of the all-distinct counts (plug-in, log2 n)
+    # plus the Miller (1955) correction (K - 1) / (2 n) nats, converted to bits
+    plug = scipy.stats.entropy(np.ones(n), base=2)
+    expected = plug + (n - 1) / (2 * n) / math.log(2)
+    assert ident["entropy"] == pytest.approx(expected, rel=1e-9)
+    assert ident["max_entropy"] == pytest.approx(math.log2(n), rel=1e-12)
+    assert ident["efficiency"] > 1.0  # kept as computed, not clipped
+    assert "exceeds_log_k" in ident["flags"].split(",")
+    # a uniform four-level column under the plug-in equals log K: no flag
+    # (scipy.stats.entropy of [1, 1, 1, 1] in bits = 2, closed form log2 4)
+    plain = ProfileSession(df, estimator="plugin", n_boot=0, base=2).entropy().set_index("column")
+    assert plain.loc["grp", "entropy"] == pytest.approx(scipy.stats.entropy([1, 1, 1, 1], base=2))
+    assert "exceeds_log_k" not in plain.loc["grp", "flags"].split(",")
+    assert "exceeds_log_k" not in plain.loc["ident", "flags"].split(",")
+
+
+# ------------------------------------------------------------ drift units
+def test_drift_units_psi_in_nats_kl_js_in_session_unit():
+    from scipy.spatial.distance import jensenshannon
+
+    cur = pd.DataFrame({"c": ["a"] * 50 + ["b"] * 30 + ["c"] * 20})
+    ref = pd.DataFrame({"c": ["a"] * 30 + ["b"] * 30 + ["c"] * 40})
+    d = ProfileSession(cur, n_boot=0, base=2).drift(ref, pseudocount=0.5)
+    assert d.attrs["units"] == {"psi": "nats", "kl": "bits", "js": "bits"}
+    row = d.set_index("column").loc["c"]
+    a = np.array([50, 30, 20]) + 0.5  # this frame, pseudocount added to every cell
+    e = np.array([30, 30, 40]) + 0.5  # reference
+    # reference: PSI = KL(a||e) + KL(e||a) in nats (scipy.stats.entropy, natural log)
+    assert row["psi"] == pytest.approx(scipy.stats.entropy(a, e) + scipy.stats.entropy(e, a), rel=1e-10)
+    # reference: scipy.stats.entropy(a, e, base=2) for KL in bits
+    assert row["kl"] == pytest.approx(scipy.stats.entropy(a, e, base=2), rel=1e-10)
+    # reference: scipy.spatial.distance.jensenshannon(base=2) squared, raw counts
+    js = jensenshannon([50, 30, 20], [30, 30, 40], base=2) ** 2
+    assert row["js"] == pytest.approx(js, rel=1e-9)
+    nats = ProfileSession(cur, n_boot=0, base="nats").drift(ref)
+    assert nats.attrs["units"] == {"psi": "nats", "kl": "nats", "js": "nats"}
+    assert nats.set_index("column").loc["c", "psi"] == pytest.approx(row["psi"], rel=1e-12)
