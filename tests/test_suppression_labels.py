@@ -116,3 +116,54 @@ def test_export_labels_and_ships_no_hidden_count(demo, tmp_path):
     # a second pass (widget already hid cells) keeps each cell's reason
     again = suppress_payload({"state": {"_pair": shipped}, "pair_cache": {}}, 10)["state"]["_pair"]
     assert again["hidden_reasons"] == shipped["hidden_reasons"]
+
+
+# ----------------------------------------------------------------- the accessor
+def test_accessor_pair_takes_min_count(demo):
+    frame, _ = demo
+    a, b = "weight_kg", "weight_lb"
+    full = quiet(frame.info_profile.pair, a, b)
+    out = quiet(frame.info_profile.pair, a, b, min_count=10)
+    # reference: the threshold rule applied to the unsuppressed table of the same call
+    raw = full.counts.to_numpy()
+    kinds = suppression_kinds(raw, 10)
+    hidden = out.counts.isna().to_numpy()
+    assert (hidden == (kinds != VISIBLE)).all() and hidden.any()
+    assert np.isnan(out.pmi.to_numpy(dtype=float)[hidden]).all()
+    assert np.isnan(out.expected.to_numpy(dtype=float)[hidden]).all()
+    shown = out.counts.to_numpy(dtype=float, na_value=np.nan)
+    assert (shown[~hidden] == raw[~hidden]).all()
+    rows, cols = list(full.counts.index), list(full.counts.columns)
+    small = {(rows[i], cols[j]) for i, j in zip(*np.nonzero((raw > 0) & (raw < 10)))}
+    assert set(out.hidden["small"]) == small and out.hidden["min_count"] == 10
+    assert set(out.hidden["complementary"]).isdisjoint(small)
+    assert len(out.hidden["small"]) + len(out.hidden["complementary"]) == hidden.sum()
+    assert out.mi == full.mi and out.n == full.n
+    assert full.hidden is None and not full.counts.isna().any().any()  # the original is untouched
+    assert quiet(frame.info_profile.pair, a, b, min_count=None).hidden is None
+
+
+def test_accessor_min_count_bad_values_are_named():
+    df = pd.DataFrame({"a": list("xy") * 10, "b": list("pq") * 10})
+    with pytest.raises(TypeError, match="min_count"):
+        df.info_profile.pair("a", "b", min_count=2.5)
+    with pytest.raises(ValueError, match="min_count"):
+        df.info_profile.pair("a", "b", min_count=-1)
+
+
+def test_suppressed_pair_table_feeds_the_views_without_leaking(demo):
+    from infoscope.report import _records as rec
+    from infoscope.widgets._serialize import pair_view
+
+    frame, _ = demo
+    out = quiet(frame.info_profile.pair, "weight_kg", "weight_lb", min_count=10)
+    raw = quiet(frame.info_profile.pair, "weight_kg", "weight_lb").counts.to_numpy()
+    records = rec.pair_records(out)  # no threshold given: the table's own applies
+    assert records["min_count"] == 10 and "row_totals" not in records
+    for cell in records["cells"]:
+        i, j = out.counts.index.get_loc(cell["row"]), out.counts.columns.get_loc(cell["col"])
+        if cell["hidden"]:
+            assert cell["shown"] == ("<10" if 0 < raw[i, j] < 10 else "\u00b7")
+    view = pair_view(out, "weight_kg", "weight_lb")
+    assert view["hidden_cells"] == out.counts.isna().to_numpy().sum() and view["row_totals"] is None
+    assert sum(r == "complement" for row in view["hidden_reasons"] for r in row) == len(out.hidden["complementary"])

@@ -253,23 +253,30 @@ class InfoProfileAccessor:
         """
         return self._session(settings).matrix(measure, order=order)
 
-    def pair(self, a: str, b: str, **settings):
+    def pair(self, a: str, b: str, min_count=None, **settings):
         """One pair's joint table: see :meth:`ProfileSession.pair`.
 
         Parameters
         ----------
         a, b : str
             Column keys.
+        min_count : int, optional
+            Hide counts ``1 .. min_count - 1`` and the cells that would give them
+            away (small-cell suppression, :meth:`PairTable.suppressed`).
         **settings
             Settings of the session.
 
         Returns
         -------
         PairTable
+            With hidden cells as NA/NaN and ``.hidden`` listing them when
+            ``min_count`` hid something.
 
         References
         ----------
         .. [1] Church, K. W., & Hanks, P. (1990). Computational Linguistics, 16(1), 22-29.
+        .. [2] Small-cell suppression with complementary cells: common practice in
+           official statistics.
 
         Examples
         --------
@@ -277,8 +284,14 @@ class InfoProfileAccessor:
         >>> df = pd.DataFrame({"a": [1, 2] * 10, "b": [1, 2] * 10})
         >>> df.info_profile.pair("a", "b").n
         20
+        >>> df.info_profile.pair("a", "b", min_count=20).hidden["small"]
+        [('1', '1'), ('2', '2')]
         """
-        return self._session(settings).pair(a, b)
+        from infoscope.frame.suppression import check_min_count
+
+        threshold = check_min_count(min_count)  # a clear error before any work
+        table = self._session(settings).pair(a, b)
+        return table if threshold is None else table.suppressed(threshold)
 
     def relevance(self, target: str | None = None, **settings) -> pd.DataFrame:
         """Information about a target column: see :meth:`ProfileSession.relevance`.

@@ -6,7 +6,7 @@ views and the exports read them, so they are defined once and every builder in
 """
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 import pandas as pd
@@ -170,6 +170,9 @@ class PairTable:
         Unit of ``mi`` and ``pmi``.
     sparse : bool
         Fewer than 5 observations per cell on average.
+    hidden : dict or None
+        Set by :meth:`suppressed` only: ``{"min_count", "small", "complementary",
+        "kinds"}`` (see there); ``None`` for a table with nothing hidden.
     """
 
     a: str
@@ -184,6 +187,66 @@ class PairTable:
     unit: str = "bits"
     sparse: bool = False
     attrs: dict = field(default_factory=dict)
+    hidden: dict | None = None
+
+    def suppressed(self, min_count) -> "PairTable":
+        """A copy with small cells, and the cells that would give them away, hidden.
+
+        Cells with ``0 < count < min_count`` are *small*; further cells are hidden
+        (*complementary*) until no row or column total, nor both together, gives a
+        hidden count back (:func:`infoscope.frame.suppression.suppression_mask`).
+        Hidden cells hold ``pandas.NA`` in ``counts`` (nullable ``Int64``) and NaN in
+        ``expected`` and ``pmi``. The mutual information, G-test and ``n`` are kept:
+        they come from the full table and narrow the hidden counts only as far as
+        the module documentation of :mod:`infoscope.frame.suppression` says.
+
+        Parameters
+        ----------
+        min_count : int or None
+            The threshold; ``None``, 0 or 1 hide nothing (a copy is returned).
+
+        Returns
+        -------
+        PairTable
+            With ``hidden = {"min_count": int, "small": [(row, col), ...],
+            "complementary": [(row, col), ...], "kinds": ndarray}`` (labels of
+            ``a`` and ``b``; ``kinds`` holds 0 shown, 1 small, 2 complementary),
+            or ``hidden=None`` when no cell is hidden.
+
+        References
+        ----------
+        Threshold rules with complementary (secondary) suppression are common
+        practice in official statistics for tables of counts.
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"a": list("xxxxxxxxxxxxy") * 2, "b": list("pqpqpqpqpqpqq") * 2})
+        >>> hidden = df.info_profile.pair("a", "b", estimator="plugin").suppressed(5).hidden
+        >>> hidden["small"], len(hidden["complementary"])
+        ([('y', 'q')], 3)
+        """
+        from infoscope.frame.suppression import COMPLEMENTARY, SMALL, check_min_count, suppression_kinds
+
+        threshold = check_min_count(min_count)
+        previous = (self.hidden or {}).get("kinds")
+        raw = self.counts.to_numpy(dtype=np.float64, na_value=np.nan)
+        kinds = suppression_kinds(raw, threshold, previous=previous)
+        mask = kinds != 0
+        if not mask.any():
+            return replace(self, hidden=None)
+        keep = pd.DataFrame(~mask, index=self.counts.index, columns=self.counts.columns)
+        rows, cols = list(self.counts.index), list(self.counts.columns)
+
+        def cells(kind):
+            return [(rows[i], cols[j]) for i, j in zip(*np.nonzero(kinds == kind))]
+
+        old = (self.hidden or {}).get("min_count") or 0
+        hidden = {"min_count": max(int(old), threshold or 0), "small": cells(SMALL),
+                  "complementary": cells(COMPLEMENTARY), "kinds": kinds}
+        return replace(self, counts=self.counts.astype("Int64").where(keep, pd.NA),
+                       expected=self.expected.where(keep), pmi=self.pmi.where(keep),
+                       hidden=hidden)
 
     def __repr__(self) -> str:
         shape = f"{self.counts.shape[0]} x {self.counts.shape[1]}"

@@ -201,7 +201,7 @@ def _close_bridges(mask: np.ndarray, grid: np.ndarray) -> bool:
     return False
 
 
-def suppression_kinds(counts, min_count) -> np.ndarray:
+def suppression_kinds(counts, min_count, previous=None) -> np.ndarray:
     """Why each cell of a count table is hidden: shown, small, or complementary.
 
     Parameters
@@ -210,6 +210,9 @@ def suppression_kinds(counts, min_count) -> np.ndarray:
         Non-negative counts (see :func:`suppression_mask`).
     min_count : int or None
         The threshold (see :func:`check_min_count`).
+    previous : array_like of int, optional
+        Kinds from an earlier suppression of the same table; NaN counts (cells
+        hidden then) keep their kind. Without it a NaN cell counts as small.
 
     Returns
     -------
@@ -227,10 +230,23 @@ def suppression_kinds(counts, min_count) -> np.ndarray:
     >>> suppression_kinds([[50, 3], [40, 60]], 10).tolist()
     [[2, 1], [2, 2]]
     """
-    mask = suppression_mask(counts, min_count)
+    table = np.asarray(counts)
+    if table.dtype.kind not in "iuf":
+        raise TypeError(f"counts must be numeric, got dtype {table.dtype}")
+    table = table.astype(np.float64)
+    # a NaN is a cell hidden before (a suppressed PairTable): it stays hidden and
+    # takes part in the complementary suppression like a small cell
+    before = np.isnan(table)
+    mask = suppression_mask(np.where(before, 1.0, table), min_count)
     kinds = np.where(mask, COMPLEMENTARY, VISIBLE).astype(np.int8)
     threshold = check_min_count(min_count)
     if threshold is not None and mask.any():
-        table = np.asarray(counts, dtype=np.float64)
         kinds[mask & (table > 0) & (table < threshold)] = SMALL
+    if previous is not None:
+        old = np.asarray(previous, dtype=np.int8)
+        if old.shape != kinds.shape:
+            raise ValueError(f"previous kinds have shape {old.shape}, the counts {kinds.shape}")
+        kinds[before] = np.where(old[before] == VISIBLE, SMALL, old[before])
+    else:
+        kinds[before] = SMALL
     return kinds

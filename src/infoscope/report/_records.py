@@ -120,8 +120,10 @@ def pair_records(pair, *, min_count=None) -> dict:
     if not isinstance(counts, pd.DataFrame):
         raise TypeError("a pair view needs a PairTable with a .counts DataFrame (ProfileSession.pair)")
     threshold = check_min_count(min_count)
-    raw = counts.to_numpy(dtype=np.float64)
-    kinds = suppression_kinds(raw, threshold)
+    earlier = int((getattr(pair, "hidden", None) or {}).get("min_count") or 0)  # a suppressed PairTable
+    threshold = max(threshold or 0, earlier) or None
+    raw = counts.to_numpy(dtype=np.float64, na_value=np.nan)  # NA: hidden by PairTable.suppressed
+    kinds = suppression_kinds(raw, threshold, previous=(getattr(pair, "hidden", None) or {}).get("kinds"))
     mask = kinds != 0
     expected = getattr(pair, "expected", None)
     pmi = getattr(pair, "pmi", None)

@@ -158,8 +158,10 @@ def pair_view(pair, a: str, b: str, *, unit: str = "bits", min_count: int | None
     if not isinstance(counts, pd.DataFrame):
         raise TypeError("a pair view needs a PairTable with a .counts DataFrame (ProfileSession.pair)")
     threshold = check_min_count(min_count)
-    raw = counts.to_numpy(dtype=np.float64)
-    kinds = suppression_kinds(raw, threshold)
+    earlier = int((getattr(pair, "hidden", None) or {}).get("min_count") or 0)  # a suppressed PairTable
+    threshold = max(threshold or 0, earlier) or None
+    raw = counts.to_numpy(dtype=np.float64, na_value=np.nan)  # NA: hidden by PairTable.suppressed
+    kinds = suppression_kinds(raw, threshold, previous=(getattr(pair, "hidden", None) or {}).get("kinds"))
     mask = kinds != 0
     pmi_frame = getattr(pair, "pmi", None)
     pmi = pmi_frame.to_numpy(dtype=np.float64) if isinstance(pmi_frame, pd.DataFrame) else np.full_like(raw, np.nan)
