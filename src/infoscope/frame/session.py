@@ -958,9 +958,12 @@ class ProfileSession:
         -------
         pandas.DataFrame
             Symmetric.  Diagonal: the column's entropy for ``"mi"`` (I(X;X) = H(X)),
-            1 for ``"nmi"`` and ``"adjusted_mi"`` (0 for a constant column under
-            ``"nmi"`` is not used: a column shares everything with itself), 0 for
-            ``"vi"``.  ``attrs``: unit, estimator, sampled, measure, order.
+            1 for ``"nmi"`` and ``"adjusted_mi"`` (a column shares everything with
+            itself) except NaN for a column of zero entropy (one observed
+            symbol: I(X;X) / H(X) is 0/0, undefined), 0 for ``"vi"``.  Under the
+            plug-in estimator, ``"nmi"`` and ``"adjusted_mi"`` values within
+            1e-12 of 0 are set to exactly 0 (float rounding of an exact zero).
+            ``attrs``: unit, estimator, sampled, measure, order.
 
         References
         ----------
@@ -984,6 +987,9 @@ class ProfileSession:
         ia = [position[a] for a in table["a"]]
         ib = [position[b] for b in table["b"]]
         arr = np.full((len(keys), len(keys)), np.nan)
+        if measure in _NORMALIZED and self._settings["estimator"] == "plugin":
+            # float noise of an exact zero (4e-16, -3e-16) would read as a sign
+            values = np.where(np.abs(values) < _ZERO_SNAP, 0.0, values)
         arr[ia, ib] = values
         arr[ib, ia] = values
         if measure == "mi":
@@ -991,7 +997,8 @@ class ProfileSession:
         elif measure == "vi":
             diag = [0.0] * len(keys)
         else:
-            diag = [1.0] * len(keys)
+            # H(X) = 0: I(X;X) / H(X) is 0/0, undefined, not 1
+            diag = [math.nan if _zero_entropy(self._engine.marginal(k)) else 1.0 for k in keys]
         arr[np.arange(len(keys)), np.arange(len(keys))] = diag
         square = pd.DataFrame(arr, index=pd.Index(keys), columns=pd.Index(keys))
         if order == "cluster" and len(keys) > 2:
@@ -1244,6 +1251,15 @@ class ProfileSession:
 
 
 # ------------------------------------------------------------------ module helpers
+_NORMALIZED = frozenset({"nmi", "adjusted_mi"})
+_ZERO_SNAP = 1e-12
+
+
+def _zero_entropy(marginal) -> bool:
+    """True when a marginal count vector has at most one non-empty cell (H = 0)."""
+    return int(np.count_nonzero(np.asarray(marginal))) <= 1
+
+
 # entropy estimators whose value does not change when empty cells are added
 # (a property their own tests check), so tables of any shape can share a stack
 _ZERO_CELLS_IGNORED = frozenset({"plugin", "miller_madow", "chao_shen", "grassberger"})
