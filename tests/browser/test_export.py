@@ -136,3 +136,28 @@ def test_export_stays_interactive_sort_and_saved_pairs(exported, served, web):
                            "t.textContent.startsWith('Pair view') && t.textContent.includes('weight_kg') "
                            "&& t.textContent.includes('weight_lb'))", timeout=5_000)
     assert web.outside_requests == [] and web.page_errors == []
+
+
+def test_saved_pair_view_labels_only_small_cells_below_the_threshold(exported, served, web):
+    # reference: the session's full counts (pandas.crosstab-checked in test_frame);
+    # "<10" only where the true count is 1..9, "·" for the complementary cells
+    url = served.put("/export/labels.html", exported["path"].read_bytes())
+    web.goto(url)
+    page = web.page
+    page.wait_for_selector("body[data-rendered='yes']", timeout=20_000)
+    view = page.evaluate("window.__infoscopeModel.get('_pair')")
+    true = exported["session"].pair(view["a"], view["b"]).counts.to_numpy()
+    grid = page.eval_on_selector_all(
+        ".isc-pair tbody tr", "trs => trs.map(tr => [...tr.querySelectorAll('td:not(.isc-tot)')].map(td => td.textContent))")
+    assert np.array(grid).shape == true.shape
+    kinds = set()
+    for i in range(true.shape[0]):
+        for j in range(true.shape[1]):
+            if view["counts"][i][j] is None:
+                small = 0 < true[i, j] < MIN_COUNT
+                assert grid[i][j] == (f"<{MIN_COUNT}" if small else "\u00b7"), (true[i, j], grid[i][j])
+                kinds.add(small)
+    assert kinds, "the saved pair view has hidden cells"
+    notes = page.text_content(".isc-export-notes")
+    assert "slightly negative" in notes and "hidden to protect a small cell" in notes
+    assert web.page_errors == []

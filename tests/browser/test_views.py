@@ -355,3 +355,72 @@ def test_sampled_first_view_is_labelled(harness, web):
     label = page.locator(".isc-caution .isc-sampled")
     assert label.is_visible()
     assert "seeded sample of 200 rows of 800" in label.text_content() and "full data follow" in label.text_content()
+
+
+# ----------------------------------------------------------------- hidden-cell labels and view details
+def test_pair_view_labels_small_and_complementary_cells_apart(harness, web, payloads):
+    # the widget's own pair (min_count=5); the reasons were checked against
+    # pandas.crosstab counts in tests/test_suppression_labels.py
+    page = harness()
+    view = payloads["base"]["state"]["_pair"]
+    reasons = [r for row in view["hidden_reasons"] for r in row if r]
+    assert "complement" in reasons and "small" in reasons, "the demo pair needs both kinds"
+    cells = page.eval_on_selector_all(
+        ".isc-pair td.isc-hid", "tds => tds.map(t => [t.dataset.hidden, t.textContent, t.getAttribute('aria-label')])")
+    assert [c[0] for c in cells] == reasons
+    for kind, text, aria in cells:
+        if kind == "small":
+            assert text == "<5" and "fewer than 5 rows" in aria
+        else:
+            assert text == "\u00b7" and "hidden to protect a small cell" in aria and "fewer" not in aria
+    note = page.text_content(".isc-pair")
+    assert f"{reasons.count('complement')} more hidden to protect them" in note
+
+
+def test_truncated_names_have_their_full_name(harness, web, payloads):
+    page = harness()
+    canvas = page.locator(".isc-grid canvas").first
+    names = page.evaluate("window.__model.get('_grid_meta').names")
+    off = float(canvas.get_attribute("data-offset"))
+    cell = float(canvas.get_attribute("data-cell"))
+    longest = max(range(len(names)), key=lambda k: len(names[k]))
+    canvas.hover(position={"x": off / 2, "y": off + (longest + 0.5) * cell})  # its row label
+    assert canvas.get_attribute("title") == names[longest]
+    assert page.locator(".isc-tip").text_content() == names[longest]
+    canvas.hover(position={"x": off + (longest + 0.5) * cell, "y": off / 2})  # its column label
+    assert canvas.get_attribute("title") == names[longest]
+    corner = page.locator(".isc-pair .isc-corner")
+    view = payloads["base"]["state"]["_pair"]
+    assert corner.get_attribute("title") == f"rows: {view['a']}; columns: {view['b']}"
+    assert web.page_errors == []
+
+
+def test_saved_copy_controls_look_disabled_and_caution_says_negative(harness, web):
+    page = harness("?offline")
+    looks = page.eval_on_selector_all(
+        ".isc-controls select", "ss => ss.map(s => [s.disabled, Number(getComputedStyle(s.closest('.isc-ctl')).opacity)])")
+    assert looks and all(disabled and opacity < 0.6 for disabled, opacity in looks), looks
+    assert "slightly negative" in page.text_content(".isc-caution")
+    live = harness()
+    assert all(o == 1 for o in live.eval_on_selector_all(
+        ".isc-controls select", "ss => ss.map(s => Number(getComputedStyle(s.closest('.isc-ctl')).opacity))"))
+
+
+def test_wide_joint_table_shows_a_scroll_cue(harness, web, payloads):
+    page = harness()
+    page.evaluate("window.__model.set('_pair', window.__model.get('_pair_cache')['service\\u0000contents'])")
+    page.evaluate("window.__model.set('selected_pair', ['service', 'contents'])")
+    page.wait_for_function("document.querySelector('.isc-pair .isc-punit').textContent.includes('contents')")
+    page.wait_for_timeout(150)
+    more = page.locator(".isc-pair .isc-more")
+    assert more.is_visible() and "more columns" in more.text_content()
+    assert page.locator(".isc-pair .isc-tablebox.isc-overflow").count() == 1
+    page.eval_on_selector(".isc-pair .isc-tablewrap", "w => { w.scrollLeft = w.scrollWidth; }")
+    page.wait_for_timeout(100)
+    assert page.locator(".isc-pair .isc-tablebox.isc-overflow").count() == 0  # the fade goes at the end
+    # a narrow table has no cue
+    page.evaluate("window.__model.set('_pair', window.__model.get('_pair_cache')['stops_before\\u0000late'])")
+    page.evaluate("window.__model.set('selected_pair', ['stops_before', 'late'])")
+    page.wait_for_function("document.querySelector('.isc-pair .isc-punit').textContent.includes('stops_before')")
+    page.wait_for_timeout(150)
+    assert not page.locator(".isc-pair .isc-more").is_visible()

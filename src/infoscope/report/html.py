@@ -274,12 +274,15 @@ def profile_html(widget, *, min_count=None, title: str | None = None) -> str:
             widget.close()
 
     notes = ["Saved copy: the numbers are those of the notebook at export time; controls that need "
-             "the kernel are off, the pair views saved with the export still open."]
+             "the kernel are off, the pair views saved with the export still open.",
+             "Bias-corrected estimates near 0 can be slightly negative: read them as no "
+             "detectable information, not as an error."]
     cells, views = _count_hidden(payload)
     if effective:
         notes.append(f"Small-cell suppression: counts below {effective} are hidden in every pair view "
-                     f"of this file, with the cells and totals that would give them away "
-                     f"({cells} cells hidden in {views} saved pair views).")
+                     f"of this file (shown as \u201c<{effective}\u201d), with the cells and totals that "
+                     f"would give them away (shown as \u201c\u00b7\u201d, hidden to protect a small cell; "
+                     f"their counts can be of any size) ({cells} cells hidden in {views} saved pair views).")
     page_title = title or "infoscope profile"
     return _PAGE.format(
         csp=_html.escape(CONTENT_SECURITY_POLICY, quote=True),

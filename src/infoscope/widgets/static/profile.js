@@ -74,6 +74,9 @@ const CSS = `
 .isc-stats{display:flex;flex-wrap:wrap;gap:4px 14px;font-size:12px;margin:0 0 6px;color:var(--isc-ink2)}
 .isc-stats b{color:var(--isc-ink);font-weight:600;font-variant-numeric:tabular-nums}
 .isc-tablewrap{overflow:auto;max-height:420px}
+.isc-tablebox{position:relative}
+.isc-tablebox.isc-overflow::after{content:"";position:absolute;top:0;right:0;bottom:0;width:28px;pointer-events:none;
+ background:linear-gradient(to right,rgba(255,255,255,0),var(--isc-bg,#fff))}
 .isc-ptable{border-collapse:separate;border-spacing:1px;font-size:11px;font-variant-numeric:tabular-nums}
 .isc-ptable th{font-weight:500;color:var(--isc-ink2);padding:1px 5px;white-space:nowrap;max-width:11em;overflow:hidden;text-overflow:ellipsis}
 .isc-ptable thead th{vertical-align:bottom;text-align:center}
@@ -397,8 +400,14 @@ function controlsView(ctx) {
     colBins.el.classList.toggle("isc-off", !numeric);
     colLabel.textContent = col == null ? "Bins for a column (pick one)" : `Bins for \u201c${col}\u201d`;
     if (!numeric) colBins.out.textContent = col == null ? "" : "not binned";
-    for (const c of [strategy, estimator, measure, unit, target, missing]) c.input.disabled = ctx.offline;
+    for (const c of [strategy, estimator, measure, unit, target, missing]) {
+      c.input.disabled = ctx.offline;
+      c.el.classList.toggle("isc-off", ctx.offline); // look off, like the pseudocount slider
+      if (ctx.offline) c.el.title = "saved copy: needs the live notebook"; else c.el.removeAttribute("title");
+    }
+    if (ctx.offline) { bins.el.classList.add("isc-off"); colBins.el.classList.add("isc-off"); }
     minCount.disabled = ctx.offline;
+    minWrap.classList.toggle("isc-off", ctx.offline);
   }
   sync();
   return { el, sync, parts: { bins, strategy, estimator, alpha, measure, unit, target, missing, minCount, colBins } };
@@ -636,8 +645,22 @@ function gridView(ctx) {
     ctx.set("selected_pair", [st.names[i], st.names[j]]);
   }
 
+  function labelAt(ev) { // a name in the left or top margin (drawn truncated to fit)
+    if (!st.mx) return null;
+    const r = canvas.getBoundingClientRect();
+    const x = ev.clientX - r.left, y = ev.clientY - r.top;
+    const i = Math.floor((y - st.my) / st.cell), j = Math.floor((x - st.mx) / st.cell);
+    if (x < st.mx && y >= st.my && i >= 0 && i < st.size) return st.names[i];
+    if (y < st.my && x >= st.mx && j >= 0 && j < st.size) return st.names[j];
+    return null;
+  }
+
   canvas.addEventListener("mousemove", (ev) => {
     const c = cellAt(ev);
+    const name = c ? null : labelAt(ev);
+    // the full name of a margin label, as text (a title and the view's own tooltip)
+    if (name != null) { canvas.title = String(name); canvas.dataset.label = String(name); ctx.tip.show([String(name)], ev.clientX, ev.clientY); return; }
+    if (canvas.title) { canvas.removeAttribute("title"); delete canvas.dataset.label; }
     if (!c) { ctx.tip.hide(); canvas.style.cursor = "default"; return; }
     canvas.style.cursor = c[0] === c[1] ? "default" : "pointer";
     ctx.tip.show(describe(c[0], c[1]), ev.clientX, ev.clientY);
@@ -726,6 +749,7 @@ function pairView(ctx) {
     }
     const unit = view.unit || ctx.unit();
     titleEl.textContent = `${view.a} (rows) \u00d7 ${view.b} (columns)`;
+    titleEl.title = titleEl.textContent;
     const holder = h("div", { class: pending ? "isc-dim" : "" });
     if (pending) body.append(h("div", { class: "isc-note" }, ctx.offline
       ? `\u201c${wanted[0]} \u00d7 ${wanted[1]}\u201d was not saved with this export; showing the last pair.`
@@ -740,7 +764,7 @@ function pairView(ctx) {
     top = top || 1;
     const hiddenLabel = view.min_count ? `<${view.min_count}` : "";
     const thead = h("thead", null, h("tr", null,
-      h("th", { class: "isc-corner", scope: "col" }, `${view.a} \u2193  ${view.b} \u2192`),
+      h("th", { class: "isc-corner", scope: "col", title: `rows: ${view.a}; columns: ${view.b}` }, `${view.a} \u2193  ${view.b} \u2192`),
       (view.cols || []).map((c) => h("th", { scope: "col", title: c }, c)),
       view.row_totals ? h("th", { scope: "col", class: "isc-tot" }, "total") : null));
     const tbody = h("tbody");
@@ -775,7 +799,21 @@ function pairView(ctx) {
     });
     const tfoot = view.col_totals ? h("tfoot", null, h("tr", null, h("th", { scope: "row", class: "isc-tot" }, "total"),
       view.col_totals.map((v) => h("td", { class: "isc-tot" }, count(v))), h("td", { class: "isc-tot" }, count(view.n)))) : null;
-    holder.append(h("div", { class: "isc-tablewrap" }, h("table", { class: "isc-ptable" }, thead, tbody, tfoot)));
+    const tableWrap = h("div", { class: "isc-tablewrap" }, h("table", { class: "isc-ptable" }, thead, tbody, tfoot));
+    const more = h("div", { class: "isc-note isc-more", "aria-hidden": "true", style: { display: "none" } }, "scroll sideways for more columns \u2192");
+    const box = h("div", { class: "isc-tablebox" }, tableWrap);
+    holder.append(box, more);
+    // a visible cue when the joint table is wider than its panel: a fade at the
+    // right edge and a note, both gone once scrolled to the end
+    const cue = () => {
+      const over = tableWrap.scrollWidth - tableWrap.clientWidth > 2;
+      const atEnd = tableWrap.scrollLeft + tableWrap.clientWidth >= tableWrap.scrollWidth - 2;
+      box.classList.toggle("isc-overflow", over && !atEnd);
+      more.style.display = over ? "" : "none";
+    };
+    tableWrap.addEventListener("scroll", cue);
+    requestAnimationFrame(cue);
+    if (typeof ResizeObserver !== "undefined") new ResizeObserver(cue).observe(tableWrap);
     const bar = h("canvas", { width: 140, height: 10, "aria-hidden": "true" });
     const g = bar.getContext("2d");
     for (let x = 0; x < bar.width; x++) { g.fillStyle = DIVERGING.css(x / (bar.width - 1)); g.fillRect(x, 0, 1, bar.height); }
@@ -898,6 +936,7 @@ function cautionView(ctx) {
     if (sampled) el.append(h("span", { class: "isc-sampled" }, `Sampled: these numbers come from a seeded sample of ${count(sampled)} rows${meta.n_rows ? ` of ${count(meta.n_rows)}` : ""}${busy && !ctx.offline ? "; the full data follow" : ""}.`));
     el.append(h("span", null, `Estimates from ${n ? `${count(n)} rows` : "a sample"}, with 95% intervals; they carry sampling error.`));
     el.append(h("span", null, "Mutual information measures dependence, not cause."));
+    el.append(h("span", null, "Bias-corrected estimates near 0 can be slightly negative."));
     el.append(h("span", null, "Profiles of personal data can reveal rare values: hide small cells, and follow the law and policy that apply."));
   }
   draw();
