@@ -99,3 +99,49 @@ def test_matrix_plugin_float_noise_becomes_exact_zero(monkeypatch):
     # plug-in MI = 0 in closed form; every off-diagonal cell is then exactly 0
     assert np.all(off == 0.0)
     assert np.all(np.signbit(off) == False)  # noqa: E712  (no -0.0 either)
+
+
+# ------------------------------------------------------------ CLI: CSV datetimes
+def _profile_output(capsys, argv):
+    from infoscope.cli import main
+
+    status = main(argv)
+    return status, capsys.readouterr().out
+
+
+def _kind_of(output: str, column: str) -> str:
+    section = output.split("== entropy per column", 1)[1].split("\n== ", 1)[0]
+    row = next(line for line in section.splitlines() if line.strip().startswith(column + " "))
+    return row.split()[1]
+
+
+def test_cli_reads_csv_timestamps_as_datetimes(tmp_path, capsys):
+    rng = np.random.default_rng(3)
+    n = 600
+    frame = pd.DataFrame({
+        "picked_up": pd.Timestamp("2025-02-01") + pd.to_timedelta(rng.integers(0, 10**7, n), unit="s"),
+        "parcels": rng.integers(1, 90, n),            # numeric: never touched
+        "zone": rng.choice(["north", "south", "east"], n),
+    })
+    path = tmp_path / "log.csv"
+    frame.to_csv(path, index=False)  # reference: pandas writes datetimes as ISO 8601 text
+    assert pd.read_csv(path)["picked_up"].dtype.kind not in "mM"  # as text without the fix
+    status, out = _profile_output(capsys, ["profile", str(path)])
+    assert status == 0
+    assert "read as dates/times (text in the file): 'picked_up'" in out
+    assert _kind_of(out, "picked_up") == "datetime"
+    assert _kind_of(out, "parcels") in ("numeric", "integer_categories")
+    assert _kind_of(out, "zone") != "datetime"  # words stay text
+
+
+def test_parse_datetime_columns_leaves_mixed_text_alone():
+    from infoscope.cli import parse_datetime_columns
+
+    dates = [str(d.date()) for d in pd.date_range("2025-01-01", periods=100)]
+    mixed = pd.DataFrame({"d": dates[:90] + ["soon"] * 10, "code": ["2025-01-01x"] * 100,
+                          "ok": dates, "num": np.arange(100.0)})
+    before = mixed.copy()
+    out, names = parse_datetime_columns(mixed)
+    assert names == ["ok"]
+    assert out["ok"].dtype.kind == "M" and out["num"].dtype == np.float64
+    pd.testing.assert_frame_equal(mixed, before)  # the input frame is not changed

@@ -12,6 +12,7 @@ declares its options, so that new subcommands slot in beside the others:
 from __future__ import annotations
 
 import argparse
+import re
 import sys
 import warnings
 
@@ -344,7 +345,95 @@ def read_table(path: str) -> pd.DataFrame:
         raise CommandError(f"cannot read {path!r}: {first}") from None
     if frame.shape[1] == 0 or len(frame) == 0:
         raise CommandError(f"{path!r} has no rows or no columns")
+    if not name.endswith((".parquet", ".pq")):  # Parquet keeps its own types
+        frame, parsed = parse_datetime_columns(frame)
+        frame.attrs["parsed_datetimes"] = parsed
     return frame
+
+
+#: Share of a text column's non-missing values that must read as dates / times
+#: for :func:`parse_datetime_columns` to convert it (our choice: a few stray
+#: entries such as "unknown" do not block it, a mixed column stays text).
+DATETIME_PARSE_SHARE = 0.95
+_DATE_LIKE = re.compile(r"^\s*(\d{4}[-/.]\d{1,2}[-/.]\d{1,2}|\d{1,2}[-/.]\d{1,2}[-/.]\d{4})"
+                        r"([ T]\d{1,2}:\d{2}(:\d{2}(\.\d+)?)?)?\s*(Z|[+-]\d{2}:?\d{2})?\s*$")
+
+
+def _to_datetime(values: pd.Series, fmt):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # pandas' "could not infer format" notices
+        try:
+            return pd.to_datetime(values, format=fmt, errors="coerce")
+        except (ValueError, TypeError, OverflowError):
+            try:  # mixed UTC offsets: one time line in UTC
+                return pd.to_datetime(values, format=fmt, errors="coerce", utc=True)
+            except (ValueError, TypeError, OverflowError):
+                return None
+
+
+def parse_datetime_columns(frame: pd.DataFrame, *, sample: int = 200) -> tuple[pd.DataFrame, list]:
+    """Convert the text columns of a CSV that hold dates or times to datetimes.
+
+    A CSV has no types: a timestamp column arrives as text, and as text every
+    distinct instant is its own level.  A text column is converted when its first
+    ``sample`` non-missing values all look like dates (``2024-03-01``,
+    ``2024-03-01 08:15:00``, ``01/03/2024``, optional time zone) and at least
+    :data:`DATETIME_PARSE_SHARE` of the sample and of the whole column parse
+    (``pandas.to_datetime``, ISO 8601 first, else the format pandas infers).
+    Numeric and boolean columns are never touched; the input frame is not
+    changed.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        As read by :func:`pandas.read_csv`.
+    sample : int, default=200
+        How many leading non-missing values decide.
+
+    Returns
+    -------
+    (pandas.DataFrame, list of str)
+        The frame (a copy when a column was converted) and the names of the
+        converted columns.
+
+    References
+    ----------
+    .. [1] ISO 8601:2019, Date and time -- Representations for information
+       interchange.
+    .. [2] pandas.to_datetime (``format="ISO8601"``, ``errors="coerce"``).
+
+    Examples
+    --------
+    >>> df = pd.DataFrame({"when": ["2024-03-01 08:15", "2024-03-02 09:00"], "n": [1, 2]})
+    >>> out, names = parse_datetime_columns(df)
+    >>> names, str(out["when"].dtype).startswith("datetime64")
+    (['when'], True)
+    """
+    parsed: list = []
+    result = frame
+    for column in frame.columns:
+        values = frame[column]
+        if not (values.dtype == object or pd.api.types.is_string_dtype(values.dtype)):
+            continue
+        present = values.dropna()
+        if present.empty:
+            continue
+        head = present.iloc[:sample]
+        if not all(isinstance(v, str) and _DATE_LIKE.match(v) for v in head):
+            continue
+        for fmt in ("ISO8601", None):
+            trial = _to_datetime(head, fmt)
+            if trial is None or trial.notna().mean() < DATETIME_PARSE_SHARE:
+                continue
+            full = _to_datetime(values, fmt)
+            if full is None or full[values.notna()].notna().mean() < DATETIME_PARSE_SHARE:
+                continue
+            if result is frame:
+                result = frame.copy()
+            result[column] = full
+            parsed.append(str(column))
+            break
+    return result, parsed
 
 
 def cmd_profile(args: argparse.Namespace, out=None) -> int:
@@ -409,6 +498,9 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
         bar.update()
         print(f"infoscope profile: {args.data}, {len(frame)} rows x {frame.shape[1]} columns"
               + (f"; target {args.target!r}" if args.target else "") + ".", file=out)
+        parsed = frame.attrs.get("parsed_datetimes") or []
+        if parsed:
+            print("read as dates/times (text in the file): " + ", ".join(map(repr, parsed)), file=out)
         print(CAUTION, file=out)
         bar.set_postfix_str("entropy")
         entropy = session.entropy()
