@@ -116,7 +116,12 @@ def test_grid_buffers_are_the_session_pairs(frame):
         assert values[i, j] == values[j, i] == pytest.approx(row["value"], rel=1e-6, abs=1e-7)
         assert n[i, j] == row["n"]
         assert q[i, j] == pytest.approx(row["q_value"], rel=1e-6, abs=1e-7)
-    assert np.allclose(np.diag(values), 1.0)  # NMI of a column with itself
+    # NMI of a column with itself: 1, or NaN (undefined, 0/0) for a column with one
+    # observed value; the grid carries the session matrix's own diagonal
+    diag = np.diag(quiet(s.matrix, order="cluster").to_numpy(dtype=float))
+    constant = np.array([frame[c].nunique(dropna=True) <= 1 for c in order])
+    assert np.allclose(np.diag(values)[~constant], 1.0) and np.isnan(np.diag(values)[constant]).all()
+    assert np.array_equal(np.isnan(diag), constant)
 
 
 def test_pair_view_counts_match_crosstab_and_hide_small_cells(frame):
