@@ -89,6 +89,38 @@ def _section(title: str, body: str, out) -> None:
     print(body, file=out)
 
 
+#: The false discovery rate below which ``top pairs`` lists a pair.
+PAIR_Q_LEVEL = 0.05
+_INTERVAL_NOTE = "{ci}% bootstrap interval"
+_NEGATIVE_NOTE = "an estimate below 0 means no dependence beyond the bias correction"
+
+
+def _top_pairs_section(session, top: int, out) -> None:
+    pairs = session.pairs("nmi")
+    kept = pairs[pairs["q_value"] < PAIR_Q_LEVEL].sort_values("nmi", ascending=False)
+    title = (f"top {top} pairs by normalised mutual information (only pairs with "
+             f"q < {PAIR_Q_LEVEL:g}, Benjamini-Hochberg; {len(kept)} of {len(pairs)} pairs)")
+    if kept.empty:
+        body = f"no pair has q < {PAIR_Q_LEVEL:g}: no dependence between columns stands out"
+    else:
+        body = format_table(kept[["a", "b", "n", "mi", "nmi", "q_value"]], max_rows=top)
+    _section(title, body, out)
+
+
+def _entropy_title(session, entropy) -> str:
+    sampled = entropy.attrs.get("sampled")
+    ci = _INTERVAL_NOTE.format(ci=int(round(session.settings["ci"] * 100)))
+    if session.settings.get("n_boot", 1) == 0:
+        ci = "no interval (n_boot=0)"
+    return (f"entropy per column ({entropy.attrs['unit']}, {entropy.attrs['estimator']}, {ci}"
+            + (f", sample of {sampled} rows" if sampled else "") + ")")
+
+
+def _relevance_title(target, unit) -> str:
+    return (f"relevance to {target!r} ({unit}; leakage = the column nearly determines the "
+            f"target; {_NEGATIVE_NOTE})")
+
+
 def add_demo_parser(subparsers) -> argparse.ArgumentParser:
     """Declare ``infoscope demo`` and its options.
 
@@ -178,23 +210,20 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
         session = ProfileSession(frame, bins=args.bins, target=target, seed=args.seed)
         entropy = session.entropy()
         unit = entropy.attrs["unit"]
-        _section(f"entropy per column ({unit}, {entropy.attrs['estimator']}, "
-                 f"{int(session.settings['ci'] * 100)}% bootstrap interval)",
+        _section(_entropy_title(session, entropy),
                  format_table(entropy[["column", "kind", "k", "missing_share", "entropy", "ci_low",
                                        "ci_high", "efficiency", "flags"]], max_width=44), out)
-        pairs = session.pairs("nmi").sort_values("nmi", ascending=False)
-        _section(f"top {args.top} pairs by normalised mutual information",
-                 format_table(pairs[["a", "b", "n", "mi", "nmi", "q_value"]], max_rows=args.top), out)
+        _top_pairs_section(session, args.top, out)
         relevance = session.relevance(target)
-        _section(f"relevance to {target!r} ({unit}; leakage = the column nearly determines the "
-                 "target; an estimate below 0 means no dependence beyond the bias correction)",
+        _section(_relevance_title(target, unit),
                  format_table(relevance[["column", "mi", "ci_low", "ci_high", "share_of_target",
                                          "q_value", "leakage"]]), out)
         drift = ProfileSession(batch, bins=args.bins).drift(frame)
         _section(f"drift of a later batch ({len(batch)} rows) from the log "
                  "(PSI: < 0.10 stable, 0.10-0.25 moderate, >= 0.25 major; id_like / time_axis: "
-                 "drift by construction (identifiers; another period), not a change of distribution)",
-                 format_table(drift[["column", "kind", "k", "psi", "js", "p_value", "flag"]]), out)
+                 "drift by construction (identifiers; another period), not a change of distribution; "
+                 f"PSI in {drift.attrs['units']['psi']}; KL and JS in {drift.attrs['units']['kl']})",
+                 format_table(drift[["column", "kind", "k", "psi", "kl", "js", "p_value", "flag"]]), out)
     notes = sorted({str(w.message) for w in caught})
     if notes:
         _section("notes on the data", "\n".join(f"- {m}" for m in notes), out)
@@ -506,21 +535,17 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
         entropy = session.entropy()
         bar.update()
         unit = entropy.attrs["unit"]
-        sampled = entropy.attrs.get("sampled")
-        _section(f"entropy per column ({unit}, {entropy.attrs['estimator']}"
-                 + (f", sample of {sampled} rows" if sampled else "") + ")",
+        _section(_entropy_title(session, entropy),
                  format_table(entropy[["column", "kind", "k", "missing_share", "entropy", "ci_low",
                                        "ci_high", "efficiency", "flags"]], max_width=44), out)
         bar.set_postfix_str("pairs")
         if len(session.names) >= 2:
-            pairs = session.pairs("nmi").sort_values("nmi", ascending=False)
-            _section(f"top {args.top} pairs by normalised mutual information",
-                     format_table(pairs[["a", "b", "n", "mi", "nmi", "q_value"]], max_rows=args.top), out)
+            _top_pairs_section(session, args.top, out)
         bar.update()
         bar.set_postfix_str("relevance")
         if args.target is not None:
             relevance = session.relevance(args.target)
-            _section(f"relevance to {args.target!r} ({unit}; leakage = column nearly determines it)",
+            _section(_relevance_title(args.target, unit),
                      format_table(relevance[["column", "mi", "ci_low", "ci_high", "share_of_target",
                                              "q_value", "leakage"]]), out)
         bar.update()
