@@ -40,6 +40,24 @@ def test_all_distinct_column_is_flagged_above_log_k():
     assert "exceeds_log_k" not in plain.loc["ident", "flags"].split(",")
 
 
+def test_binned_column_is_clipped_to_log_k_not_flagged():
+    # Quantile bins make the 16 bins almost equally full; Miller-Madow adds
+    # (K - 1) / (2 n) nats (Miller 1955) and passes log2 16 = 4 bits.  The alphabet is
+    # fixed by the binning, so H <= log K holds for the truth (Shannon 1948, the
+    # uniform distribution maximises entropy; common practice to project onto it):
+    # the estimate and its interval stop at log K and no flag is raised.
+    rng = np.random.default_rng(5)
+    df = pd.DataFrame({"x": rng.normal(size=400), "flag": rng.integers(0, 2, 400).astype(bool)})
+    out = ProfileSession(df, estimator="miller_madow", bins=16, n_boot=50).entropy().set_index("column")
+    x = out.loc["x"]
+    raw = scipy.stats.entropy(np.full(16, 25), base=2) + 15 / (2 * 400) / math.log(2)
+    assert raw > 4.0  # the unclipped Miller-Madow value would pass log K
+    assert x["entropy"] == pytest.approx(4.0, abs=1e-12)
+    assert x["ci_high"] <= 4.0 + 1e-12 and x["ci_low"] <= x["entropy"]
+    assert x["efficiency"] <= 1.0 + 1e-12 and x["effective_categories"] <= 16 + 1e-9
+    assert "exceeds_log_k" not in x["flags"].split(",")
+
+
 # ------------------------------------------------------------ drift units
 def test_drift_units_psi_in_nats_kl_js_in_session_unit():
     from scipy.spatial.distance import jensenshannon

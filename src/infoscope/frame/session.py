@@ -203,6 +203,12 @@ def _check_bins(bins, parameter: str):
 
 
 # ------------------------------------------------------------------ the session
+
+def _alphabet_is_fixed(col) -> bool:
+    """True when the encoding, not the sample, sets the alphabet (so H <= log K)."""
+    return col.edges is not None or col.kind in ("boolean", "categorical")
+
+
 class ProfileSession:
     """The information profile of one frame: settings, encoded columns, one engine.
 
@@ -619,12 +625,18 @@ class ProfileSession:
             statistics and of chi-square tables, 1% as the usual share below
             which a category is grouped as rare).
 
-            **Above log K.**  ``exceeds_log_k``: the estimate is above log K of
-            the observed levels: the bias correction credits levels the sample
-            has not seen; K is a lower bound of the true alphabet.  The numbers
-            are kept as computed (not clipped), so ``efficiency`` is then above 1
-            and ``effective_categories`` above ``k`` (an all-distinct identifier
-            under Miller-Madow reads log K + (K - 1) / (2 n) nats).
+            **Above log K.**  A bias correction can carry an estimate past log K.
+            Where the encoding fixes the alphabet (binned numeric, datetime and
+            duration columns, booleans, pandas Categoricals with their declared
+            categories) the entropy cannot exceed log K, and the estimate and its
+            interval are clipped to log K.  Where K is only the number of levels
+            seen (text, integer levels), flag ``exceeds_log_k``: the estimate is
+            above log K of the observed levels because the bias correction
+            credits levels the sample has not seen; K is a lower bound of the
+            true alphabet.  Those numbers are kept as computed, so ``efficiency``
+            is then above 1 and ``effective_categories`` above ``k`` (an
+            all-distinct identifier under Miller-Madow reads
+            log K + (K - 1) / (2 n) nats).
 
         References
         ----------
@@ -682,11 +694,19 @@ class ProfileSession:
                 flags.append("rare_levels")
             max_h = math.log(k) / divisor if k >= 1 else math.nan
             # a bias correction adds to the plug-in estimate and can carry it past
-            # log K of the observed levels; the number is kept as computed and the
-            # row says so (tolerance: float rounding of a uniform plug-in)
+            # log K (tolerance: float rounding of a uniform plug-in).  Where the
+            # encoding fixes the alphabet (bins, booleans, declared categories) the
+            # entropy cannot exceed log K, so the estimate and its interval are
+            # clipped there; where K is only the number of levels seen (text,
+            # integer levels) K is a lower bound of the true alphabet, the number
+            # is kept as computed and the row says so.
             if (not math.isnan(h) and not math.isnan(max_h)
                     and h > max_h + 1e-12 * max(1.0, abs(max_h))):
-                flags.append("exceeds_log_k")
+                if _alphabet_is_fixed(col):
+                    h = max_h
+                    low, high = min(low, max_h), min(high, max_h)
+                else:
+                    flags.append("exceeds_log_k")
             rows.append({
                 "column": key, "kind": col.kind, "k": int(k), "n": int(col.n),
                 "missing": int(col.n_missing),

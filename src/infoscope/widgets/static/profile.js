@@ -227,7 +227,7 @@ const SORT_LABELS = { entropy: "entropy", name: "name", efficiency: "efficiency"
 const FLAG_LABELS = {
   constant: "constant", id_like: "ID-like", mostly_missing: "mostly missing", sparse_cells: "sparse cells",
   heavy_tail: "heavy tail", levels_folded: "levels folded", mixed_types: "mixed types",
-  infinite_values: "infinite values", rare_levels: "rare levels",
+  infinite_values: "infinite values", rare_levels: "rare levels", exceeds_log_k: "above log K",
 };
 const FLAG_HELP = {
   constant: "one value only: carries no information",
@@ -238,6 +238,7 @@ const FLAG_HELP = {
   levels_folded: "rare levels folded into one: the grid and pair views use the folded levels, the entropy bar counts every level",
   mixed_types: "values of mixed types",
   infinite_values: "infinite values treated as missing",
+  exceeds_log_k: "estimate above log K of the observed levels: the bias correction credits unseen levels; K is a lower bound of the true alphabet",
   rare_levels: "many thin levels (fewer than 5 rows or under 1% each) hold at least 5% of rows",
 };
 
