@@ -517,13 +517,18 @@ class ProfileSession:
         return series
 
     def _encode(self, keys) -> set[str]:
-        from infoscope.encode.columns import encode_column
+        from infoscope.encode.columns import encode_columns
 
-        done: set[str] = set()
+        keys = list(keys)
+        jobs = []
         for key in keys:
             bins, strategy, missing, max_categories = self._encoding_settings(key, self._settings)
-            encoded = encode_column(self._values(key), name=key, bins=bins, strategy=strategy,
-                                    missing=missing, max_categories=max_categories)
+            jobs.append((key, self._values(key), {"bins": bins, "strategy": strategy,
+                                                  "missing": missing, "max_categories": max_categories}))
+        done: set[str] = set()
+        # columns are encoded side by side in worker threads (numpy's sort and search
+        # release the GIL); warnings still come from here, in column order
+        for key, encoded in zip(keys, encode_columns(jobs)):
             self._encoded[key] = encoded
             done.add(key)
             if self._engine is not None:
