@@ -62,6 +62,7 @@ _PUBLIC = {
     "encode_column": "infoscope.encode.columns",
     "EncodedColumn": "infoscope.encode.columns",
     "encode_frame": "infoscope.encode.columns",
+    "encode_columns": "infoscope.encode.columns",
     "clear_cache": "infoscope.encode.cache",
     # engine
     "PairEngine": "infoscope.engine.engine",

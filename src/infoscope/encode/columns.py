@@ -45,7 +45,7 @@ __all__ = [
 KINDS = ("numeric", "integer_categories", "categorical", "boolean", "datetime", "timedelta", "text")
 FLAGS = (
     "constant", "id_like", "mostly_missing", "sparse_cells", "heavy_tail",
-    "levels_folded", "mixed_types", "infinite_values", "rare_levels",
+    "levels_folded", "mixed_types", "infinite_values", "rare_levels", "exceeds_log_k",
 )
 MISSING_LABEL = "(missing)"
 OTHER_LABEL = "(other)"
