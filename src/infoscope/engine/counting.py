@@ -176,6 +176,22 @@ def _plan_triples(ks: Sequence[int], pairs, max_cells: int) -> list[tuple[int, i
         out.append((x, y, z))
         for u, v in ((x, y), (x, z), (y, z)):
             wanted[u, v] = wanted[v, u] = False
+    # Second pass, for what is left: a triple may also serve just two wanted pairs
+    # that share a column (a star, as when one re-encoded column is recounted against
+    # all the others). One increment per row still serves two pairs; the third
+    # pair's table is counted but not used.
+    for a, b in sorted(pairs, key=lambda ab: (-int(kk[ab[0]] * kk[ab[1]]), ab)):
+        if not wanted[a, b]:
+            continue
+        fits = (wanted[a] | wanted[b]) & (kk[a] * kk[b] * kk <= max_cells)
+        fits[a] = fits[b] = False
+        candidates = np.flatnonzero(fits)
+        if candidates.size == 0:
+            continue
+        c = int(candidates[np.argmax(kk[candidates])])
+        out.append(tuple(sorted((a, b, c))))
+        for u, v in ((a, b), (a, c), (b, c)):
+            wanted[u, v] = wanted[v, u] = False
     return out
 
 
@@ -207,9 +223,11 @@ def pair_layout(ks: Sequence[int], pairs: Sequence[tuple[int, int]], names=None,
     trip = _plan_triples(ks, unordered, limit)
     in_triple = {}
     for g, (x, y, z) in enumerate(trip):
-        in_triple[(y, z)] = (g, 0)
-        in_triple[(x, z)] = (g, 1)
-        in_triple[(x, y)] = (g, 2)
+        # a pair may sit in two triples (the second pass's stars); every triple
+        # counts all rows, so either gives its table: keep the first
+        in_triple.setdefault((y, z), (g, 0))
+        in_triple.setdefault((x, z), (g, 1))
+        in_triple.setdefault((x, y), (g, 2))
     direct: dict = {}
     source, transpose = [], []
     for a, b in pairs:
