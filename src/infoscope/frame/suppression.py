@@ -33,7 +33,7 @@ import numbers
 
 import numpy as np
 
-__all__ = ["check_min_count", "suppression_mask", "suppression_kinds", "VISIBLE", "SMALL", "COMPLEMENTARY"]
+__all__ = ["check_min_count", "pair_hidden_kinds", "suppression_mask", "suppression_kinds", "VISIBLE", "SMALL", "COMPLEMENTARY"]
 
 #: Codes of :func:`suppression_kinds`: a shown cell, a cell below the threshold,
 #: and a cell hidden only so that a small one cannot be worked out from totals.
@@ -250,3 +250,23 @@ def suppression_kinds(counts, min_count, previous=None) -> np.ndarray:
     else:
         kinds[before] = SMALL
     return kinds
+
+
+def pair_hidden_kinds(pair, min_count):
+    """Threshold, counts and hidden-cell kinds of one pair view (a ``PairTable``).
+
+    The one place where a view or an export decides what to hide: the threshold is
+    the larger of ``min_count`` and that of an already suppressed table
+    (``pair.hidden``), whose hidden cells (NA in ``pair.counts``) keep their kinds.
+
+    Returns
+    -------
+    (int or None, numpy.ndarray, numpy.ndarray)
+        The threshold in force, the counts as float64 (NaN where already hidden) and
+        :func:`suppression_kinds` of them.
+    """
+    threshold = check_min_count(min_count)
+    hidden = getattr(pair, "hidden", None) or {}
+    threshold = max(threshold or 0, int(hidden.get("min_count") or 0)) or None
+    raw = pair.counts.to_numpy(dtype=np.float64, na_value=np.nan)  # NA: hidden by PairTable.suppressed
+    return threshold, raw, suppression_kinds(raw, threshold, previous=hidden.get("kinds"))

@@ -14,8 +14,8 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from infoscope.report.suppression import (SMALL, check_min_count, complement_label, suppressed_label,
-                                          suppression_kinds)
+from infoscope.frame.suppression import pair_hidden_kinds
+from infoscope.report.suppression import SMALL, check_min_count, complement_label, suppressed_label
 
 UNITS = {"bits", "nats", "hartleys"}
 
@@ -119,11 +119,7 @@ def pair_records(pair, *, min_count=None) -> dict:
     counts = getattr(pair, "counts", None)
     if not isinstance(counts, pd.DataFrame):
         raise TypeError("a pair view needs a PairTable with a .counts DataFrame (ProfileSession.pair)")
-    threshold = check_min_count(min_count)
-    earlier = int((getattr(pair, "hidden", None) or {}).get("min_count") or 0)  # a suppressed PairTable
-    threshold = max(threshold or 0, earlier) or None
-    raw = counts.to_numpy(dtype=np.float64, na_value=np.nan)  # NA: hidden by PairTable.suppressed
-    kinds = suppression_kinds(raw, threshold, previous=(getattr(pair, "hidden", None) or {}).get("kinds"))
+    threshold, raw, kinds = pair_hidden_kinds(pair, min_count)
     mask = kinds != 0
     expected = getattr(pair, "expected", None)
     pmi = getattr(pair, "pmi", None)

@@ -35,7 +35,7 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from infoscope.frame.suppression import SMALL, check_min_count, suppression_kinds
+from infoscope.frame.suppression import SMALL, pair_hidden_kinds
 
 ENTROPY_FIELDS = ("column", "kind", "k", "n", "missing", "missing_share", "entropy", "ci_low",
                   "ci_high", "max_entropy", "efficiency", "effective_categories", "flags")
@@ -157,11 +157,7 @@ def pair_view(pair, a: str, b: str, *, unit: str = "bits", min_count: int | None
     counts = getattr(pair, "counts", None)
     if not isinstance(counts, pd.DataFrame):
         raise TypeError("a pair view needs a PairTable with a .counts DataFrame (ProfileSession.pair)")
-    threshold = check_min_count(min_count)
-    earlier = int((getattr(pair, "hidden", None) or {}).get("min_count") or 0)  # a suppressed PairTable
-    threshold = max(threshold or 0, earlier) or None
-    raw = counts.to_numpy(dtype=np.float64, na_value=np.nan)  # NA: hidden by PairTable.suppressed
-    kinds = suppression_kinds(raw, threshold, previous=(getattr(pair, "hidden", None) or {}).get("kinds"))
+    threshold, raw, kinds = pair_hidden_kinds(pair, min_count)
     mask = kinds != 0
     pmi_frame = getattr(pair, "pmi", None)
     pmi = pmi_frame.to_numpy(dtype=np.float64) if isinstance(pmi_frame, pd.DataFrame) else np.full_like(raw, np.nan)
