@@ -16,6 +16,7 @@ DESIGN_NAMES = [
     "kl_divergence", "js_divergence", "cross_entropy", "psi",
     "normalized_mutual_information", "adjusted_mutual_information", "variation_of_information",
     "g_test", "g_test_from_table", "bin_edges", "differential_entropy",
+    "entropy_from_probabilities", "surprisal", "co_information", "total_correlation",
 ]
 
 

@@ -47,6 +47,12 @@ _PUBLIC = {
     "bootstrap_entropy_ci": "infoscope.estimators.resampling",
     "bootstrap_mi_ci": "infoscope.estimators.resampling",
     "permutation_test_mi": "infoscope.estimators.resampling",
+    "entropy_from_probabilities": "infoscope.estimators.multivariate",
+    "surprisal": "infoscope.estimators.multivariate",
+    "co_information_from_table": "infoscope.estimators.multivariate",
+    "total_correlation_from_table": "infoscope.estimators.multivariate",
+    "effective_sample_size": "infoscope.estimators.multivariate",
+    "WeightedEstimate": "infoscope.estimators.multivariate",
     # functional API on samples (labels unless bins= is given)
     "entropy": "infoscope.measures",
     "joint_entropy": "infoscope.measures",
@@ -57,6 +63,8 @@ _PUBLIC = {
     "adjusted_mutual_information": "infoscope.measures",
     "variation_of_information": "infoscope.measures",
     "g_test": "infoscope.measures",
+    "co_information": "infoscope.measures",
+    "total_correlation": "infoscope.measures",
     # encoding
     "bin_edges": "infoscope.encode.binning",
     "encode_column": "infoscope.encode.columns",

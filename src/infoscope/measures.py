@@ -42,6 +42,7 @@ from infoscope.estimators._checks import check_choice, check_same_length, log_ba
 __all__ = [
     "MISSING_POLICIES",
     "adjusted_mutual_information",
+    "co_information",
     "conditional_entropy",
     "conditional_mutual_information",
     "entropy",
@@ -49,6 +50,7 @@ __all__ = [
     "joint_entropy",
     "mutual_information",
     "normalized_mutual_information",
+    "total_correlation",
     "variation_of_information",
 ]
 
@@ -335,6 +337,64 @@ def _warn_if_sparse(table: np.ndarray, cols: list[_Coded], what: str) -> None:
         )
 
 
+def _weights_for(weights, n: int) -> np.ndarray:
+    """Validated observation weights of ``n`` rows (a float64 copy; the user's array is not touched)."""
+    from infoscope.estimators.multivariate import check_weights
+
+    w = check_weights(np.asarray(_to_series(weights, "weights").to_numpy(dtype=np.float64, na_value=np.nan)))
+    if w.size != n:
+        raise ValueError(f"weights has {w.size} values for {n} rows; give one weight per row")
+    return w
+
+
+def _weighted_estimate(cols: list[_Coded], w: np.ndarray, estimator: str, alpha, base, entropies, *, clip: bool):
+    """A :class:`WeightedEstimate` of ``sum(sign * H(axes))`` over the weighted joint table.
+
+    ``entropies`` lists ``(sign, axes)``: the estimate is that signed sum of the
+    entropies of the margins on ``axes``, each corrected at Kish's effective sample
+    size of the rows where every column is present.
+    """
+    from infoscope.estimators.multivariate import (
+        WEIGHTED_ESTIMATORS,
+        WeightedEstimate,
+        entropy_of_weighted_table,
+    )
+
+    if estimator not in WEIGHTED_ESTIMATORS:
+        raise ValueError(
+            f"estimator={estimator!r} does not accept weights (its formula needs whole counts); "
+            f"use one of: {', '.join(map(repr, WEIGHTED_ESTIMATORS))}"
+        )
+    shape = tuple(max(c.k, 1) for c in cols)
+    if math.prod(shape) > _MAX_TABLE_CELLS:
+        _table(cols)  # raises the size error
+    keep = np.logical_and.reduce([c.present for c in cols]) & (w > 0)
+    if not keep.any():
+        raise ValueError(f"no rows left: there is no row of {_join(cols)} with a positive weight")
+    wk = w[keep]
+    flat = np.ravel_multi_index(tuple(c.codes[keep] for c in cols), shape)
+    table = np.bincount(flat, weights=wk, minlength=math.prod(shape)).reshape(shape)
+    n_eff = float(wk.sum()) ** 2 / float(np.dot(wk, wk))
+    if n_eff < _SPARSE_CELL_COUNT * table.size:
+        warnings.warn(
+            f"the weighted joint table of {_join(cols)} has {table.size} cells for an effective "
+            f"sample size of {n_eff:.4g} rows (Kish; {int(keep.sum())} rows): the estimate is "
+            "unreliable (use fewer bins or levels)",
+            SmallSampleWarning,
+            stacklevel=4,
+        )
+    d = table.ndim
+    nats = 0.0
+    for sign, axes in entropies:
+        drop = tuple(a for a in range(d) if a not in axes)
+        margin = table.sum(axis=drop) if drop else table
+        nats += sign * entropy_of_weighted_table(margin, n_eff, estimator=estimator, alpha=alpha)
+    if clip and estimator == "plugin":
+        nats = nats if nats > 0 else 0.0  # a KL divergence: a negative is rounding
+    return WeightedEstimate(nats / log_base(base), n=int(keep.sum()), weight_total=float(wk.sum()),
+                            n_effective=n_eff)
+
+
 def _check_count_estimator(estimator) -> str:
     if estimator in KNN_ESTIMATORS:
         raise ValueError(
@@ -345,7 +405,8 @@ def _check_count_estimator(estimator) -> str:
 
 
 # --------------------------------------------------------------------------- entropies
-def entropy(values, *, estimator="miller_madow", base=2, bins=None, missing="drop", strategy="quantile", alpha=None) -> float:
+def entropy(values, *, estimator="miller_madow", base=2, bins=None, missing="drop", strategy="quantile", alpha=None,
+            weights=None) -> float:
     """Entropy of a sample of a discrete (or binned) variable.
 
     Parameters
@@ -365,11 +426,19 @@ def entropy(values, *, estimator="miller_madow", base=2, bins=None, missing="dro
         Equal-frequency or equal-width bins for an integer ``bins``.
     alpha : float or str, optional
         Pseudocount of the ``"dirichlet"`` estimator.
+    weights : array_like of float, shape (n,), optional
+        Observation weights (survey or sampling weights), one per row, >= 0.  The
+        cell probabilities are the weighted shares; the bias correction uses Kish's
+        effective sample size :math:`(\\sum w)^2 / \\sum w^2` of the rows used.  Only
+        the estimators of ``infoscope.estimators.multivariate.WEIGHTED_ESTIMATORS``
+        (``plugin``, ``miller_madow``, ``james_stein``, ``dirichlet``) accept weights.
 
     Returns
     -------
     float
-        The estimated entropy in the unit of ``base``.
+        The estimated entropy in the unit of ``base``.  With ``weights`` it is a
+        :class:`~infoscope.estimators.multivariate.WeightedEstimate` (a float that
+        also carries ``n``, ``weight_total`` and ``n_effective``).
 
     References
     ----------
@@ -377,14 +446,21 @@ def entropy(values, *, estimator="miller_madow", base=2, bins=None, missing="dro
        System Technical Journal, 27(3), 379-423.
     .. [2] Miller, G. A. (1955). Note on the bias of information estimates. In
        H. Quastler (ed.), Information Theory in Psychology, Free Press, 95-100.
+    .. [3] Kish, L. (1965). Survey Sampling. Wiley, New York (effective sample size).
 
     Examples
     --------
     >>> entropy(["a", "b", "a", "b"], estimator="plugin")
     1.0
+    >>> h = entropy(["a", "b", "b"] * 10, weights=[2.0, 1.0, 1.0] * 10, estimator="plugin")
+    >>> float(h), round(h.n_effective, 4)
+    (1.0, 26.6667)
     """
     estimator = _check_count_estimator(estimator)
     (col,) = _coded_columns([("values", values)], bins=bins, strategy=strategy, missing=missing)
+    if weights is not None:
+        w = _weights_for(weights, len(col.codes))
+        return _weighted_estimate([col], w, estimator, alpha, base, [(1, (0,))], clip=False)
     return _info.joint_entropy_from_counts(_table([col]), estimator=estimator, base=base, alpha=alpha)
 
 
@@ -534,6 +610,7 @@ def mutual_information(
     alpha=None,
     discrete=None,
     seed=0,
+    weights=None,
 ) -> float:
     """Mutual information between two columns of samples.
 
@@ -567,13 +644,20 @@ def mutual_information(
         estimator.
     seed : int, default=0
         Seed of the tie-breaking noise of the kNN estimators.
+    weights : array_like of float, shape (n,), optional
+        Observation weights, one per row (see :func:`entropy`): the joint table holds
+        summed weights and each entropy of :math:`H(X) + H(Y) - H(X, Y)` is corrected
+        at Kish's effective sample size of the rows where both are present.  Count
+        estimators only.
 
     Returns
     -------
     float
         The estimate in the unit of ``base``.  Bias-corrected and kNN estimates can be
         slightly negative when the columns are independent; they are returned as
-        computed (see :mod:`infoscope.estimators.information`).
+        computed (see :mod:`infoscope.estimators.information`).  With ``weights``
+        a :class:`~infoscope.estimators.multivariate.WeightedEstimate` (a float with
+        ``n``, ``weight_total`` and ``n_effective``).
 
     Warns
     -----
@@ -605,12 +689,17 @@ def mutual_information(
     """
     check_choice(missing, MISSING_POLICIES, "missing")
     if estimator in KNN_ESTIMATORS:
+        if weights is not None:
+            raise ValueError(f"weights= is not supported by estimator={estimator!r}; use a count estimator with bins=")
         if bins is not None:
             raise ValueError(f"bins= is not used by estimator={estimator!r} (it works on unbinned values); drop bins=")
         log_base(base)
         return _knn_mi(x, y, algorithm=KNN_ESTIMATORS[estimator], k=k, base=base, missing=missing, discrete=discrete, seed=seed)
     estimator = _check_count_estimator(estimator)
     cols = _coded_columns([("x", x), ("y", y)], bins=bins, strategy=strategy, missing=missing)
+    if weights is not None:
+        w = _weights_for(weights, len(cols[0].codes))
+        return _weighted_estimate(cols, w, estimator, alpha, base, [(1, (0,)), (1, (1,)), (-1, (0, 1))], clip=True)
     table = _table(cols)
     _warn_if_sparse(table, cols, "the estimate is unreliable (use fewer bins or levels)")
     return _info.mutual_information_from_table(table, estimator=estimator, base=base, alpha=alpha)
@@ -661,6 +750,120 @@ def conditional_mutual_information(
     table = _table(cols)
     _warn_if_sparse(table, cols, "the estimate is unreliable (use fewer bins or levels)")
     return _info.conditional_mutual_information_from_table(table, estimator=estimator, base=base, alpha=alpha)
+
+
+def co_information(x, y, z, *more, estimator="miller_madow", base=2, bins=None, missing="drop", strategy="quantile",
+                   alpha=None) -> float:
+    """Co-information of three (or more) columns: for three, I(x; y) - I(x; y | z).
+
+    Parameters
+    ----------
+    x, y, z : array_like of shape (n,)
+        The columns (same rows).
+    *more : array_like of shape (n,)
+        Further columns: the co-information of all of them (Bell 2003).
+    estimator : str, default="miller_madow"
+        ``"plugin"`` or any name in ``infoscope.ENTROPY_ESTIMATORS``, applied to every
+        marginal table.
+    base : float or str, default=2
+        Logarithm base or unit name.
+    bins : int, str or sequence of float, optional
+        Binning of numeric columns; ``None``: labels.
+    missing : {"drop", "category", "error"}, default="drop"
+        Missing-value policy (rows where every column is present under ``"drop"``).
+    strategy : {"quantile", "uniform"}, default="quantile"
+        Equal-frequency or equal-width bins for an integer ``bins``.
+    alpha : float or str, optional
+        Pseudocount of the ``"dirichlet"`` estimator.
+
+    Returns
+    -------
+    float
+        Positive when the columns share information (redundancy), negative when they
+        inform each other only jointly (synergy: ``z = x xor y`` gives -1 bit); see
+        :func:`infoscope.estimators.multivariate.co_information_from_table`.
+
+    Warns
+    -----
+    SmallSampleWarning
+        When the joint table has fewer than 5 rows per cell on average.
+
+    References
+    ----------
+    .. [1] McGill, W. J. (1954). Multivariate information transmission.
+       Psychometrika, 19(2), 97-116.
+    .. [2] Bell, A. J. (2003). The co-information lattice. Proc. ICA 2003, 921-926.
+
+    Examples
+    --------
+    >>> x, y = [0, 0, 1, 1] * 20, [0, 1, 0, 1] * 20
+    >>> z = [a ^ b for a, b in zip(x, y)]
+    >>> round(co_information(x, y, z, estimator="plugin"), 12)
+    -1.0
+    """
+    from infoscope.estimators.multivariate import co_information_from_table
+
+    estimator = _check_count_estimator(estimator)
+    named = [("x", x), ("y", y), ("z", z)] + [(f"more[{i}]", c) for i, c in enumerate(more)]
+    cols = _coded_columns(named, bins=bins, strategy=strategy, missing=missing)
+    table = _table(cols)
+    _warn_if_sparse(table, cols, "the estimate is unreliable (use fewer bins or levels)")
+    return co_information_from_table(table, estimator=estimator, base=base, alpha=alpha)
+
+
+def total_correlation(*columns, estimator="miller_madow", base=2, bins=None, missing="drop", strategy="quantile",
+                      alpha=None) -> float:
+    """Total correlation of two or more columns: sum of their entropies minus their joint entropy.
+
+    Parameters
+    ----------
+    *columns : array_like of shape (n,)
+        Two or more columns of the same rows.
+    estimator : str, default="miller_madow"
+        ``"plugin"`` or any name in ``infoscope.ENTROPY_ESTIMATORS``.
+    base : float or str, default=2
+        Logarithm base or unit name.
+    bins : int, str or sequence of float, optional
+        Binning of numeric columns; ``None``: labels.
+    missing : {"drop", "category", "error"}, default="drop"
+        Missing-value policy (rows where every column is present under ``"drop"``).
+    strategy : {"quantile", "uniform"}, default="quantile"
+        Equal-frequency or equal-width bins for an integer ``bins``.
+    alpha : float or str, optional
+        Pseudocount of the ``"dirichlet"`` estimator.
+
+    Returns
+    -------
+    float
+        :math:`\\sum_i H(X_i) - H(X_1, \\dots, X_d)` in the unit of ``base``: 0 for
+        independent columns; for two columns their mutual information.
+
+    Warns
+    -----
+    SmallSampleWarning
+        When the joint table has fewer than 5 rows per cell on average.
+
+    References
+    ----------
+    .. [1] Watanabe, S. (1960). Information theoretical analysis of multivariate
+       correlation. IBM Journal of Research and Development, 4(1), 66-82.
+
+    Examples
+    --------
+    >>> bit = [0, 1] * 25
+    >>> round(total_correlation(bit, bit, bit, estimator="plugin"), 12)
+    2.0
+    """
+    from infoscope.estimators.multivariate import total_correlation_from_table
+
+    if len(columns) < 2:
+        raise ValueError(f"total_correlation needs at least two columns, got {len(columns)}")
+    estimator = _check_count_estimator(estimator)
+    named = [(f"columns[{i}]", c) for i, c in enumerate(columns)]
+    cols = _coded_columns(named, bins=bins, strategy=strategy, missing=missing)
+    table = _table(cols)
+    _warn_if_sparse(table, cols, "the estimate is unreliable (use fewer bins or levels)")
+    return total_correlation_from_table(table, estimator=estimator, base=base, alpha=alpha)
 
 
 def normalized_mutual_information(
