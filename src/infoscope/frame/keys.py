@@ -1,0 +1,88 @@
+"""Frames and column keys: the user's frame as pandas, and unique string keys for its labels."""
+from __future__ import annotations
+
+import pandas as pd
+
+from infoscope.encode.columns import column_keys as encode_keys
+
+__all__ = ["as_pandas", "column_keys"]
+
+
+def as_pandas(frame, parameter: str = "frame") -> pd.DataFrame:
+    """Return ``frame`` as a pandas DataFrame without modifying it.
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame or polars.DataFrame or polars.LazyFrame
+        The data.
+    parameter : str, default="frame"
+        Name used in the error message.
+
+    Returns
+    -------
+    pandas.DataFrame
+        pandas frames are shallow-copied (with copy-on-write, pandas 3, this costs
+        nothing and later edits of the user's frame do not reach the copy); Polars
+        frames (eager or lazy) are converted with ``to_pandas()``.
+
+    Raises
+    ------
+    TypeError
+        For anything else, naming ``parameter``.
+
+    References
+    ----------
+    .. [1] pandas documentation, "Copy-on-Write (CoW)".
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> df = pd.DataFrame({"a": [1, 2]})
+    >>> as_pandas(df) is df, as_pandas(df).equals(df)
+    (False, True)
+    """
+    if isinstance(frame, pd.DataFrame):
+        return frame.copy(deep=False)
+    module = type(frame).__module__.split(".")[0]
+    if module == "polars":
+        if hasattr(frame, "collect") and not hasattr(frame, "to_pandas"):
+            frame = frame.collect()  # a LazyFrame
+        return frame.to_pandas()
+    raise TypeError(
+        f"{parameter} must be a pandas or Polars DataFrame, got {type(frame).__name__}"
+    )
+
+
+def _name_text(name) -> str:
+    if isinstance(name, tuple):
+        return " / ".join(_name_text(part) for part in name)
+    return name if isinstance(name, str) else str(name)
+
+
+def column_keys(columns, *, warn: bool = True) -> list[str]:
+    """Unique string keys for column labels (``infoscope.encode.columns.column_keys``).
+
+    Parameters
+    ----------
+    columns : sequence
+        Column labels, e.g. ``df.columns``.
+    warn : bool, default=True
+        Warn (:class:`DataQualityWarning`) when labels repeat.
+
+    Returns
+    -------
+    list of str
+        Non-string labels become ``str(label)``, MultiIndex tuples are joined with
+        ``" / "``, and repeated keys get ``" (2)"``, ``" (3)"``, ... in order of
+        appearance.
+
+    References
+    ----------
+    .. [1] DEVELOPERS.md, "ProfileSession" (``names``).
+
+    Examples
+    --------
+    >>> column_keys(["a", "a", 3], warn=False)
+    ['a', 'a (2)', '3']
+    """
+    return encode_keys(list(columns), warn=warn)

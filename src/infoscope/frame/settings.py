@@ -1,0 +1,92 @@
+"""The settings of a :class:`~infoscope.frame.session.ProfileSession`: defaults and checks.
+
+One place for the choices a profile accepts (estimators, bin rules, measures,
+normalisations, orders, missing policies) and for the validation of a settings
+mapping; the widgets derive their controls from these lists.
+"""
+from __future__ import annotations
+
+import numbers
+from collections.abc import Mapping
+
+from infoscope.encode.binning import BIN_RULES
+from infoscope.estimators._checks import check_choice, log_base
+from infoscope.estimators.entropy import ENTROPY_ESTIMATORS
+from infoscope.estimators.information import NORMALIZATIONS
+
+__all__ = ["MEASURES", "ORDERS"]
+
+#: Pair measures: name -> what the ``value`` column of ``pairs()`` holds.
+MEASURES = {
+    "mi": "mutual information (the session's estimator), in the session's unit",
+    "nmi": "normalised mutual information (the session's normalisation), unit-free",
+    "adjusted_mi": "mutual information adjusted for chance (Vinh, Epps & Bailey 2010), unit-free",
+    "vi": "variation of information H(A|B) + H(B|A) (Meila 2007), a distance in the session's unit",
+}
+ORDERS = ("name", "cluster")
+_MISSING_POLICIES = ("drop", "category")
+
+_DEFAULTS = {
+    "bins": 16,
+    "strategy": "quantile",
+    "estimator": "miller_madow",
+    "alpha": None,
+    "base": 2,
+    "missing": "drop",
+    "max_categories": 64,
+    "target": None,
+    "measure": "mi",
+    "normalization": "arithmetic",
+    "sample": None,
+    "seed": 0,
+    "ci": 0.95,
+    "n_boot": 200,
+}
+# the settings that change how a column is encoded (the rest only change numbers)
+_ENCODING_SETTINGS = ("bins", "strategy", "missing", "max_categories")
+
+
+def _check_settings(settings: Mapping) -> dict:
+    unknown = sorted(set(settings) - set(_DEFAULTS))
+    if unknown:
+        raise TypeError(
+            f"unknown setting(s) {', '.join(map(repr, unknown))}; valid settings: "
+            f"{', '.join(_DEFAULTS)}"
+        )
+    s = dict(settings)
+    check_choice(s["estimator"], ENTROPY_ESTIMATORS, "estimator")
+    log_base(s["base"])
+    check_choice(s["missing"], _MISSING_POLICIES, "missing")
+    check_choice(s["measure"], MEASURES, "measure")
+    check_choice(s["normalization"], NORMALIZATIONS, "normalization")
+    _check_bins(s["bins"], "bins")
+    if not isinstance(s["strategy"], str):
+        raise TypeError(f"strategy must be a string such as 'quantile', got {s['strategy']!r}")
+    mc = s["max_categories"]
+    if isinstance(mc, bool) or not isinstance(mc, numbers.Integral) or mc < 2:
+        raise ValueError(f"max_categories={mc!r} must be an integer >= 2")
+    ci = s["ci"]
+    if isinstance(ci, bool) or not isinstance(ci, numbers.Real) or not 0.0 < float(ci) < 1.0:
+        raise ValueError(f"ci={ci!r} must be a confidence level strictly between 0 and 1")
+    nb = s["n_boot"]
+    if isinstance(nb, bool) or not isinstance(nb, numbers.Integral) or nb < 0:
+        raise ValueError(f"n_boot={nb!r} must be an integer >= 0 (0 skips the intervals)")
+    sample = s["sample"]
+    if sample is not None and (isinstance(sample, bool) or not isinstance(sample, numbers.Integral)
+                               or sample < 1):
+        raise ValueError(f"sample={sample!r} must be None or a number of rows >= 1")
+    seed = s["seed"]
+    if seed is not None and (isinstance(seed, bool) or not isinstance(seed, numbers.Integral)):
+        raise TypeError(f"seed={seed!r} must be an integer or None")
+    if s["target"] is not None and not isinstance(s["target"], str):
+        raise TypeError(f"target must be a column key (a string) or None, got {s['target']!r}")
+    return s
+
+
+def _check_bins(bins, parameter: str):
+    if isinstance(bins, str):
+        # checked here too: a rule change reaches the encoder only for binned columns
+        return check_choice(bins, BIN_RULES, parameter)
+    if isinstance(bins, bool) or not isinstance(bins, numbers.Integral) or bins < 1:
+        raise ValueError(f"{parameter}={bins!r} must be a number of bins >= 1 or a rule name such as 'fd'")
+    return int(bins)

@@ -1,0 +1,111 @@
+"""The relevance table of a profile: what each column tells about a target (``relevance()``)."""
+from __future__ import annotations
+
+import math
+import warnings
+
+import numpy as np
+import pandas as pd
+
+from infoscope._warnings import DataQualityWarning
+from infoscope.estimators.information import benjamini_hochberg
+from infoscope.estimators.resampling import bootstrap_mi_ci
+from infoscope.frame.results import LEAKAGE_SHARE, RELEVANCE_COLUMNS, SPARSE_CELL_COUNT, result_frame
+from infoscope.frame.tables.estimates import _child_seed
+
+
+class RelevanceTable:
+    """Session part: :meth:`relevance` (see :mod:`infoscope.frame.tables`)."""
+
+    def relevance(self, target: str | None = None) -> pd.DataFrame:
+        """Information each other column gives about a target column.
+
+        Parameters
+        ----------
+        target : str, optional
+            Column key (default: the session's ``target`` setting).
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per other column, largest MI first: ``column, k, n, mi, ci_low,
+            ci_high, nmi, p_value, q_value, share_of_target, leakage, sparse`` where
+            ``share_of_target = mi / H(target)`` (both on the rows where the two are
+            present), ``leakage`` is True when that share is at least 0.95 (the
+            column nearly determines the target: check whether it is known before
+            the outcome), the interval is a seeded multinomial bootstrap of the
+            joint table and q-values are Benjamini-Hochberg over the table.
+            ``attrs``: unit, estimator, sampled, target.
+
+        References
+        ----------
+        .. [1] Cover, T. M., & Thomas, J. A. (2006). Elements of Information Theory,
+           2nd ed., Wiley, section 2.4 (I(X;Y) <= H(Y)).
+        .. [2] Kaufman, S., Rosset, S., Perlich, C., & Stitelman, O. (2012).
+           Leakage in data mining: formulation, detection, and avoidance. ACM
+           TKDD, 6(4), 15.
+
+        Examples
+        --------
+        >>> from infoscope.frame.session import ProfileSession
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"y": [0, 1] * 20, "copy": ["n", "y"] * 20, "noise": [0, 0, 1, 1] * 10})
+        >>> r = ProfileSession(df, n_boot=0).relevance("y")
+        >>> r[["column", "leakage"]].values.tolist()
+        [['copy', True], ['noise', False]]
+        """
+        s = self._settings
+        if target is None:
+            target = s["target"]
+        if target is None:
+            raise ValueError("relevance needs a target: pass target= or set the session's target")
+        target = self._check_name(target, "target")
+        others = [k for k in self._names if k != target]
+        if not others:
+            raise ValueError(f"the profile has only the target column {target!r}: nothing to relate to it")
+        if np.count_nonzero(self._engine.marginal(target)) <= 1:
+            warnings.warn(f"target {target!r} has at most one value: no column can inform it",
+                          DataQualityWarning, stacklevel=2)
+        # rows cached like the pairs (see _pair_stats): a row depends on the column,
+        # the target, its position (the bootstrap seed) and these settings
+        enc = self._encoded
+        settings_key = (self._estimator_key(), s["base"], s["ci"], s["n_boot"], s["seed"])
+        rows: list = [None] * len(others)
+        todo = []
+        for i, key in enumerate(others):
+            hit = self._relevance_cache.get((key, target))
+            if (hit is not None and hit[0] is enc[key] and hit[1] is enc[target]
+                    and hit[2] == (i, settings_key)):
+                rows[i] = dict(hit[3])
+            else:
+                todo.append(i)
+        tabs = [np.asarray(self._engine.table(others[i], target), dtype=np.int64) for i in todo]
+        tm = self._table_measures(tabs)
+        mi, nmi = tm["mi"], tm["nmi"]
+        for j, i in enumerate(todo):
+            key = others[i]
+            t = tabs[j]
+            n = int(t.sum())
+            h_target = self._entropy(t.sum(axis=0)) if n else math.nan
+            low = high = math.nan
+            if n and s["n_boot"] > 0:
+                low, high = bootstrap_mi_ci(t, level=s["ci"], n_boot=s["n_boot"],
+                                            seed=_child_seed(s["seed"], i), **self._kw())
+            share = mi[j] / h_target if h_target and h_target > 0 else math.nan
+            rows[i] = {
+                "column": key, "k": int(enc[key].k), "n": n, "mi": mi[j],
+                "ci_low": float(low), "ci_high": float(high), "nmi": nmi[j],
+                "p_value": float(tm["p_value"][j]), "q_value": math.nan,
+                "share_of_target": share, "leakage": bool(share >= LEAKAGE_SHARE),
+                "sparse": bool(n / max(t.size, 1) < SPARSE_CELL_COUNT),
+            }
+            self._relevance_cache[(key, target)] = (enc[key], enc[target], (i, settings_key),
+                                                    dict(rows[i]))
+        q = benjamini_hochberg(np.array([r["p_value"] for r in rows], dtype=float))
+        for r, qv in zip(rows, q):
+            r["q_value"] = float(qv)
+        out = result_frame(rows, RELEVANCE_COLUMNS, **self._attrs(target=target))
+        out = out.sort_values("mi", ascending=False, na_position="last", kind="stable")
+        out = out.reset_index(drop=True)
+        out.attrs.update(self._attrs(target=target))
+        return out
