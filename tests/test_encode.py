@@ -816,13 +816,22 @@ def test_a_million_floats_encode_fast(rng):
 # ---------------------------------------------------------------- documentation
 
 
+def _encode_modules():
+    import importlib
+
+    names = ("binning", "cache", "columns", "encoded", "encoder", "numeric", "temporal", "text",
+             "levels", "drafts", "checks", "keys", "frames")
+    return [importlib.import_module(f"infoscope.encode.{name}") for name in names]
+
+
+_MODULES = _encode_modules()
+
+
 def _public_functions():
     import inspect
 
-    from infoscope.encode import binning, cache, columns
-
-    for module in (binning, cache, columns):
-        for name in module.__all__:
+    for module in _MODULES:
+        for name in getattr(module, "__all__", ()):
             obj = getattr(module, name)
             if inspect.isfunction(obj) or inspect.isclass(obj):
                 yield f"{module.__name__}.{name}", obj
@@ -842,9 +851,7 @@ def test_docstring_examples_run():
     # the examples in the docstrings are doctests: they must print what they say
     import doctest
 
-    from infoscope.encode import binning, cache, columns
-
-    for module in (binning, cache, columns):
+    for module in _MODULES:
         result = doctest.testmod(module, optionflags=doctest.NORMALIZE_WHITESPACE)
         assert result.failed == 0, module.__name__
 

@@ -1,0 +1,97 @@
+"""What an encoder accepts: the checks of its settings and of the values of one column."""
+from __future__ import annotations
+
+from collections.abc import Mapping
+
+import numpy as np
+import pandas as pd
+
+from infoscope.encode import binning
+from infoscope.encode.drafts import DEFAULT_CATEGORICAL_THRESHOLD
+
+
+def _time_edges(bins):
+    """Datetime-like edges (Timestamps, DatetimeIndex, zoned or not) as datetime64 (zoned: UTC)."""
+    if isinstance(bins, (str, int, np.integer, float)) or (isinstance(bins, np.ndarray) and bins.dtype != object):
+        return bins
+    try:
+        idx = pd.Index(bins)
+    except (TypeError, ValueError):
+        return bins
+    if isinstance(idx.dtype, pd.DatetimeTZDtype):
+        return idx.tz_convert("UTC").tz_localize(None).to_numpy()
+    if idx.dtype.kind in "mM":
+        return idx.to_numpy()
+    return bins
+
+
+def _check_settings(bins, strategy, missing, max_categories, categorical_threshold):
+    bins = binning._check_bins(_time_edges(bins))
+    strategy = binning._check_strategy(strategy)
+    if not isinstance(missing, str) or missing not in ("drop", "category"):
+        raise ValueError(f"missing={missing!r} is not valid; choose one of: 'drop', 'category'")
+    if max_categories is not None:
+        if isinstance(max_categories, bool) or not isinstance(max_categories, (int, np.integer)):
+            raise TypeError(f"max_categories must be an integer or None, got {type(max_categories).__name__}")
+        if max_categories < 2:
+            raise ValueError(f"max_categories={max_categories} is invalid: it must be >= 2 (or None for no folding)")
+        max_categories = int(max_categories)
+    if categorical_threshold is None:
+        categorical_threshold = DEFAULT_CATEGORICAL_THRESHOLD
+    if isinstance(categorical_threshold, bool) or not isinstance(categorical_threshold, (int, np.integer)):
+        raise TypeError(f"categorical_threshold must be an integer, got {type(categorical_threshold).__name__}")
+    if categorical_threshold < 0:
+        raise ValueError(f"categorical_threshold={categorical_threshold} is invalid: it must be >= 0")
+    if isinstance(bins, np.ndarray):
+        bins_key = ("edges", str(bins.dtype), tuple(bins.tolist()))
+    else:
+        bins_key = bins
+    settings = (
+        ("bins", bins_key),
+        ("strategy", strategy),
+        ("missing", missing),
+        ("max_categories", max_categories),
+        ("categorical_threshold", int(categorical_threshold)),
+    )
+    return bins, strategy, missing, max_categories, int(categorical_threshold), settings
+
+
+def _as_series(values, name: str) -> pd.Series:
+    """A pandas Series over ``values`` without copying NumPy data (never written to)."""
+    if isinstance(values, pd.Series):
+        return values
+    if isinstance(values, pd.DataFrame):
+        raise ValueError(f"column {name!r}: expected one column, got a DataFrame with {values.shape[1]} columns")
+    if isinstance(values, (pd.Index, pd.api.extensions.ExtensionArray)):
+        return pd.Series(values, copy=False)
+    if not isinstance(values, np.ndarray) and hasattr(values, "to_pandas"):
+        # Polars Series, pyarrow (Chunked)Array
+        converted = values.to_pandas()
+        if isinstance(converted, pd.DataFrame):
+            raise ValueError(f"column {name!r}: expected one column, got a table")
+        return pd.Series(converted, copy=False)
+    if isinstance(values, (str, bytes)) or np.isscalar(values) or values is None:
+        raise TypeError(f"column {name!r}: expected a sequence of values, got a scalar {type(values).__name__}")
+    if isinstance(values, (set, frozenset)):
+        raise TypeError(
+            f"column {name!r}: expected a sequence in row order, got a {type(values).__name__} "
+            "(it has no row order); pass a list, an array or a Series"
+        )
+    if isinstance(values, Mapping):
+        raise TypeError(
+            f"column {name!r}: expected a sequence in row order, got a {type(values).__name__}; say "
+            "whether its keys or its values are the rows: pass list(d.values()), list(d) or a Series"
+        )
+    if not isinstance(values, np.ndarray):
+        # pandas infers a list's dtype cell by cell (numpy would turn [1, "1"] into
+        # two equal strings, and nested lists into a 2-D array)
+        try:
+            return pd.Series(list(values), dtype=None)
+        except TypeError:
+            raise TypeError(f"column {name!r}: expected a sequence of values, got {type(values).__name__}") from None
+    arr = values
+    if arr.ndim != 1:
+        raise ValueError(f"column {name!r}: expected a 1-D column, got shape {arr.shape}")
+    if arr.dtype.kind in "US":
+        arr = arr.astype(object)
+    return pd.Series(arr, copy=False)
