@@ -7,7 +7,8 @@ not, so ``import infoscope`` stays free of it.
 
 The namespace converts the frame to pandas (``to_pandas()``; a LazyFrame is
 collected first) and delegates to the same :class:`ProfileSession` as the pandas
-accessor, reused by the frame's content and settings, so
+accessor, reused by the frame's current content (hashed from its arrow buffers,
+so an edit in place is seen on the next call) and settings, so
 ``pl_df.info_profile.entropy()`` equals ``pl_df.to_pandas().info_profile.entropy()``
 except for the ``kind`` of Polars-specific dtypes.  The Polars frame is never
 modified.
@@ -50,16 +51,16 @@ class PolarsInfoProfile(InfoProfileAccessor):
 
     def __init__(self, frame):
         self._source = frame
-        self._converted = None
 
     @property
     def _frame(self):
-        # converted once per namespace object, on the first method call
-        if self._converted is None:
-            from infoscope.frame.session import as_pandas
+        # Polars keeps this namespace object on the frame, and a DataFrame can change
+        # in place (q[0, "a"] = 99, insert_column, drop_in_place): nothing converted
+        # is kept here. Every call finds its session by the frame's current content
+        # (frame_key over the arrow buffers) and converts to pandas only on a miss.
+        from infoscope.frame.accessor import _eager
 
-            self._converted = as_pandas(self._source)
-        return self._converted
+        return _eager(self._source)
 
 
 def _register() -> None:
