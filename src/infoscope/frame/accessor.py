@@ -318,6 +318,43 @@ class InfoProfileAccessor:
             settings = {**settings, "target": target}
         return self._session(settings).relevance()
 
+    def conditional(self, x: str, y: str, given=(), *, n_permutations: int = 999, **settings) -> pd.DataFrame:
+        """What ``x`` tells about ``y`` once ``given`` is known: see :func:`infoscope.frame.conditional.conditional_table`.
+
+        Parameters
+        ----------
+        x, y : str
+            Column keys.
+        given : str or list of str, default=()
+            Conditioning columns (their observed combinations are the strata).
+        n_permutations : int, default=999
+            Shuffles of ``x`` within the strata for the p-value (0 skips it).
+        **settings
+            Settings of the session (``bins``, ``estimator``, ``n_boot``, ``seed`` ...).
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row: ``mi``, ``cmi`` with ``ci_low``/``ci_high``, ``p_value``,
+            ``co_information``, ``strata``, ``sparse`` and a ``note``.
+
+        References
+        ----------
+        .. [1] Cover, T. M., & Thomas, J. A. (2006). Elements of Information Theory,
+           2nd ed., Wiley, sec. 2.5 (conditional mutual information).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"x": [0, 1] * 50, "y": [0, 1] * 50, "z": [0, 0, 1, 1] * 25})
+        >>> row = df.info_profile.conditional("x", "y", given="z", n_boot=0, n_permutations=99)
+        >>> round(float(row["cmi"][0]), 2), float(row["p_value"][0])
+        (1.01, 0.01)
+        """
+        from infoscope.frame.conditional import conditional_table
+
+        return conditional_table(self._session(settings), x, y, given, n_permutations=n_permutations)
+
     def drift(self, reference, **settings) -> pd.DataFrame:
         """Divergence of this frame from a reference frame: see :meth:`ProfileSession.drift`.
 

@@ -1,0 +1,192 @@
+"""``conditional(x, y, given=[...])``: what X tells about Y once the given columns are known.
+
+One result row: the conditional mutual information :math:`I(X;Y \\mid Z)` (Z = the
+combination of the given columns, one stratum per observed combination) with a
+bootstrap interval and a permutation p-value that shuffles X within the strata of Z
+(:mod:`infoscope.estimators.conditional`), next to the unconditional :math:`I(X;Y)` on
+the same rows and their difference, the co-information.
+
+The codes come from the session's encoded columns (its bins, missing policy and
+folded levels), so the numbers agree with the pair tables.  Rows where any of the
+columns is missing are left out (under ``missing="drop"``).
+
+Strata multiply cells: with ``k_x * k_y`` cells per stratum and many strata, the
+three-way table quickly has fewer than 5 rows per cell.  The row says so
+(``sparse`` and ``note``): the estimate is then biased upwards and the interval too
+narrow, while the permutation p-value stays valid (it is only less powerful).
+"""
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+
+import numpy as np
+import pandas as pd
+
+from infoscope.estimators._checks import unit_name
+from infoscope.frame.results import SPARSE_CELL_COUNT, result_frame
+
+__all__ = ["CONDITIONAL_COLUMNS", "conditional_table", "joint_codes", "present_rows"]
+
+#: Columns of the ``conditional()`` result row (DEVELOPERS.md, "Result tables").
+CONDITIONAL_COLUMNS = (
+    "x", "y", "given", "n", "k_x", "k_y", "strata", "mi", "cmi", "ci_low", "ci_high", "p_value",
+    "null_mean", "co_information", "rows_per_cell", "sparse", "note",
+)
+
+
+def present_rows(columns) -> np.ndarray:
+    """Boolean mask of the rows where every encoded column has a symbol (code < k)."""
+    keep = np.ones(columns[0].codes.shape[0], dtype=bool)
+    for col in columns:
+        keep &= np.asarray(col.codes) < col.k
+    return keep
+
+
+def joint_codes(code_arrays: Sequence[np.ndarray]) -> tuple[np.ndarray, int]:
+    """One compact code per observed combination of several code arrays, and their number.
+
+    An empty sequence gives one stratum (every row the same code 0).
+    """
+    if not code_arrays:
+        return np.zeros(0, dtype=np.int64), 1
+    n = code_arrays[0].shape[0]
+    combined = np.zeros(n, dtype=np.int64)
+    k = 1
+    for codes in code_arrays:
+        codes = np.asarray(codes, dtype=np.int64)
+        width = int(codes.max()) + 1 if codes.size else 1
+        uniques, combined = np.unique(combined * width + codes, return_inverse=True)
+        combined = combined.astype(np.int64).reshape(-1)
+        k = int(uniques.size)
+    return combined, k
+
+
+def _given_list(given) -> list:
+    if given is None:
+        return []
+    if isinstance(given, str):
+        return [given]
+    try:
+        return list(given)
+    except TypeError:
+        raise TypeError(f"given must be a column key or a list of column keys, got {type(given).__name__}") from None
+
+
+def sparse_note(what: str, cells: int, n: int) -> str:
+    """The caution text for a table with fewer than 5 rows per cell on average ("" otherwise)."""
+    if n >= SPARSE_CELL_COUNT * cells:
+        return ""
+    return (
+        f"the joint table of {what} has {cells:,} cells for {n:,} rows ({n / max(cells, 1):.2g} per cell, "
+        "fewer than 5): the estimate is biased upwards and its interval too narrow; "
+        "the permutation p-value stays valid but has little power"
+    )
+
+
+def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> pd.DataFrame:
+    """I(X; Y | given) of two columns of a session, with an interval and a permutation p-value.
+
+    Parameters
+    ----------
+    session : ProfileSession
+        The profile whose encoded columns and settings (estimator, base, ci, n_boot,
+        seed) are used.
+    x, y : str
+        Column keys.
+    given : str or sequence of str, default=()
+        The conditioning columns (a list or tuple of keys; a MultiIndex label goes
+        inside a list); their observed combinations are the strata.  An
+        empty list gives the unconditional MI with an ordinary permutation test.
+    n_permutations : int, default=999
+        Shuffles of X within the strata for the p-value (0 skips the test: NaN).
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row with the columns :data:`CONDITIONAL_COLUMNS`: ``given`` (tuple of
+        keys), ``n`` rows where all columns are present, ``k_x``/``k_y`` observed
+        symbols, ``strata`` (observed combinations of ``given``), ``mi`` = I(X;Y) and
+        ``cmi`` = I(X;Y|given) with the session's estimator on those rows,
+        ``ci_low``/``ci_high`` (bootstrap of ``cmi``), ``p_value`` (permutation of X
+        within strata), ``null_mean`` (the mean plug-in CMI under the shuffles, the
+        chance level), ``co_information`` = mi - cmi (positive: the given columns
+        explain part of the dependence; negative: they reveal dependence),
+        ``rows_per_cell`` = n / (k_x k_y strata), ``sparse`` (fewer than 5) and a
+        ``note`` that says what sparsity does to the numbers.  ``attrs``: unit,
+        estimator, sampled, n_permutations.
+
+    References
+    ----------
+    .. [1] Cover, T. M., & Thomas, J. A. (2006). Elements of Information Theory,
+       2nd ed., Wiley, sec. 2.5.
+    .. [2] McGill, W. J. (1954). Multivariate information transmission.
+       Psychometrika, 19(2), 97-116.
+    .. [3] B. Phipson, G. K. Smyth (2010), Statistical Applications in Genetics and
+       Molecular Biology 9, Article 39 (permutation p-values).
+
+    Examples
+    --------
+    >>> import numpy as np, pandas as pd
+    >>> from infoscope.frame.session import ProfileSession
+    >>> rng = np.random.default_rng(0)
+    >>> z = rng.integers(0, 2, 2000)
+    >>> df = pd.DataFrame({"x": z ^ (rng.random(2000) < 0.1), "y": z ^ (rng.random(2000) < 0.1), "z": z})
+    >>> row = conditional_table(ProfileSession(df, n_boot=50), "x", "y", given=["z"], n_permutations=199)
+    >>> bool(row["mi"][0] > 0.2), bool(row["p_value"][0] > 0.05)
+    (True, True)
+    """
+    from infoscope.estimators.conditional import bootstrap_cmi_ci, conditional_permutation_test
+    from infoscope.estimators.information import (
+        conditional_mutual_information_from_table,
+        mutual_information_from_table,
+    )
+    from infoscope.estimators.resampling import _check_positive_int
+
+    given = _given_list(given)
+    names = [x, y, *given]
+    cols = [session.column(name) for name in names]  # KeyError names an unknown column
+    keys = [c.name for c in cols]
+    if len(set(keys)) < len(keys):
+        raise ValueError(f"x, y and given must be different columns, got {keys}")
+    if not isinstance(n_permutations, (int, np.integer)) or isinstance(n_permutations, bool) or n_permutations < 0:
+        raise ValueError(f"n_permutations={n_permutations!r} must be a whole number >= 0")
+    s = session.settings
+    keep = present_rows(cols)
+    n = int(keep.sum())
+    attrs = {"unit": unit_name(s["base"]), "estimator": s["estimator"], "sampled": session.sampled,
+             "n_permutations": int(n_permutations)}
+    row = dict.fromkeys(CONDITIONAL_COLUMNS, math.nan)
+    row.update(x=keys[0], y=keys[1], given=tuple(keys[2:]), n=n, sparse=False, note="")
+    if n < 2:
+        row.update(k_x=0, k_y=0, strata=0, sparse=True,
+                   note=f"{n} row(s) where {', '.join(map(repr, keys))} are all present: nothing to estimate")
+        return result_frame([row], CONDITIONAL_COLUMNS, **attrs)
+    xc, kx = joint_codes([np.asarray(cols[0].codes)[keep]])
+    yc, ky = joint_codes([np.asarray(cols[1].codes)[keep]])
+    zc, kz = joint_codes([np.asarray(c.codes)[keep] for c in cols[2:]])
+    if not given:
+        zc = np.zeros(n, dtype=np.int64)
+    table = np.bincount((xc * ky + yc) * kz + zc, minlength=kx * ky * kz).reshape(kx, ky, kz)
+    kw = {"estimator": s["estimator"], "base": s["base"]}
+    if s["estimator"] == "dirichlet" and s["alpha"] is not None:
+        kw["alpha"] = s["alpha"]
+    cmi = conditional_mutual_information_from_table(table, **kw)
+    mi = mutual_information_from_table(table.sum(axis=2), **kw)
+    low = high = math.nan
+    if s["n_boot"] > 0:
+        low, high = bootstrap_cmi_ci(table, level=s["ci"], n_boot=_check_positive_int(s["n_boot"], "n_boot"),
+                                     seed=s["seed"], **kw)
+    p_value = null_mean = math.nan
+    if n_permutations > 0:
+        test = conditional_permutation_test(xc, yc, zc, n_permutations=int(n_permutations), seed=s["seed"],
+                                            base=s["base"])
+        p_value, null_mean = test.p_value, test.null_mean
+    cells = kx * ky * kz
+    what = f"{keys[0]!r}, {keys[1]!r}" + (f" and the {kz:,} strata of {', '.join(map(repr, keys[2:]))}"
+                                          if given else "")
+    row.update(k_x=kx, k_y=ky, strata=kz, mi=float(mi), cmi=float(cmi), ci_low=float(low),
+               ci_high=float(high), p_value=float(p_value), null_mean=float(null_mean),
+               co_information=float(mi - cmi), rows_per_cell=n / cells,
+               sparse=bool(n < SPARSE_CELL_COUNT * cells), note=sparse_note(what, cells, n))
+    return result_frame([row], CONDITIONAL_COLUMNS, **attrs)
