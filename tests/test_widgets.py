@@ -449,35 +449,6 @@ def test_displayed_picture_follows_the_view(frame, monkeypatch):
     assert same_id == display_id and new["image/svg+xml"] != data["image/svg+xml"]
 
 
-# ------------------------------------------------------------------ the ESM file itself
-def esm_text() -> str:
-    from infoscope.widgets import profile
-
-    path = profile._STATIC / "profile.js"
-    assert str(ProfileWidget._esm) == path.read_text(encoding="utf-8")  # anywidget loads this file
-    return path.read_text(encoding="utf-8")
-
-
-def test_esm_version_matches_the_package():
-    import re
-
-    import infoscope
-
-    m = re.search(r'const VERSION = "([^"]+)"', esm_text())
-    assert m and m.group(1) == infoscope.__version__
-
-
-def test_esm_never_parses_markup_or_reaches_the_network():
-    import re
-
-    text = esm_text()
-    for banned in ("innerHTML", "outerHTML", "insertAdjacentHTML", "document.write", "eval(",
-                   "new Function", "fetch(", "XMLHttpRequest", "import("):
-        assert banned not in text.replace("never through innerHTML", ""), banned
-    assert not re.search(r"https?://", text), "no URL may appear in the front end"
-    assert "export { render, modelFromPayload" in text
-
-
 @pytest.mark.parametrize("name", ["ProfileWidget", "EntropyBarsWidget", "InformationGridWidget",
                                   "PairViewWidget", "RelevanceWidget"])
 def test_public_widgets_have_numpydoc(name):

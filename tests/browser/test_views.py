@@ -1,6 +1,8 @@
 """Browser tier: the profile ESM rendered in headless Chromium from a harness page.
 
-The harness imports ``static/profile.js`` and calls ``render({model, el})`` with the
+The harness imports ``static/profile.js`` (the bundle of ``js/src``), links
+``static/profile.css`` (what anywidget injects from ``_css``) and calls the default
+export's ``render({model, el})`` with the
 small model of ``modelFromPayload``; a fake kernel in the page answers setting
 changes with payloads that the real ``ProfileWidget`` computed in this test (so the
 numbers on screen are infoscope's own, not invented). Screenshots go to
@@ -9,6 +11,7 @@ numbers on screen are infoscope's own, not invented). Screenshots go to
 from __future__ import annotations
 
 import json
+import sys
 import warnings
 from pathlib import Path
 
@@ -16,14 +19,34 @@ import numpy as np
 import pandas as pd
 import pytest
 
-ESM = Path(__file__).resolve().parents[2] / "src" / "infoscope" / "widgets" / "static" / "profile.js"
+STATIC = Path(__file__).resolve().parents[2] / "src" / "infoscope" / "widgets" / "static"
+ESM = STATIC / "profile.js"
+CSS = STATIC / "profile.css"
+# JupyterLab's shipped theme stylesheets (jupyterlab is a test dependency)
+LAB_THEMES = Path(sys.prefix) / "share" / "jupyter" / "lab" / "themes" / "@jupyterlab"
 
 HARNESS = """<!doctype html>
-<html lang="en"><head><meta charset="utf-8"><title>infoscope harness</title></head>
-<body style="margin:16px;background:#fff">
+<html lang="en"><head><meta charset="utf-8"><title>infoscope harness</title>
+<link rel="stylesheet" href="/profile.css">
+<script>
+// JupyterLab's own theme stylesheet when asked (?theme=dark|light): its variables
+// are what the widget reads inside JupyterLab
+const theme = new URLSearchParams(location.search).get("theme");
+if (theme) document.write('<link rel="stylesheet" href="/theme-' + theme + '.css">');
+// count what ResizeObservers are watching, to catch observers that are never let go
+window.__observed = new Set();
+const Native = window.ResizeObserver;
+window.ResizeObserver = class extends Native {
+  observe(t, o) { window.__observed.add([this, t]); this.__targets = (this.__targets || new Set()).add(t); return super.observe(t, o); }
+  unobserve(t) { for (const e of window.__observed) if (e[0] === this && e[1] === t) window.__observed.delete(e); return super.unobserve(t); }
+  disconnect() { for (const e of [...window.__observed]) if (e[0] === this) window.__observed.delete(e); return super.disconnect(); }
+};
+</script></head>
+<body style="margin:16px;background:var(--jp-layout-color0,#fff)">
 <div id="app" style="max-width:1240px"></div>
 <script type="module">
-import { render, modelFromPayload } from "/profile.js";
+import widget, { modelFromPayload } from "/profile.js";
+const { render } = widget();
 const data = await (await fetch("/payloads.json")).json();
 window.__pwned = false;
 window.__saves = [];
@@ -119,6 +142,9 @@ def payloads():
 @pytest.fixture
 def harness(served, web, payloads):
     served.put_file("/profile.js", ESM)
+    served.put_file("/profile.css", CSS)
+    for theme in ("dark", "light"):
+        served.put_file(f"/theme-{theme}.css", LAB_THEMES / f"theme-{theme}-extension" / "index.css")
     served.put("/payloads.json", json.dumps(payloads))
     served.put("/harness.html", HARNESS)
 
@@ -424,3 +450,67 @@ def test_wide_joint_table_shows_a_scroll_cue(harness, web, payloads):
     page.wait_for_function("document.querySelector('.isc-pair .isc-punit').textContent.includes('stops_before')")
     page.wait_for_timeout(150)
     assert not page.locator(".isc-pair .isc-more").is_visible()
+
+
+# colours as the page paints them: a 1 x 1 canvas turns any CSS colour (rgb, rgba,
+# color-mix, color(srgb ...)) into sRGB bytes; text is composited over its background
+_PAINTED = """(sel) => {
+  const el = document.querySelector(sel);
+  let bgEl = el, bg = 'rgba(0, 0, 0, 0)';
+  while (bgEl && ((bg = getComputedStyle(bgEl).backgroundColor) === 'rgba(0, 0, 0, 0)' || bg === 'transparent')) bgEl = bgEl.parentElement;
+  const c = document.createElement('canvas'); c.width = c.height = 1;
+  const g = c.getContext('2d');
+  g.fillStyle = '#fff'; g.fillRect(0, 0, 1, 1);
+  g.fillStyle = bg; g.fillRect(0, 0, 1, 1);
+  const back = [...g.getImageData(0, 0, 1, 1).data.slice(0, 3)];
+  g.fillStyle = getComputedStyle(el).color; g.fillRect(0, 0, 1, 1);
+  const ink = [...g.getImageData(0, 0, 1, 1).data.slice(0, 3)];
+  return { back, ink };
+}"""
+
+
+def _contrast(a, b):
+    """WCAG 2.1 contrast ratio (W3C, success criterion 1.4.3's definition)."""
+    def lum(rgb):
+        lin = [(c / 255) / 12.92 if c / 255 <= 0.04045 else ((c / 255 + 0.055) / 1.055) ** 2.4 for c in rgb]
+        return 0.2126 * lin[0] + 0.7152 * lin[1] + 0.0722 * lin[2]
+    hi, lo = sorted((lum(a), lum(b)), reverse=True)
+    return (hi + 0.05) / (lo + 0.05)
+
+
+@pytest.mark.parametrize("theme", ["light", "dark"])
+def test_hover_and_selection_stay_readable_in_jupyterlab_themes(harness, web, artifacts, theme):
+    page = harness(f"?theme={theme}")
+    bg = page.evaluate("getComputedStyle(document.querySelector('.isc-root')).backgroundColor")
+    assert (bg == "rgb(17, 17, 17)") == (theme == "dark"), f"the widget did not take the {theme} theme: {bg}"
+    rows = page.locator(".isc-entropy .isc-erow")
+    rows.nth(1).click()  # selects the column: aria-pressed=true
+    page.wait_for_function("document.querySelector('.isc-entropy .isc-erow[aria-pressed=true]') !== null")
+    rows.nth(3).hover()
+    page.wait_for_timeout(60)
+    for sel in (".isc-entropy .isc-erow[aria-pressed=true] .isc-name", ".isc-entropy .isc-erow:hover .isc-name",
+                ".isc-entropy .isc-erow:not(:hover):not([aria-pressed=true]) .isc-name"):
+        painted = page.evaluate(_PAINTED, sel)
+        ratio = _contrast(painted["ink"], painted["back"])
+        assert ratio >= 4.5, f"{theme}: {sel} text {painted['ink']} on {painted['back']} has contrast {ratio:.2f}"
+    page.mouse.move(5, 5)
+    web.screenshot(artifacts / f"theme-{theme}.png", full_page=True)
+    assert web.outside_requests == [] and web.page_errors == []
+
+
+def test_pair_view_lets_go_of_its_resize_observers(harness, web):
+    page = harness()
+    base = page.evaluate("window.__observed.size")
+    names = page.evaluate("window.__model.get('_grid_meta').names")
+    keys = page.evaluate("Object.keys(window.__model.get('_pair_cache'))")
+    canvas = page.locator(".isc-grid canvas").first
+    cell = float(canvas.get_attribute("data-cell"))
+    off = float(canvas.get_attribute("data-offset"))
+    for key in keys[:4] * 2:  # open precomputed pairs again and again: each redraws the pair view
+        a, b = key.split("\u0000")
+        i, j = names.index(a), names.index(b)
+        canvas.click(position={"x": off + (j + 0.5) * cell, "y": off + (i + 0.5) * cell})
+        page.wait_for_function("(a) => document.querySelector('.isc-pair .isc-punit').textContent.includes(a)", arg=a)
+    assert page.evaluate("window.__observed.size") == base, "each pair-view redraw left a ResizeObserver watching"
+    page.evaluate("window.__cleanup()")
+    assert page.evaluate("window.__observed.size") == 0, "observers outlive the view"

@@ -47,6 +47,13 @@ def _script_json(obj) -> str:
     return text
 
 
+def _style_text(css: str) -> str:
+    """The widget's own stylesheet, checked to be inert inside ``<style>``."""
+    if "</" in css or "<!--" in css:
+        raise ValueError("the widget stylesheet contains markup; it cannot be inlined in <style>")
+    return css
+
+
 def _suppress_view(view: dict, threshold: int) -> dict:
     """A pair view (the widget's shape) with cells below ``threshold`` hidden."""
     counts = view.get("counts")
@@ -138,21 +145,33 @@ def suppress_payload(payload: dict, min_count) -> dict:
     return out
 
 
-def _esm_text(widget) -> str:
-    """The front-end module's source: the widget's ``_esm`` (a path, file contents or text)."""
-    esm = getattr(widget, "_esm", None)
-    if esm is None or not isinstance(esm, (str, os.PathLike)) and not hasattr(esm, "_path"):
-        esm = vars(type(widget)).get("_esm", esm)
-    path = getattr(esm, "_path", None)  # anywidget's FileContents wrapper of a file
+def _front_end_text(widget, key: str) -> str:
+    """The widget's ``_esm`` or ``_css`` source: a path, anywidget's file contents or text."""
+    value = getattr(widget, key, None)
+    if value is None or not isinstance(value, (str, os.PathLike)) and not hasattr(value, "_path"):
+        value = getattr(type(widget), key, value)
+    path = getattr(value, "_path", None)  # anywidget's FileContents wrapper of a file
     if path is not None:
         return Path(path).read_text(encoding="utf-8")
-    if isinstance(esm, os.PathLike):
-        return Path(esm).read_text(encoding="utf-8")
-    if not isinstance(esm, str) or not esm.strip():
-        raise TypeError(f"{type(widget).__name__} has no _esm front-end module to inline")
-    if "\n" not in esm and len(esm) < 4096 and os.path.isfile(esm):
-        return Path(esm).read_text(encoding="utf-8")
-    return esm
+    if isinstance(value, os.PathLike):
+        return Path(value).read_text(encoding="utf-8")
+    if not isinstance(value, str) or not value.strip():
+        if key == "_css":
+            return ""
+        raise TypeError(f"{type(widget).__name__} has no {key} front-end module to inline")
+    if "\n" not in value and len(value) < 4096 and os.path.isfile(value):
+        return Path(value).read_text(encoding="utf-8")
+    return value
+
+
+def _esm_text(widget) -> str:
+    """The front-end module's source: the widget's ``_esm`` (a path, file contents or text)."""
+    return _front_end_text(widget, "_esm")
+
+
+def _css_text(widget) -> str:
+    """The front end's stylesheet: the widget's ``_css`` ("" when it has none)."""
+    return _front_end_text(widget, "_css")
 
 
 _BOOT = """
@@ -165,7 +184,10 @@ _BOOT = """
     const bytes = Uint8Array.from(atob(b64), (c) => c.charCodeAt(0));
     const url = URL.createObjectURL(new Blob([bytes], { type: "text/javascript" }));
     const mod = await import(url);
-    const render = mod.render || (mod.default && mod.default.render);
+    // anywidget's front-end module: a default export that is { render } or a
+    // function returning it (called once per model)
+    const def = typeof mod.default === "function" ? await mod.default() : mod.default;
+    const render = def && def.render;
     if (typeof mod.modelFromPayload !== "function" || typeof render !== "function") {
       throw new Error("the inlined module lacks render or modelFromPayload");
     }
@@ -196,6 +218,7 @@ body{{margin:16px 20px;background:#fff;color:#1f2328;font-family:system-ui,-appl
 .isc-export-notes li{{margin:2px 0}}
 #isc-export-status{{font-size:12px;color:#7a2419}}
 </style>
+<style id="isc-widget-css">{css}</style>
 </head>
 <body>
 <div id="isc-export-status">Starting the view&#8230;</div>
@@ -269,6 +292,7 @@ def profile_html(widget, *, min_count=None, title: str | None = None) -> str:
             svg = profile_svg(session, min_count=effective)
             picture = f'<img alt="infoscope profile (static picture)" src="{svg_data_uri(svg)}">'
         esm = _esm_text(widget)
+        css = _css_text(widget)
     finally:
         if owned:
             widget.close()
@@ -291,6 +315,7 @@ def profile_html(widget, *, min_count=None, title: str | None = None) -> str:
         picture=picture,
         notes="".join(f"<li>{_html.escape(n)}</li>" for n in notes),
         payload=_script_json(payload),
+        css=_style_text(css),
         esm=base64.b64encode(esm.encode("utf-8")).decode("ascii"),
         boot=_BOOT,
     )

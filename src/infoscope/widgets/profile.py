@@ -65,6 +65,7 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
     """Traits and recompute machinery shared by every infoscope view."""
 
     _esm = _STATIC / "profile.js"
+    _css = _STATIC / "profile.css"
 
     def __init__(self, session, *, debounce: float = 0.15, threaded: bool = True,
                  live_picture: bool = True, preview_rows: int | None = PREVIEW_ROWS,

@@ -1,0 +1,52 @@
+// DOM helpers. h(tag, props, ...children): strings become text nodes; props are set
+// as properties or attributes; no HTML string is ever parsed, so column names and
+// values (data) reach the page only as text.
+
+export function h(tag, props, ...kids) {
+  const e = document.createElement(tag);
+  for (const [k, v] of Object.entries(props || {})) {
+    if (v == null || v === false) continue;
+    if (k === "class") e.className = v;
+    else if (k === "text") e.textContent = String(v);
+    else if (k === "style") Object.assign(e.style, v);
+    else if (k.startsWith("on") && typeof v === "function") e.addEventListener(k.slice(2), v);
+    else if (k === "value" || k === "checked" || k === "disabled" || k === "selected") e[k] = v;
+    else e.setAttribute(k, v === true ? "" : String(v));
+  }
+  for (const c of kids.flat(Infinity)) {
+    if (c == null || c === false) continue;
+    e.append(c instanceof Node ? c : document.createTextNode(String(c)));
+  }
+  return e;
+}
+
+let UID = 0;
+export const uid = (p) => `isc-${p}-${++UID}`;
+
+export function clear(el) { while (el.firstChild) el.removeChild(el.firstChild); }
+
+// One tooltip per view root: lines of text near the pointer, kept inside the window.
+export function makeTip(root) {
+  const el = h("div", { class: "isc-tip", role: "tooltip" });
+  root.append(el);
+  return {
+    el,
+    show(lines, x, y) {
+      clear(el);
+      for (const line of lines) el.append(h("div", null, line));
+      el.style.display = "block";
+      const w = el.offsetWidth, ht = el.offsetHeight;
+      const left = x + 14 + w > window.innerWidth ? x - w - 10 : x + 14;
+      const top = y + 14 + ht > window.innerHeight ? y - ht - 10 : y + 14;
+      el.style.left = `${Math.max(4, left)}px`;
+      el.style.top = `${Math.max(4, top)}px`;
+    },
+    hide() { el.style.display = "none"; },
+  };
+}
+
+// Show the tooltip of an element that got keyboard focus, as if hovered.
+export function tipOnFocus(target) {
+  const b = target.getBoundingClientRect();
+  target.dispatchEvent(new MouseEvent("mousemove", { clientX: b.left + 140, clientY: b.bottom - 10 }));
+}

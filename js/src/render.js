@@ -1,0 +1,92 @@
+// render({model, el}, memory): draws the view named by the model's `_view` trait and
+// returns the clean-up function anywidget calls when the view goes away (which saves
+// focus and scroll into `memory` for the next view of the same model).
+import { h } from "./dom.js";
+import { createMemory, restore, save } from "./memory.js";
+import { makeCtx } from "./context.js";
+import { ESTIMATOR_LABELS } from "./vocabulary.js";
+import { controlsView } from "./controls.js";
+import { entropyView } from "./views/entropy.js";
+import { gridView } from "./views/grid.js";
+import { pairView } from "./views/pair.js";
+import { relevanceView } from "./views/relevance.js";
+import { statusView, cautionView } from "./views/status.js";
+
+export function render({ model, el }, memory = createMemory()) {
+  // data-lm-suppress-shortcuts: JupyterLab (Lumino) stops looking for a keyboard
+  // shortcut when a key press comes from inside an element carrying it, so keys
+  // typed into the controls never reach the notebook's command-mode shortcuts.
+  const root = h("div", { class: "isc-root", "data-lm-suppress-shortcuts": "true" });
+  el.append(root);
+  const ctx = makeCtx(model, root);
+  const view = model.get("_view") || "profile";
+  const status = statusView(ctx, () => model.send({ type: "cancel" }));
+  const parts = {};
+  const header = h("div", { class: "isc-head" },
+    h("span", { class: "isc-title" }, view === "profile" ? "Information profile" : ""),
+    h("span", { class: "isc-sub" }), status.el);
+  root.append(header, status.err);
+  if (view === "profile") {
+    parts.controls = controlsView(ctx);
+    parts.entropy = entropyView(ctx);
+    parts.grid = gridView(ctx);
+    parts.pair = pairView(ctx);
+    parts.relevance = relevanceView(ctx);
+    root.append(parts.controls.el, h("div", { class: "isc-row" }, parts.entropy.el, parts.grid.el),
+      h("div", { class: "isc-row" }, parts.pair.el, parts.relevance.el));
+  } else {
+    const make = { entropy: entropyView, grid: gridView, pair: pairView, relevance: relevanceView }[view] || entropyView;
+    parts[view] = make(ctx);
+    if (view === "pair") { parts.grid = null; }
+    root.append(h("div", { class: "isc-row" }, parts[view].el));
+  }
+  parts.caution = cautionView(ctx);
+  root.append(parts.caution.el);
+  const sub = header.querySelector(".isc-sub");
+  const drawSub = () => {
+    const meta = model.get("_meta") || {};
+    sub.textContent = `${(meta.names || []).length} columns \u00b7 ${ESTIMATOR_LABELS[model.get("estimator")] || model.get("estimator")} \u00b7 ${model.get("unit")}`;
+  };
+  drawSub();
+
+  // batch redraws of one frame: a hold_sync update arrives as several change events
+  const dirty = new Set();
+  let frame = 0;
+  const schedule = (...names) => {
+    for (const n of names) dirty.add(n);
+    if (frame) return;
+    frame = requestAnimationFrame(() => {
+      frame = 0;
+      const todo = [...dirty];
+      dirty.clear();
+      for (const n of todo) if (n === "sub") drawSub(); else if (parts[n]) parts[n].draw ? parts[n].draw() : parts[n].sync();
+    });
+  };
+  const wiring = {
+    _entropy: ["entropy", "caution", "controls"], sort_by: ["entropy"], selected_column: ["entropy", "controls"],
+    _grid_meta: ["grid"], _grid_values: ["grid"], _grid_n: ["grid"], _grid_q: ["grid"], order: ["grid", "controls"],
+    selected_pair: ["grid", "pair"], _pair: ["pair"], _relevance: ["relevance"], _status: ["status", "caution"],
+    _meta: ["caution", "sub"], alpha_fdr: ["grid", "relevance"],
+  };
+  for (const k of ["bins", "strategy", "estimator", "alpha", "measure", "unit", "target", "missing", "column_bins", "min_count"]) {
+    wiring[k] = ["controls", "sub", ...(k === "target" ? ["relevance"] : [])];
+  }
+  parts.status = status;
+  const handlers = [];
+  for (const [name, targets] of Object.entries(wiring)) {
+    const cb = () => schedule(...targets);
+    model.on(`change:${name}`, cb);
+    handlers.push([`change:${name}`, cb]);
+  }
+  // controls sync is a method named sync, not draw
+  if (parts.controls) parts.controls.draw = parts.controls.sync;
+  ctx.memory = memory;
+  requestAnimationFrame(() => requestAnimationFrame(() => restore(memory, root)));
+  return () => {
+    save(memory, root);
+    for (const [evt, cb] of handlers) model.off(evt, cb);
+    for (const part of Object.values(parts)) if (part && part.destroy) part.destroy();
+    if (frame) cancelAnimationFrame(frame);
+    root.remove();
+  };
+}
