@@ -187,6 +187,7 @@ class WebPage:
     outside_requests: list = field(default_factory=list)
     dialogs: list = field(default_factory=list)
     console_errors: list = field(default_factory=list)
+    console_warnings: list = field(default_factory=list)
     page_errors: list = field(default_factory=list)
 
     def goto(self, url: str, **kwargs):
@@ -225,8 +226,8 @@ def web(browser):
         dialog.dismiss()
 
     page.on("dialog", on_dialog)
-    page.on("console", lambda msg: probe.console_errors.append(msg.text)
-            if msg.type == "error" else None)
+    page.on("console", lambda msg: probe.console_errors.append(msg.text) if msg.type == "error"
+            else probe.console_warnings.append(msg.text) if msg.type == "warning" else None)
     page.on("pageerror", lambda err: probe.page_errors.append(str(err)))
     try:
         yield probe

@@ -67,3 +67,6 @@ def test_bins_slider_round_trip(lab, web, artifacts):
     assert (root / "screening_profile.html").exists(), "the notebook's export cell ran"
     assert web.outside_requests == []
     assert web.page_errors == [], web.page_errors
+    # anywidget warns about modules that export `render` by name (its old format)
+    deprecations = [w for w in web.console_warnings if "anywidget" in w and "eprecat" in w]
+    assert deprecations == [], deprecations[0][:300]
