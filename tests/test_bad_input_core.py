@@ -122,9 +122,12 @@ def test_one_row_gives_the_closed_forms():
         res = I.g_test([7], ["a"])
     # scipy.stats.chi2_contingency convention for dof 0: statistic 0, p-value 1
     assert (res.statistic, res.dof, res.p_value) == (0.0, 0, 1.0)
-    # sklearn.metrics.normalized_mutual_info_score([7], ["a"]) == 1.0 (one cluster each side)
-    assert I.normalized_mutual_information([7], ["a"]) == metrics.normalized_mutual_info_score([7], ["a"])
-    assert I.adjusted_mutual_information([7], ["a"]) == metrics.adjusted_mutual_info_score([7], ["a"])
+    # sklearn.metrics.normalized_mutual_info_score([7], ["a"]) == 1.0 (one cluster each
+    # side); we depart on purpose: a normalised measure of a variable without
+    # entropy is undefined (NaN), never 1 (issue 10)
+    assert metrics.normalized_mutual_info_score([7], ["a"]) == 1.0
+    assert math.isnan(I.normalized_mutual_information([7], ["a"]))
+    assert math.isnan(I.adjusted_mutual_information([7], ["a"]))
 
 
 @pytest.mark.parametrize("estimator", ["plugin", "miller_madow", "chao_shen", "james_stein", "dirichlet", "grassberger", "nsb"])
@@ -138,8 +141,11 @@ def test_constant_column_against_the_reference_libraries(rng):
     const = np.zeros(200, dtype=int)
     # sklearn.metrics.mutual_info_score / normalized_mutual_info_score / adjusted_mutual_info_score
     assert I.mutual_information(const, y, estimator="plugin", base="nats") == metrics.mutual_info_score(const, y)
-    assert I.normalized_mutual_information(const, y) == metrics.normalized_mutual_info_score(const, y)
-    assert I.adjusted_mutual_information(const, y) == metrics.adjusted_mutual_info_score(const, y)
+    # scikit-learn's normalised scores give 0.0 here; ours are NaN on purpose (a
+    # constant has no entropy to normalise by: undefined, issue 10)
+    assert metrics.normalized_mutual_info_score(const, y) == 0.0
+    assert math.isnan(I.normalized_mutual_information(const, y))
+    assert math.isnan(I.adjusted_mutual_information(const, y))
     # VI(const, y) = H(y) (Meila 2007: H(X|Y) + H(Y|X) with H(X) = 0)
     assert I.variation_of_information(const, y) == pytest.approx(plugin_bits(y.tolist()), rel=1e-12)
     res = I.g_test(const, y)

@@ -310,3 +310,30 @@ def test_ranges_beyond_the_float_range_and_huge_bin_counts_are_clear_errors():
     np.testing.assert_array_equal(bin_edges(x, bins=2, strategy="quantile"), np.quantile(x, [0, 0.5, 1]))
     with pytest.raises(ValueError, match="bins=1000000000 is too many bins"):
         bin_edges(np.arange(5.0), bins=10**9)
+
+
+# ---------------------------------------------------------------- the "rows" rule
+
+
+def test_rows_rule_keeps_about_ten_rows_per_cell_of_a_pair():
+    # b = floor(sqrt(n / 10)) within [2, 16]: n / b^2 >= 10 whenever the clip does
+    # not bind (twice the chi-square rule of thumb of 5 expected rows per cell,
+    # Cochran 1954, common practice; why twice: see rows_bin_count)
+    from infoscope.encode.binning import rows_bin_count
+
+    for n in range(40, 2560):
+        b = rows_bin_count(n)
+        assert n / b ** 2 >= 10 and n / (b + 1) ** 2 < 10
+    assert [rows_bin_count(n) for n in (0, 39, 100, 300, 1000, 2559, 2560, 10**7)] == [2, 2, 3, 5, 10, 15, 16, 16]
+    with pytest.raises(ValueError, match="n_values"):
+        rows_bin_count(-1)
+
+
+def test_rows_rule_then_bins_by_the_strategy(normal):
+    # with "rows" the count comes from the number of finite values, the edges from
+    # the strategy: equal to numpy.quantile / numpy.histogram_bin_edges with that count
+    x = np.concatenate([normal[:300], [np.nan] * 50])
+    edges = bin_edges(x, bins="rows", strategy="quantile")
+    np.testing.assert_allclose(edges, np.quantile(normal[:300], np.linspace(0, 1, 6)))
+    np.testing.assert_allclose(bin_edges(x, bins="rows", strategy="uniform"),
+                               np.histogram_bin_edges(normal[:300], bins=5))

@@ -575,21 +575,13 @@ def test_content_key_branches_see_values_missingness_and_zone():
     assert content_key(t) != content_key(t + pd.Timedelta(1, "ns"))
 
 
-def test_content_key_of_a_small_slice_hashes_only_the_slice():
-    # speed guard: a 1,000-row slice of a 1M-row arrow string column shares the
-    # parent's buffers; hashing them all took about 0.05 s per column.  The floor is
-    # pandas.util.hash_pandas_object on the same slice.
-    import time
-
-    parent = pd.Series([f"user-{i}" for i in range(1_000_000)], dtype="string[pyarrow]")
+def test_content_key_of_a_small_slice_is_the_slice_content():
+    # a 1,000-row slice of a long arrow string column shares the parent's buffers;
+    # its key must be that of its own cells (the time it takes against
+    # pandas.util.hash_pandas_object is in benchmarks/speed_guards.py)
+    parent = pd.Series([f"user-{i}" for i in range(100_000)], dtype="string[pyarrow]")
     head = parent.iloc[1000:2000]
-    start = time.perf_counter()
-    pd.util.hash_pandas_object(head, index=False)
-    floor = time.perf_counter() - start
-    start = time.perf_counter()
     key = content_key(head)
-    elapsed = time.perf_counter() - start
-    assert elapsed < max(20 * floor, 0.01), (elapsed, floor)
     # the key is the content's: equal to that of a fresh column with the same cells,
     # different from a neighbouring slice
     assert key == content_key(pd.Series(head.tolist(), dtype="string[pyarrow]"))
@@ -800,17 +792,13 @@ def test_integers_beyond_64_bits_keep_exact_labels():
     assert set(col.labels) == {str(2**70), "1"}
 
 
-def test_a_million_floats_encode_fast(rng):
-    # the task's budget is tens of milliseconds (about 50 ms measured on an idle core);
-    # the bound is loose so that a loaded CI machine passes, but a per-row Python
-    # loop or pandas.cut-style overhead would not
-    import time
-
+def test_a_million_floats_encode_into_equal_quantile_bins(rng):
+    # (the time it takes against numpy's sort of the same values is in
+    # benchmarks/speed_guards.py)
     x = rng.normal(size=1_000_000)
-    start = time.perf_counter()
     col = enc(x, bins=16)
-    elapsed = time.perf_counter() - start
-    assert col.k == 16 and elapsed < 1.0, elapsed
+    assert col.k == 16
+    assert np.all(np.abs(col.counts() - 62_500) <= 1)
 
 
 # ---------------------------------------------------------------- documentation

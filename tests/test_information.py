@@ -185,14 +185,18 @@ def test_nmi_joint_matches_pyitlib():
 
 
 @pytest.mark.parametrize("method", sorted(NORMALIZATIONS))
-def test_nmi_degenerate_cases_follow_sklearn(method):
-    # scikit-learn normalized_mutual_info_score: both constant -> 1.0; one constant -> 0.0.
-    assert normalized_mutual_information_from_table([[7]], normalization=method) == 1.0
-    assert normalized_mutual_information_from_table([[0, 0], [0, 7]], normalization=method) == 1.0
-    assert normalized_mutual_information_from_table([[3, 4]], normalization=method) == 0.0
+def test_nmi_of_a_constant_variable_is_undefined(method):
+    # A constant variable has no entropy: its normalised MI is 0/0 for "min" and
+    # "geometric" (Kvalseth 1987's forms) and undefined in meaning for the others.
+    # scikit-learn's normalized_mutual_info_score returns 1.0 (both constant) and
+    # 0.0 (one constant); we return NaN instead, on purpose (issue 10).
+    assert math.isnan(normalized_mutual_information_from_table([[7]], normalization=method))
+    assert math.isnan(normalized_mutual_information_from_table([[0, 0], [0, 7]], normalization=method))
+    assert math.isnan(normalized_mutual_information_from_table([[3, 4]], normalization=method))
+    assert math.isnan(normalized_mutual_information_from_table([[3, 4]], normalization=method,
+                                                               estimator="miller_madow"))
     if method != "joint":
-        expected = metrics.normalized_mutual_info_score([0] * 7, [0, 0, 0, 1, 1, 1, 1], average_method=method)
-        assert expected == 0.0
+        assert metrics.normalized_mutual_info_score([0] * 7, [0, 0, 0, 1, 1, 1, 1], average_method=method) == 0.0
 
 
 def test_nmi_unknown_normalization_lists_the_valid_ones():
@@ -235,10 +239,11 @@ def test_ami_of_independent_labels_is_near_zero_and_can_be_negative(rng):
     assert abs(np.mean(vals)) < 0.02
 
 
-def test_ami_degenerate_cases_follow_sklearn():
-    # scikit-learn adjusted_mutual_info_score: both constant -> 1.0, one constant -> 0.0.
-    assert adjusted_mutual_information_from_table([[5]]) == 1.0
-    assert adjusted_mutual_information_from_table([[2, 3]]) == 0.0
+def test_ami_of_a_constant_variable_is_undefined():
+    # Departs from scikit-learn's adjusted_mutual_info_score (1.0 both constant, 0.0
+    # one constant) on purpose: a variable without entropy has no share to adjust.
+    assert math.isnan(adjusted_mutual_information_from_table([[5]]))
+    assert math.isnan(adjusted_mutual_information_from_table([[2, 3]]))
     assert metrics.adjusted_mutual_info_score([0] * 5, [0, 0, 1, 1, 1]) == 0.0
 
 

@@ -460,35 +460,11 @@ def test_grouped_and_multinomial_draws_give_the_same_interval(estimator, monkeyp
     assert abs(grouped.low - multinomial.low) < width / 3 and abs(grouped.high - multinomial.high) < width / 3
 
 
-@pytest.mark.parametrize("estimator", [e for e in ENTROPY_ESTIMATORS if e != "nsb"])
-def test_every_estimator_resamples_an_id_column_about_as_fast_as_plugin(estimator):
-    # speed guard: with the fingerprint kernels the scoring is negligible next to the
-    # draw, so every estimator costs about what the plug-in interval costs (timed here)
-    import time
-
+def test_fifty_thousand_singletons_interval_contains_the_closed_form():
+    # the grouped draw of an ID-like column (its speed against numpy's multinomial
+    # draw is measured in benchmarks/speed_guards.py, not here)
     n = np.ones(50_000, np.int64)
-    t0 = time.perf_counter()
-    bootstrap_entropy_ci(n, estimator="plugin", n_boot=100, seed=14)
-    plugin = time.perf_counter() - t0
-    t0 = time.perf_counter()
-    bootstrap_entropy_ci(n, estimator=estimator, n_boot=100, seed=14)
-    assert time.perf_counter() - t0 < 2 * plugin + 0.05
-
-
-def test_fifty_thousand_singletons_resample_fast():
-    # speed guard: the grouped draw (integers + bincount) against numpy's multinomial
-    # draw of the same 50,000 cells, measured here on this machine
-    import time
-
-    n = np.ones(50_000, np.int64)
-    rng = np.random.default_rng(12)
-    t0 = time.perf_counter()
-    rng.multinomial(50_000, n / 50_000, size=50)
-    multinomial_200 = 4 * (time.perf_counter() - t0)
-    t0 = time.perf_counter()
     low, high = bootstrap_entropy_ci(n, n_boot=200, seed=13)
-    fast = time.perf_counter() - t0
-    assert fast < multinomial_200 / 2, (fast, multinomial_200)
     from infoscope.estimators.entropy import entropy_from_counts
 
     # Miller-Madow of N singletons: log2 N + (N - 1) / (2 N ln 2) bits (Miller 1955)

@@ -211,9 +211,10 @@ def test_burst_of_50_changes_shows_the_final_setting(frame):
 
 
 def test_first_change_after_a_quiet_spell_starts_at_once(frame):
-    # Leading-edge debounce: with a 1.5 s debounce, a lone change is answered well
-    # before 1.5 s; changes made while a recompute is pending wait for one trailing
-    # recompute, which shows the last of them (generation rule kept).
+    # Leading-edge debounce: with a 1.5 s debounce, a lone change is submitted at
+    # once (no debounce timer is started for it); changes made while a recompute is
+    # pending wait for one trailing recompute, which shows the last of them
+    # (generation rule kept).  No wall-clock bound is asserted.
     w = quiet(ProfileWidget, session_of(frame), debounce=1.5)
     assert w.wait(30)
     runs = []
@@ -221,10 +222,9 @@ def test_first_change_after_a_quiet_spell_starts_at_once(frame):
     w._compute = lambda gen, parts, snap: (runs.append(snap["session"]["bins"]), original(gen, parts, snap))[1]
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", InfoscopeWarning)
-        t0 = time.monotonic()
         w.bins = 8
-        assert w.wait(1.2), "the first change should not wait for the debounce"
-        assert time.monotonic() - t0 < 1.2 and w.session.settings["bins"] == 8
+        assert w._timer is None, "the first change should not wait for the debounce"
+        assert w.wait(60) and w.session.settings["bins"] == 8
         assert runs == [8] and w._timer is None
         w.bins = 9                       # leads again (nothing pending) ...
         w.bins = 10                      # ... this one waits: 9 is pending

@@ -893,7 +893,8 @@ def normalized_mutual_information(
     -------
     float
         See :func:`infoscope.estimators.information.normalized_mutual_information_from_table`
-        (both columns constant -> 1.0; one constant -> 0.0).
+        (NaN when either column is constant: a column without entropy has no
+        share to normalise, so the measure is undefined, never 1 or 0).
 
     References
     ----------

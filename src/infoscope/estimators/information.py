@@ -372,10 +372,13 @@ def normalized_mutual_information_from_table(
     Returns
     -------
     float
-        The normalised MI, in [0, 1] for ``"plugin"``.  Degenerate cases follow
-        scikit-learn's ``normalized_mutual_info_score``: both variables constant
-        (one non-empty row and one non-empty column) -> 1.0; otherwise an MI of 0
-        (for instance one constant variable) -> 0.0.
+        The normalised MI, in [0, 1] for ``"plugin"``.  NaN when either variable
+        is constant (one non-empty row or column): the share of information of a
+        variable that has none is undefined, 0/0 for ``"min"`` and ``"geometric"``,
+        and a value of 1 (two constants) or 0 would read as "identical" or
+        "unrelated".  scikit-learn's ``normalized_mutual_info_score`` returns 1.0
+        and 0.0 there; infoscope departs from it on purpose.  Otherwise an MI of 0
+        gives 0.0.
 
     References
     ----------
@@ -397,8 +400,8 @@ def normalized_mutual_information_from_table(
     normalization = check_choice(normalization, NORMALIZATIONS, "normalization")
     estimator = _check_estimator(estimator, alpha)
     rows, cols = t.sum(axis=1), t.sum(axis=0)
-    if _n_nonempty(rows) == 1 and _n_nonempty(cols) == 1:
-        return 1.0  # no split on either side: a perfect match (scikit-learn's convention)
+    if _n_nonempty(rows) <= 1 or _n_nonempty(cols) <= 1:
+        return math.nan  # a constant side has no entropy to share: undefined, not 1 or 0
     if estimator == "plugin":
         mi = _plugin_mi_nats(t)
         if mi == 0.0:
@@ -534,9 +537,10 @@ def adjusted_mutual_information_from_table(table, *, normalization: str = "arith
     float
         :math:`(I - E[I]) / (f(H(X), H(Y)) - E[I])` with plug-in quantities and the
         exact expected MI under the permutation model.  1 for identical partitions,
-        about 0 for independent ones, can be negative.  Degenerate cases follow
-        scikit-learn's ``adjusted_mutual_info_score``: both variables constant ->
-        1.0; exactly one constant -> 0.0.  When one side puts every row in a class
+        about 0 for independent ones, can be negative.  NaN when either variable
+        is constant (undefined, as for the normalised MI; scikit-learn's
+        ``adjusted_mutual_info_score`` returns 1.0 and 0.0 there, infoscope
+        departs from it on purpose).  When one side puts every row in a class
         of its own (an ID-like column), every relabelling gives the same MI, so
         :math:`I = E[I]`: the result is 0.0 (1.0 if both sides do: identical
         partitions), where the formula would be 0/0 for some normalisations.
@@ -565,10 +569,8 @@ def adjusted_mutual_information_from_table(table, *, normalization: str = "arith
         )
     rows, cols = t.sum(axis=1), t.sum(axis=0)
     nr, nc = _n_nonempty(rows), _n_nonempty(cols)
-    if nr == 1 and nc == 1:
-        return 1.0
-    if nr == 1 or nc == 1:
-        return 0.0
+    if nr <= 1 or nc <= 1:
+        return math.nan  # a constant side: undefined (see normalized_mutual_information_from_table)
     rows_singletons = bool(np.all(rows[rows > 0] == 1))
     cols_singletons = bool(np.all(cols[cols > 0] == 1))
     if rows_singletons or cols_singletons:

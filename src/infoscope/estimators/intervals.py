@@ -1,0 +1,401 @@
+r"""Intervals of mutual information that carry the estimator's chance level.
+
+Why not a bootstrap of the mutual information
+---------------------------------------------
+A bootstrap of a count table resamples from the *sample's* table, whose plug-in
+mutual information already holds the chance dependence of a finite sample (about
+``dof / (2N)`` nats, more in a sparse table).  Every replicate adds that chance
+level again, and a bias correction fitted to the replicates (Miller-Madow, or the
+centred interval of :mod:`infoscope.estimators.resampling`) removes only part of it
+in sparse tables.  Simulated tables of known MI (``benchmarks/calibration.py``)
+show the result: on a 16 x 16 table of 100 rows the centred bootstrap interval of
+the Miller-Madow MI never covered the true MI, and independent columns got intervals
+far from 0 while the test of independence said "nothing here".
+
+The interval used instead
+-------------------------
+The G statistic :math:`G = 2 N \hat I` (plug-in MI in nats) is, for a table with
+``dof = (r - 1)(c - 1)`` degrees of freedom, approximately a noncentral chi-square
+with noncentrality :math:`\lambda = 2 N I` (Mitra 1958; the same approximation gives
+the classical interval of a noncentrality parameter, Steiger & Lind 1980).  In a
+sparse table the chance mean of G is not ``dof``; its exact value is
+:math:`2 N\,E_0[\hat I]`, where :math:`E_0[\hat I]` is the expected plug-in MI when
+the rows are paired at random with the margins fixed (the "EMI" of Vinh, Epps &
+Bailey 2010).  So G is first scaled to that exact chance mean,
+:math:`G' = G / q` with :math:`q = 2 N E_0[\hat I] / \mathrm{dof}` (the idea of
+Williams' 1976 correction, with the exact mean in place of its series), then the
+noncentrality is bracketed by inverting the noncentral chi-square distribution
+function:
+
+.. math::
+
+    F_{\chi'^2}(G';\,\mathrm{dof},\lambda_{lo}) = \tfrac{1 + \ell}{2}, \qquad
+    F_{\chi'^2}(G';\,\mathrm{dof},\lambda_{hi}) = \tfrac{1 - \ell}{2},
+
+(:math:`\lambda_{lo} = 0` when even :math:`\lambda = 0` gives less), and the MI
+interval is :math:`[\lambda_{lo}, \lambda_{hi}]\, q / (2N)`.  Its point estimate is
+the chance-corrected MI :math:`\max(\hat I - E_0[\hat I], 0)` (the value at
+:math:`\lambda = G' - \mathrm{dof}`).  Two consequences:
+
+- the interval agrees with the test by construction: its lower end is above 0 exactly
+  when the mean-scaled G-test rejects independence at level ``(1 - level) / 2``;
+- at true independence it covers 0 with probability ``(1 + level) / 2`` (97.5% for a
+  95% interval), since the lower end cannot go below 0: a bounded parameter.
+
+Measured coverage of the 95% interval is in ``benchmarks/calibration.py`` and
+DEVELOPERS.md ("Intervals").
+"""
+from __future__ import annotations
+
+import math
+import numbers
+from typing import NamedTuple
+
+import numpy as np
+from scipy import special, stats
+
+from infoscope.estimators._checks import check_counts, log_base
+
+__all__ = [
+    "MIInterval",
+    "MIN_EXPECTED_EXACT",
+    "chance_mi_nats",
+    "entropy_standard_error",
+    "mi_interval_from_table",
+    "mi_intervals_from_tables",
+]
+
+#: A cell whose expected count under independence is below this is given its exact
+#: hypergeometric term of the chance MI; larger cells their second-order term (see
+#: :func:`chance_mi_nats`).
+MIN_EXPECTED_EXACT = 50.0
+
+# bisection steps of the noncentrality search: 2**-80 of the bracket is far below
+# the double precision of any MI
+_BISECTION_STEPS = 80
+
+
+class MIInterval(NamedTuple):
+    """Chance-corrected mutual information with its interval, in the unit asked for.
+
+    ``estimate`` is :math:`\\max(\\hat I - E_0[\\hat I], 0)`, ``low`` and ``high`` the
+    ends of the interval, ``chance`` the expected plug-in MI under independence
+    (:math:`E_0[\\hat I]`) and ``dof`` the degrees of freedom of the table.  Arrays
+    for :func:`mi_intervals_from_tables`, floats for :func:`mi_interval_from_table`.
+    """
+
+    estimate: object
+    low: object
+    high: object
+    chance: object
+    dof: object
+
+
+def _check_level(level) -> float:
+    if isinstance(level, bool) or not isinstance(level, numbers.Real):
+        raise TypeError(f"level must be a number in (0, 1), got {type(level).__name__}")
+    value = float(level)
+    if not 0.0 < value < 1.0:
+        raise ValueError(f"level={level!r} is invalid: the confidence level must be in (0, 1), e.g. 0.95")
+    return value
+
+
+def chance_mi_nats(table) -> float:
+    r"""Expected plug-in MI (nats) of a table whose rows are paired at random.
+
+    The margins are held fixed and each cell count is hypergeometric (Vinh, Epps &
+    Bailey 2010, eq. 24-25).  Cells with an expected count :math:`ab/N` below
+    :data:`MIN_EXPECTED_EXACT` get their exact hypergeometric sum (the sparse cells,
+    where the chi-square series fails); larger cells get the second-order term
+
+    .. math::
+
+        E\left[\tfrac{n}{N}\ln\tfrac{N n}{a b}\right] \approx
+        \frac{(N - a)(N - b)}{2 N^2 (N - 1)},
+
+    (the delta method on :math:`x \ln x` with the hypergeometric variance), whose sum
+    over a table with every cell large is :math:`(r - 1)(c - 1) / (2 (N - 1))`, the
+    familiar chi-square mean.  The relative error of that term is of the order of
+    :math:`1 / (ab/N)`, below 2% of a cell's term here, and the exact sum would cost
+    :math:`\sqrt{\min(a, b)}` terms per cell (seconds for large categorical tables).
+
+    Parameters
+    ----------
+    table : array_like of shape (r, c)
+        Counts; only the margins matter.
+
+    Returns
+    -------
+    float
+        :math:`E_0[\hat I]` in nats (0 for an empty table).
+
+    References
+    ----------
+    .. [1] Vinh, N. X., Epps, J., & Bailey, J. (2010). Information theoretic
+       measures for clusterings comparison. JMLR 11, 2837-2854.
+
+    Examples
+    --------
+    >>> round(chance_mi_nats([[1, 1], [1, 1]]), 6)   # exact: every cell is small
+    0.231049
+    """
+    from infoscope.estimators.information import _emi_terms_nats
+
+    t = check_counts(table, "table", ndim=2)
+    n = float(t.sum())
+    if n <= 1:
+        return 0.0
+    rows, cols = t.sum(axis=1), t.sum(axis=0)
+    ra, rw = np.unique(rows[rows > 0], return_counts=True)
+    ca, cw = np.unique(cols[cols > 0], return_counts=True)
+    a = np.repeat(ra, ca.size)
+    b = np.tile(ca, ra.size)
+    w = np.repeat(rw, ca.size).astype(np.float64) * np.tile(cw, ra.size)
+    small = a * b / n < MIN_EXPECTED_EXACT
+    total = 0.0
+    if small.any():
+        total += _emi_terms_nats(a[small], b[small], w[small], n)
+    large = ~small
+    if large.any():
+        total += float(np.sum(w[large] * (n - a[large]) * (n - b[large]))) / (2.0 * n * n * (n - 1.0))
+    return total
+
+
+def _ncx2_cdf(x: np.ndarray, dof: np.ndarray, nc: np.ndarray) -> np.ndarray:
+    # scipy's noncentral chi-square (Boost); nc = 0 is the central distribution
+    return np.where(nc > 0, stats.ncx2.cdf(x, dof, np.maximum(nc, 1e-300)), stats.chi2.cdf(x, dof))
+
+
+def _solve_noncentrality(g: np.ndarray, dof: np.ndarray, target: float, positive=None) -> np.ndarray:
+    """lambda >= 0 with F(g; dof, lambda) = target (0 where F(g; dof, 0) <= target).
+
+    F decreases in lambda, so a vectorised bisection on [0, upper] finds every root
+    at once; ``upper`` is far beyond the mean g - dof (the distribution's standard
+    deviation is sqrt(2 (dof + 2 lambda))).  ``positive`` (a mask) overrides which
+    roots are above 0: the decision of the test the caller shows, so that a
+    p-value on the boundary cannot fall on the other side by rounding.
+    """
+    lo = np.zeros_like(g)
+    hi = g + 20.0 * np.sqrt(g + dof) + 100.0
+    if positive is None:
+        positive = stats.chi2.cdf(g, dof) > target
+    for _ in range(_BISECTION_STEPS):
+        mid = 0.5 * (lo + hi)
+        above = _ncx2_cdf(g, dof, mid) > target
+        lo = np.where(above, mid, lo)
+        hi = np.where(above, hi, mid)
+    return np.where(positive, np.maximum(0.5 * (lo + hi), np.finfo(np.float64).tiny), 0.0)
+
+
+def mi_intervals_from_tables(tables, *, level=0.95, base=2, p_values=None, n_permutations=None) -> MIInterval:
+    r"""Chance-corrected mutual information and its interval for many tables at once.
+
+    See the module notes for the method: the G statistic is scaled to its exact chance
+    mean and the noncentrality of a noncentral chi-square is bracketed at the two
+    ends; the result is divided by ``2N`` and by ``log_base(base)``.
+
+    Parameters
+    ----------
+    tables : sequence of array_like of shape (r_t, c_t)
+        Contingency tables of counts (shapes may differ).
+    level : float, default=0.95
+        Two-sided confidence level, in (0, 1).
+    base : float or str, default=2
+        Logarithm base of the results (2, ``math.e``, 10, "bits", "nats", "hartleys").
+    p_values : array_like of shape (T,), optional
+        The p-values of the tests of independence shown beside the intervals (a
+        chi-square or a permutation test).  When given, the noncentral chi-square is
+        inverted at :math:`G'' = \chi^2_{\mathrm{dof}}{}^{-1}(1 - p)`, the statistic
+        that has exactly that p-value, so that the interval and the test share one
+        reference distribution: ``low > 0`` exactly when ``p < (1 - level) / 2``.
+        Without them, :math:`G'' = G / q` (the mean-scaled G).
+    n_permutations : array_like of shape (T,), optional
+        Permutations behind each p-value (0 for a chi-square p-value).  A
+        Monte-Carlo p-value at its floor :math:`1 / (m + 1)` only says the statistic
+        is beyond every permuted one; there :math:`G / q` is used when it is larger,
+        so that a strong dependence is not capped at the floor's quantile.
+
+    Returns
+    -------
+    MIInterval
+        Arrays of length T: ``estimate`` (chance-corrected MI, >= 0), ``low``,
+        ``high``, ``chance`` (expected plug-in MI under independence) and ``dof``.
+        A table with no observations gives NaN; one with ``dof = 0`` (a column
+        constant on the pair's rows) gives 0 for every number.
+
+    Notes
+    -----
+    The lower end is 0 exactly when the scaled G statistic is below the
+    ``(1 + level) / 2`` quantile of the central chi-square, i.e. when the
+    mean-scaled G-test does not reject independence at ``(1 - level) / 2``.  When
+    G' is below the ``(1 - level) / 2`` quantile (a table more even than chance
+    usually makes), the upper end is 0 too: the data are then as independent as
+    chance allows, and the interval is the point 0.
+
+    References
+    ----------
+    .. [1] Mitra, S. K. (1958). On the limiting power function of the frequency
+       chi-square test. Annals of Mathematical Statistics, 29(4), 1221-1233.
+    .. [2] Steiger, J. H., & Lind, J. C. (1980). Statistically based tests for the
+       number of common factors. Annual meeting of the Psychometric Society, Iowa
+       City (the noncentrality interval).
+    .. [3] Williams, D. A. (1976). Improved likelihood ratio tests for complete
+       contingency tables. Biometrika, 63(1), 33-37.
+    .. [4] Vinh, N. X., Epps, J., & Bailey, J. (2010). Information theoretic
+       measures for clusterings comparison. JMLR 11, 2837-2854.
+
+    Examples
+    --------
+    >>> res = mi_intervals_from_tables([[[40, 10], [10, 40]], [[25, 25], [25, 25]]])
+    >>> bool(0 < res.low[0] < res.estimate[0] < res.high[0]), float(res.low[1]), float(res.estimate[1])
+    (True, 0.0, 0.0)
+    """
+    level = _check_level(level)
+    divisor = log_base(base)
+    items = [check_counts(t, f"tables[{i}]", ndim=2) for i, t in enumerate(tables)]
+    m = len(items)
+    n = np.array([t.sum() for t in items], dtype=np.float64)
+    g = np.zeros(m)
+    dof = np.zeros(m)
+    chance = np.zeros(m)
+    for i, t in enumerate(items):
+        if n[i] == 0:
+            continue
+        rows, cols = t.sum(axis=1), t.sum(axis=0)
+        dof[i] = max(np.count_nonzero(rows) - 1, 0) * max(np.count_nonzero(cols) - 1, 0)
+        if dof[i] == 0:
+            continue
+        expected = np.outer(rows, cols) / n[i]
+        ratio = np.divide(t, expected, out=np.ones_like(t), where=t > 0)
+        g[i] = max(2.0 * float(np.sum(special.xlogy(t, ratio))), 0.0)
+        chance[i] = chance_mi_nats(t)
+    pv = _per_table(p_values, m, "p_values")
+    perms = _per_table(n_permutations, m, "n_permutations")
+    live = (n > 0) & (dof > 0)
+    if pv is not None:
+        live &= np.isfinite(pv)
+    estimate = np.where(n > 0, 0.0, np.nan)
+    low, high = estimate.copy(), estimate.copy()
+    if live.any():
+        nl, dl, gl = n[live], dof[live], g[live]
+        # q: the exact chance mean of G over dof (about 1 in a well-filled table)
+        q = np.where(chance[live] > 0, 2.0 * nl * chance[live] / dl, 1.0)
+        scaled = gl / q
+        if pv is not None:
+            p_live = np.clip(pv[live], 0.0, 1.0)
+            from_p = stats.chi2.isf(p_live, dl)
+            floor = np.zeros_like(p_live) if perms is None else np.where(
+                perms[live] > 0, 1.0 / (perms[live] + 1.0), 0.0)
+            at_floor = (floor > 0) & (p_live <= floor * (1.0 + 1e-9))
+            scaled = np.where(at_floor, np.maximum(from_p, scaled), from_p)
+            scaled = np.where(np.isfinite(scaled), scaled, gl / q)
+        # with the shown p-values, the test decides whether the lower end is above 0
+        rejects = None if pv is None else np.clip(pv[live], 0.0, 1.0) < (1.0 - level) / 2.0
+        lam_lo = _solve_noncentrality(scaled, dl, (1.0 + level) / 2.0, rejects)
+        lam_hi = _solve_noncentrality(scaled, dl, (1.0 - level) / 2.0)
+        estimate[live] = np.maximum(gl / (2.0 * nl) - chance[live], 0.0)
+        low[live] = lam_lo * q / (2.0 * nl)
+        high[live] = np.maximum(lam_hi * q / (2.0 * nl), estimate[live])
+        # the interval holds its estimate; when the two reference distributions
+        # differ (a permutation p-value against the mean-scaled G) that can move the
+        # lower end, but never across 0: the sign follows the test
+        held = np.minimum(low[live], estimate[live])
+        low[live] = np.where(low[live] > 0, np.maximum(held, np.finfo(np.float64).tiny), held)
+    chance = np.where(n > 0, chance, np.nan)
+    return MIInterval(estimate / divisor, low / divisor, high / divisor, chance / divisor, dof.astype(np.int64))
+
+
+def _per_table(values, m: int, parameter: str):
+    if values is None:
+        return None
+    arr = np.asarray(values, dtype=np.float64).reshape(-1)
+    if arr.size != m:
+        raise ValueError(f"{parameter} has {arr.size} entries for {m} tables")
+    return arr
+
+
+def mi_interval_from_table(table, *, level=0.95, base=2) -> MIInterval:
+    r"""Chance-corrected mutual information of one table and its interval.
+
+    The one-table form of :func:`mi_intervals_from_tables` (see there and the
+    module notes for the method).
+
+    Parameters
+    ----------
+    table : array_like of shape (r, c)
+        Contingency table of counts.
+    level : float, default=0.95
+        Two-sided confidence level, in (0, 1).
+    base : float or str, default=2
+        Logarithm base of the results.
+
+    Returns
+    -------
+    MIInterval
+        Floats ``estimate, low, high, chance`` and the int ``dof``.
+
+    References
+    ----------
+    .. [1] Mitra, S. K. (1958). On the limiting power function of the frequency
+       chi-square test. Annals of Mathematical Statistics, 29(4), 1221-1233.
+    .. [2] Vinh, N. X., Epps, J., & Bailey, J. (2010). Information theoretic
+       measures for clusterings comparison. JMLR 11, 2837-2854.
+
+    Examples
+    --------
+    >>> r = mi_interval_from_table([[30, 5], [5, 30]])
+    >>> bool(r.low < r.estimate < r.high), r.dof
+    (True, 1)
+    """
+    res = mi_intervals_from_tables([table], level=level, base=base)
+    return MIInterval(float(res.estimate[0]), float(res.low[0]), float(res.high[0]),
+                      float(res.chance[0]), int(res.dof[0]))
+
+
+def entropy_standard_error(counts, *, base=2) -> float:
+    r"""Standard error of an entropy estimate from counts, to second order.
+
+    .. math::
+
+        \mathrm{SE}^2 = \frac{\sum_i \hat p_i \ln^2 \hat p_i - \hat H^2}{N}
+                        + \frac{m - 1}{2 N^2},
+
+    the delta-method variance of the plug-in entropy (Basharin 1959) plus the
+    second-order term that dominates near the uniform distribution, where the first
+    term vanishes: there :math:`2N(\ln K - \hat H)` is chi-square with
+    :math:`m - 1` degrees of freedom (m non-empty cells), whose variance is
+    :math:`2(m - 1)`.
+
+    Parameters
+    ----------
+    counts : array_like of shape (K,)
+        Non-negative whole-number counts.
+    base : float or str, default=2
+        Unit of the result.
+
+    Returns
+    -------
+    float
+        The standard error in the unit of ``base``; NaN for no observations.
+
+    References
+    ----------
+    .. [1] Basharin, G. P. (1959). On a statistical estimate for the entropy of a
+       sequence of independent random variables. Theory of Probability and its
+       Applications, 4(3), 333-336.
+
+    Examples
+    --------
+    >>> round(entropy_standard_error([50, 50], base="nats"), 6)   # sqrt(1 / (2 * 100**2))
+    0.007071
+    """
+    c = check_counts(counts, "counts")
+    n = float(c.sum())
+    if n == 0:
+        return math.nan
+    p = c[c > 0] / n
+    lnp = np.log(p)
+    h = -float(np.sum(p * lnp))
+    first = max(float(np.sum(p * lnp * lnp)) - h * h, 0.0) / n
+    second = (p.size - 1) / (2.0 * n * n)
+    return math.sqrt(first + second) / log_base(base)
