@@ -24,7 +24,9 @@ __all__ = [
     "RELEVANCE_COLUMNS",
     "SPARSE_CELL_COUNT",
     "PairTable",
+    "TEST_LEVEL",
     "drift_flag",
+    "drift_verdict",
     "result_frame",
 ]
 
@@ -39,7 +41,10 @@ RELEVANCE_COLUMNS = (
     "column", "k", "n", "mi", "ci_low", "ci_high", "nmi", "p_value", "q_value",
     "share_of_target", "leakage", "sparse",
 )
-DRIFT_COLUMNS = ("column", "kind", "k", "n", "n_reference", "psi", "kl", "js", "p_value", "flag")
+DRIFT_COLUMNS = (
+    "column", "kind", "k", "n", "n_reference", "psi", "psi_chance", "psi_chance_high",
+    "kl", "kl_chance", "js", "js_chance", "p_value", "q_value", "new_share", "flag",
+)
 
 #: Fewer than this many observations per cell on average marks a table as sparse
 #: (common practice for chi-square style tables: expected counts of at least 5).
@@ -64,16 +69,27 @@ LEAKAGE_SHARE = 0.95
 DRIFT_THRESHOLDS = (0.10, 0.25)
 
 
+#: The significance level of every flag that reads a q-value (drift flags, the
+#: CLI's ``--fail-on``): a change counts when its Benjamini-Hochberg q-value is
+#: below it (common practice: a 5 % false discovery rate).
+TEST_LEVEL = 0.05
+
 #: The values of the drift table's ``flag`` column and their legend text (for the
-#: CLI, the widget and the exports).
+#: CLI, the widget and the exports).  The PSI bands 0.10 / 0.25 are common
+#: practice in credit scoring; they are read on the PSI beyond chance.
 DRIFT_FLAGS = {
-    "stable": "PSI below 0.10: no material change",
-    "moderate": "PSI 0.10 to 0.25: a moderate change, worth a look",
-    "major": "PSI 0.25 or more: a major change of distribution",
+    "stable": "no change beyond chance, or a significant one whose PSI beyond chance is below 0.10",
+    "moderate": "significant (q < 0.05) and PSI beyond chance 0.10 to 0.25 (common-practice band): "
+                "a moderate change, worth a look",
+    "major": "significant (q < 0.05) and PSI beyond chance 0.25 or more (common-practice band): "
+             "a major change of distribution",
+    "within_chance": "PSI reads 0.10 or more, but sampling alone gives as much at these sample "
+                     "sizes (q >= 0.05): more rows or fewer bins would tell",
     "id_like": "identifier: new values in every batch by construction (PSI not a change of distribution)",
     "time_axis": "time axis: the batch covers another period (PSI not a change of distribution)",
+    "type_changed": "the column's type changed: its values cannot share the reference's alphabet "
+                    "(not compared)",
 }
-
 
 def drift_flag(psi_value: float) -> str:
     """The drift verdict of a PSI value.
@@ -108,6 +124,49 @@ def drift_flag(psi_value: float) -> str:
     if psi_value < high:
         return "moderate"
     return "major"
+
+
+def drift_verdict(psi_value: float, psi_chance: float, q_value: float, *, level: float = TEST_LEVEL) -> str:
+    """The drift flag of a column from its size and its significance together.
+
+    Parameters
+    ----------
+    psi_value : float
+        Observed population stability index (nats).
+    psi_chance : float
+        PSI expected from sampling alone at the same sample sizes (the mean of
+        the permutation splits).
+    q_value : float
+        The column's Benjamini-Hochberg q-value.
+    level : float, default=0.05
+        Significance level.
+
+    Returns
+    -------
+    str
+        ``"major"`` / ``"moderate"`` when ``q_value < level`` and the PSI beyond
+        chance (``psi_value - psi_chance``) reaches 0.25 / 0.10; ``"within_chance"``
+        when the PSI itself reads 0.10 or more but the change is not significant;
+        ``"stable"`` otherwise; ``""`` when nothing was compared (NaN).
+
+    References
+    ----------
+    .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (the PSI bands;
+       common practice in credit scoring).
+    .. [2] Benjamini, Y., & Hochberg, Y. (1995). Journal of the Royal Statistical
+       Society B, 57(1), 289-300.
+
+    Examples
+    --------
+    >>> drift_verdict(0.30, 0.01, 0.001), drift_verdict(0.30, 0.2, 0.4), drift_verdict(0.02, 0.0, 0.001)
+    ('major', 'within_chance', 'stable')
+    """
+    if np.isnan(psi_value) or np.isnan(q_value):
+        return ""
+    if q_value < level:
+        excess = psi_value - (0.0 if np.isnan(psi_chance) else psi_chance)
+        return drift_flag(max(excess, 0.0))
+    return "within_chance" if psi_value >= DRIFT_THRESHOLDS[0] else "stable"
 
 
 def result_frame(rows: list[dict], columns: tuple[str, ...], **attrs) -> pd.DataFrame:

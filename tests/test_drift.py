@@ -1,0 +1,318 @@
+"""Drift of a batch from a reference: the numbers against scipy, the chance level by simulation.
+
+Every simulation is seeded; its sizes are written beside it.  A permutation p-value
+from ``n_perm`` splits lives on a grid of step ``1 / (n_perm + 1)``, so a
+Kolmogorov-Smirnov check against the uniform distribution (``scipy.stats.kstest``)
+is read with a tolerance of KS p > 0.001, and a rejection rate at 0.05 with a
+binomial allowance of about three standard deviations.
+"""
+from __future__ import annotations
+
+import copy
+import re
+import warnings
+
+import numpy as np
+import pandas as pd
+import pytest
+import scipy.stats
+from scipy.spatial.distance import jensenshannon
+from scipy.special import rel_entr
+
+from infoscope._warnings import DataQualityWarning
+from infoscope.datasets import PLANTED, make_deliveries, make_deliveries_batch
+from infoscope.estimators.two_sample import (
+    divergence_rows,
+    drift_chi2_test,
+    drift_permutation_test,
+    psi_chance_approximation,
+)
+from infoscope.frame.drift import align_to_reference, drift_table
+from infoscope.frame.results import DRIFT_COLUMNS, DRIFT_FLAGS
+from infoscope.frame.session import ProfileSession
+
+SETTINGS = (16, "quantile", "drop", 64)
+LEVELS200 = np.array([f"L{i:03d}" for i in range(200)])
+
+
+def _table(current: dict, reference: dict, **kw):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        return drift_table({k: pd.Series(v) for k, v in current.items()},
+                           {k: pd.Series(v) for k, v in reference.items()},
+                           encoding={k: SETTINGS for k in current}, **kw)
+
+
+def _null_p_values(draw, n, m, seeds, n_perm=99, **kw):
+    out = []
+    for s in range(seeds):
+        rng = np.random.default_rng(s)
+        rows = _table({"x": draw(rng, m)}, {"x": draw(rng, n)}, n_perm=n_perm, seed=s, **kw)
+        out.append(rows[0]["p_value"])
+    return np.array(out)
+
+
+# ------------------------------------------------------------------ the numbers
+def test_divergences_equal_scipy_rel_entr_and_jensenshannon():
+    rng = np.random.default_rng(3)
+    ref = pd.Series(rng.choice(list("abcdef"), size=900, p=[.3, .2, .2, .1, .1, .1]))
+    cur = pd.Series(rng.choice(list("abcdefg"), size=400, p=[.2, .2, .2, .1, .1, .1, .1]))
+    al = align_to_reference(cur, ref, "c", SETTINGS)
+    r, c = al.counts("reference"), al.counts("current")
+    assert al.labels[-1] == "g" and r[-1] == 0  # a new level keeps its own symbol
+    row = _table({"c": cur}, {"c": ref}, n_perm=99)[0]
+    e, a = (r + 0.5) / (r + 0.5).sum(), (c + 0.5) / (c + 0.5).sum()
+    # PSI = KL(a||e) + KL(e||a) from scipy.special.rel_entr (Jeffreys' J divergence)
+    assert row["psi"] == pytest.approx(float(rel_entr(a, e).sum() + rel_entr(e, a).sum()), rel=1e-12)
+    # KL(current || reference) in bits: scipy.special.rel_entr / ln 2
+    assert row["kl"] == pytest.approx(float(rel_entr(a, e).sum()) / np.log(2), rel=1e-12)
+    # JS: scipy.spatial.distance.jensenshannon returns the distance, its square is the divergence
+    assert row["js"] == pytest.approx(jensenshannon(r, c, base=2) ** 2, rel=1e-9)
+    # the vectorised rows give the same numbers as one call per row
+    many = divergence_rows(np.vstack([r, r]), np.vstack([c, r]))
+    assert many["psi"][0] == pytest.approx(row["psi"], rel=1e-12) and many["psi"][1] == 0.0
+
+
+def test_chi2_form_equals_scipy_g_test_of_homogeneity():
+    r, c = np.array([120, 80, 60, 40, 0]), np.array([50, 60, 30, 35, 5])
+    t = drift_chi2_test(r, c)
+    # scipy.stats.chi2_contingency(lambda_="log-likelihood", correction=False) on the 2 x K table
+    # (cells empty on both sides dropped: they carry no information)
+    res = scipy.stats.chi2_contingency(np.vstack([r, c]), correction=False, lambda_="log-likelihood")
+    assert t.p_value == pytest.approx(res.pvalue, rel=1e-10)
+    assert t.psi_chance == pytest.approx(psi_chance_approximation(5, r.sum(), c.sum()))
+    row = _table({"c": np.repeat(list("abcde"), c)}, {"c": np.repeat(list("abcde"), r)}, null="chi2")[0]
+    assert row["p_value"] == pytest.approx(res.pvalue, rel=1e-10)
+
+
+def test_permutation_agrees_with_the_chi2_form_on_well_filled_tables():
+    # K = 5 cells with hundreds of rows each: the permutation p-value and chance
+    # level should match the G-test (Wilks 1938) and (K - 1)(1/n + 1/m) (Pearson
+    # 1900) up to Monte Carlo error (2,999 splits: sd of p about 0.008 at p = 0.2)
+    r = np.array([900, 700, 600, 500, 300])
+    c = np.array([300, 260, 190, 160, 90])
+    perm = drift_permutation_test(r, c, n_perm=2999, seed=5)
+    chi2 = drift_chi2_test(r, c)
+    assert 0.05 < chi2.p_value < 0.6
+    assert perm.p_value == pytest.approx(chi2.p_value, abs=0.03)
+    assert perm.psi_chance == pytest.approx(chi2.psi_chance, rel=0.1)
+    assert perm.psi_chance_high == pytest.approx(chi2.psi_chance_high, rel=0.15)
+    assert perm.js_chance == pytest.approx(chi2.js_chance, rel=0.1)
+    assert perm.kl_chance == pytest.approx(chi2.kl_chance, rel=0.1)
+
+
+def test_the_chi2_form_is_off_on_sparse_tables_so_permutation_is_the_default():
+    # 64 cells and a 100-row batch: about 1.5 rows per cell; the first-order chance
+    # level misses the pseudocount's effect by more than 20 %, and the G-test's
+    # rejection rate under the null is off (200 seeded pairs of samples)
+    rng = np.random.default_rng(0)
+    t = drift_permutation_test(rng.multinomial(2000, np.full(64, 1 / 64)),
+                               rng.multinomial(100, np.full(64, 1 / 64)), n_perm=999, seed=1)
+    approx = psi_chance_approximation(64, 2000, 100)
+    assert abs(t.psi_chance - approx) / approx > 0.2
+    draw = lambda rng, size: LEVELS200[rng.integers(0, 64, size=size)]
+    p_chi2 = _null_p_values(draw, 2000, 100, 200, null="chi2")
+    assert scipy.stats.kstest(p_chi2, "uniform").pvalue < 0.001
+
+
+# ------------------------------------------------------------------ calibration
+NULL_CASES = {
+    # name: (draw(rng, size), reference rows, batch rows)
+    "normal, 16 quantile bins": (lambda rng, k: rng.normal(size=k), 2000, 100),
+    "normal, small reference": (lambda rng, k: rng.normal(size=k), 200, 50),
+    "rounded gamma (ties)": (lambda rng, k: np.round(rng.gamma(2.0, 3.0, size=k), 1), 2000, 300),
+    "8 levels, uneven": (lambda rng, k: rng.choice(list("abcdefgh"), size=k,
+                                                   p=[.3, .2, .15, .1, .1, .08, .05, .02]), 1000, 1000),
+    "200 levels folded to 64": (lambda rng, k: LEVELS200[rng.integers(0, 200, size=k)], 2000, 2000),
+    "200 levels, batch of 100": (lambda rng, k: LEVELS200[rng.integers(0, 200, size=k)], 2000, 100),
+}
+
+
+@pytest.mark.parametrize("case", list(NULL_CASES))
+def test_null_p_values_are_uniform(case):
+    # 200 seeded pairs of samples from one distribution, 99 splits each
+    draw, n, m = NULL_CASES[case]
+    p = _null_p_values(draw, n, m, 200)
+    assert scipy.stats.kstest(p, "uniform").pvalue > 0.001, case
+    sd = np.sqrt(0.05 * 0.95 / 200)
+    assert np.mean(p <= 0.05) <= 0.05 + 3 * sd, case
+
+
+def test_folding_levels_does_not_bias_the_test():
+    # 200 equally likely levels, 2,000 rows a side, max_categories=64: choosing the
+    # 63 kept levels from the reference alone gave p < 0.05 in 93 % of seeds; on the
+    # pooled rows it is the nominal 5 % (200 seeds, 99 splits; allowance 3 sd)
+    draw = lambda rng, size: LEVELS200[rng.choice(200, size=size)]
+    p = _null_p_values(draw, 2000, 2000, 200)
+    assert np.mean(p < 0.05) <= 0.05 + 3 * np.sqrt(0.05 * 0.95 / 200)
+
+
+def _mixed_frame(rng, n):
+    return pd.DataFrame({
+        "amount": rng.lognormal(3.0, 0.8, size=n),
+        "channel": rng.choice(list("abcdefgh"), size=n, p=[.3, .2, .15, .1, .1, .08, .05, .02]),
+        "product": LEVELS200[rng.integers(0, 200, size=n)],
+        "items": rng.poisson(3.0, size=n),
+        "express": rng.random(n) < 0.3,
+    })
+
+
+def test_small_batches_against_a_big_reference_do_not_read_as_drift():
+    # 40 batches of 100 rows against a 2,000-row reference of the same process
+    # (5 columns: numeric, 8 levels, 200 levels, counts, boolean).  The PSI of small
+    # batches reads 0.10 or more by chance alone (16 bins: about (K-1)(1/n+1/m) =
+    # 0.16), which the flag says ("within_chance") instead of "moderate"/"major".
+    # Under BH at q < 0.05 a batch is flagged anywhere with probability <= 5 %:
+    # allowance 4 of 40 (binomial(40, 0.05) exceeds 4 with probability 0.05).
+    ref = _mixed_frame(np.random.default_rng(100), 2000)
+    flagged, within = 0, 0
+    for s in range(40):
+        batch = _mixed_frame(np.random.default_rng(s), 100)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", DataQualityWarning)
+            d = ProfileSession(batch).drift(ref)
+        flagged += bool(d["flag"].isin(["moderate", "major"]).any())
+        within += int((d["flag"] == "within_chance").sum())
+        assert (d["psi_chance"] > 0).all() and (d["psi_chance_high"] >= d["psi_chance"]).all()
+    assert flagged <= 4
+    assert within > 0
+
+
+def test_q_values_are_benjamini_hochberg_over_the_tested_columns():
+    rng = np.random.default_rng(8)
+    ref, cur = _mixed_frame(rng, 1500), _mixed_frame(rng, 600)
+    cur["amount"] = cur["amount"] * 1.3
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        d = ProfileSession(cur).drift(ref)
+    # scipy.stats.false_discovery_control(method="bh") on the same p-values
+    assert np.allclose(d["q_value"], scipy.stats.false_discovery_control(d["p_value"], method="bh"))
+    assert tuple(d.columns) == DRIFT_COLUMNS and set(d["flag"]) <= set(DRIFT_FLAGS)
+
+
+def test_a_planted_shift_fires():
+    # a numeric mean shift of 0.5 sd and a categorical share 50 % -> 30 %, 2,000 vs
+    # 500 rows (PSI of the numeric shift about 0.25 on 16 quantile bins)
+    rng = np.random.default_rng(11)
+    ref = {"x": rng.normal(size=2000), "c": rng.choice(list("ab"), size=2000)}
+    cur = {"x": rng.normal(0.5, 1.0, size=500), "c": rng.choice(list("ab"), size=500, p=[.3, .7])}
+    rows = {r["column"]: r for r in _table(cur, ref)}
+    for key in ("x", "c"):
+        assert rows[key]["q_value"] < 0.01 and rows[key]["flag"] in ("moderate", "major"), key
+        assert rows[key]["psi"] > rows[key]["psi_chance_high"]
+
+
+def test_null_flag_rate_over_columns_at_q_below_005():
+    # 60 seeded batches of 400 rows against a 1,500-row reference, 5 columns each
+    # (300 column tests): flagged moderate/major at most 5 % + 3 sd of the columns
+    ref = _mixed_frame(np.random.default_rng(200), 1500)
+    flags = []
+    for s in range(60):
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", DataQualityWarning)
+            flags += ProfileSession(_mixed_frame(np.random.default_rng(300 + s), 400)).drift(ref)["flag"].tolist()
+    rate = np.mean(np.isin(flags, ["moderate", "major"]))
+    assert rate <= 0.05 + 3 * np.sqrt(0.05 * 0.95 / len(flags))
+
+
+# ------------------------------------------------------------------ the demo
+@pytest.fixture(scope="module")
+def demo_reference():
+    return make_deliveries(20_000, seed=0)
+
+
+def test_demo_batch_is_flagged_exactly_on_its_planted_columns(demo_reference):
+    # PLANTED["drift"] lists the flag of every changed column; the rest must read
+    # "stable" (q < 0.05 for the flags, infoscope.frame.results.TEST_LEVEL)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        d = ProfileSession(make_deliveries_batch(8_000, seed=1)).drift(demo_reference)
+    got = dict(zip(d["column"], d["flag"]))
+    expected = {c: PLANTED["drift"].get(c, "stable") for c in got}
+    assert got == expected
+
+
+def test_a_second_batch_from_the_reference_process_is_flagged_on_none(demo_reference):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        d = ProfileSession(make_deliveries_batch(8_000, seed=7, drift=False)).drift(demo_reference)
+    got = dict(zip(d["column"], d["flag"]))
+    assert got == {c: PLANTED["no_drift"].get(c, "stable") for c in got}
+
+
+# ------------------------------------------------------------------ types and bad input
+def test_int_reference_against_the_same_numbers_as_text_says_what_was_done():
+    rng = np.random.default_rng(4)
+    ref = pd.DataFrame({"n": rng.integers(0, 6, size=500)})
+    cur = pd.DataFrame({"n": rng.integers(0, 6, size=300).astype(str)})
+    with pytest.warns(DataQualityWarning, match=r"'n' is int64 in the reference, \w+ in this frame "
+                      r".*compared on the printed values, on which 100.0% of this frame's rows match"):
+        d = ProfileSession(cur).drift(ref)
+    assert d.loc[0, "flag"] == "stable" and d.loc[0, "new_share"] == 0.0 and d.loc[0, "psi"] < 0.1
+
+
+def test_text_that_reads_as_numbers_shares_the_reference_bins():
+    rng = np.random.default_rng(5)
+    ref = pd.DataFrame({"x": rng.normal(size=800)})
+    cur = pd.DataFrame({"x": rng.normal(size=400).round(4).astype(str)})
+    with pytest.warns(DataQualityWarning) as record:  # the profile's own warnings come too
+        d = ProfileSession(cur).drift(ref)
+    assert any(re.search(r"'x' is float64 .* compared on the numbers its text reads as "
+                         r"\(100.0% of the non-missing values parsed", str(w.message)) for w in record)
+    assert d.loc[0, "flag"] == "stable" and d.loc[0, "k"] == 16
+
+
+def _unchanged(*frames):
+    return [(f, copy.deepcopy(f)) for f in frames]
+
+
+def _assert_unchanged(kept):
+    for frame, before in kept:
+        pd.testing.assert_frame_equal(frame, before)
+
+
+def test_one_row_or_zero_row_reference_is_a_clear_error():
+    cur = pd.DataFrame({"a": [1.0, 2.0, 3.0] * 10, "b": list("xyz") * 10})
+    one, zero = cur.iloc[:1].copy(), cur.iloc[:0].copy()
+    kept = _unchanged(cur, one, zero)
+    with pytest.raises(ValueError, match=r"the reference has 1 row\(s\): too small to compare with"):
+        ProfileSession(cur).drift(one)
+    with pytest.raises(ValueError, match="reference has no rows"):
+        ProfileSession(cur).drift(zero)
+    _assert_unchanged(kept)
+
+
+def test_naive_against_zoned_datetimes_is_refused_with_the_column_named():
+    times = pd.Series(pd.date_range("2026-03-01", periods=300, freq="h"))
+    ref = pd.DataFrame({"t": times, "v": np.arange(300) % 7})
+    cur = pd.DataFrame({"t": times.dt.tz_localize("UTC"), "v": np.arange(300) % 7})
+    kept = _unchanged(ref, cur)
+    with pytest.warns(DataQualityWarning, match=r"column 't' is datetime64\[\w+\] in the reference, "
+                      r"datetime64\[\w+, UTC\] in this frame: naive and time-zone-aware .* not compared"):
+        d = ProfileSession(cur).drift(ref).set_index("column")
+    assert d.loc["t", "flag"] == "type_changed" and np.isnan(d.loc["t", "psi"])
+    assert d.loc["v", "flag"] == "stable"
+    _assert_unchanged(kept)
+
+
+def test_different_columns_compare_the_common_ones_and_name_the_rest():
+    rng = np.random.default_rng(6)
+    ref = pd.DataFrame({"a": rng.normal(size=300), "gone": rng.normal(size=300)})
+    cur = pd.DataFrame({"a": rng.normal(size=200), "added": rng.normal(size=200)})
+    kept = _unchanged(ref, cur)
+    with pytest.warns(DataQualityWarning, match="only in this frame: 'added'; only in the reference: 'gone'"):
+        d = ProfileSession(cur).drift(ref)
+    assert d["column"].tolist() == ["a"]
+    _assert_unchanged(kept)
+
+
+def test_a_changed_type_that_cannot_share_the_alphabet_is_flagged_type_changed():
+    ref = pd.DataFrame({"a": np.linspace(0, 1, 200), "b": list("xy") * 100})
+    cur = pd.DataFrame({"a": list("pq") * 50, "b": pd.date_range("2026-01-01", periods=100)})
+    kept = _unchanged(ref, cur)
+    with pytest.warns(DataQualityWarning) as record:
+        d = ProfileSession(cur).drift(ref).set_index("column")
+    texts = " | ".join(str(w.message) for w in record)
+    assert "'a' is float64 in the reference" in texts and "'b' is" in texts
+    assert (d["flag"] == "type_changed").all() and d["psi"].isna().all() and d["q_value"].isna().all()
+    _assert_unchanged(kept)
