@@ -363,7 +363,8 @@ class InfoProfileAccessor:
         reference : pandas.DataFrame or polars.DataFrame
             The frame to compare with.
         **settings
-            Settings of the session (``pseudocount`` is passed to ``drift``).
+            Settings of the session (``pseudocount``, ``n_perm`` and ``null`` are
+            passed to ``drift``).
 
         Returns
         -------
@@ -381,8 +382,8 @@ class InfoProfileAccessor:
         >>> pd.DataFrame({"c": list("a" * 140 + "b" * 60)}).info_profile.drift(ref)["flag"].tolist()
         ['moderate']
         """
-        pseudo = {"pseudocount": settings.pop("pseudocount")} if "pseudocount" in settings else {}
-        return self._session(settings).drift(reference, **pseudo)
+        options = {k: settings.pop(k) for k in ("pseudocount", "n_perm", "null") if k in settings}
+        return self._session(settings).drift(reference, **options)
 
     def __call__(self, **settings):
         """The live profile widget of this frame (needs the widget extra).

@@ -124,6 +124,9 @@ class SharedAlphabet:
         ``"type_changed"``).
     reference_flags : tuple of str
         The encoder's flags of the reference column.
+    current_new : numpy.ndarray or None
+        Per current row, whether its value is one the reference never had (levels)
+        or lies outside the reference's range (bins); None when not compared.
     """
 
     name: str
@@ -136,6 +139,7 @@ class SharedAlphabet:
     note: str
     compared: bool
     reference_flags: tuple
+    current_new: np.ndarray | None = None
 
     @property
     def k(self) -> int:
@@ -214,25 +218,39 @@ def _not_compared(name, kind, reference_flags, note) -> SharedAlphabet:
     return SharedAlphabet(name, kind, (), empty, empty, None, math.nan, note, False, reference_flags)
 
 
-def _outside_share(current: pd.Series, reference: pd.Series, kind: str) -> float:
-    """Share of the current non-missing values outside the reference's range (binned columns)."""
+def _outside(current: pd.Series, reference: pd.Series, kind: str):
+    """Per current row: outside the reference's range (bool), and which rows have a value.
+
+    Returns ``(outside, present)`` boolean arrays, or ``None`` when the values cannot
+    be compared as numbers or times.
+    """
     try:
         if kind == "datetime":
-            cur = pd.to_datetime(pd.Series(current), utc=True, errors="coerce").dropna()
+            cur = pd.to_datetime(pd.Series(current), utc=True, errors="coerce")
             ref = pd.to_datetime(pd.Series(reference), utc=True, errors="coerce").dropna()
         elif kind == "timedelta":
-            cur = pd.to_timedelta(pd.Series(current), errors="coerce").dropna()
+            cur = pd.to_timedelta(pd.Series(current), errors="coerce")
             ref = pd.to_timedelta(pd.Series(reference), errors="coerce").dropna()
         else:
-            cur = pd.to_numeric(pd.Series(current), errors="coerce")
-            ref = pd.to_numeric(pd.Series(reference), errors="coerce")
-            cur = cur[np.isfinite(cur.to_numpy(dtype=float, na_value=np.nan))]
-            ref = ref[np.isfinite(ref.to_numpy(dtype=float, na_value=np.nan))]
+            cur = pd.to_numeric(pd.Series(current), errors="coerce").astype("float64")
+            ref = pd.to_numeric(pd.Series(reference), errors="coerce").astype("float64")
+            cur = cur.where(np.isfinite(cur))
+            ref = ref[np.isfinite(ref)]
     except (TypeError, ValueError, OverflowError):
+        return None
+    if ref.empty:
+        return None
+    present = cur.notna().to_numpy()
+    outside = ((cur < ref.min()) | (cur > ref.max())).to_numpy() & present
+    return outside, present
+
+
+def _outside_share(current: pd.Series, reference: pd.Series, kind: str) -> float:
+    """Share of the current non-missing values outside the reference's range (binned columns)."""
+    found = _outside(current, reference, kind)
+    if found is None or not found[1].any():
         return math.nan
-    if cur.empty or ref.empty:
-        return math.nan
-    return float(((cur < ref.min()) | (cur > ref.max())).mean())
+    return float(found[0].sum() / found[1].sum())
 
 
 def align_to_reference(current: pd.Series, reference: pd.Series, name: str, settings: tuple
@@ -324,8 +342,13 @@ def _align_bins(current, reference, name, settings, ref, flags, dtypes) -> Share
     ref_codes = _codes(ref.codes, ref.k, np.arange(ref.k), k)
     cur_map = [i if i < n_bins else labels.index(label) for i, label in enumerate(cur.labels)]
     cur_codes = _codes(cur.codes, cur.k, cur_map, k)
+    found = _outside(values, reference, ref.kind)
+    new_share, new_rows = math.nan, None
+    if found is not None:
+        new_rows = found[0]
+        new_share = float(found[0].sum() / found[1].sum()) if found[1].any() else math.nan
     return SharedAlphabet(name, ref.kind, tuple(labels), ref_codes, cur_codes, edges,
-                          _outside_share(values, reference, ref.kind), note, True, flags)
+                          new_share, note, True, flags, new_rows)
 
 
 def _align_levels(current, reference, name, settings, ref, flags, dtypes) -> SharedAlphabet:
@@ -387,8 +410,10 @@ def _align_levels(current, reference, name, settings, ref, flags, dtypes) -> Sha
     k = len(labels)
     ref_codes = _codes(ref_all.codes, ref_all.k, mapping[: ref_all.k], k)
     cur_codes = _codes(cur_all.codes, cur_all.k, mapping[cur_to_union], k)
+    level_is_new = np.append(~seen[cur_to_union] & ~is_missing[cur_to_union], False)
+    new_rows = level_is_new[np.minimum(np.asarray(cur_all.codes, dtype=np.int64), cur_all.k)]
     return SharedAlphabet(name, ref.kind, tuple(labels), ref_codes, cur_codes, None, new_share,
-                          note, True, flags)
+                          note, True, flags, new_rows)
 
 
 def check_reference_rows(reference: dict) -> int:

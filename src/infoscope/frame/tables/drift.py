@@ -15,56 +15,8 @@ from infoscope.frame.results import DRIFT_COLUMNS, result_frame
 class DriftTable:
     """Session part: :meth:`drift` (see :mod:`infoscope.frame.tables`)."""
 
-    def drift(self, reference, *, pseudocount: float = 0.5) -> pd.DataFrame:
-        """Per-column divergence of this frame from a reference frame.
-
-        See :func:`infoscope.frame.drift.drift_table` for the method; this session's
-        encoding settings (bins, strategy, missing, max_categories, per-column
-        overrides) define the reference's alphabet.
-
-        Parameters
-        ----------
-        reference : pandas.DataFrame or polars.DataFrame
-            The frame to compare with (e.g. the training data).
-        pseudocount : float, default=0.5
-            Added to every cell of both count vectors before PSI and KL (so that a
-            symbol absent from one side gives a finite value).
-
-        Returns
-        -------
-        pandas.DataFrame
-            ``column, kind, k, n, n_reference, psi, kl, js, p_value, flag``;
-            ``flag`` is ``"stable"`` (PSI < 0.10), ``"moderate"`` (0.10 to 0.25)
-            or ``"major"`` (>= 0.25), except ``"id_like"`` for an identifier (new
-            values in every batch by construction) and ``"time_axis"`` for a
-            datetime column of which at least half of this frame lies outside the
-            reference's range (another period); for those two the numbers are
-            kept but do not mean a change of distribution.  ``""`` when nothing
-            was compared.  Legend texts: ``infoscope.frame.results.DRIFT_FLAGS``.
-
-            **Units.**  ``psi`` is always in nats (natural logarithm: the
-            0.10 / 0.25 thresholds assume it); ``kl`` and ``js`` are in the
-            session's unit.  ``attrs["units"]`` says so per column:
-            ``{"psi": "nats", "kl": unit, "js": unit}``; ``attrs["unit"]`` is
-            the session's unit (of ``kl`` and ``js`` only).
-
-        References
-        ----------
-        .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (PSI and its
-           0.10 / 0.25 rules of thumb).
-        .. [2] Lin, J. (1991). Divergence measures based on the Shannon entropy.
-           IEEE Transactions on Information Theory, 37(1), 145-151.
-
-        Examples
-        --------
-        >>> from infoscope.frame.session import ProfileSession
-        >>> from infoscope.datasets import make_deliveries, make_deliveries_batch
-        >>> columns = ["depot", "booking_channel", "weight_kg"]
-        >>> s = ProfileSession(make_deliveries_batch(2_000)[columns])
-        >>> d = s.drift(make_deliveries(4_000)[columns])
-        >>> d.set_index("column").loc["booking_channel", "flag"]
-        'moderate'
-        """
+    def _reference_columns(self, reference) -> tuple[list[str], dict]:
+        """The common column keys and the reference's columns; warns about the others."""
         ref = as_pandas(reference, "reference")
         if ref.shape[1] == 0 or ref.shape[0] == 0:
             raise ValueError("reference has no rows or no columns: there is nothing to compare with")
@@ -82,13 +34,88 @@ class DriftTable:
             if only_there:
                 parts.append("only in the reference: " + ", ".join(map(repr, only_there)))
             warnings.warn("drift compares the common columns; " + "; ".join(parts),
-                          DataQualityWarning, stacklevel=2)
+                          DataQualityWarning, stacklevel=3)
+        return common, ref_series
+
+    def drift(self, reference, *, pseudocount: float = 0.5, n_perm: int = 999,
+              null: str = "permutation") -> pd.DataFrame:
+        """Per-column divergence of this frame from a reference frame, against chance.
+
+        See :mod:`infoscope.frame.drift` for the method; this session's encoding
+        settings (bins, strategy, missing, max_categories, per-column overrides)
+        define the alphabet, and its ``seed`` seeds the permutation splits.
+
+        Parameters
+        ----------
+        reference : pandas.DataFrame or polars.DataFrame
+            The frame to compare with (e.g. the training data); at least 2 rows.
+        pseudocount : float, default=0.5
+            Added to every cell of both count vectors before PSI and KL (so that a
+            symbol absent from one side gives a finite value).
+        n_perm : int, default=999
+            Random splits of the pooled rows per column (chance level, p-value);
+            p-values below 0.05 get 9,000 more splits.
+        null : {"permutation", "chi2"}, default="permutation"
+            ``"chi2"``: the G-test and the first-order chance level
+            (K - 1)(1/n + 1/m) instead of the splits; only for large, well-filled
+            tables (with sparse cells it is off).
+
+        Returns
+        -------
+        pandas.DataFrame
+            ``column, kind, k, n, n_reference, psi, psi_chance, psi_chance_high,
+            kl, kl_chance, js, js_chance, p_value, q_value, new_share, flag``.
+            ``*_chance`` is what sampling alone gives at these sizes (mean over
+            the splits), ``psi_chance_high`` the 95 % point, ``q_value`` the
+            Benjamini-Hochberg adjustment over the columns tested, ``new_share``
+            the share of this frame's rows with a value the reference never had
+            (levels) or outside its range (bins).  ``flag``: ``"major"`` /
+            ``"moderate"`` (q < 0.05 and PSI beyond chance >= 0.25 / 0.10, the
+            common-practice bands), ``"within_chance"`` (PSI >= 0.10 that chance
+            explains), ``"stable"``, or ``"id_like"`` / ``"time_axis"`` (drift by
+            construction, numbers kept) / ``"type_changed"`` (not compared);
+            ``""`` when nothing was compared.  Legend texts:
+            ``infoscope.frame.results.DRIFT_FLAGS``.
+
+            **Units.**  ``psi`` is always in nats (natural logarithm: the
+            0.10 / 0.25 thresholds assume it); ``kl`` and ``js`` are in the
+            session's unit.  ``attrs["units"]`` says so per column.
+
+        Raises
+        ------
+        ValueError
+            A reference with no rows or columns, fewer than 2 rows, or no column
+            in common.
+
+        References
+        ----------
+        .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (PSI and its
+           0.10 / 0.25 rules of thumb).
+        .. [2] Lin, J. (1991). Divergence measures based on the Shannon entropy.
+           IEEE Transactions on Information Theory, 37(1), 145-151.
+        .. [3] Benjamini, Y., & Hochberg, Y. (1995). Journal of the Royal
+           Statistical Society B, 57(1), 289-300.
+
+        Examples
+        --------
+        >>> from infoscope.frame.session import ProfileSession
+        >>> from infoscope.datasets import make_deliveries, make_deliveries_batch
+        >>> columns = ["depot", "booking_channel", "weight_kg"]
+        >>> s = ProfileSession(make_deliveries_batch(2_000)[columns])
+        >>> d = s.drift(make_deliveries(4_000)[columns])
+        >>> d.set_index("column").loc["booking_channel", "flag"]
+        'moderate'
+        """
+        common, ref_series = self._reference_columns(reference)
         s = self._settings
         rows = drift_table(
             {k: self._values(k) for k in common}, {k: ref_series[k] for k in common},
             encoding={k: self._encoding_settings(k, s) for k in common},
-            pseudocount=pseudocount, base=s["base"],
+            pseudocount=pseudocount, base=s["base"], n_perm=n_perm, seed=s["seed"], null=null,
         )
         unit = unit_name(s["base"])
         return result_frame(rows, DRIFT_COLUMNS, **self._attrs(
-            pseudocount=pseudocount, units={"psi": "nats", "kl": unit, "js": unit}))
+            pseudocount=pseudocount, null=null, n_perm=n_perm,
+            units={"psi": "nats", "psi_chance": "nats", "psi_chance_high": "nats",
+                   "kl": unit, "kl_chance": unit, "js": unit, "js_chance": unit,
+                   "new_share": "share of rows"}))
