@@ -65,7 +65,9 @@ def test_drift_units_psi_in_nats_kl_js_in_session_unit():
     cur = pd.DataFrame({"c": ["a"] * 50 + ["b"] * 30 + ["c"] * 20})
     ref = pd.DataFrame({"c": ["a"] * 30 + ["b"] * 30 + ["c"] * 40})
     d = ProfileSession(cur, n_boot=0, base=2).drift(ref, pseudocount=0.5)
-    assert d.attrs["units"] == {"psi": "nats", "kl": "bits", "js": "bits"}
+    units = d.attrs["units"]
+    assert (units["psi"], units["psi_chance"], units["kl"], units["kl_chance"], units["js"]) == (
+        "nats", "nats", "bits", "bits", "bits")
     row = d.set_index("column").loc["c"]
     a = np.array([50, 30, 20]) + 0.5  # this frame, pseudocount added to every cell
     e = np.array([30, 30, 40]) + 0.5  # reference
@@ -77,7 +79,7 @@ def test_drift_units_psi_in_nats_kl_js_in_session_unit():
     js = jensenshannon([50, 30, 20], [30, 30, 40], base=2) ** 2
     assert row["js"] == pytest.approx(js, rel=1e-9)
     nats = ProfileSession(cur, n_boot=0, base="nats").drift(ref)
-    assert nats.attrs["units"] == {"psi": "nats", "kl": "nats", "js": "nats"}
+    assert {nats.attrs["units"][k] for k in ("psi", "kl", "js", "js_chance")} == {"nats"}
     assert nats.set_index("column").loc["c", "psi"] == pytest.approx(row["psi"], rel=1e-12)
 
 
