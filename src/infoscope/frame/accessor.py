@@ -355,6 +355,54 @@ class InfoProfileAccessor:
 
         return conditional_table(self._session(settings), x, y, given, n_permutations=n_permutations)
 
+    def select(self, target: str | None = None, k=None, method: str = "mrmr", *, include_leaks: bool = False,
+               n_permutations: int = 199, fdr: float = 0.05, **settings) -> pd.DataFrame:
+        """Columns for a target, chosen step by step: see :func:`infoscope.frame.selection.select_table`.
+
+        Parameters
+        ----------
+        target : str, optional
+            The target column key (default: the ``target`` setting).
+        k : int, optional
+            Number of steps; ``None`` stops when the next gain is not significant.
+        method : {"mrmr", "jmi", "cmim"}, default="mrmr"
+            Peng, Long & Ding (2005) difference form; Yang & Moody (1999); Fleuret (2004).
+        include_leaks : bool, default=False
+            Keep columns that nearly determine the target among the candidates.
+        n_permutations : int, default=199
+            Shuffles per step for the significance of the gain.
+        fdr : float, default=0.05
+            False discovery rate (Benjamini-Hochberg across steps).
+        **settings
+            Settings of the session.
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per step, then the columns left out (see ``SELECTION_COLUMNS``).
+
+        References
+        ----------
+        .. [1] Peng, H., Long, F., & Ding, C. (2005). IEEE TPAMI, 27(8), 1226-1238.
+        .. [2] Yang, H. H., & Moody, J. (1999). NIPS 12, 687-693.
+        .. [3] Fleuret, F. (2004). JMLR, 5, 1531-1555.
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"y": [0, 1] * 100, "x": [0, 1] * 100, "z": [0, 0, 1, 1] * 50})
+        >>> df.info_profile.select("y", n_permutations=99, include_leaks=True)["column"].tolist()
+        ['x', 'z']
+        """
+        from infoscope.frame.selection import select_table
+
+        if target is None:
+            target = settings.get("target")
+        if target is None:
+            raise ValueError("select needs a target: pass target= or the target setting")
+        return select_table(self._session(settings), target, k=k, method=method, include_leaks=include_leaks,
+                            n_permutations=n_permutations, fdr=fdr)
+
     def drift(self, reference, **settings) -> pd.DataFrame:
         """Divergence of this frame from a reference frame: see :meth:`ProfileSession.drift`.
 
