@@ -35,6 +35,8 @@ __all__ = [
     "knuth_bin_count",
     "assign_bins",
     "sorted_quantile",
+    "quantile_ranks",
+    "lerp_quantiles",
     "format_edges",
     "interval_labels",
 ]
@@ -384,8 +386,43 @@ def sorted_quantile(s: np.ndarray, probs) -> np.ndarray:
     >>> sorted_quantile(np.array([1.0, 2.0, 3.0, 4.0]), [0.0, 0.5, 1.0])
     array([1. , 2.5, 4. ])
     """
+    prev_i, next_i, gamma = quantile_ranks(s.size, probs)
+    return lerp_quantiles(s[prev_i], s[next_i], gamma)
+
+
+def quantile_ranks(n: int, probs) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """The two order statistics (0-based ranks) and the weight numpy's "linear" quantile reads.
+
+    ``np.quantile(x, p)`` of ``n`` values is
+    ``lerp_quantiles(s[prev], s[next], gamma)`` with ``s`` the sorted values: so any
+    exact way to find those order statistics (a sort, a selection) gives the same
+    quantiles bit for bit.
+
+    Parameters
+    ----------
+    n : int
+        Number of values (>= 1).
+    probs : array-like of float
+        Probabilities in [0, 1].
+
+    Returns
+    -------
+    prev, next : numpy.ndarray of int64
+        Ranks (0-based positions in sorted order).
+    gamma : numpy.ndarray of float64
+        Interpolation weights.
+
+    References
+    ----------
+    .. [1] NumPy, ``numpy.quantile`` (method "linear") and its ``_lerp``; Hyndman and
+       Fan (1996), definition 7 (from memory).
+
+    Examples
+    --------
+    >>> [a.tolist() for a in quantile_ranks(4, [0.0, 0.5, 1.0])]
+    [[0, 1, 3], [1, 2, 3], [0.0, 0.5, 0.0]]
+    """
     probs = np.asarray(probs, dtype=np.float64)
-    n = s.size
     virtual = (n - 1) * probs
     prev = np.floor(virtual)
     gamma = virtual - prev
@@ -395,8 +432,33 @@ def sorted_quantile(s: np.ndarray, probs) -> np.ndarray:
     at_end = virtual >= n - 1
     prev_i[at_end] = n - 1
     next_i[at_end] = n - 1
-    a = s[prev_i]
-    b = s[next_i]
+    gamma = np.where(at_end, 0.0, gamma)
+    return prev_i, next_i, gamma
+
+
+def lerp_quantiles(a: np.ndarray, b: np.ndarray, gamma: np.ndarray) -> np.ndarray:
+    """numpy's ``_lerp`` of the order statistics ``a <= b`` (from the upper one when ``gamma >= 1/2``).
+
+    Parameters
+    ----------
+    a, b : numpy.ndarray
+        Lower and upper order statistics.
+    gamma : numpy.ndarray
+        Weights in [0, 1).
+
+    Returns
+    -------
+    numpy.ndarray of float64
+
+    References
+    ----------
+    .. [1] NumPy, ``numpy.lib._function_base_impl._lerp`` (from its source).
+
+    Examples
+    --------
+    >>> lerp_quantiles(np.array([1.0]), np.array([3.0]), np.array([0.25])).tolist()
+    [1.5]
+    """
     diff = np.subtract(b, a)
     out = np.asarray(np.add(a, diff * gamma), dtype=np.float64)
     np.subtract(b, diff * (1 - gamma), out=out, where=gamma >= 0.5, casting="unsafe")
@@ -425,13 +487,22 @@ def _width_rule_bin_count(x: np.ndarray, rule: str, lo: float, hi: float) -> int
     return int(count) if math.isfinite(count) else RULE_MAX_BINS + 1
 
 
-def _edges(x: np.ndarray, bins, strategy: str, *, is_sorted: bool = False) -> tuple[np.ndarray, str | None]:
-    """Edges for finite, non-empty ``x`` and a checked ``bins``; a note when ties merged edges."""
+def _edges(x: np.ndarray, bins, strategy: str, *, is_sorted: bool = False,
+           quantile=None, lo_hi=None) -> tuple[np.ndarray, str | None]:
+    """Edges for finite, non-empty ``x`` and a checked ``bins``; a note when ties merged edges.
+
+    ``quantile(probs)``, when given, returns numpy's "linear" quantiles of ``x``
+    computed elsewhere (exact order statistics by selection), and ``lo_hi`` its
+    minimum and maximum; only an integer ``bins`` may use them.
+    """
     if isinstance(bins, np.ndarray):
         return bins.astype(np.float64), None
     if isinstance(bins, str) and bins == "rows":
         bins = rows_bin_count(int(x.size))  # a count; the strategy then applies
-    lo, hi = (x[0], x[-1]) if is_sorted else (x.min(), x.max())
+    if lo_hi is not None:
+        lo, hi = lo_hi
+    else:
+        lo, hi = (x[0], x[-1]) if is_sorted else (x.min(), x.max())
     if lo == hi:
         # one bin, centred as numpy centres a histogram of a constant sample
         v = float(lo)
@@ -463,7 +534,10 @@ def _edges(x: np.ndarray, bins, strategy: str, *, is_sorted: bool = False) -> tu
     if strategy == "uniform":
         return np.histogram_bin_edges(x, bins=bins).astype(np.float64), None
     probs = np.linspace(0.0, 1.0, bins + 1)
-    edges = sorted_quantile(x, probs) if is_sorted else np.quantile(x, probs)
+    if quantile is not None:
+        edges = quantile(probs)
+    else:
+        edges = sorted_quantile(x, probs) if is_sorted else np.quantile(x, probs)
     unique = np.unique(edges)
     if unique.size < edges.size:
         note = (

@@ -3,7 +3,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from infoscope.encode import binning
+from infoscope.encode import binning, order_stats
 from infoscope.encode.drafts import (
     HEAVY_TAIL_INDEX,
     HEAVY_TAIL_MIN_ROWS,
@@ -20,13 +20,16 @@ from infoscope.encode.drafts import (
 __all__ = ["tail_index"]
 
 
-def _integer_id_like(values: np.ndarray, sorted_distinct: np.ndarray, name: str) -> bool:
-    """Whole-number values that look like a row identifier (see encode_column, Notes)."""
+def _integer_id_like(values: np.ndarray, n_distinct: int, lo, hi, name: str) -> bool:
+    """Whole-number values that look like a row identifier (see encode_column, Notes).
+
+    ``n_distinct``, ``lo`` and ``hi``: the distinct count, minimum and maximum of ``values``.
+    """
     n_valid = values.size
-    if n_valid < ID_LIKE_MIN_ROWS or sorted_distinct.size < ID_LIKE_SHARE * n_valid:
+    if n_valid < ID_LIKE_MIN_ROWS or n_distinct < ID_LIKE_SHARE * n_valid:
         return False
-    span = float(sorted_distinct[-1]) - float(sorted_distinct[0]) + 1
-    dense = span <= 2 * sorted_distinct.size
+    span = float(hi) - float(lo) + 1
+    dense = span <= 2 * n_distinct
     monotone = bool(np.all(values[1:] > values[:-1]) or np.all(values[1:] < values[:-1]))
     return dense or monotone or _is_id_name(name)
 
@@ -60,7 +63,13 @@ def tail_index(sorted_values: np.ndarray) -> float:
     >>> round(tail_index(np.sort(np.random.default_rng(0).normal(size=100_000))), 1)
     2.3
     """
-    q001, q25, q50, q75, q999 = binning.sorted_quantile(sorted_values, [0.001, 0.25, 0.5, 0.75, 0.999])
+    return _tail_index_of(*binning.sorted_quantile(sorted_values, _TAIL_PROBS))
+
+
+_TAIL_PROBS = (0.001, 0.25, 0.5, 0.75, 0.999)
+
+
+def _tail_index_of(q001, q25, q50, q75, q999) -> float:
     iqr = float(q75) - float(q25)
     if iqr <= 0:
         return float("nan")
@@ -108,14 +117,18 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
                 lookup = np.cumsum(present) - 1
                 raw = np.full(n, -1, dtype=np.int64)
                 raw[~missing] = lookup[offsets]
-                if _integer_id_like(v, distinct, notes.name):
+                if _integer_id_like(v, n_distinct, distinct[0], distinct[-1], notes.name):
                     notes.flags.add("id_like")
                 return _Levels(raw, _format_numbers(distinct), True, "integer_categories", n_distinct)
+    if x.dtype.kind == "f" and not explicit and not isinstance(bins, str) and v.size >= order_stats.MIN_ROWS:
+        fast = _float_bins(v, n, missing, any_missing, notes, bins, strategy, threshold)
+        if fast is not None:
+            return fast
     s = np.sort(v)
     distinct = _sorted_distinct(s)
     n_distinct = int(distinct.size)
     integral = x.dtype.kind in "iu" or (s.size > 0 and bool(np.all(np.floor(distinct) == distinct)))
-    if integral and _integer_id_like(v, distinct, notes.name):
+    if integral and n_distinct and _integer_id_like(v, n_distinct, distinct[0], distinct[-1], notes.name):
         notes.flags.add("id_like")
     if n_distinct == 0 or (not explicit and n_distinct <= threshold):
         raw = np.full(n, -1, dtype=np.int64)
@@ -133,6 +146,12 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
                 f"{outside} value(s) lie outside the given bin edges "
                 f"[{edges[0]:g}, {edges[-1]:g}] and are counted in the end bins"
             )
+    if _heavy_tail(s):
+        notes.flags.add("heavy_tail")
+    return _binned(v, n, missing, any_missing, edges, n_distinct)
+
+
+def _binned(v, n, missing, any_missing, edges, n_distinct) -> _Bins:
     codes = binning.assign_bins(v, edges)
     if any_missing:
         # -1 marks missing rows; int16 is enough for up to 32,766 bins (and 4x
@@ -141,7 +160,45 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
         raw[~missing] = codes
     else:
         raw = codes  # non-negative already (uint8 up to 25 bins)
-    if _heavy_tail(s):
-        notes.flags.add("heavy_tail")
     labels = list(binning.interval_labels(binning.format_edges(edges)))
     return _Bins(raw, labels, edges, "numeric", n_distinct)
+
+
+def _float_bins(v, n, missing, any_missing, notes, bins, strategy, threshold) -> _Bins | None:
+    """The binned float column without sorting it (:mod:`~infoscope.encode.order_stats`), or None.
+
+    None when the compiled kernels are not loaded yet or the column has at most
+    ``threshold`` distinct values (it becomes levels: the sorting path does that).
+    Same edges, codes, counts and flags as the sorting path, by construction: the
+    distinct count, minimum and maximum and the order statistics the quantiles read
+    are exact.
+    """
+    k = order_stats.kernels()
+    if k is None:
+        return None
+    v = np.ascontiguousarray(v, dtype=np.float64)
+    summary = order_stats.float_summary(k, v)
+    n_distinct, whole, lo, hi = summary.n_distinct, summary.whole, summary.lo, summary.hi
+    if n_distinct <= threshold:
+        return None
+    if whole and _integer_id_like(v, n_distinct, lo, hi, notes.name):
+        notes.flags.add("id_like")
+    probs = []
+    if strategy == "quantile":
+        probs.append(np.linspace(0.0, 1.0, bins + 1))
+    tail = v.size >= HEAVY_TAIL_MIN_ROWS
+    if tail:
+        probs.append(np.asarray(_TAIL_PROBS))
+    prev_i, next_i, gamma = binning.quantile_ranks(v.size, np.concatenate(probs) if probs else np.zeros(0))
+    ranks = np.unique(np.concatenate([prev_i, next_i]))
+    stats = (order_stats.order_statistics(k, v, ranks, lo, hi, summary.hist, summary.buckets)
+             if ranks.size else np.zeros(0))
+    at = np.searchsorted(ranks, prev_i), np.searchsorted(ranks, next_i)
+    quantiles = binning.lerp_quantiles(stats[at[0]], stats[at[1]], gamma)
+    n_edges = bins + 1 if strategy == "quantile" else 0
+    edges, note = binning._edges(v, bins, strategy, quantile=lambda _probs: quantiles[:n_edges], lo_hi=(lo, hi))
+    if note is not None:
+        notes.warn(note)
+    if tail and _tail_index_of(*quantiles[n_edges:]) > HEAVY_TAIL_INDEX:
+        notes.flags.add("heavy_tail")
+    return _binned(v, n, missing, any_missing, edges, n_distinct)
