@@ -24,7 +24,7 @@ from sklearn.datasets import load_wine
 from sklearn.metrics import mutual_info_score
 
 from infoscope.report import charts, picture
-from infoscope.report import _records as rec
+from infoscope.views import serialize as rec
 from infoscope.report.suppression import check_min_count, suppression_mask
 
 HOSTILE = ["<img src=x onerror=alert(1)>", "a.b[0]", 'say "hi"', "it's", "x&y", "ctrl\x01char"]
@@ -442,18 +442,22 @@ def test_profile_charts_of_the_demo(demo_session):
     json.dumps(pair_spec)  # the spec is plain JSON
 
 
-def test_suppress_payload_leaves_the_input_alone():
-    from infoscope.report.html import suppress_payload
+def test_payload_with_min_count_hides_cells_and_leaves_the_session_alone():
+    from infoscope.frame.session import ProfileSession
+    from infoscope.views import payload
 
-    view = {"counts": [[50, 3], [40, 60]], "pmi": [[0.1, -1.0], [0.2, 0.0]], "min_count": 0,
-            "row_totals": [53, 100], "col_totals": [90, 63]}
-    payload = {"state": {"_pair": view, "min_count": 0}, "pair_cache": {"a\u0000b": view}}
-    before = json.dumps(payload)
-    out = suppress_payload(payload, 10)
-    assert json.dumps(payload) == before
+    # one small cell (3 rows) in a 2 x 2 table: with min_count=10 it is hidden, and
+    # the complementary cells with it (no row or column may hold one hidden cell)
+    df = pd.DataFrame({"a": ["x"] * 53 + ["y"] * 100, "b": ["p"] * 50 + ["q"] * 3 + ["p"] * 40 + ["q"] * 60})
+    session = ProfileSession(df, n_boot=0)
+    before = session.pair("a", "b").counts.copy()
+    out = payload(session, min_count=10)
     for v in (out["state"]["_pair"], out["pair_cache"]["a\u0000b"]):
         assert v["counts"] == [[None, None], [None, None]] and v["row_totals"] is None
+        assert v["expected"] is None and v["pmi"] == [[None, None], [None, None]]
     assert out["state"]["min_count"] == 10
+    assert session.pair("a", "b").counts.equals(before)
+    assert payload(session)["state"]["_pair"]["counts"] == [[40, 60], [50, 3]]  # levels by frequency
 
 
 def test_script_json_cannot_close_its_element():

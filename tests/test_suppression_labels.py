@@ -77,7 +77,7 @@ def _pair_with_complements(session, threshold=10):
 
 
 def test_widget_pair_view_marks_complementary_cells(demo):
-    from infoscope.widgets._serialize import pair_view
+    from infoscope.views.serialize import pair_view
 
     _, session = demo
     a, b, pair = _pair_with_complements(session)
@@ -95,15 +95,14 @@ def test_widget_pair_view_marks_complementary_cells(demo):
 
 
 def test_export_labels_and_ships_no_hidden_count(demo, tmp_path):
-    from infoscope.report.html import suppress_payload
+    from infoscope.views import payload
+    from infoscope.views.serialize import pair_view
 
     _, session = demo
     a, b, pair = _pair_with_complements(session)
-    from infoscope.widgets._serialize import pair_view
-
-    view = pair_view(pair, a, b)  # the widget hid nothing; the export hides
-    out = suppress_payload({"state": {"_pair": view}, "pair_cache": {f"{a}\u0000{b}": view}}, 10)
+    out = quiet(payload, session, {"selected_pair": [a, b]}, min_count=10, top_pairs=0)
     shipped = out["pair_cache"][f"{a}\u0000{b}"]
+    assert out["state"]["_pair"] == shipped and out["state"]["min_count"] == 10
     raw = pair.counts.to_numpy()
     for i in range(raw.shape[0]):
         for j in range(raw.shape[1]):
@@ -112,10 +111,11 @@ def test_export_labels_and_ships_no_hidden_count(demo, tmp_path):
                 assert shipped["counts"][i][j] is None and shipped["pmi"][i][j] is None
                 assert why == ("small" if 0 < raw[i, j] < 10 else "complement")
     text = json.dumps(shipped)
-    assert '"complement"' in text and shipped["row_totals"] is None
-    # a second pass (widget already hid cells) keeps each cell's reason
-    again = suppress_payload({"state": {"_pair": shipped}, "pair_cache": {}}, 10)["state"]["_pair"]
+    assert '"complement"' in text and shipped["row_totals"] is None and shipped["expected"] is None
+    # a table suppressed already (PairTable.suppressed) keeps each cell's reason in the view
+    again = pair_view(pair.suppressed(10), a, b, min_count=10)
     assert again["hidden_reasons"] == shipped["hidden_reasons"]
+    assert not pair.counts.isna().any().any()  # the session's table is untouched
 
 
 # ----------------------------------------------------------------- the accessor
@@ -152,8 +152,8 @@ def test_accessor_min_count_bad_values_are_named():
 
 
 def test_suppressed_pair_table_feeds_the_views_without_leaking(demo):
-    from infoscope.report import _records as rec
-    from infoscope.widgets._serialize import pair_view
+    from infoscope.views import serialize as rec
+    from infoscope.views.serialize import pair_view
 
     frame, _ = demo
     out = quiet(frame.info_profile.pair, "weight_kg", "weight_lb", min_count=10)

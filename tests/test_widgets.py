@@ -354,7 +354,7 @@ def test_large_frame_first_view_is_a_labelled_sample(frame):
 # ------------------------------------------------------------------ errors
 @pytest.mark.parametrize(("trait", "value", "needle"), [
     ("target", "no such column", "target"),
-    ("strategy", "bogus", "strategy must be one of"),
+    ("strategy", "bogus", "strategy='bogus' is not valid"),
     ("selected_pair", ["depot", "nope"], "selected_pair"),
     ("column_bins", {"nope": 4}, "column_bins"),
 ])

@@ -9,12 +9,12 @@ from __future__ import annotations
 import numbers
 from collections.abc import Mapping
 
-from infoscope.encode.binning import BIN_RULES
+from infoscope.encode.binning import BIN_RULES, STRATEGIES
 from infoscope.estimators._checks import check_choice, log_base
 from infoscope.estimators.entropy import ENTROPY_ESTIMATORS
 from infoscope.estimators.information import NORMALIZATIONS
 
-__all__ = ["MEASURES", "ORDERS"]
+__all__ = ["CHOICES", "MEASURES", "MISSING_POLICIES", "ORDERS"]
 
 #: Pair measures: name -> what the ``value`` column of ``pairs()`` holds.
 MEASURES = {
@@ -24,7 +24,7 @@ MEASURES = {
     "vi": "variation of information H(A|B) + H(B|A) (Meila 2007), a distance in the session's unit",
 }
 ORDERS = ("name", "cluster")
-_MISSING_POLICIES = ("drop", "category")
+MISSING_POLICIES = ("drop", "category")
 
 _DEFAULTS = {
     "bins": 16,
@@ -45,6 +45,18 @@ _DEFAULTS = {
 # the settings that change how a column is encoded (the rest only change numbers)
 _ENCODING_SETTINGS = ("bins", "strategy", "missing", "max_categories")
 
+#: The named choices of each setting, in one place: the session validates against
+#: these, and the views' controls list them (``infoscope.views.choices``).
+CHOICES = {
+    "strategy": tuple(STRATEGIES),
+    "bin_rule": tuple(BIN_RULES),
+    "estimator": tuple(ENTROPY_ESTIMATORS),
+    "measure": tuple(MEASURES),
+    "normalization": tuple(NORMALIZATIONS),
+    "missing": MISSING_POLICIES,
+    "order": ORDERS,
+}
+
 
 def _check_settings(settings: Mapping) -> dict:
     unknown = sorted(set(settings) - set(_DEFAULTS))
@@ -56,12 +68,13 @@ def _check_settings(settings: Mapping) -> dict:
     s = dict(settings)
     check_choice(s["estimator"], ENTROPY_ESTIMATORS, "estimator")
     log_base(s["base"])
-    check_choice(s["missing"], _MISSING_POLICIES, "missing")
+    check_choice(s["missing"], MISSING_POLICIES, "missing")
     check_choice(s["measure"], MEASURES, "measure")
     check_choice(s["normalization"], NORMALIZATIONS, "normalization")
     _check_bins(s["bins"], "bins")
     if not isinstance(s["strategy"], str):
         raise TypeError(f"strategy must be a string such as 'quantile', got {s['strategy']!r}")
+    check_choice(s["strategy"], STRATEGIES, "strategy")
     mc = s["max_categories"]
     if isinstance(mc, bool) or not isinstance(mc, numbers.Integral) or mc < 2:
         raise ValueError(f"max_categories={mc!r} must be an integer >= 2")

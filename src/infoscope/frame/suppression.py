@@ -33,11 +33,67 @@ import numbers
 
 import numpy as np
 
-__all__ = ["check_min_count", "pair_hidden_kinds", "suppression_mask", "suppression_kinds", "VISIBLE", "SMALL", "COMPLEMENTARY"]
+__all__ = ["check_min_count", "pair_hidden_kinds", "suppression_mask", "suppression_kinds", "VISIBLE", "SMALL",
+           "COMPLEMENTARY", "suppressed_label", "complement_label", "SUPPRESSED_LABEL", "COMPLEMENT_LABEL"]
 
 #: Codes of :func:`suppression_kinds`: a shown cell, a cell below the threshold,
 #: and a cell hidden only so that a small one cannot be worked out from totals.
 VISIBLE, SMALL, COMPLEMENTARY = 0, 1, 2
+
+
+#: What an export shows in place of a count below the threshold (``"<10"``).
+SUPPRESSED_LABEL = "<{min_count}"
+
+#: What an export shows in place of a complementary cell (its count may be large).
+COMPLEMENT_LABEL = "\u00b7"
+
+
+def complement_label() -> str:
+    """The text an export shows in place of a complementary hidden cell.
+
+    Returns
+    -------
+    str
+        A middle dot; the accompanying note and aria label say
+        "hidden to protect a small cell".
+
+    References
+    ----------
+    Marking secondary (complementary) suppressions apart from primary ones is
+    common practice in official statistics.
+
+    Examples
+    --------
+    >>> complement_label()
+    '\u00b7'
+    """
+    return COMPLEMENT_LABEL
+
+
+def suppressed_label(min_count: int) -> str:
+    """The text an export shows in place of a hidden count.
+
+    Parameters
+    ----------
+    min_count : int
+        The threshold.
+
+    Returns
+    -------
+    str
+        ``"<"`` followed by the threshold.
+
+    References
+    ----------
+    Showing a symbol in place of a suppressed count is common practice in official
+    statistics.
+
+    Examples
+    --------
+    >>> suppressed_label(10)
+    '<10'
+    """
+    return SUPPRESSED_LABEL.format(min_count=int(min_count))
 
 
 def check_min_count(min_count) -> int | None:

@@ -14,9 +14,9 @@ import importlib
 _PUBLIC = {
     "to_html": "infoscope.report.html",
     "profile_html": "infoscope.report.html",
-    "suppress_payload": "infoscope.report.html",
     "profile_svg": "infoscope.report.picture",
     "profile_svg_from_tables": "infoscope.report.picture",
+    "profile_svg_from_payload": "infoscope.report.picture",
     "svg_data_uri": "infoscope.report.picture",
     "profile_charts": "infoscope.report.charts",
     "chart_to_svg": "infoscope.report.charts",

@@ -1,6 +1,6 @@
 """Vega-Lite charts (through Altair) of the profile's views, for users who restyle.
 
-Every chart reads the records of :mod:`infoscope.report._records`: column names and
+Every chart reads the records of :mod:`infoscope.views.serialize`: column names and
 labels are data values under fixed field names, so a column called ``a.b[0]`` or
 ``"x"`` cannot break a Vega-Lite field reference, and Vega renders every text as text.
 The data are inline (``alt.Data(values=...)``): the specs load nothing from anywhere.
@@ -10,9 +10,9 @@ from __future__ import annotations
 import altair as alt
 import pandas as pd
 
-from infoscope.report import _records as rec
+from infoscope.frame.suppression import COMPLEMENT_LABEL, check_min_count
 from infoscope.report._style import DEPENDENCE_CAUTION, PALETTE, SAMPLE_CAUTION
-from infoscope.report.suppression import COMPLEMENT_LABEL, check_min_count
+from infoscope.views import serialize as rec
 
 __all__ = [
     "PALETTE", "entropy_chart", "grid_chart", "pair_chart", "relevance_chart", "drift_chart",
@@ -58,7 +58,8 @@ def entropy_chart(table: pd.DataFrame, *, min_count=None, width: int = 360) -> a
     >>> entropy_chart(t).to_dict()["layer"][0]["mark"]["type"]
     'bar'
     """
-    data = alt.Data(values=rec.entropy_records(table, min_count=min_count))
+    check_min_count(min_count)  # column totals, not cells: nothing to hide here
+    data = alt.Data(values=rec.entropy_records(table))
     unit = _unit(table)
     order = alt.EncodingSortField(field="entropy", order="descending")
     y = alt.Y("column:N", sort=order, title=None, axis=alt.Axis(labelLimit=180))

@@ -2,10 +2,10 @@
 
 The file holds everything the live view needs and nothing it would fetch:
 
-- the widget's own front-end module (the file ``ProfileWidget._esm`` points at),
-  base64-encoded and imported from a ``blob:`` URL, so no character of it can end
-  a ``<script>`` element;
-- the view data (``ProfileWidget.payload()``) as JSON in a
+- the package's front-end module (the file the live widget loads), base64-encoded
+  and imported from a ``blob:`` URL, so no character of it can end a ``<script>``
+  element;
+- the view data (:func:`infoscope.views.payload`) as JSON in a
   ``<script type="application/json">`` with ``<``, ``>``, ``&`` and the JavaScript
   line separators written as ``\\uXXXX`` escapes, so no column name or value can
   close the element or become markup;
@@ -15,8 +15,10 @@ The file holds everything the live view needs and nothing it would fetch:
 - a Content-Security-Policy that forbids every network request, so the page stays
   offline even if some code tried to load something.
 
-Small-cell suppression (``min_count``) is applied to every pair view in the file
-before it is written; see :mod:`infoscope.report.suppression`.
+Small-cell suppression (``min_count``) is applied to every pair view when the
+payload is built (the same rule as the live view); see
+:mod:`infoscope.frame.suppression`.  No widget is created: the export reads the
+session (or, for a live view, its session and control values).
 """
 from __future__ import annotations
 
@@ -26,9 +28,14 @@ import json
 import os
 from pathlib import Path
 
-from infoscope.report.suppression import SMALL, check_min_count, suppression_kinds
+from infoscope.frame.suppression import check_min_count
+from infoscope.report.picture import profile_svg_from_payload, svg_data_uri
+from infoscope.views.payload import payload as build_payload
 
-__all__ = ["to_html", "profile_html", "suppress_payload", "CONTENT_SECURITY_POLICY"]
+__all__ = ["to_html", "profile_html", "CONTENT_SECURITY_POLICY"]
+
+#: The front-end files of the package (written by the JS build, loaded by the live widget).
+STATIC = Path(__file__).resolve().parent.parent / "widgets" / "static"
 
 #: Scripts only from this page (inline, or blob: URLs made from it); no fetch,
 #: no images or fonts from anywhere but data: URIs.
@@ -54,124 +61,9 @@ def _style_text(css: str) -> str:
     return css
 
 
-def _suppress_view(view: dict, threshold: int) -> dict:
-    """A pair view (the widget's shape) with cells below ``threshold`` hidden."""
-    counts = view.get("counts")
-    if not isinstance(counts, list) or not counts:
-        return view
-    import numpy as np
-
-    # A cell the widget already hid is fed in as a count of 1: it stays hidden and
-    # takes part in the complementary suppression like any other small cell.
-    raw = np.array([[1 if c is None else c for c in row] for row in counts], dtype=np.float64)
-    kinds = suppression_kinds(raw, threshold)
-    mask = kinds != 0
-    n_rows, n_cols = raw.shape
-    before = view.get("hidden_reasons")
-    reasons = []
-    for i in range(n_rows):
-        line = []
-        for j in range(n_cols):
-            if counts[i][j] is None:  # hidden by the widget already: keep its reason
-                old = before[i][j] if isinstance(before, list) else None
-                line.append(old if old in ("small", "complement") else "small")
-            elif mask[i, j]:
-                line.append("small" if kinds[i, j] == SMALL else "complement")
-            else:
-                line.append(None)
-        reasons.append(line)
-
-    def hide(grid: list) -> list:
-        return [[None if mask[i, j] else grid[i][j] for j in range(n_cols)] for i in range(n_rows)]
-
-    out = dict(view)
-    out["counts"] = hide(counts)
-    for key in ("pmi", "expected"):  # per-cell numbers that would give a hidden count back
-        if isinstance(view.get(key), list):
-            out[key] = hide(view[key])
-    hidden = int(mask.sum())
-    if hidden:
-        out["row_totals"] = None
-        out["col_totals"] = None
-    out["hidden_cells"] = hidden
-    out["hidden_reasons"] = reasons if hidden else None
-    out["min_count"] = max(int(view.get("min_count") or 0), threshold)
-    return out
-
-
-def suppress_payload(payload: dict, min_count) -> dict:
-    """Hide small cells in every pair view of a widget payload (a new dict).
-
-    Parameters
-    ----------
-    payload : dict
-        ``ProfileWidget.payload()``: ``{"format", "view", "state", "binary", "pair_cache"}``.
-    min_count : int or None
-        Counts ``1 .. min_count - 1`` are hidden, with complementary cells, in
-        ``state["_pair"]`` and in every view of ``pair_cache``; row and column
-        totals of a table with hidden cells are dropped.
-
-    Returns
-    -------
-    dict
-        A copy of the payload; the input is not changed.
-
-    References
-    ----------
-    Threshold rules with complementary suppression are common practice in official
-    statistics for tables of counts.
-
-    Examples
-    --------
-    >>> view = {"counts": [[50, 3], [40, 60]], "pmi": [[0.1, -1], [0.2, 0.0]], "min_count": 0}
-    >>> out = suppress_payload({"state": {"_pair": view}, "pair_cache": {}}, 10)
-    >>> out["state"]["_pair"]["counts"]
-    [[None, None], [None, None]]
-    """
-    threshold = check_min_count(min_count)
-    if not isinstance(payload, dict):
-        raise TypeError(f"payload must be the dict of ProfileWidget.payload(), got {type(payload).__name__}")
-    out = dict(payload)
-    state = dict(payload.get("state") or {})
-    if threshold is None:
-        out["state"] = state
-        return out
-    if isinstance(state.get("_pair"), dict):
-        state["_pair"] = _suppress_view(state["_pair"], threshold)
-    state["min_count"] = max(int(state.get("min_count") or 0), threshold)
-    out["state"] = state
-    out["pair_cache"] = {key: _suppress_view(view, threshold) if isinstance(view, dict) else view
-                         for key, view in (payload.get("pair_cache") or {}).items()}
-    return out
-
-
-def _front_end_text(widget, key: str) -> str:
-    """The widget's ``_esm`` or ``_css`` source: a path, anywidget's file contents or text."""
-    value = getattr(widget, key, None)
-    if value is None or not isinstance(value, (str, os.PathLike)) and not hasattr(value, "_path"):
-        value = getattr(type(widget), key, value)
-    path = getattr(value, "_path", None)  # anywidget's FileContents wrapper of a file
-    if path is not None:
-        return Path(path).read_text(encoding="utf-8")
-    if isinstance(value, os.PathLike):
-        return Path(value).read_text(encoding="utf-8")
-    if not isinstance(value, str) or not value.strip():
-        if key == "_css":
-            return ""
-        raise TypeError(f"{type(widget).__name__} has no {key} front-end module to inline")
-    if "\n" not in value and len(value) < 4096 and os.path.isfile(value):
-        return Path(value).read_text(encoding="utf-8")
-    return value
-
-
-def _esm_text(widget) -> str:
-    """The front-end module's source: the widget's ``_esm`` (a path, file contents or text)."""
-    return _front_end_text(widget, "_esm")
-
-
-def _css_text(widget) -> str:
-    """The front end's stylesheet: the widget's ``_css`` ("" when it has none)."""
-    return _front_end_text(widget, "_css")
+def _static_text(name: str) -> str:
+    path = STATIC / name
+    return path.read_text(encoding="utf-8") if path.is_file() else ""
 
 
 _BOOT = """
@@ -239,20 +131,35 @@ def _count_hidden(payload: dict) -> tuple[int, int]:
     return sum(int(v.get("hidden_cells") or 0) for v in views), len(views)
 
 
-def profile_html(widget, *, min_count=None, title: str | None = None) -> str:
-    """The text of a self-contained offline HTML page of a profile view.
+def _payload_of(source, *, settings=None, min_count=None) -> dict:
+    """The payload of a live view (its own ``payload``) or of a session (:func:`infoscope.views.payload`)."""
+    if callable(getattr(source, "payload", None)) and hasattr(source, "session"):
+        if settings:
+            raise TypeError("settings= applies to a session; a live view exports its own control values")
+        return source.payload(min_count=min_count)
+    if not all(hasattr(source, m) for m in ("entropy", "pairs", "pair", "names", "settings")):
+        raise TypeError("to_html needs an infoscope ProfileSession (or a live profile view), "
+                        f"got {type(source).__name__}")
+    return build_payload(source, settings, min_count=min_count)
+
+
+def profile_html(source, *, min_count=None, title: str | None = None, settings=None) -> str:
+    """The text of a self-contained offline HTML page of a profile.
 
     Parameters
     ----------
-    widget : ProfileWidget or ProfileSession
-        A live view (its current settings are exported) or a session (exported with
-        a view of its current settings).
+    source : ProfileSession or ProfileWidget
+        A session (exported with its current settings) or a live view (its
+        session and its current control values).
     min_count : int, optional
         Hide counts ``1 .. min_count - 1`` in every pair view of the file (and the
-        cells that would give them away); a note in the page says so. The widget's
+        cells that would give them away); a note in the page says so. A live view's
         own ``min_count`` applies too; the larger one wins.
     title : str, optional
         Title of the page (default: "infoscope profile").
+    settings : mapping, optional
+        View settings of a session's export (``order``, ``alpha_fdr``,
+        ``selected_pair``, ``sort_by``, ...; see :func:`infoscope.views.payload`).
 
     Returns
     -------
@@ -261,47 +168,33 @@ def profile_html(widget, *, min_count=None, title: str | None = None) -> str:
 
     References
     ----------
-    W3C (2016). Content Security Policy Level 2 (the policy that keeps the page
-    offline). Small-cell suppression: common practice in official statistics.
+    .. [1] W3C (2016). Content Security Policy Level 2 (the policy that keeps the
+       page offline).
 
     Examples
     --------
-    >>> from infoscope.report.html import profile_html  # doctest: +SKIP
-    >>> text = profile_html(ProfileWidget(session), min_count=10)  # doctest: +SKIP
+    >>> import pandas as pd
+    >>> from infoscope.frame.session import ProfileSession
+    >>> s = ProfileSession(pd.DataFrame({"a": list("xyxy") * 10, "b": list("xxyy") * 10}), n_boot=0)
+    >>> profile_html(s, min_count=5).startswith("<!DOCTYPE html>")
+    True
     """
     import infoscope
 
-    threshold = check_min_count(min_count)
-    owned = False
-    if not hasattr(widget, "payload"):
-        from infoscope.widgets.profile import ProfileWidget
-
-        widget = ProfileWidget(widget, threaded=False)
-        owned = True
-    try:
-        if hasattr(widget, "wait"):
-            widget.wait()
-        own = check_min_count(int(getattr(widget, "min_count", 0) or 0))
-        effective = max([t for t in (threshold, own) if t is not None], default=None)
-        payload = suppress_payload(widget.payload(), effective)
-        session = getattr(widget, "session", None)
-        picture = ""
-        if session is not None:
-            from infoscope.report.picture import profile_svg, svg_data_uri
-
-            svg = profile_svg(session, min_count=effective)
-            picture = f'<img alt="infoscope profile (static picture)" src="{svg_data_uri(svg)}">'
-        esm = _esm_text(widget)
-        css = _css_text(widget)
-    finally:
-        if owned:
-            widget.close()
+    check_min_count(min_count)
+    data = _payload_of(source, settings=settings, min_count=min_count)
+    effective = data["state"].get("min_count") or None
+    svg = profile_svg_from_payload(data)
+    picture = f'<img alt="infoscope profile (static picture)" src="{svg_data_uri(svg)}">'
+    esm = _static_text("profile.js")
+    if not esm.strip():
+        raise FileNotFoundError(f"the front-end module {STATIC / 'profile.js'} is missing from the package")
 
     notes = ["Saved copy: the numbers are those of the notebook at export time; controls that need "
              "the kernel are off, the pair views saved with the export still open.",
              "Bias-corrected estimates near 0 can be slightly negative: read them as no "
              "detectable information, not as an error."]
-    cells, views = _count_hidden(payload)
+    cells, views = _count_hidden(data)
     if effective:
         notes.append(f"Small-cell suppression: counts below {effective} are hidden in every pair view "
                      f"of this file (shown as \u201c<{effective}\u201d), with the cells and totals that "
@@ -312,22 +205,22 @@ def profile_html(widget, *, min_count=None, title: str | None = None) -> str:
         csp=_html.escape(CONTENT_SECURITY_POLICY, quote=True),
         version=_html.escape(str(infoscope.__version__)),
         title=_html.escape(page_title),
+        css=_style_text(_static_text("profile.css")),
         picture=picture,
         notes="".join(f"<li>{_html.escape(n)}</li>" for n in notes),
-        payload=_script_json(payload),
-        css=_style_text(css),
+        payload=_script_json(data),
         esm=base64.b64encode(esm.encode("utf-8")).decode("ascii"),
         boot=_BOOT,
     )
 
 
-def to_html(widget, path=None, *, min_count=None, title: str | None = None):
+def to_html(source, path=None, *, min_count=None, title: str | None = None, settings=None):
     """Write one self-contained HTML file of a profile that works offline.
 
     Parameters
     ----------
-    widget : ProfileWidget or ProfileSession
-        The view to export (a session is exported with a view of its settings).
+    source : ProfileSession or ProfileWidget
+        What to export (see :func:`profile_html`).
     path : str or os.PathLike, optional
         Where to write the file. Without it the HTML text is returned.
     min_count : int, optional
@@ -335,6 +228,8 @@ def to_html(widget, path=None, *, min_count=None, title: str | None = None):
         :func:`profile_html`).
     title : str, optional
         Title of the page.
+    settings : mapping, optional
+        View settings of a session's export (see :func:`profile_html`).
 
     Returns
     -------
@@ -343,16 +238,15 @@ def to_html(widget, path=None, *, min_count=None, title: str | None = None):
 
     References
     ----------
-    W3C (2016). Content Security Policy Level 2. Small-cell suppression: common
-    practice in official statistics.
+    .. [1] W3C (2016). Content Security Policy Level 2.
 
     Examples
     --------
     >>> import infoscope.report as report  # doctest: +SKIP
-    >>> report.to_html(widget, "profile.html", min_count=10)  # doctest: +SKIP
+    >>> report.to_html(session, "profile.html", min_count=10)  # doctest: +SKIP
     PosixPath('profile.html')
     """
-    text = profile_html(widget, min_count=min_count, title=title)
+    text = profile_html(source, min_count=min_count, title=title, settings=settings)
     if path is None:
         return text
     target = Path(os.fspath(path))

@@ -12,16 +12,19 @@ and bars of relevance), so it cannot expose a small cell.
 from __future__ import annotations
 
 import base64
+import json
 import math
 import re
 
+import numpy as np
 import pandas as pd
 
-from infoscope.report import _records as rec
+from infoscope.frame.suppression import check_min_count
 from infoscope.report._style import DEPENDENCE_CAUTION, PALETTE
-from infoscope.report.suppression import check_min_count
+from infoscope.views import serialize as ser
+from infoscope.views.payload import payload
 
-__all__ = ["profile_svg", "profile_svg_from_tables", "svg_data_uri", "svg_text"]
+__all__ = ["profile_svg", "profile_svg_from_payload", "profile_svg_from_tables", "svg_data_uri", "svg_text"]
 
 # Characters XML 1.0 forbids even when escaped: a name holding one would make the
 # whole picture unreadable, so they are shown as U+FFFD.
@@ -150,11 +153,22 @@ def profile_svg_from_tables(entropy: pd.DataFrame, matrix: pd.DataFrame | None =
     True
     """
     check_min_count(min_count)
+    attrs = ser.attrs_of(entropy)
+    grid = None
+    if matrix is not None and len(matrix.columns) >= 2:
+        grid = (*ser.grid_records(matrix), ser.attrs_of(matrix)["measure"] or "mi")
+    items = ser.relevance_records(relevance) if relevance is not None and len(relevance) else None
+    return _draw(ser.entropy_records(entropy), grid, items, unit=attrs["unit"], estimator=attrs["estimator"],
+                 sampled=attrs["sampled"], target=target, max_columns=max_columns)
+
+
+def _draw(bars: list, grid, relevance: list | None, *, unit: str, estimator, sampled, target,
+          max_columns: int) -> str:
+    """The picture from records: entropy bars, (names, cells, measure) of the grid, relevance."""
     if isinstance(max_columns, bool) or not isinstance(max_columns, int) or max_columns < 1:
         raise ValueError(f"max_columns must be a positive whole number, got {max_columns!r}")
-    attrs = rec.attrs_of(entropy)
-    unit = attrs["unit"]
-    bars = sorted(rec.entropy_records(entropy), key=lambda r: -(r["entropy"] or 0.0))
+    n_columns = len(bars)
+    bars = sorted(bars, key=lambda r: -(r["entropy"] or 0.0))
     dropped = max(len(bars) - max_columns, 0)
     bars = bars[:max_columns]
     row_h = 14.0
@@ -168,15 +182,14 @@ def profile_svg_from_tables(entropy: pd.DataFrame, matrix: pd.DataFrame | None =
     width = x + 150 + 170 + 20
     height = 28 + h_bars
 
-    if matrix is not None and len(matrix.columns) >= 2:
-        names, cells = rec.grid_records(matrix)
+    if grid is not None:
+        names, cells, measure = grid
         shown = names[:max_columns]
         index = {n: i for i, n in enumerate(shown)}
         n = len(shown)
         size = max(min(14.0, 280.0 / n), 3.0)
         gx = width + 110
         gy = 28 + 22
-        measure = rec.attrs_of(matrix)["measure"] or "mi"
         values = [c["value"] for c in cells if c["value"] is not None and c["a"] in index and c["b"] in index]
         top = max([v for v in values if v > 0] + [1e-12])
         parts.append(f'<text x="{gx - 100:.1f}" y="40" font-size="13" font-weight="bold" {FONT}>'
@@ -202,8 +215,8 @@ def profile_svg_from_tables(entropy: pd.DataFrame, matrix: pd.DataFrame | None =
         width = gx + n * size + 20
         height = max(height, gy + n * size + 20)
 
-    if relevance is not None and len(relevance):
-        items = sorted(rec.relevance_records(relevance), key=lambda r: -(r["mi"] or 0.0))[:max_columns]
+    if relevance:
+        items = sorted(relevance, key=lambda r: -(r["mi"] or 0.0))[:max_columns]
         ry = height + 10
         top = max([r["ci_high"] or 0.0 for r in items] + [r["mi"] or 0.0 for r in items] + [1e-9])
         title = f"Relevance to {target}" if target else "Relevance"
@@ -216,10 +229,10 @@ def profile_svg_from_tables(entropy: pd.DataFrame, matrix: pd.DataFrame | None =
                          "orange: tells >= 95 % of the target (possible leakage)</text>")
         height = ry + h_rel
 
-    notes = [f"Estimator {attrs['estimator'] or '?'}; unit {unit}; whiskers: confidence intervals.",
+    notes = [f"Estimator {estimator or '?'}; unit {unit}; whiskers: confidence intervals.",
              DEPENDENCE_CAUTION]
-    if attrs["sampled"]:
-        notes.insert(0, f"Computed on a sample of {attrs['sampled']:,} rows.")
+    if sampled:
+        notes.insert(0, f"Computed on a sample of {sampled:,} rows.")
     if dropped:
         notes.append(f"{dropped} more columns not drawn.")
     for k, note in enumerate(notes):
@@ -227,7 +240,7 @@ def profile_svg_from_tables(entropy: pd.DataFrame, matrix: pd.DataFrame | None =
                      f"{svg_text(note)}</text>")
     height += 14 + 13 * len(notes)
     head = (f'<text x="10" y="16" font-size="14" font-weight="bold" {FONT}>infoscope profile</text>'
-            f'<text x="150" y="16" font-size="10" fill="#444" {FONT}>{len(entropy)} columns</text>')
+            f'<text x="150" y="16" font-size="10" fill="#444" {FONT}>{n_columns} columns</text>')
     w, h = math.ceil(width), math.ceil(height)
     return (f'<svg xmlns="http://www.w3.org/2000/svg" width="{w}" height="{h}" viewBox="0 0 {w} {h}" '
             f'role="img" aria-label="infoscope profile"><rect width="{w}" height="{h}" fill="#ffffff"/>'
@@ -262,11 +275,71 @@ def profile_svg(session, *, max_columns: int = 40, min_count=None) -> str:
     >>> svg = profile_svg(ProfileSession(make_deliveries(), target="late"))  # doctest: +SKIP
     """
     session = getattr(session, "session", session)
-    target = session.settings.get("target")
-    matrix = session.matrix(order="cluster") if len(session.names) >= 2 else None
-    relevance = session.relevance(target) if target is not None else None
-    return profile_svg_from_tables(session.entropy(), matrix, relevance, target=target,
-                                   max_columns=max_columns, min_count=min_count)
+    check_min_count(min_count)
+    return profile_svg_from_payload(payload(session, top_pairs=0), max_columns=max_columns)
+
+
+def _buffer(value, dtype) -> np.ndarray:
+    """A grid buffer of a payload: bytes (a live view's trait) or base64 text (a payload)."""
+    if isinstance(value, str):
+        value = base64.b64decode(value.encode("ascii"))
+    return np.frombuffer(bytes(value or b""), dtype=dtype)
+
+
+def profile_svg_from_payload(data: dict, *, max_columns: int = 40) -> str:
+    """Draw the profile picture from a view payload (:func:`infoscope.views.payload`).
+
+    Parameters
+    ----------
+    data : dict
+        A payload, or its ``state`` alone (a live widget passes its traits: the
+        grid buffers may then be bytes rather than base64 text).
+    max_columns : int, default=40
+        Draw at most this many columns (see :func:`profile_svg_from_tables`).
+
+    Returns
+    -------
+    str
+        A standalone SVG document.
+
+    References
+    ----------
+    W3C (2011). Scalable Vector Graphics (SVG) 1.1, 2nd ed.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> from infoscope.frame.session import ProfileSession
+    >>> from infoscope.views import payload
+    >>> s = ProfileSession(pd.DataFrame({"<a>": list("xyxy") * 10, "b": list("xxyy") * 10}), n_boot=0)
+    >>> svg = profile_svg_from_payload(payload(s, top_pairs=0))
+    >>> svg.startswith("<svg") and "&lt;a&gt;" in svg
+    True
+    """
+    state = data.get("state", data) if isinstance(data, dict) else None
+    if not isinstance(state, dict) or not state.get("_entropy"):
+        raise ValueError("a payload (infoscope.views.payload) with an entropy part is needed to draw the picture")
+    entropy = json.loads(state["_entropy"])
+    bars = [dict(zip(entropy["fields"], row)) for row in entropy["rows"]]
+    grid = None
+    meta = state.get("_grid_meta") or {}
+    names = [str(x) for x in meta.get("names") or []]
+    if len(names) >= 2:
+        values = _buffer(state.get("_grid_values"), np.float32).astype(np.float64)
+        size = len(names)
+        if values.size == size * size:
+            square = values.reshape(size, size)
+            cells = [{"a": a, "b": b, "value": ser.scalar(square[i, j])}
+                     for i, a in enumerate(names) for j, b in enumerate(names) if i != j]
+            grid = (names, cells, meta.get("measure") or "mi")
+    relevance, target = None, None
+    if state.get("_relevance"):
+        rel = json.loads(state["_relevance"])
+        target = rel.get("target")
+        relevance = [dict(zip(rel["fields"], row)) for row in rel.get("rows") or []] or None
+    return _draw(bars, grid, relevance, unit=str(entropy.get("unit") or "bits"),
+                 estimator=entropy.get("estimator"), sampled=entropy.get("sampled"), target=target,
+                 max_columns=max_columns)
 
 
 def svg_data_uri(svg: str) -> str:

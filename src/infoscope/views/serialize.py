@@ -1,12 +1,14 @@
-"""Result tables -> the compact shapes the front end reads (one place, one format).
+"""Result tables -> the shapes every view reads: one serializer for the widget and the exports.
 
 Nothing here estimates anything: the numbers come from ``ProfileSession`` result
-tables (DEVELOPERS.md, "Result tables"); this module only reshapes them, turns
-NaN/inf into ``null`` and hides small cells of a pair view. Column names and labels
-travel as JSON *values* (strings), never as keys or markup; the front end puts them
-into the page with ``textContent`` only.
+tables (docs/design.md, "Result tables"); this module only reshapes them, turns
+NaN/inf into ``null`` and hides small cells of a pair view (the rule is
+:func:`infoscope.frame.suppression.pair_hidden_kinds`). Column names and labels
+travel as JSON *values* (strings) under fixed field names, never as keys or
+markup: the front end puts them into the page with ``textContent`` only, and
+Vega-Lite would read dots and brackets in a field name as nested access.
 
-Shapes (the ESM in ``static/profile.js`` reads exactly these):
+Shapes of the live view and of the HTML export (the front end reads exactly these):
 
 ``entropy_json`` -> JSON text
     ``{"fields": [...ENTROPY_FIELDS], "rows": [[...], ...], "unit", "estimator",
@@ -18,12 +20,16 @@ Shapes (the ESM in ``static/profile.js`` reads exactly these):
     complete rows) and ``q`` (float32 BH q-values, NaN on the diagonal).
 ``pair_view`` -> dict
     ``{"a", "b", "rows", "cols", "counts" (null = hidden), "pmi" (null = hidden),
-    "row_totals"/"col_totals" (null when any cell is hidden), "n", "mi", "nmi",
-    "p_value", "g", "dof", "unit", "min_count", "hidden_cells", "hidden_reasons"
-    (null when nothing is hidden, else per cell null / "small" / "complement"),
-    "generation"}``.
+    "expected" (null when any cell is hidden), "row_totals"/"col_totals" (null when
+    any cell is hidden), "n", "mi", "nmi", "p_value", "g", "dof", "unit",
+    "min_count", "hidden_cells", "hidden_reasons" (null when nothing is hidden,
+    else per cell null / "small" / "complement"), "generation"}``.
 ``relevance_json`` -> JSON text
     ``{"target", "fields": [...RELEVANCE_FIELDS], "rows": [...], "unit", "generation"}``.
+
+Records of the charts and the static picture (lists of flat dicts, one per row or
+cell): :func:`entropy_records`, :func:`grid_records`, :func:`pair_records` (the
+cells of :func:`pair_view`), :func:`relevance_records`, :func:`drift_records`.
 """
 from __future__ import annotations
 
@@ -35,7 +41,11 @@ from typing import Any
 import numpy as np
 import pandas as pd
 
-from infoscope.frame.suppression import SMALL, pair_hidden_kinds
+from infoscope.estimators._checks import UNIT_OF_BASE
+from infoscope.frame.suppression import SMALL, complement_label, pair_hidden_kinds, suppressed_label
+
+#: The units a view can show (the names of :data:`infoscope.estimators._checks.UNIT_OF_BASE`).
+UNITS = tuple(UNIT_OF_BASE.values())
 
 ENTROPY_FIELDS = ("column", "kind", "k", "n", "missing", "missing_share", "entropy", "ci_low",
                   "ci_high", "max_entropy", "efficiency", "effective_categories", "flags")
@@ -63,15 +73,17 @@ def dumps(obj: Any) -> str:
     return json.dumps(obj, separators=(",", ":"), allow_nan=False, ensure_ascii=False)
 
 
-def _require(table, fields, what: str) -> None:
+def require(table, fields, what: str) -> None:
+    """Refuse anything but a result table holding ``fields`` (a clear error, not a KeyError)."""
     if not isinstance(table, pd.DataFrame):
-        raise TypeError(f"{what} must be a pandas DataFrame, got {type(table).__name__}")
+        raise TypeError(f"{what} must be a pandas DataFrame (a result table), got {type(table).__name__}")
     missing = [f for f in fields if f not in table.columns]
     if missing:
-        raise ValueError(f"{what} lacks the column(s) {missing} (DEVELOPERS.md, result tables)")
+        raise ValueError(f"{what} lacks the result-table column(s) {missing}; see docs/design.md, result tables")
 
 
-def _attrs(table: pd.DataFrame) -> dict:
+def attrs_of(table: pd.DataFrame) -> dict:
+    """The unit / estimator / sampled / measure attributes a result table carries."""
     attrs = getattr(table, "attrs", None) or {}
     return {"unit": str(attrs.get("unit", "bits")), "estimator": scalar(attrs.get("estimator")),
             "sampled": scalar(attrs.get("sampled")), "measure": scalar(attrs.get("measure"))}
@@ -79,12 +91,12 @@ def _attrs(table: pd.DataFrame) -> dict:
 
 def entropy_json(table: pd.DataFrame, *, generation: int = 0) -> str:
     """The entropy table as compact JSON rows (see the module docstring)."""
-    _require(table, ENTROPY_FIELDS, "the entropy table")
+    require(table, ENTROPY_FIELDS, "the entropy table")
     rows = [[scalar(v) for v in row] for row in table.loc[:, list(ENTROPY_FIELDS)].itertuples(index=False)]
     for row in rows:  # the front end splits flags itself; keep "" for none
         if row[-1] is None:
             row[-1] = ""
-    a = _attrs(table)
+    a = attrs_of(table)
     return dumps({"fields": list(ENTROPY_FIELDS), "rows": rows, "unit": a["unit"],
                   "estimator": a["estimator"], "sampled": a["sampled"], "generation": int(generation)})
 
@@ -97,7 +109,7 @@ def grid_buffers(pairs: pd.DataFrame, order: list[str], *, alpha: float = 0.05,
     ``pairs`` is the long ``pairs(measure=...)`` table; ``diagonal`` (optional) gives
     the value on the diagonal per name (e.g. the matrix's own diagonal).
     """
-    _require(pairs, PAIR_FIELDS, "the pairs table")
+    require(pairs, PAIR_FIELDS, "the pairs table")
     names = [str(x) for x in order]
     index = {name: i for i, name in enumerate(names)}
     size = len(names)
@@ -121,7 +133,7 @@ def grid_buffers(pairs: pd.DataFrame, order: list[str], *, alpha: float = 0.05,
             k = index.get(str(name))
             if k is not None:
                 values[k, k] = np.float32(val) if val is not None else np.nan
-    attrs = _attrs(pairs)
+    attrs = attrs_of(pairs)
     return {
         "meta": {"names": names, "measure": attrs["measure"] or "mi", "unit": attrs["unit"],
                  "order": order_name, "alpha": float(alpha), "size": size,
@@ -146,13 +158,14 @@ def _g_parts(g_test) -> tuple[Any, Any, Any]:
     return scalar(g), scalar(dof), scalar(p)
 
 
-def pair_view(pair, a: str, b: str, *, unit: str = "bits", min_count: int | None = None,
-              generation: int = 0) -> dict:
+def pair_view(pair, a: str | None = None, b: str | None = None, *, unit: str | None = None,
+              min_count: int | None = None, generation: int = 0) -> dict:
     """One pair's joint table, with small cells hidden when ``min_count`` is set.
 
     Hidden cells lose their count and their pointwise MI; when any cell is hidden the
-    margins are dropped too, so totals minus visible cells cannot give a hidden count
-    back (complementary suppression from :mod:`infoscope.report.suppression`).
+    margins and the expected counts are dropped too, so totals minus visible cells
+    cannot give a hidden count back (complementary suppression from
+    :mod:`infoscope.frame.suppression`).  ``a`` and ``b`` default to the pair's own.
     """
     counts = getattr(pair, "counts", None)
     if not isinstance(counts, pd.DataFrame):
@@ -168,18 +181,30 @@ def pair_view(pair, a: str, b: str, *, unit: str = "bits", min_count: int | None
                 for i in range(raw.shape[0])]
     hidden = int(mask.sum())
     reasons = hidden_reasons(kinds) if hidden else None
+    # expected counts are products of the margins: with a hidden cell they would
+    # give the totals (and so the hidden counts) back, so they go with the totals
+    exp_frame = getattr(pair, "expected", None)
+    expected = None
+    if not hidden and isinstance(exp_frame, pd.DataFrame):
+        expected = [[scalar(v) for v in row] for row in exp_frame.to_numpy(dtype=np.float64).tolist()]
     g, dof, p = _g_parts(getattr(pair, "g_test", None))
     return {
-        "a": str(a), "b": str(b),
+        "a": str(a if a is not None else _axis_name(counts.index, pair, "a")),
+        "b": str(b if b is not None else _axis_name(counts.columns, pair, "b")),
         "rows": [str(x) for x in counts.index], "cols": [str(x) for x in counts.columns],
-        "counts": cell_counts, "pmi": cell_pmi,
+        "counts": cell_counts, "pmi": cell_pmi, "expected": expected,
         "row_totals": None if hidden else [scalar(x) for x in raw.sum(axis=1)],
         "col_totals": None if hidden else [scalar(x) for x in raw.sum(axis=0)],
         "n": scalar(getattr(pair, "n", None)), "mi": scalar(getattr(pair, "mi", None)),
         "nmi": scalar(getattr(pair, "nmi", None)), "g": g, "dof": dof, "p_value": p,
-        "unit": str(unit), "min_count": threshold, "hidden_cells": hidden,
+        "unit": str(unit if unit is not None else getattr(pair, "unit", None) or "bits"),
+        "min_count": threshold, "hidden_cells": hidden,
         "hidden_reasons": reasons, "generation": int(generation),
     }
+
+
+def _axis_name(axis, pair, side: str) -> str:
+    return getattr(axis, "name", None) or getattr(pair, side, "") or ""
 
 
 def hidden_reasons(kinds: np.ndarray) -> list:
@@ -198,12 +223,94 @@ def relevance_json(table: pd.DataFrame | None, target: str | None, *, generation
     if table is None or target is None:
         return dumps({"target": None, "fields": list(RELEVANCE_FIELDS), "rows": [],
                       "unit": None, "generation": int(generation)})
-    _require(table, RELEVANCE_FIELDS, "the relevance table")
+    require(table, RELEVANCE_FIELDS, "the relevance table")
     rows = [[scalar(v) for v in row] for row in table.loc[:, list(RELEVANCE_FIELDS)].itertuples(index=False)]
     return dumps({"target": str(target), "fields": list(RELEVANCE_FIELDS), "rows": rows,
-                  "unit": _attrs(table)["unit"], "generation": int(generation)})
+                  "unit": attrs_of(table)["unit"], "generation": int(generation)})
 
 
 def b64(data: bytes) -> str:
     """Base64 text of a binary buffer (how ``payload()`` carries the grid)."""
     return base64.b64encode(bytes(data)).decode("ascii")
+
+
+# ------------------------------------------------------------------ records (charts, picture)
+def entropy_records(table: pd.DataFrame) -> list[dict]:
+    """One record per column of an ``entropy()`` table (``ENTROPY_FIELDS``, ``flags`` as text)."""
+    require(table, ENTROPY_FIELDS, "the entropy table")
+    out = []
+    for row in table.loc[:, list(ENTROPY_FIELDS)].itertuples(index=False):
+        rec = {f: scalar(v) for f, v in zip(ENTROPY_FIELDS, row)}
+        rec["column"] = str(row.column)
+        rec["flags"] = str(row.flags or "")
+        out.append(rec)
+    return out
+
+
+def grid_records(matrix: pd.DataFrame) -> tuple[list[str], list[dict]]:
+    """The order of names and one record per off-diagonal cell of a ``matrix()``."""
+    if not isinstance(matrix, pd.DataFrame):
+        raise TypeError(f"the matrix must be a pandas DataFrame, got {type(matrix).__name__}")
+    names = [str(c) for c in matrix.columns]
+    if names != [str(i) for i in matrix.index]:
+        raise ValueError("the matrix must be square with the same names on both axes")
+    values = matrix.to_numpy(dtype=np.float64, na_value=np.nan)
+    return names, [{"a": a, "b": b, "value": scalar(values[i, j])}
+                   for i, a in enumerate(names) for j, b in enumerate(names) if i != j]
+
+
+def pair_records(pair, *, min_count=None) -> dict:
+    """The cells of one :func:`pair_view` as flat records (the shape Vega-Lite reads).
+
+    Each cell: ``row, col, count, expected, pmi, shown, hidden, reason``.  Hidden
+    cells carry no count, expected count or pointwise MI; their ``shown`` text is
+    ``"<10"`` (for ``min_count=10``) only for a cell below the threshold, a
+    complementary cell shows :func:`~infoscope.frame.suppression.complement_label`.
+    ``row_totals`` / ``col_totals`` are present only when nothing is hidden.
+    """
+    view = pair_view(pair, min_count=min_count)
+    threshold = view["min_count"]
+    reasons = view["hidden_reasons"]
+    small, other = (suppressed_label(threshold) if threshold else None), complement_label()
+    cells = []
+    for i, r in enumerate(view["rows"]):
+        for j, c in enumerate(view["cols"]):
+            reason = reasons[i][j] if reasons else None
+            count = view["counts"][i][j]
+            cells.append({
+                "row": r, "col": c, "count": count,
+                "expected": view["expected"][i][j] if view["expected"] is not None else None,
+                "pmi": view["pmi"][i][j],
+                "shown": (small if reason == "small" else other) if reason else f"{int(count):d}",
+                "hidden": reason is not None, "reason": reason,
+            })
+    rec = {key: view[key] for key in ("a", "b", "rows", "cols", "n", "mi", "nmi", "hidden_cells", "min_count")}
+    rec["cells"] = cells
+    if not view["hidden_cells"]:
+        rec["row_totals"], rec["col_totals"] = view["row_totals"], view["col_totals"]
+    return rec
+
+
+def relevance_records(table: pd.DataFrame) -> list[dict]:
+    """One record per column of a ``relevance(target)`` table (``RELEVANCE_FIELDS``)."""
+    require(table, RELEVANCE_FIELDS, "the relevance table")
+    out = []
+    for row in table.loc[:, list(RELEVANCE_FIELDS)].itertuples(index=False):
+        rec = {f: scalar(v) for f, v in zip(RELEVANCE_FIELDS, row)}
+        rec["column"] = str(row.column)
+        out.append(rec)
+    return out
+
+
+DRIFT_FIELDS = ("column", "kind", "k", "n", "n_reference", "psi", "kl", "js", "p_value", "flag")
+
+
+def drift_records(table: pd.DataFrame) -> list[dict]:
+    """One record per column of a ``drift(reference)`` table (``DRIFT_FIELDS``)."""
+    require(table, DRIFT_FIELDS, "the drift table")
+    out = []
+    for row in table.loc[:, list(DRIFT_FIELDS)].itertuples(index=False):
+        rec = {f: scalar(v) for f, v in zip(DRIFT_FIELDS, row)}
+        rec["column"] = str(row.column)
+        out.append(rec)
+    return out

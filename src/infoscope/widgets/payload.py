@@ -1,18 +1,13 @@
-"""The offline snapshot of a profile widget: ``payload()`` (read by the HTML export)."""
+"""The offline snapshot of a profile widget: ``payload()``, built by :func:`infoscope.views.payload`."""
 from __future__ import annotations
 
-import copy
-import warnings
-
-from infoscope.widgets import _serialize as ser
-from infoscope.widgets.computation import PAYLOAD_TOP_PAIRS
-from infoscope.widgets.traits import _DATA_TRAITS, _settings_traits
+from infoscope.views.payload import TOP_PAIRS, payload
 
 
 class Payload:
     """Widget part: :meth:`payload`."""
 
-    def payload(self, *, top_pairs: int = PAYLOAD_TOP_PAIRS) -> dict:
+    def payload(self, *, top_pairs: int = TOP_PAIRS, min_count=None) -> dict:
         """A JSON-able snapshot of everything the view shows, for an offline export.
 
         Parameters
@@ -20,15 +15,17 @@ class Payload:
         top_pairs : int, default=12
             How many pair views to precompute (the strongest significant pairs first),
             so that a page without a kernel can still open them.
+        min_count : int, optional
+            Small-cell threshold of every pair view (the larger of this and the
+            view's ``min_count`` applies).
 
         Returns
         -------
         dict
-            ``{"format": "infoscope-profile/1", "view", "state", "binary", "pair_cache"}``.
-            ``state`` maps every synced trait to its value; the binary traits listed in
-            ``binary`` hold base64 text. ``pair_cache`` maps ``a + "\\u0000" + b`` to a
-            pair view. ``modelFromPayload(payload)`` in ``static/profile.js`` turns it
-            into the small model ``render({model, el})`` expects.
+            :func:`infoscope.views.payload` of this view's session and control
+            values: ``{"format": "infoscope-profile/1", "view", "state", "binary",
+            "pair_cache"}``.  ``modelFromPayload(payload)`` of the front-end module
+            turns it into the small model ``render({model, el})`` expects.
 
         References
         ----------
@@ -41,24 +38,6 @@ class Payload:
         >>> json.dumps(w.payload())               # doctest: +SKIP
         """
         self.wait()
-        state = {}
-        binary = []
-        for name in _settings_traits() + ("selected_column", "selected_pair", "alpha_fdr", "sort_by") + _DATA_TRAITS:
-            value = getattr(self, name)
-            if isinstance(value, (bytes, bytearray, memoryview)):
-                state[name] = ser.b64(value)
-                binary.append(name)
-            else:
-                state[name] = copy.deepcopy(value)
-        cache = {}
-        pairs = list(getattr(self, "_top", []))[:top_pairs]
-        if self.selected_pair:
-            pairs.insert(0, tuple(self.selected_pair))
-        unit = self.unit
-        with self._session_lock, warnings.catch_warnings(record=True):
-            warnings.simplefilter("always")  # a sparse pair still exports; its note is in the view
-            for a, b in dict.fromkeys(pairs):
-                view = self._pair_view(a, b, unit, int(self.min_count), self._applied)
-                cache[a + "\u0000" + b] = view
-        return {"format": "infoscope-profile/1", "view": self._view, "state": state,
-                "binary": binary, "pair_cache": cache}
+        with self._session_lock:
+            return payload(self._session, self._view_values(), min_count=min_count, top_pairs=top_pairs,
+                           view=self._view, generation=self._applied, status=self._status)

@@ -4,7 +4,8 @@ from __future__ import annotations
 import base64
 import logging
 import threading
-import warnings
+
+from infoscope.report.picture import profile_svg_from_payload
 
 log = logging.getLogger("infoscope.widgets")
 
@@ -14,12 +15,13 @@ class StaticPicture:
 
     # ------------------------------------------------------------------ sharing
     def picture_svg(self) -> str | None:
-        """A static SVG of what the view shows (``infoscope.report.picture``), or None.
+        """A static SVG of what the view shows, drawn from the data it was sent.
 
         Returns
         -------
         str or None
-            An SVG document, or None when the report layer is not available.
+            An SVG document (:func:`infoscope.report.picture.profile_svg_from_payload`
+            of the view's data traits), or None before the first numbers arrived.
 
         References
         ----------
@@ -29,20 +31,10 @@ class StaticPicture:
         --------
         >>> svg = ProfileWidget(session).picture_svg()   # doctest: +SKIP
         """
-        try:
-            from infoscope.report import picture
-        except ImportError:
+        if not self._entropy:
             return None
-        tables = dict(self._tables)
-        if "entropy" in tables and hasattr(picture, "profile_svg_from_tables"):
-            return picture.profile_svg_from_tables(
-                tables["entropy"], tables.get("matrix"), tables.get("relevance"),
-                target=self.target, min_count=int(self.min_count) or None)
-        if not hasattr(picture, "profile_svg"):
-            return None
-        with self._session_lock, warnings.catch_warnings(record=True):
-            warnings.simplefilter("always")
-            return picture.profile_svg(self._session)
+        state = {name: getattr(self, name) for name in ("_entropy", "_grid_meta", "_grid_values", "_relevance")}
+        return profile_svg_from_payload(state)
 
     def _picture_bundle(self) -> dict:
         try:

@@ -36,24 +36,11 @@ from pathlib import Path
 
 import traitlets as t
 
-from infoscope.widgets.computation import PAYLOAD_TOP_PAIRS, Computation  # noqa: F401
+from infoscope.widgets.computation import Computation
 from infoscope.widgets.payload import Payload
 from infoscope.widgets.picture import StaticPicture
-from infoscope.widgets.scheduler import PROGRESS_AFTER, Cancelled, Scheduler  # noqa: F401
-# the choice lists are re-exported: infoscope.widgets.profile.ESTIMATORS etc.
-from infoscope.widgets.traits import (  # noqa: F401
-    BIN_RULES,
-    ESTIMATORS,
-    MEASURES,
-    MISSING,
-    ORDERS,
-    SORTS,
-    STRATEGIES,
-    UNITS,
-    ProfileTraits,
-    _row_count,
-    _settings_traits,
-)
+from infoscope.widgets.scheduler import Cancelled, Scheduler
+from infoscope.widgets.traits import ProfileTraits, _row_count, _settings_traits
 
 _STATIC = Path(__file__).with_name("static")
 
@@ -108,8 +95,6 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
         self._reverting = False
         self._pending_parts: set[str] = set()
         self._sent_column_bins: dict = {}
-        self._top: list = []
-        self._tables: dict = {}
         self._executor = ThreadPoolExecutor(max_workers=1, thread_name_prefix="infoscope-widget") \
             if self._threaded else None
         self._display_id = f"infoscope-{uuid.uuid4().hex}"

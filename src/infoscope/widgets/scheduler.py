@@ -171,10 +171,7 @@ class Scheduler:
             self._shown_settings = snap["traits"]
             self._reverting = True
             try:
-                top = result.pop("_top_pairs", None)
-                if top is not None:
-                    self._top = top
-                self._tables.update(result.pop("_tables", {}))
+                result.pop("_top_pairs", None)
                 with self.hold_sync():
                     for key, value in result.items():
                         setattr(self, key, value)

@@ -5,26 +5,12 @@ Also the mapping between the traits and the settings of a
 """
 from __future__ import annotations
 
-from typing import Any
-
 import anywidget
 import numpy as np
 import traitlets as t
 
-from infoscope import __version__
-from infoscope.estimators._checks import unit_name
-from infoscope.widgets import _serialize as ser
-
-STRATEGIES = ("quantile", "uniform")
-BIN_RULES = ("fd", "scott", "sturges", "doane", "rice", "sqrt", "stone", "auto", "knuth")
-ESTIMATORS = ("plugin", "miller_madow", "chao_shen", "james_stein", "dirichlet", "grassberger", "nsb")
-MEASURES = ("mi", "nmi", "adjusted_mi", "vi")
-UNITS = ("bits", "nats", "hartleys")
-_BASES = {"bits": 2, "nats": "nats", "hartleys": 10}
-MISSING = ("drop", "category")
-ORDERS = ("cluster", "name")
-SORTS = ("entropy", "name", "efficiency", "missing_share")
-
+from infoscope.views.choices import check_view_settings, meta, session_settings, view_settings_from_session
+from infoscope.views.payload import DATA_TRAITS, SETTINGS_TRAITS
 
 def _row_count(session) -> int | None:
     """Rows of the session's frame (``n_rows`` if the session offers it)."""
@@ -35,13 +21,11 @@ def _row_count(session) -> int | None:
 
 
 #: traits that carry data to the front end (kernel -> view)
-_DATA_TRAITS = ("_view", "_entropy", "_grid_meta", "_grid_values", "_grid_n", "_grid_q", "_pair",
-                "_relevance", "_meta", "_status")
+_DATA_TRAITS = DATA_TRAITS
 
 
 def _settings_traits():
-    return ("bins", "strategy", "estimator", "alpha", "measure", "unit", "target", "missing",
-            "column_bins", "order", "min_count")
+    return SETTINGS_TRAITS
 
 
 class ProfileTraits(anywidget.AnyWidget):
@@ -112,67 +96,21 @@ class ProfileTraits(anywidget.AnyWidget):
     # ------------------------------------------------------------------ settings mapping
     @staticmethod
     def _settings_from_session(session) -> dict:
-        s = dict(session.settings)
-        out: dict[str, Any] = {}
-        bins, strategy = s.get("bins", 16), s.get("strategy", "quantile")
-        if isinstance(bins, str):
-            out["strategy"] = bins
-        else:
-            out["bins"] = int(bins)
-            out["strategy"] = str(strategy)
-        for key in ("estimator", "measure", "missing", "target"):
-            if s.get(key) is not None:
-                out[key] = s[key]
-        if s.get("alpha") is not None:
-            out["alpha"] = float(s["alpha"])
-        out["unit"] = unit_name(s.get("base", 2))
-        return out
+        return view_settings_from_session(session.settings)
+
+    def _view_values(self) -> dict:
+        """The control values (settings and view traits) as a plain dict."""
+        return {name: getattr(self, name) for name in SETTINGS_TRAITS
+                + ("selected_column", "selected_pair", "alpha_fdr", "sort_by")}
 
     def _session_settings(self) -> dict:
         """The traits as ``ProfileSession.update`` keywords."""
-        if self.strategy in BIN_RULES:
-            bins, strategy = self.strategy, "uniform"
-        else:
-            bins, strategy = int(self.bins), self.strategy
-        return {
-            "bins": bins, "strategy": strategy, "estimator": self.estimator,
-            "alpha": float(self.alpha) if self.estimator == "dirichlet" else None,
-            "base": _BASES.get(self.unit, 2), "missing": self.missing,
-            "target": self.target, "measure": self.measure, "sample": self._sample,
-        }
+        return session_settings(self._view_values(), sample=self._sample)
 
     def _check_settings(self) -> None:
-        checks = (("strategy", self.strategy, STRATEGIES + BIN_RULES), ("estimator", self.estimator, ESTIMATORS),
-                  ("measure", self.measure, MEASURES), ("unit", self.unit, UNITS),
-                  ("missing", self.missing, MISSING), ("order", self.order, ORDERS))
-        for name, value, valid in checks:
-            if value not in valid:
-                raise ValueError(f"{name} must be one of {', '.join(valid)}; got {value!r}")
-        if self.bins < 2:
-            raise ValueError(f"bins must be at least 2, got {self.bins}")
-        if self.estimator == "dirichlet" and not self.alpha > 0:
-            raise ValueError(f"alpha (the Dirichlet pseudocount) must be > 0, got {self.alpha}")
-        names = set(self._session.names)
-        if self.target is not None and self.target not in names:
-            raise ValueError(f"target {self.target!r} is not a column of this profile")
-        for name, b in self.column_bins.items():
-            if name not in names:
-                raise ValueError(f"column_bins names {name!r}, which is not a column of this profile")
-            if b is not None and (isinstance(b, bool) or not isinstance(b, int) or b < 2):
-                raise ValueError(f"column_bins[{name!r}] must be a whole number >= 2 or None, got {b!r}")
-        if self.min_count < 0:
-            raise ValueError(f"min_count must be >= 0, got {self.min_count}")
+        # only what no session method checks: the estimator, measure, strategy, bin
+        # rule, bins and alpha are refused by ProfileSession.update with its own message
+        check_view_settings(self._view_values(), self._session.names)
 
     def _set_meta(self) -> None:
-        s = self._session
-        names = [str(x) for x in s.names]
-        self._meta = {
-            "names": names,
-            "n_rows": _row_count(s),
-            "sampled": ser.scalar(getattr(s, "sampled", None)),
-            "choices": {"strategy": list(STRATEGIES + BIN_RULES), "estimator": list(ESTIMATORS),
-                        "measure": list(MEASURES), "unit": list(UNITS), "missing": list(MISSING),
-                        "order": list(ORDERS), "sort_by": list(SORTS)},
-            "bin_rules": list(BIN_RULES),
-            "version": __version__,
-        }
+        self._meta = meta(self._session, n_rows=_row_count(self._session))

@@ -1,0 +1,278 @@
+"""Every view's data, built once from a session: what the widget sends and the HTML export embeds.
+
+:func:`view_data` turns a session's result tables into the data parts of a view
+(the entropy rows, the information grid, the relevance rows, one pair view); the
+live widget calls it after each settings change and sends the parts as traits.
+:func:`payload` calls it for every part and adds the control values, the
+``_meta`` part and a cache of pair views (suppressed with the same rule), so a
+page without a kernel can still open the strongest pairs: the HTML export embeds
+it, the static picture is drawn from it.  No kernel, widget or front-end code is
+needed here.
+
+Payload format ``"infoscope-profile/1"``::
+
+    {"format": "infoscope-profile/1", "view": "profile" | "entropy" | "grid" | "pair" | "relevance",
+     "state": {<control values>, "_entropy", "_grid_meta", "_grid_values", "_grid_n",
+               "_grid_q", "_pair", "_relevance", "_meta", "_status", "_view"},
+     "binary": ["_grid_values", "_grid_n", "_grid_q"],      # base64 text in "state"
+     "pair_cache": {a + "\\u0000" + b: <pair view>, ...}}
+
+The shapes of the parts are those of :mod:`infoscope.views.serialize`.
+"""
+from __future__ import annotations
+
+import warnings
+from collections.abc import Callable, Mapping
+from typing import Any
+
+import numpy as np
+import pandas as pd
+
+from infoscope.frame.suppression import check_min_count
+from infoscope.views import serialize as ser
+from infoscope.views.choices import check_view_settings, meta, view_settings_from_session
+
+__all__ = ["FORMAT", "PARTS", "SETTINGS_TRAITS", "VIEW_TRAITS", "DATA_TRAITS", "TOP_PAIRS",
+           "payload", "view_data", "top_pairs"]
+
+FORMAT = "infoscope-profile/1"
+#: The data parts a view can ask for.
+PARTS = ("entropy", "grid", "pair", "relevance")
+#: Control values that change numbers (they map to session settings or to a part's shape).
+SETTINGS_TRAITS = ("bins", "strategy", "estimator", "alpha", "measure", "unit", "target", "missing",
+                   "column_bins", "order", "min_count")
+#: Control values that change only what is drawn.
+VIEW_TRAITS = ("selected_column", "selected_pair", "alpha_fdr", "sort_by")
+#: The data parts as trait names (kernel -> view).
+DATA_TRAITS = ("_view", "_entropy", "_grid_meta", "_grid_values", "_grid_n", "_grid_q", "_pair",
+               "_relevance", "_meta", "_status")
+#: Pair views precomputed into a payload for a page without a kernel.
+TOP_PAIRS = 12
+#: Control values a view starts from where the session has no setting for them.
+VIEW_DEFAULTS = {"bins": 16, "strategy": "quantile", "estimator": "miller_madow", "alpha": 0.5,
+                 "measure": "mi", "unit": "bits", "target": None, "missing": "drop",
+                 "column_bins": {}, "order": "cluster", "min_count": 0, "selected_column": None,
+                 "selected_pair": None, "alpha_fdr": 0.05, "sort_by": "entropy"}
+
+
+def _no_step(progress: float, message: str) -> None:
+    return None
+
+
+def top_pairs(pairs: pd.DataFrame, alpha: float, k: int = TOP_PAIRS) -> list[tuple[str, str]]:
+    """The ``k`` pairs a view opens first: significant ones (BH q < ``alpha``) by value, then the rest.
+
+    Parameters
+    ----------
+    pairs : pandas.DataFrame
+        ``ProfileSession.pairs()``.
+    alpha : float
+        False discovery rate.
+    k : int, default=12
+        How many.
+
+    Returns
+    -------
+    list of (str, str)
+
+    References
+    ----------
+    .. [1] Benjamini, Y., & Hochberg, Y. (1995). Controlling the false discovery
+       rate. JRSS B, 57(1), 289-300 (the q-values ranked here).
+
+    Examples
+    --------
+    >>> t = pd.DataFrame({"a": ["x", "x"], "b": ["y", "z"], "value": [0.1, 0.9], "q_value": [0.01, 0.5]})
+    >>> top_pairs(t, 0.05, 2)
+    [('x', 'y'), ('x', 'z')]
+    """
+    if not len(pairs):
+        return []
+    ranked = pairs.assign(_sig=pairs["q_value"] < alpha).sort_values(
+        ["_sig", "value"], ascending=[False, False], na_position="last")
+    return [(str(a), str(b)) for a, b in ranked[["a", "b"]].head(k).itertuples(index=False)]
+
+
+def view_data(session, parts, *, order: str = "cluster", alpha_fdr: float = 0.05,
+              selected_pair=None, min_count=None, generation: int = 0,
+              step: Callable[[float, str], None] | None = None) -> tuple[dict, dict]:
+    """The data parts of a view, from the session as it stands.
+
+    Parameters
+    ----------
+    session : ProfileSession
+        The profile; its settings (measure, target, unit) decide the numbers.
+    parts : iterable of str
+        Any of :data:`PARTS`.
+    order : {"cluster", "name"}, default="cluster"
+        Order of the information grid.
+    alpha_fdr : float, default=0.05
+        False discovery rate: grid cells with q >= ``alpha_fdr`` are muted, and
+        significant pairs are opened first.
+    selected_pair : (str, str), optional
+        The pair of the pair view (default: the first of :func:`top_pairs` when the
+        grid is computed too).
+    min_count : int, optional
+        Small-cell threshold of the pair view.
+    generation : int, default=0
+        Stamped on every part (the live view drops stale answers by it).
+    step : callable, optional
+        ``step(progress, message)`` before each stage (the widget reports progress
+        and cancels through it).
+
+    Returns
+    -------
+    (dict, dict)
+        The trait values (``_entropy``, ``_grid_meta``, ``_grid_values``, ``_grid_n``,
+        ``_grid_q``, ``_relevance``, ``_pair``, and ``selected_pair`` when it was
+        chosen here; ``_top_pairs`` with the grid) and the result tables used
+        (``entropy``, ``pairs``, ``matrix``, ``relevance``).
+
+    References
+    ----------
+    No published source: the numbers are those of the session's result tables.
+
+    Examples
+    --------
+    >>> from infoscope.frame.session import ProfileSession
+    >>> s = ProfileSession(pd.DataFrame({"a": list("xyxy") * 10, "b": list("xxyy") * 10}), n_boot=0)
+    >>> sorted(view_data(s, ["entropy"])[0])
+    ['_entropy']
+    """
+    step = step or _no_step
+    parts = set(parts)
+    unknown = parts - set(PARTS)
+    if unknown:
+        raise ValueError(f"unknown view part(s) {sorted(unknown)}; the parts are {', '.join(PARTS)}")
+    settings = session.settings
+    unit = view_settings_from_session(settings)["unit"]
+    out: dict[str, Any] = {}
+    tables: dict[str, Any] = {}
+    if "entropy" in parts:
+        step(0.15, "Entropy of each column...")
+        tables["entropy"] = session.entropy()
+        out["_entropy"] = ser.entropy_json(tables["entropy"], generation=generation)
+    if "grid" in parts:
+        step(0.35, "Counting all pairs...")
+        pairs = session.pairs()
+        step(0.6, "Ordering the grid...")
+        matrix = session.matrix(order=order)
+        tables["pairs"], tables["matrix"] = pairs, matrix
+        diag = pd.Series(np.diag(matrix.to_numpy(dtype=float)), index=matrix.index)
+        grid = ser.grid_buffers(pairs, [str(x) for x in matrix.index], alpha=alpha_fdr,
+                                diagonal=diag, generation=generation, order_name=order)
+        out["_grid_meta"] = grid["meta"]
+        out["_grid_values"], out["_grid_n"], out["_grid_q"] = grid["values"], grid["n"], grid["q"]
+        out["_top_pairs"] = top_pairs(pairs, alpha_fdr)
+    if "relevance" in parts:
+        step(0.75, "Relevance to the target...")
+        target = settings.get("target")
+        table = session.relevance(target=target) if target is not None else None
+        tables["relevance"] = table
+        out["_relevance"] = ser.relevance_json(table, target, generation=generation)
+    if "pair" in parts:
+        pair = list(selected_pair) if selected_pair else None
+        if pair is None and out.get("_top_pairs"):
+            pair = list(out["_top_pairs"][0])
+            out["selected_pair"] = pair
+        if pair is not None:
+            step(0.9, "Joint table of the pair...")
+            out["_pair"] = _pair_view(session, pair[0], pair[1], unit, min_count, generation)
+        else:
+            out["_pair"] = {}
+    step(1.0, "Drawing...")
+    return out, tables
+
+
+def _pair_view(session, a: str, b: str, unit: str, min_count, generation: int) -> dict:
+    names = set(session.names)
+    for x in (a, b):
+        if x not in names:
+            raise ValueError(f"selected_pair names {x!r}, which is not a column of this profile")
+    return ser.pair_view(session.pair(a, b), a, b, unit=unit, min_count=min_count or None,
+                         generation=generation)
+
+
+def payload(session, settings: Mapping | None = None, *, min_count=None, top_pairs: int = TOP_PAIRS,
+            view: str = "profile", generation: int = 0, status: Mapping | None = None) -> dict:
+    """Every view's data of a profile as one JSON-able dict (see the module docstring).
+
+    Parameters
+    ----------
+    session : ProfileSession
+        The profile.  Its settings decide the numbers; the session is not changed.
+    settings : mapping, optional
+        Control values to show (any of :data:`SETTINGS_TRAITS` and
+        :data:`VIEW_TRAITS`): ``order``, ``alpha_fdr``, ``selected_pair``,
+        ``min_count``, ``sort_by`` shape the views; the rest default to what shows
+        the session's settings.
+    min_count : int, optional
+        Small-cell threshold of every pair view in the payload (the larger of this
+        and ``settings["min_count"]`` applies): counts ``1 .. min_count - 1`` and the
+        cells that would give them away are hidden, with the totals.
+    top_pairs : int, default=12
+        How many pair views to precompute (the strongest significant pairs first),
+        so that a page without a kernel can still open them.
+    view : str, default="profile"
+        Which layout the front end draws.
+    generation : int, default=0
+        Stamped on every part.
+    status : mapping, optional
+        The ``_status`` part (default: idle, no notes).
+
+    Returns
+    -------
+    dict
+        ``{"format", "view", "state", "binary", "pair_cache"}``; ``modelFromPayload``
+        of the front-end module turns it into the model ``render({model, el})`` reads.
+
+    References
+    ----------
+    No published source; small-cell suppression of the pair views is common
+    practice in official statistics.
+
+    Examples
+    --------
+    >>> import json
+    >>> from infoscope.frame.session import ProfileSession
+    >>> s = ProfileSession(pd.DataFrame({"a": list("xyxy") * 10, "b": list("xxyy") * 10}), n_boot=0)
+    >>> p = payload(s, min_count=5)
+    >>> p["format"], sorted(p["pair_cache"]), len(json.dumps(p)) > 0
+    ('infoscope-profile/1', ['a\\x00b'], True)
+    """
+    if isinstance(top_pairs, bool) or not isinstance(top_pairs, int) or top_pairs < 0:
+        raise ValueError(f"top_pairs must be a whole number >= 0, got {top_pairs!r}")
+    unknown = set(settings or {}) - set(SETTINGS_TRAITS) - set(VIEW_TRAITS)
+    if unknown:
+        raise TypeError(f"unknown view setting(s) {sorted(unknown)}; the view settings are "
+                        f"{', '.join(SETTINGS_TRAITS + VIEW_TRAITS)}")
+    state: dict[str, Any] = {**VIEW_DEFAULTS, **view_settings_from_session(session.settings),
+                             **dict(settings or {})}
+    check_view_settings(state, session.names)
+    threshold = max(check_min_count(min_count) or 0, check_min_count(state["min_count"] or None) or 0)
+    state["min_count"] = threshold
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")  # a sparse pair still exports; its note is in the status
+        data, _ = view_data(session, PARTS, order=state["order"], alpha_fdr=float(state["alpha_fdr"]),
+                            selected_pair=state["selected_pair"], min_count=threshold or None,
+                            generation=generation)
+        ranked = data.pop("_top_pairs", [])
+        if "selected_pair" in data:
+            state["selected_pair"] = data.pop("selected_pair")
+        unit = state["unit"]
+        wanted = list(ranked[:top_pairs])
+        if state["selected_pair"]:
+            wanted.insert(0, tuple(state["selected_pair"]))
+        cache = {}
+        for a, b in dict.fromkeys(tuple(p) for p in wanted):
+            cache[a + "\u0000" + b] = _pair_view(session, a, b, unit, threshold or None, generation)
+    notes = sorted({f"{w.category.__name__}: {w.message}" for w in caught})
+    state.update(data)
+    state["_view"] = view
+    state["_meta"] = meta(session)
+    state["_status"] = dict(status) if status is not None else {
+        "state": "idle", "message": "", "generation": int(generation), "progress": None, "notes": notes}
+    binary = [name for name in DATA_TRAITS if isinstance(state.get(name), (bytes, bytearray, memoryview))]
+    for name in binary:
+        state[name] = ser.b64(state[name])
+    return {"format": FORMAT, "view": view, "state": state, "binary": binary, "pair_cache": cache}
