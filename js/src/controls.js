@@ -1,7 +1,7 @@
 // The controls: one labelled <select> or range input per setting, each writing its
 // trait; sync() brings them in step with the model without moving a control the
 // user is holding.
-import { h, uid, clear } from "./dom.js";
+import { h, uid, clear, nameEl } from "./dom.js";
 import { table } from "./decode.js";
 import { ESTIMATOR_LABELS, MEASURE_LABELS, MISSING_LABELS, STRATEGY_LABELS } from "./vocabulary.js";
 
@@ -107,7 +107,9 @@ export function controlsView(ctx) {
     colBins.input.disabled = !numeric || rule || ctx.offline;
     colReset.disabled = !numeric || ctx.offline || !((ctx.get("column_bins") || {})[col] != null);
     colBins.el.classList.toggle("isc-off", !numeric);
-    colLabel.textContent = col == null ? "Bins for a column (pick one)" : `Bins for \u201c${col}\u201d`;
+    clear(colLabel);
+    if (col == null) colLabel.append("Bins for a column (pick one)");
+    else colLabel.append("Bins for \u201c", nameEl(col, { max: "14em" }), "\u201d");
     if (!numeric) colBins.out.textContent = col == null ? "" : "not binned";
     for (const c of [strategy, estimator, measure, unit, target, missing]) {
       c.input.disabled = ctx.offline;

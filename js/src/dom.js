@@ -50,3 +50,16 @@ export function tipOnFocus(target) {
   const b = target.getBoundingClientRect();
   target.dispatchEvent(new MouseEvent("mousemove", { clientX: b.left + 140, clientY: b.bottom - 10 }));
 }
+
+// Names are data: a column name may hold right-to-left text or bidi control
+// characters (U+202E reverses what follows it) and may be thousands of characters
+// long. In plain text (tooltips, titles, aria labels) a name goes between the
+// Unicode first-strong isolate and its pop (U+2068 ... U+2069, UAX #9), so it cannot
+// reorder the words around it; in the DOM it is a <bdi> (unicode-bidi: isolate)
+// cut to its box with an ellipsis, its full text in the title.
+export const iso = (name) => `\u2068${String(name)}\u2069`;
+
+export function nameEl(name, { cls = "", max } = {}) {
+  const text = String(name);
+  return h("bdi", { class: `isc-nm${cls ? ` ${cls}` : ""}`, title: text, style: max ? { maxWidth: max } : null }, text);
+}

@@ -9,16 +9,52 @@ export function num(v, digits = 3) {
   return String(Number(v.toPrecision(digits)));
 }
 
-// a shown estimate: three significant digits, trailing zeros kept for alignment
-export function val(v) {
+// a shown estimate in a column of estimates: trailing zeros kept for alignment
+export function val(v) { return amount(v, { fixed: true }); }
+
+// An information quantity (entropy, MI, NMI, ...) at the display's precision:
+// three significant digits, never finer than 0.001, so rounding noise of a
+// constant column (6.4e-16) or a bias-corrected estimate a hair below 0 (-1.9e-5)
+// reads "0", and 0.00296 reads "0.003". `fixed` keeps trailing zeros for columns.
+export function amount(v, { fixed = false } = {}) {
   if (v == null || !Number.isFinite(v)) return DASH;
   const a = Math.abs(v);
-  if (a !== 0 && (a < 0.001 || a >= 1e6)) return v.toExponential(1);
-  return a === 0 ? "0" : v.toPrecision(3);
+  if (a < 0.0005) return "0";
+  if (a >= 1e6) return v.toExponential(2);
+  if (a < 0.01) return v.toFixed(3);
+  return fixed ? v.toPrecision(3) : String(Number(v.toPrecision(3)));
+}
+
+// A p- or q-value in a sentence: "q below 0.001", "q = 0.03", "q not computed".
+export function pWords(name, p) {
+  if (p == null || !Number.isFinite(p)) return `${name} not computed`;
+  return p < 0.001 ? `${name} below 0.001` : `${name} = ${num(p, 2)}`;
+}
+
+// A p- or q-value in a table cell or after its label: "below 0.001", "0.03".
+export function pShort(p) { return p == null || !Number.isFinite(p) ? DASH : p < 0.001 ? "below 0.001" : num(p, 2); }
+
+// An interval level as a percentage: 0.95 -> "95%", 0.995 -> "99.5%"; the default
+// only where the payload does not say.
+export function levelText(ci, fallback = 0.95) {
+  const v = Number.isFinite(ci) && ci > 0 && ci < 1 ? ci : fallback;
+  return `${Number((v * 100).toPrecision(4))}%`;
+}
+
+// A signed number for deviations: "+3.2", "−4.1".
+export function signed(v, digits = 2) {
+  if (v == null || !Number.isFinite(v)) return DASH;
+  const t = num(Math.abs(v), digits);
+  return t === "0" ? "0" : `${v < 0 ? "−" : "+"}${t}`;
+}
+
+// Expected rows under independence, in words.
+export function expectedWords(e) {
+  if (e == null || !Number.isFinite(e)) return "expected count unknown";
+  return `${e < 10 ? num(e, 2) : count(e)} expected`;
 }
 
 export function count(v) { return v == null || !Number.isFinite(v) ? DASH : Math.round(v).toLocaleString("en-US"); }
-export function pval(p) { return p == null || !Number.isFinite(p) ? DASH : p < 0.001 ? "< 0.001" : num(p, 2); }
 export function pct(v) { return v == null || !Number.isFinite(v) ? DASH : `${Math.round(v * 100)}%`; }
 
 export function tickStep(max, n = 5) {

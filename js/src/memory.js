@@ -29,3 +29,19 @@ export function restore(memory, root) {
     if (el && typeof el.focus === "function") el.focus({ preventScroll: true });
   }
 }
+
+// Redraw the children of `container` with `redraw` and give keyboard focus back to
+// the element with the same data-keep key, if it had focus before.
+export function keepFocus(container, redraw) {
+  const doc = container.ownerDocument;
+  const active = doc.activeElement;
+  const kept = active && container.contains(active) ? active.closest("[data-keep]") : null;
+  const key = kept ? kept.getAttribute("data-keep") : null;
+  const top = container.scrollTop, left = container.scrollLeft;
+  redraw();
+  if (container.scrollTop !== top) container.scrollTop = top;
+  if (container.scrollLeft !== left) container.scrollLeft = left;
+  if (key == null) return;
+  const again = [...container.querySelectorAll("[data-keep]")].find((e) => e.getAttribute("data-keep") === key);
+  if (again) again.focus({ preventScroll: true });
+}

@@ -16,20 +16,38 @@ export const STRATEGY_LABELS = {
 export const MISSING_LABELS = { drop: "leave out missing", category: "missing as a value" };
 export const ORDER_LABELS = { cluster: "by similarity", name: "by name" };
 export const SORT_LABELS = { entropy: "entropy", name: "name", efficiency: "efficiency", missing_share: "missing share" };
-export const FLAG_LABELS = {
-  constant: "constant", id_like: "ID-like", mostly_missing: "mostly missing", sparse_cells: "sparse cells",
-  heavy_tail: "heavy tail", levels_folded: "levels folded", mixed_types: "mixed types",
-  infinite_values: "infinite values", rare_levels: "rare levels", exceeds_log_k: "above log K",
+// Per-column notes, in the product's information vocabulary. WORDS are the short
+// notes beside a bar; SENTENCES say on hover what each one means for the numbers.
+export const FLAG_WORDS = {
+  constant: "no information", id_like: "near log N", mostly_missing: "mostly missing",
+  sparse_cells: "few rows per level", heavy_tail: "long tail", levels_folded: "levels merged",
+  mixed_types: "mixed value types", infinite_values: "\u00b1\u221e as missing", rare_levels: "thin levels",
+  exceeds_log_k: "above log K",
 };
 export const FLAG_HELP = {
-  constant: "one value only: carries no information",
-  id_like: "nearly every row distinct: entropy near log n says little",
-  mostly_missing: "most rows missing",
-  sparse_cells: "fewer than 5 rows per cell on average: estimates unreliable",
-  heavy_tail: "heavy tail: equal-width bins would crowd",
-  levels_folded: "rare levels folded into one: the grid and pair views use the folded levels, the entropy bar counts every level",
-  mixed_types: "values of mixed types",
-  infinite_values: "infinite values treated as missing",
-  exceeds_log_k: "estimate above log K of the observed levels: the bias correction credits unseen levels; K is a lower bound of the true alphabet",
-  rare_levels: "many thin levels (fewer than 5 rows or under 1% each) hold at least 5% of rows",
+  constant: "One value only: the column carries no information (H = 0).",
+  id_like: "Nearly every row has its own value: the entropy sits near log N, the most N rows can show, and says little about the column.",
+  mostly_missing: "Most rows are missing: the estimate rests on the few that are present.",
+  sparse_cells: "Fewer than 5 rows per level on average: the estimate is unreliable.",
+  heavy_tail: "A long tail: equal-width bins would crowd most rows into a few bins.",
+  levels_folded: "Rare levels were merged into one: the grid and pair views use the merged levels; the bar counts every level.",
+  mixed_types: "The values are of mixed types (e.g. numbers and text).",
+  infinite_values: "Infinite values were treated as missing.",
+  exceeds_log_k: "The estimate is above log K of the levels seen: the bias correction credits levels not seen, so K is a lower bound of the true alphabet.",
+  rare_levels: "Many thin levels (fewer than 5 rows or under 1% each) hold at least 5% of the rows.",
 };
+// a numeric column cut into equal-count (quantile) bins: log K by construction
+export const BY_CONSTRUCTION_WORD = "equal-count bins";
+
+// How far a pair's table can be trusted (the `reliability` of pairs and relevance):
+// the rule lives in the Python core; these are its words.
+export const RELIABILITY_WORDS = { ok: "", sparse: "few rows per cell", too_few: "too few rows to tell" };
+export const RELIABILITY_HELP = {
+  sparse: "Few rows per cell of the joint table (1 to 5 on average): read the number as rough.",
+  too_few: "Too few rows for this table to tell anything: the number is not a finding.",
+};
+// the reliability of a row, from `reliability` or the older boolean `sparse`
+export function reliabilityOf(r) {
+  if (r && typeof r.reliability === "string") return r.reliability;
+  return r && r.sparse ? "sparse" : "ok";
+}

@@ -1,10 +1,10 @@
 // Number wording and axis ticks (js/src/format.js).
 import { test } from "node:test";
 import assert from "node:assert/strict";
-import { axisPct, count, niceMax, num, pct, pval, tickStep, ticks, val } from "../src/format.js";
+import { amount, axisPct, count, expectedWords, levelText, niceMax, num, pct, pShort, pWords, signed, tickStep, ticks, val } from "../src/format.js";
 
 test("missing or undefined numbers show a dash", () => {
-  for (const f of [num, val, count, pval, pct]) for (const v of [null, undefined, NaN, Infinity]) assert.equal(f(v), "\u2014");
+  for (const f of [num, val, count, pShort, pct, amount, signed]) for (const v of [null, undefined, NaN, Infinity]) assert.equal(f(v), "\u2014");
 });
 
 test("num keeps three significant digits and drops trailing zeros", () => {
@@ -18,6 +18,41 @@ test("val keeps trailing zeros so a column of estimates aligns", () => {
   assert.equal(val(2), "2.00");
   assert.equal(val(0.5), "0.500");
   assert.equal(val(0), "0");
+  assert.equal(val(-2.4e-4), "0");
+});
+
+test("information amounts at the display's precision: rounding noise reads 0, never an exponent", () => {
+  assert.equal(amount(6.4e-16), "0");       // MI of a constant column
+  assert.equal(amount(-1.9e-5), "0");       // a bias-corrected NMI a hair below 0
+  assert.equal(amount(0.00296), "0.003");   // not finer than 0.001
+  assert.equal(amount(-0.00437), "-0.004"); // a real negative estimate stays
+  assert.equal(amount(0.0475), "0.0475");
+  assert.equal(amount(10.3643), "10.4");
+  assert.equal(amount(4, { fixed: true }), "4.00");
+});
+
+test("p- and q-values in words: 'below 0.001', never '= < 0.001'", () => {
+  assert.equal(pWords("q", 1e-9), "q below 0.001");
+  assert.equal(pWords("p", 0.0312), "p = 0.031");
+  assert.equal(pWords("q", null), "q not computed");
+  assert.equal(pShort(0.0002), "below 0.001");
+  assert.equal(pShort(0.5), "0.5");
+});
+
+test("interval levels say the level that was used", () => {
+  assert.equal(levelText(0.95), "95%");
+  assert.equal(levelText(0.9), "90%");
+  assert.equal(levelText(0.995), "99.5%");
+  assert.equal(levelText(undefined), "95%");
+  assert.equal(levelText(undefined, 0.8), "80%");
+});
+
+test("signed deviations and expected counts", () => {
+  assert.equal(signed(-48.04), "\u221248");
+  assert.equal(signed(3.21), "+3.2");
+  assert.equal(signed(0), "0");
+  assert.equal(expectedWords(2300.4), "2,300 expected");
+  assert.equal(expectedWords(0.314), "0.31 expected");
 });
 
 test("counts are grouped by thousands; shares are whole percentages", () => {

@@ -121,8 +121,7 @@ def test_export_stays_interactive_sort_and_saved_pairs(exported, served, web):
     page.wait_for_selector("body[data-rendered='yes']", timeout=20_000)
     # sort the entropy bars by name: the rows follow
     page.locator(".isc-root select").filter(has=page.locator("option[value=name]")).first.select_option("name")
-    labels = page.eval_on_selector_all(".isc-erow[aria-pressed]", "rows => rows.map(r => r.getAttribute('aria-label'))")
-    shown = [next(n for n in exported["session"].names if label.startswith(n)) for label in labels]
+    shown = page.eval_on_selector_all(".isc-erow[aria-pressed]", "rows => rows.map(r => r.dataset.column)")
     assert shown == sorted(shown, key=str.lower) or shown == sorted(shown)
     # open a saved pair by clicking its grid cell: the pair view shows it without a kernel
     canvas = page.locator(".isc-gridwrap canvas")
@@ -161,3 +160,28 @@ def test_saved_pair_view_labels_only_small_cells_below_the_threshold(exported, s
     notes = page.text_content(".isc-export-notes")
     assert "slightly negative" in notes and "hidden to protect a small cell" in notes
     assert web.page_errors == []
+
+
+def test_export_keeps_long_and_right_to_left_names_in_place(tmp_path, served, web, artifacts):
+    import sys
+    from pathlib import Path
+
+    sys.path.insert(0, str(Path(__file__).parent))
+    from _names import CONTAINED, IN_ORDER, LONG, RTL, odd_names_frame
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        session = ProfileSession(odd_names_frame(), target=RTL, n_boot=0)
+        widget = ProfileWidget(session, threaded=False, selected_pair=[RTL, LONG])
+        path = to_html(widget, tmp_path / "odd.html")
+        widget.close()
+    web.goto(served.put("/export/odd.html", path.read_bytes()))
+    page = web.page
+    page.wait_for_selector("body[data-rendered='yes']", timeout=20_000)
+    page.wait_for_timeout(150)
+    assert page.evaluate(CONTAINED) == [], "a name ran out of its panel in the export"
+    for sel, word in ((".isc-pair .isc-punit", "(columns)"), (".isc-relevance .isc-punit", "bits")):
+        assert page.evaluate(IN_ORDER, [sel, word]) == "ok", (sel, word)
+    assert LONG in page.eval_on_selector_all("bdi.isc-nm", "els => els.map(e => e.title)")
+    assert web.outside_requests == [] and web.page_errors == []
+    web.screenshot(artifacts / "export-odd-names.png", full_page=True)

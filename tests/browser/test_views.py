@@ -19,6 +19,9 @@ import numpy as np
 import pandas as pd
 import pytest
 
+sys.path.insert(0, str(Path(__file__).parent))
+from _names import CONTAINED, IN_ORDER, LONG, RTL  # noqa: E402
+
 STATIC = Path(__file__).resolve().parents[2] / "src" / "infoscope" / "widgets" / "static"
 ESM = STATIC / "profile.js"
 CSS = STATIC / "profile.css"
@@ -135,8 +138,12 @@ def payloads():
     })
     ws = _quiet(ProfileWidget, _quiet(ProfileSession, evil, n_boot=0), threaded=False,
                 target="ok", selected_pair=[evil_name, "ok"])
+    from _names import LONG, RTL, odd_names_frame
+
+    wo = _quiet(ProfileWidget, _quiet(ProfileSession, odd_names_frame(), n_boot=0), threaded=False,
+                target=RTL, selected_pair=[RTL, LONG], selected_column=LONG)
     return {"base": base, "answers": answers, "evil": _quiet(ws.payload),
-            "evil_name": evil_name, "evil_value": evil_value}
+            "evil_name": evil_name, "evil_value": evil_value, "odd": _quiet(wo.payload)}
 
 
 @pytest.fixture
@@ -235,13 +242,26 @@ def test_grid_click_opens_pair_view(harness, web, artifacts):
     off = float(canvas.get_attribute("data-offset"))
     canvas.hover(position={"x": off + (j + 0.5) * cell, "y": off + (i + 0.5) * cell})
     tip = page.locator(".isc-tip")
-    assert tip.is_visible() and f"{a} \u00d7 {b}" in tip.text_content() and "q =" in tip.text_content()
+    said = tip.text_content().replace("\u2068", "").replace("\u2069", "")  # names travel bidi-isolated
+    assert tip.is_visible() and said.startswith(f"{a} \u00d7 {b}") and ("q =" in said or "q below" in said)
     canvas.click(position={"x": off + (j + 0.5) * cell, "y": off + (i + 0.5) * cell})
     page.wait_for_function("([a, b]) => JSON.stringify(window.__model.get('selected_pair')) === JSON.stringify([a, b])", arg=[a, b])
     page.wait_for_function("(a) => document.querySelector('.isc-pair .isc-punit').textContent.includes(a)", arg=a)
     title = page.text_content(".isc-pair .isc-punit")
     assert a in title and b in title
+    # the pair opens as the tooltip said: the cell's row column gives the table's rows
+    assert page.eval_on_selector_all(".isc-pair .isc-punit bdi", "els => els.map(e => e.title)") == [a, b]
     assert page.locator(".isc-pair table td").count() > 4
+    rows_ab = page.eval_on_selector_all(".isc-pair tbody th", "els => els.map(e => e.textContent)")
+    # the mirror cell (b, a): the saved table of (a, b), turned round to rows b, columns a
+    canvas.click(position={"x": off + (i + 0.5) * cell, "y": off + (j + 0.5) * cell})
+    page.wait_for_function("([a, b]) => JSON.stringify(window.__model.get('selected_pair')) === JSON.stringify([b, a])", arg=[a, b])
+    page.wait_for_function("(b) => document.querySelector('.isc-pair .isc-punit bdi').title === b", arg=b)
+    assert page.eval_on_selector_all(".isc-pair .isc-punit bdi", "els => els.map(e => e.title)") == [b, a]
+    cols_ba = page.eval_on_selector_all(".isc-pair thead th:not(.isc-corner):not(.isc-tot)", "els => els.map(e => e.textContent)")
+    assert cols_ba == [r for r in rows_ab if r != "total"]
+    canvas.click(position={"x": off + (j + 0.5) * cell, "y": off + (i + 0.5) * cell})
+    page.wait_for_function("([a, b]) => JSON.stringify(window.__model.get('selected_pair')) === JSON.stringify([a, b])", arg=[a, b])
     # keyboard: Enter on the focused grid opens the pair under the cursor
     canvas.focus()
     down = i + 1 < len(names) and i + 1 != j  # step off the clicked cell, never onto the diagonal
@@ -335,10 +355,11 @@ def test_sort_select_column_and_override_its_bins(harness, web):
     row = page.locator(".isc-erow[data-column='distance_km']")
     row.hover()
     tip = page.locator(".isc-tip").text_content()
-    assert "efficiency" in tip and "effective categories" in tip and "maximum log K" in tip
+    assert "efficiency" in tip and "effective levels" in tip and "log K =" in tip and "log N =" in tip
+    assert "equal-count" in tip and "log K by construction" in tip  # why a quantile column sits at log K
     page.mouse.move(0, 0)
     row.focus()
-    assert "maximum log K" in page.locator(".isc-tip").text_content()  # focus shows the details too
+    assert "log K =" in page.locator(".isc-tip").text_content()  # focus shows the details too
     page.keyboard.press("Enter")  # keyboard selects the column
     page.wait_for_function("window.__model.get('selected_column') === 'distance_km'")
     page.wait_for_timeout(80)
@@ -412,12 +433,12 @@ def test_truncated_names_have_their_full_name(harness, web, payloads):
     longest = max(range(len(names)), key=lambda k: len(names[k]))
     canvas.hover(position={"x": off / 2, "y": off + (longest + 0.5) * cell})  # its row label
     assert canvas.get_attribute("title") == names[longest]
-    assert page.locator(".isc-tip").text_content() == names[longest]
+    assert page.locator(".isc-tip").text_content() == "\u2068" + names[longest] + "\u2069"  # bidi-isolated
     canvas.hover(position={"x": off + (longest + 0.5) * cell, "y": off / 2})  # its column label
     assert canvas.get_attribute("title") == names[longest]
     corner = page.locator(".isc-pair .isc-corner")
     view = payloads["base"]["state"]["_pair"]
-    assert corner.get_attribute("title") == f"rows: {view['a']}; columns: {view['b']}"
+    assert corner.get_attribute("title") == f"rows: \u2068{view['a']}\u2069; columns: \u2068{view['b']}\u2069"
     assert web.page_errors == []
 
 
@@ -514,3 +535,26 @@ def test_pair_view_lets_go_of_its_resize_observers(harness, web):
     assert page.evaluate("window.__observed.size") == base, "each pair-view redraw left a ResizeObserver watching"
     page.evaluate("window.__cleanup()")
     assert page.evaluate("window.__observed.size") == 0, "observers outlive the view"
+
+
+def test_long_and_right_to_left_names_stay_in_their_place(harness, web, artifacts):
+    page = harness("?payload=odd")
+    page.wait_for_timeout(150)
+    assert page.evaluate(CONTAINED) == [], "a name ran out of its panel"
+    # the full name is on hover (title) wherever a name is cut short
+    titles = page.eval_on_selector_all(".isc-root bdi.isc-nm", "els => els.map(e => e.title)")
+    assert LONG in titles and RTL in titles
+    row = page.locator(f".isc-entropy .isc-erow[data-column='{LONG}']")
+    row.hover()
+    tip = page.locator(".isc-tip")
+    assert tip.is_visible() and LONG[:200] in tip.text_content()
+    box, view = tip.bounding_box(), page.viewport_size
+    assert box["x"] >= 0 and box["x"] + box["width"] <= view["width"] and box["height"] < view["height"]
+    # the override inside a name reverses nothing around it
+    for sel, word in ((".isc-pair .isc-punit", "(columns)"), (".isc-pair .isc-punit", "(rows)"),
+                      (".isc-relevance .isc-punit", "bits"), (".isc-controls", "Bins for")):
+        assert page.evaluate(IN_ORDER, [sel, word]) == "ok", (sel, word)
+    aria = page.get_attribute(f".isc-entropy .isc-erow[data-column='{RTL}']", "aria-label")
+    assert aria.startswith("\u2068" + RTL + "\u2069:"), aria[:40]
+    assert web.page_errors == [] and web.outside_requests == []
+    web.screenshot(artifacts / "odd-names.png", full_page=True)

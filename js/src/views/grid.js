@@ -1,8 +1,8 @@
 // The information grid: every pair's measure as a canvas heat map, with labels,
 // a keyboard cursor (arrow keys move, Enter opens the pair) and a legend.
-import { h } from "../dom.js";
+import { h, iso } from "../dom.js";
 import { asFloat32, asInt32 } from "../decode.js";
-import { count, num, pval } from "../format.js";
+import { amount, count, num, pWords } from "../format.js";
 import { SEQUENTIAL, gridT, mute } from "../scales.js";
 import { cellAt as cellUnder, fitText, gridLayout } from "../layout.js";
 import { HAS_UNIT, MEASURE_LABELS, MEASURE_SHORT, ORDER_LABELS } from "../vocabulary.js";
@@ -129,7 +129,7 @@ export function gridView(ctx) {
     // the bar runs linearly in value; the colour follows the grid's square-root scale
     for (let x = 0; x < legendBar.width; x++) { g.fillStyle = SEQUENTIAL.css(gridT(x / (legendBar.width - 1), 1)); g.fillRect(x, 0, 1, legendBar.height); }
     legendMin.textContent = "0";
-    legendMax.textContent = `${num(st.max)}${HAS_UNIT[st.measure] ? ` ${st.unit}` : ""}`;
+    legendMax.textContent = `${amount(st.max)}${HAS_UNIT[st.measure] ? ` ${st.unit}` : ""}`;
   }
 
   function cellAt(ev) {
@@ -139,12 +139,12 @@ export function gridView(ctx) {
 
   function describe(i, j) {
     const k = i * st.size + j, a = st.names[i], b = st.names[j];
-    if (i === j) return [String(a), "a column with itself (its own entropy)"];
+    if (i === j) return [iso(a), "a column with itself (its own entropy)"];
     const q = st.q[k];
-    return [`${a} \u00d7 ${b}`,
-      `${MEASURE_SHORT[st.measure] || st.measure} = ${num(st.values[k])}${HAS_UNIT[st.measure] ? ` ${st.unit}` : ""}`,
+    return [`${iso(a)} \u00d7 ${iso(b)}`,
+      `${MEASURE_SHORT[st.measure] || st.measure} = ${amount(st.values[k])}${HAS_UNIT[st.measure] ? ` ${st.unit}` : ""}`,
       `n = ${count(st.n[k])} rows with both present`,
-      `q = ${pval(q)} ${q < st.alpha ? "(significant after BH)" : "(not significant after BH)"}`];
+      `${pWords("q", q)} ${q < st.alpha ? "(significant after BH)" : "(not significant after BH)"}`];
   }
 
   function open(i, j) {
@@ -166,7 +166,7 @@ export function gridView(ctx) {
     const c = cellAt(ev);
     const name = c ? null : labelAt(ev);
     // the full name of a margin label, as text (a title and the view's own tooltip)
-    if (name != null) { canvas.title = String(name); canvas.dataset.label = String(name); ctx.tip.show([String(name)], ev.clientX, ev.clientY); return; }
+    if (name != null) { canvas.title = String(name); canvas.dataset.label = String(name); ctx.tip.show([iso(name)], ev.clientX, ev.clientY); return; }
     if (canvas.title) { canvas.removeAttribute("title"); delete canvas.dataset.label; }
     if (!c) { ctx.tip.hide(); canvas.style.cursor = "default"; return; }
     canvas.style.cursor = c[0] === c[1] ? "default" : "pointer";

@@ -1,21 +1,14 @@
-// The pair view: the joint count table of the selected pair, cells coloured by
-// pointwise MI, small cells hidden on request (with the cells that would give them away).
-import { h, clear } from "../dom.js";
-import { count, num, pval } from "../format.js";
+// The pair view: the joint count table of the selected pair, cells coloured by how
+// far each count is from independence (standardised residual when the margins are
+// shown, pointwise MI otherwise), small cells hidden on request (with the cells
+// that would give them away).
+import { h, clear, iso, nameEl } from "../dom.js";
+import { amount, count, expectedWords, num, pShort, signed } from "../format.js";
 import { DIVERGING, PAPER, inkOn } from "../scales.js";
+import { choosePair, expectedCounts, maxAbs, residuals } from "../pairdata.js";
 
-export function pairKey(a, b) { return `${a}\u0000${b}`; }
-export function pairFor(ctx) { // the view to show for selected_pair: the kernel's answer, else a precomputed one
-  const sel = ctx.get("selected_pair");
-  const live = ctx.get("_pair") || {};
-  if (!Array.isArray(sel)) return { view: live.a != null ? live : null, pending: false };
-  const [a, b] = sel;
-  if (live.a === a && live.b === b) return { view: live, pending: false, flipped: false };
-  if (live.a === b && live.b === a) return { view: live, pending: false, flipped: true };
-  const cache = ctx.get("_pair_cache") || {};
-  if (cache[pairKey(a, b)]) return { view: cache[pairKey(a, b)], pending: false };
-  if (cache[pairKey(b, a)]) return { view: cache[pairKey(b, a)], pending: false, flipped: true };
-  return { view: live.a != null ? live : null, pending: true, wanted: sel };
+export function pairFor(ctx) { // the view to show for selected_pair, in its orientation
+  return choosePair(ctx.get("selected_pair"), ctx.get("_pair"), ctx.get("_pair_cache"));
 }
 
 const COMPLEMENT_MARK = "\u00b7"; // a cell hidden to protect a small one (not itself small)
@@ -44,37 +37,41 @@ export function pairView(ctx) {
     clear(body);
     const { view, pending, wanted } = pairFor(ctx);
     if (!view) {
-      titleEl.textContent = "";
+      clear(titleEl);
       body.append(h("div", { class: "isc-empty" }, pending
         ? (ctx.offline ? "This pair was not saved with the export; open it in a live notebook." : "Computing the joint table\u2026")
         : "Click a cell of the information grid to open that pair's joint table."));
       return;
     }
     const unit = view.unit || ctx.unit();
-    titleEl.textContent = `${view.a} (rows) \u00d7 ${view.b} (columns)`;
-    titleEl.title = titleEl.textContent;
+    clear(titleEl);
+    titleEl.append(nameEl(view.a, { max: "40%" }), " (rows) \u00d7 ", nameEl(view.b, { max: "40%" }), " (columns)");
+    titleEl.title = `${iso(view.a)} (rows) \u00d7 ${iso(view.b)} (columns)`;
     const holder = h("div", { class: pending ? "isc-dim" : "" });
     if (pending) body.append(h("div", { class: "isc-note" }, ctx.offline
-      ? `\u201c${wanted[0]} \u00d7 ${wanted[1]}\u201d was not saved with this export; showing the last pair.`
-      : `Computing \u201c${wanted[0]} \u00d7 ${wanted[1]}\u201d\u2026`));
+      ? ["\u201c", nameEl(wanted[0]), " \u00d7 ", nameEl(wanted[1]), "\u201d was not saved with this export; showing the last pair."]
+      : ["Computing \u201c", nameEl(wanted[0]), " \u00d7 ", nameEl(wanted[1]), "\u201d\u2026"]));
     const stat = (k, v) => h("span", null, `${k} `, h("b", null, v));
     holder.append(h("div", { class: "isc-stats" },
-      stat("MI", `${num(view.mi)} ${unit}`), stat("NMI", num(view.nmi)),
-      stat("G", view.g == null ? "\u2014" : `${num(view.g, 4)} (dof ${count(view.dof)})`), stat("p", pval(view.p_value)),
+      stat("MI", `${amount(view.mi)} ${unit}`), stat("NMI", amount(view.nmi)),
+      stat("G", view.g == null ? "\u2014" : `${num(view.g, 4)} (dof ${count(view.dof)})`), stat("p", pShort(view.p_value)),
       stat("n", count(view.n))));
-    let top = 0;
-    for (const row of view.pmi || []) for (const v of row) if (v != null && Number.isFinite(v)) top = Math.max(top, Math.abs(v));
-    top = top || 1;
+    // colour: the standardised residual where the margins are shown (an empty cell
+    // where many rows were expected is the most surprising); else pointwise MI
+    const resid = residuals(view);
+    const E = expectedCounts(view);
+    const shade = resid || view.pmi || [];
+    const top = maxAbs(shade);
     const hiddenLabel = view.min_count ? `<${view.min_count}` : "";
     const thead = h("thead", null, h("tr", null,
-      h("th", { class: "isc-corner", scope: "col", title: `rows: ${view.a}; columns: ${view.b}` }, `${view.a} \u2193  ${view.b} \u2192`),
+      h("th", { class: "isc-corner", scope: "col", title: `rows: ${iso(view.a)}; columns: ${iso(view.b)}` }, nameEl(view.a), " \u2193  ", nameEl(view.b), " \u2192"),
       (view.cols || []).map((c) => h("th", { scope: "col", title: c }, c)),
       view.row_totals ? h("th", { scope: "col", class: "isc-tot" }, "total") : null));
     const tbody = h("tbody");
     (view.rows || []).forEach((rowLabel, i) => {
       const tr = h("tr", null, h("th", { scope: "row", title: rowLabel }, rowLabel));
       (view.cols || []).forEach((colLabel, j) => {
-        const n = view.counts[i][j], p = view.pmi[i][j];
+        const n = view.counts[i][j], p = view.pmi[i][j], z = shade[i] ? shade[i][j] : null;
         if (n == null) {
           // a complementary cell (hidden only so a small one cannot be worked out from
           // the totals) may hold many rows: it must not say "fewer than"
@@ -83,16 +80,20 @@ export function pairView(ctx) {
           tr.append(h("td", {
             class: small ? "isc-hid" : "isc-hid isc-hid2", "data-hidden": small ? "small" : "complement",
             title: small ? `hidden: fewer than ${view.min_count} rows` : "hidden to protect a small cell",
-            "aria-label": small ? `${rowLabel}, ${colLabel}: hidden, fewer than ${view.min_count} rows`
-              : `${rowLabel}, ${colLabel}: hidden to protect a small cell`,
+            "aria-label": small ? `${iso(rowLabel)}, ${iso(colLabel)}: hidden, fewer than ${view.min_count} rows`
+              : `${iso(rowLabel)}, ${iso(colLabel)}: hidden to protect a small cell`,
           }, small ? hiddenLabel : COMPLEMENT_MARK));
           return;
         }
-        const rgb = p == null || !Number.isFinite(p) ? PAPER : DIVERGING.at(0.5 + p / (2 * top));
+        const rgb = z == null || !Number.isFinite(z) ? PAPER : DIVERGING.at(0.5 + z / (2 * top));
+        const e = E ? E[i][j] : null;
         const td = h("td", {
           style: { background: `rgb(${rgb.join(",")})`, color: inkOn(rgb) },
-          onmousemove: (ev) => ctx.tip.show([`${rowLabel} \u00d7 ${colLabel}`, `${count(n)} rows`,
-            p == null || !Number.isFinite(p) ? "no rows: pointwise MI undefined" : `pointwise MI ${num(p)} ${unit} (${p > 0 ? "more" : "fewer"} rows than if independent)`], ev.clientX, ev.clientY),
+          "data-shade": z == null ? null : z.toFixed(3),
+          onmousemove: (ev) => ctx.tip.show([`${iso(rowLabel)} \u00d7 ${iso(colLabel)}`,
+            e == null ? `${count(n)} rows` : `${count(n)} rows; ${expectedWords(e)} if independent`,
+            resid && z != null ? `standardised residual ${signed(z)}: ${Math.abs(z) < 2 ? "within chance of independence" : z > 0 ? "more rows than independence gives" : "fewer rows than independence gives"}` : null,
+            p == null || !Number.isFinite(p) ? (n === 0 ? "no rows: pointwise MI is minus infinity" : null) : `pointwise MI ${amount(p)} ${unit}`].filter(Boolean), ev.clientX, ev.clientY),
           onmouseleave: () => ctx.tip.hide(),
         }, count(n));
         tr.append(td);
@@ -120,8 +121,11 @@ export function pairView(ctx) {
     const bar = h("canvas", { width: 140, height: 10, "aria-hidden": "true" });
     const g = bar.getContext("2d");
     for (let x = 0; x < bar.width; x++) { g.fillStyle = DIVERGING.css(x / (bar.width - 1)); g.fillRect(x, 0, 1, bar.height); }
-    holder.append(h("div", { class: "isc-legend" }, h("span", null, `\u2212${num(top)} fewer `, bar, ` more +${num(top)} ${unit}`),
-      h("span", null, "colour: pointwise MI, log of observed over independent share")));
+    holder.append(h("div", { class: "isc-legend" }, resid
+      ? [h("span", null, `\u2212${num(top)} fewer `, bar, ` more +${num(top)}`),
+        h("span", null, "colour: standardised residual (observed \u2212 expected) / \u221aexpected, expected = rows if the two columns were independent")]
+      : [h("span", null, `\u2212${num(top)} fewer `, bar, ` more +${num(top)} ${unit}`),
+        h("span", null, "colour: pointwise MI, log of observed over independent share (margins hidden with the small cells)")]));
     if (view.min_count) {
       holder.append(h("div", { class: "isc-note" }, view.hidden_cells
         ? hiddenNote(view)

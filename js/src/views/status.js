@@ -21,8 +21,10 @@ export function statusView(ctx, onCancel) {
     const all = Array.isArray(s.notes) ? s.notes : [];
     const notes = all.length > 4 ? [...all.slice(0, 3), `… and ${all.length - 3} more notes (see the kernel log)`] : all;
     err.style.display = s.state === "error" || notes.length ? "" : "none";
-    err.textContent = s.state === "error" ? `Could not recompute: ${s.message}\n(The view shows the last finished numbers; details are in the kernel log.)`
-      : notes.join("\n");
+    // one isolated line per note: a name inside a note cannot reorder the next note
+    clear(err);
+    const lines = s.state === "error" ? [`Could not recompute: ${s.message}`, "(The view shows the last finished numbers; details are in the kernel log.)"] : notes;
+    for (const line of lines) err.append(h("div", { class: "isc-line" }, String(line)));
     err.classList.toggle("isc-notes", s.state !== "error");
   }
   draw();

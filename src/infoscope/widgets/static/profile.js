@@ -47,6 +47,11 @@ function tipOnFocus(target) {
   const b = target.getBoundingClientRect();
   target.dispatchEvent(new MouseEvent("mousemove", { clientX: b.left + 140, clientY: b.bottom - 10 }));
 }
+var iso = (name) => `⁨${String(name)}⁩`;
+function nameEl(name, { cls = "", max } = {}) {
+  const text = String(name);
+  return h("bdi", { class: `isc-nm${cls ? ` ${cls}` : ""}`, title: text, style: max ? { maxWidth: max } : null }, text);
+}
 
 // src/memory.js
 function createMemory() {
@@ -72,6 +77,19 @@ function restore(memory, root) {
     const el = [...root.querySelectorAll("[data-keep]")].find((e) => e.getAttribute("data-keep") === memory.focus);
     if (el && typeof el.focus === "function") el.focus({ preventScroll: true });
   }
+}
+function keepFocus(container, redraw) {
+  const doc = container.ownerDocument;
+  const active = doc.activeElement;
+  const kept = active && container.contains(active) ? active.closest("[data-keep]") : null;
+  const key = kept ? kept.getAttribute("data-keep") : null;
+  const top = container.scrollTop, left = container.scrollLeft;
+  redraw();
+  if (container.scrollTop !== top) container.scrollTop = top;
+  if (container.scrollLeft !== left) container.scrollLeft = left;
+  if (key == null) return;
+  const again = [...container.querySelectorAll("[data-keep]")].find((e) => e.getAttribute("data-keep") === key);
+  if (again) again.focus({ preventScroll: true });
 }
 
 // src/decode.js
@@ -162,30 +180,40 @@ var STRATEGY_LABELS = {
 var MISSING_LABELS = { drop: "leave out missing", category: "missing as a value" };
 var ORDER_LABELS = { cluster: "by similarity", name: "by name" };
 var SORT_LABELS = { entropy: "entropy", name: "name", efficiency: "efficiency", missing_share: "missing share" };
-var FLAG_LABELS = {
-  constant: "constant",
-  id_like: "ID-like",
+var FLAG_WORDS = {
+  constant: "no information",
+  id_like: "near log N",
   mostly_missing: "mostly missing",
-  sparse_cells: "sparse cells",
-  heavy_tail: "heavy tail",
-  levels_folded: "levels folded",
-  mixed_types: "mixed types",
-  infinite_values: "infinite values",
-  rare_levels: "rare levels",
+  sparse_cells: "few rows per level",
+  heavy_tail: "long tail",
+  levels_folded: "levels merged",
+  mixed_types: "mixed value types",
+  infinite_values: "±∞ as missing",
+  rare_levels: "thin levels",
   exceeds_log_k: "above log K"
 };
 var FLAG_HELP = {
-  constant: "one value only: carries no information",
-  id_like: "nearly every row distinct: entropy near log n says little",
-  mostly_missing: "most rows missing",
-  sparse_cells: "fewer than 5 rows per cell on average: estimates unreliable",
-  heavy_tail: "heavy tail: equal-width bins would crowd",
-  levels_folded: "rare levels folded into one: the grid and pair views use the folded levels, the entropy bar counts every level",
-  mixed_types: "values of mixed types",
-  infinite_values: "infinite values treated as missing",
-  exceeds_log_k: "estimate above log K of the observed levels: the bias correction credits unseen levels; K is a lower bound of the true alphabet",
-  rare_levels: "many thin levels (fewer than 5 rows or under 1% each) hold at least 5% of rows"
+  constant: "One value only: the column carries no information (H = 0).",
+  id_like: "Nearly every row has its own value: the entropy sits near log N, the most N rows can show, and says little about the column.",
+  mostly_missing: "Most rows are missing: the estimate rests on the few that are present.",
+  sparse_cells: "Fewer than 5 rows per level on average: the estimate is unreliable.",
+  heavy_tail: "A long tail: equal-width bins would crowd most rows into a few bins.",
+  levels_folded: "Rare levels were merged into one: the grid and pair views use the merged levels; the bar counts every level.",
+  mixed_types: "The values are of mixed types (e.g. numbers and text).",
+  infinite_values: "Infinite values were treated as missing.",
+  exceeds_log_k: "The estimate is above log K of the levels seen: the bias correction credits levels not seen, so K is a lower bound of the true alphabet.",
+  rare_levels: "Many thin levels (fewer than 5 rows or under 1% each) hold at least 5% of the rows."
 };
+var BY_CONSTRUCTION_WORD = "equal-count bins";
+var RELIABILITY_WORDS = { ok: "", sparse: "few rows per cell", too_few: "too few rows to tell" };
+var RELIABILITY_HELP = {
+  sparse: "Few rows per cell of the joint table (1 to 5 on average): read the number as rough.",
+  too_few: "Too few rows for this table to tell anything: the number is not a finding."
+};
+function reliabilityOf(r) {
+  if (r && typeof r.reliability === "string") return r.reliability;
+  return r && r.sparse ? "sparse" : "ok";
+}
 
 // src/controls.js
 function select(ctx, name, label, choices, labels, opts = {}) {
@@ -304,7 +332,9 @@ function controlsView(ctx) {
     colBins.input.disabled = !numeric || rule || ctx.offline;
     colReset.disabled = !numeric || ctx.offline || !((ctx.get("column_bins") || {})[col] != null);
     colBins.el.classList.toggle("isc-off", !numeric);
-    colLabel.textContent = col == null ? "Bins for a column (pick one)" : `Bins for “${col}”`;
+    clear(colLabel);
+    if (col == null) colLabel.append("Bins for a column (pick one)");
+    else colLabel.append("Bins for “", nameEl(col, { max: "14em" }), "”");
     if (!numeric) colBins.out.textContent = col == null ? "" : "not binned";
     for (const c of [strategy, estimator, measure, unit, target, missing]) {
       c.input.disabled = ctx.offline;
@@ -332,16 +362,38 @@ function num(v, digits = 3) {
   return String(Number(v.toPrecision(digits)));
 }
 function val(v) {
+  return amount(v, { fixed: true });
+}
+function amount(v, { fixed = false } = {}) {
   if (v == null || !Number.isFinite(v)) return DASH;
   const a = Math.abs(v);
-  if (a !== 0 && (a < 1e-3 || a >= 1e6)) return v.toExponential(1);
-  return a === 0 ? "0" : v.toPrecision(3);
+  if (a < 5e-4) return "0";
+  if (a >= 1e6) return v.toExponential(2);
+  if (a < 0.01) return v.toFixed(3);
+  return fixed ? v.toPrecision(3) : String(Number(v.toPrecision(3)));
+}
+function pWords(name, p) {
+  if (p == null || !Number.isFinite(p)) return `${name} not computed`;
+  return p < 1e-3 ? `${name} below 0.001` : `${name} = ${num(p, 2)}`;
+}
+function pShort(p) {
+  return p == null || !Number.isFinite(p) ? DASH : p < 1e-3 ? "below 0.001" : num(p, 2);
+}
+function levelText(ci, fallback = 0.95) {
+  const v = Number.isFinite(ci) && ci > 0 && ci < 1 ? ci : fallback;
+  return `${Number((v * 100).toPrecision(4))}%`;
+}
+function signed(v, digits = 2) {
+  if (v == null || !Number.isFinite(v)) return DASH;
+  const t = num(Math.abs(v), digits);
+  return t === "0" ? "0" : `${v < 0 ? "−" : "+"}${t}`;
+}
+function expectedWords(e) {
+  if (e == null || !Number.isFinite(e)) return "expected count unknown";
+  return `${e < 10 ? num(e, 2) : count(e)} expected`;
 }
 function count(v) {
   return v == null || !Number.isFinite(v) ? DASH : Math.round(v).toLocaleString("en-US");
-}
-function pval(p) {
-  return p == null || !Number.isFinite(p) ? DASH : p < 1e-3 ? "< 0.001" : num(p, 2);
 }
 function pct(v) {
   return v == null || !Number.isFinite(v) ? DASH : `${Math.round(v * 100)}%`;
@@ -365,7 +417,53 @@ function axisPct(v, max) {
   return `${Math.max(0, Math.min(100, v / max * 100))}%`;
 }
 
+// src/marks.js
+var BINNED_KINDS = /* @__PURE__ */ new Set(["numeric", "datetime", "timedelta"]);
+var LOG_OF_UNIT = { bits: Math.LN2, nats: 1, hartleys: Math.LN10 };
+function logIn(unit, n) {
+  const base = LOG_OF_UNIT[unit];
+  return base && n >= 1 ? Math.log(n) / base : NaN;
+}
+function flagList(flags) {
+  return String(flags || "").split(",").map((s) => s.trim()).filter(Boolean);
+}
+function entropyMarks(row, { unit = "bits", strategy = "quantile", bins = null, missing = "drop" } = {}) {
+  const flags = flagList(row.flags);
+  const present = Math.max(0, (row.n || 0) - (missing === "drop" ? row.missing || 0 : 0));
+  const logN = logIn(unit, present);
+  const byConstruction = BINNED_KINDS.has(row.kind) && strategy === "quantile" && row.k > 1;
+  const words = flags.map((f) => FLAG_WORDS[f] || f.replace(/_/g, " "));
+  const sentences = flags.map((f) => FLAG_HELP[f] || f.replace(/_/g, " "));
+  if (byConstruction) {
+    words.unshift(BY_CONSTRUCTION_WORD);
+    const asked = Number.isFinite(bins) ? bins : null;
+    sentences.unshift(`Cut into ${row.k} equal-count (quantile) bins, so its entropy sits at log K by construction: the bar says how finely the column was cut, not how much it varies. ` + (asked && row.k < asked ? `Tied values left ${row.k} of the ${asked} bins asked. ` : "") + "What such a column tells about the others shows in the grid and the relevance view.");
+  }
+  return {
+    flags,
+    words,
+    sentences,
+    byConstruction,
+    present,
+    logN: Number.isFinite(logN) ? logN : null,
+    missing: Number.isFinite(row.missing_share) ? Math.max(0, Math.min(1, row.missing_share)) : 0,
+    overLogK: flags.includes("exceeds_log_k") || Number.isFinite(row.entropy) && Number.isFinite(row.max_entropy) && row.entropy > row.max_entropy + 1e-9,
+    nearLogN: flags.includes("id_like")
+  };
+}
+
 // src/views/entropy.js
+function legendItems(level) {
+  const sw = (cls, style) => h("span", { class: `isc-swatch ${cls || ""}`, style });
+  return [
+    h("span", null, sw("", { background: "var(--isc-bar)" }), "estimate"),
+    h("span", null, sw("isc-swatch-max"), "box: log K, the most K levels can hold"),
+    h("span", null, `├─┤ ${level} interval`),
+    h("span", null, h("span", { class: "isc-key-logn", "aria-hidden": "true" }), "log N, the most N rows can show"),
+    h("span", null, h("span", { class: "isc-key-missing", "aria-hidden": "true" }), "underline: share of rows missing"),
+    h("span", null, sw("isc-swatch-bycon"), "equal-count bins: at log K by construction")
+  ];
+}
 function entropyView(ctx) {
   const el = h("section", { class: "isc-panel isc-entropy", "aria-label": "entropy bars" });
   const sortSel = select(ctx, "sort_by", "Sort", ["entropy", "name", "efficiency", "missing_share"], SORT_LABELS);
@@ -378,18 +476,18 @@ function entropyView(ctx) {
   const unitEl = h("span", { class: "isc-punit" });
   const head = h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Entropy bars"), unitEl, sortSel.el);
   const body = h("div", { class: "isc-bars" });
-  const legend = h(
-    "div",
-    { class: "isc-legend" },
-    h("span", null, h("span", { class: "isc-swatch", style: { background: "var(--isc-bar)" } }), "estimate"),
-    h("span", null, h("span", { class: "isc-swatch isc-swatch-max" }), "maximum, log K"),
-    h("span", null, "├─┤ 95% interval")
-  );
+  const legend = h("div", { class: "isc-legend" });
   el.append(head, body, legend);
   function draw() {
+    keepFocus(body, drawRows);
+  }
+  function drawRows() {
     sortSel.sync();
     const data = ctx.entropy();
     const unit = data && data.unit || ctx.unit();
+    const level = levelText(data && data.ci);
+    clear(legend);
+    legend.append(...legendItems(level));
     unitEl.textContent = data ? `${unit} per column · ${ESTIMATOR_LABELS[data.estimator] || data.estimator || ""}` : "";
     clear(body);
     const rows = table(data);
@@ -400,6 +498,9 @@ function entropyView(ctx) {
     const key = ctx.get("sort_by") || "entropy";
     const sortKey = (r) => r[key] == null ? -Infinity : r[key];
     rows.sort(key === "name" ? (a, b) => String(a.column).localeCompare(String(b.column)) : (a, b) => sortKey(b) - sortKey(a) || String(a.column).localeCompare(String(b.column)));
+    const settings = { unit, strategy: ctx.get("strategy"), missing: ctx.get("missing") };
+    const overrides = ctx.get("column_bins") || {};
+    const marks = new Map(rows.map((r) => [r, entropyMarks(r, { ...settings, bins: overrides[r.column] ?? ctx.get("bins") })]));
     let top = 0;
     for (const r of rows) for (const f of ["max_entropy", "ci_high", "entropy"]) if (Number.isFinite(r[f])) top = Math.max(top, r[f]);
     const max = niceMax(top);
@@ -409,41 +510,44 @@ function entropyView(ctx) {
     body.append(h(
       "div",
       { class: "isc-axis", "aria-hidden": "true" },
-      h("span", { class: "isc-name", style: { color: "var(--isc-ink3)", fontSize: "11px" } }, "column"),
+      h("span", { class: "isc-name isc-axislab" }, "column"),
       tickBox,
-      h("span", { class: "isc-val", style: { color: "var(--isc-ink3)", fontSize: "11px" } }, unit),
-      h("span", { style: { color: "var(--isc-ink3)", fontSize: "11px" } }, "flags")
+      h("span", { class: "isc-val isc-axislab" }, unit),
+      h("span", { class: "isc-axislab" }, "notes")
     ));
     const selected = ctx.get("selected_column");
     const gridTicks = ticks(max);
     for (const r of rows) {
+      const m = marks.get(r);
       const track = h("span", { class: "isc-track" });
       for (const t of gridTicks.slice(1)) track.append(h("span", { class: "isc-gridline", style: { left: x(t) } }));
-      if (Number.isFinite(r.max_entropy)) track.append(h("span", { class: "isc-max", style: { width: x(r.max_entropy) } }));
-      if (Number.isFinite(r.entropy)) track.append(h("span", { class: "isc-fill", style: { width: x(r.entropy) } }));
+      if (Number.isFinite(r.max_entropy)) track.append(h("span", { class: `isc-max${m.overLogK ? " isc-over" : ""}`, style: { width: x(r.max_entropy) } }));
+      if (Number.isFinite(r.entropy)) track.append(h("span", { class: `isc-fill${m.byConstruction ? " isc-bycon" : ""}`, style: { width: x(r.entropy) } }));
       if (Number.isFinite(r.ci_low) && Number.isFinite(r.ci_high)) {
         track.append(h("span", { class: "isc-whisk", style: { left: x(r.ci_low), width: `calc(${x(r.ci_high)} - ${x(r.ci_low)})` } }));
       }
-      const flags = String(r.flags || "").split(",").map((s) => s.trim()).filter(Boolean);
-      const flagBox = h("span", { class: "isc-flags" }, flags.map((f) => h("span", { class: "isc-flag", title: FLAG_HELP[f] || f }, FLAG_LABELS[f] || f)));
-      const label = `${r.column}: entropy ${num(r.entropy)} ${unit}, 95% interval ${num(r.ci_low)} to ${num(r.ci_high)}, maximum ${num(r.max_entropy)}`;
+      if (m.logN != null && m.logN <= max) track.append(h("span", { class: `isc-logn${m.nearLogN ? " isc-near" : ""}`, style: { left: x(m.logN) } }));
+      if (m.missing > 0) track.append(h("span", { class: "isc-missing", style: { width: `${(m.missing * 100).toFixed(1)}%` } }));
+      const notes = h("span", { class: "isc-notes" }, m.words.join(", "));
+      const label = `${iso(r.column)}: entropy ${amount(r.entropy)} ${unit}, ${level} interval ${amount(r.ci_low)} to ${amount(r.ci_high)}, maximum ${amount(r.max_entropy)}${m.words.length ? `; ${m.words.join(", ")}` : ""}`;
       const btn = h("button", {
         class: "isc-erow",
         type: "button",
         "aria-pressed": String(selected === r.column),
         "aria-label": label,
         "data-column": r.column,
+        "data-keep": `entropy:${r.column}`,
         onclick: () => ctx.set("selected_column", ctx.get("selected_column") === r.column ? null : r.column),
         onfocus: () => tipOnFocus(btn),
         onblur: () => ctx.tip.hide(),
         onmousemove: (ev) => ctx.tip.show([
-          String(r.column),
-          `${r.kind}, K = ${count(r.k)} symbols`,
-          `H = ${num(r.entropy)} ${unit}  (95%: ${num(r.ci_low)} – ${num(r.ci_high)})`,
-          `maximum log K = ${num(r.max_entropy)} ${unit}`,
-          `efficiency ${pct(r.efficiency)} · effective categories ${num(r.effective_categories)}`,
-          `n = ${count(r.n)} · missing ${count(r.missing)} (${pct(r.missing_share)})`,
-          ...flags.map((f) => `▸ ${FLAG_HELP[f] || f}`)
+          [nameEl(r.column)],
+          `${r.kind}, K = ${count(r.k)} levels`,
+          `H = ${amount(r.entropy)} ${unit}  (${level}: ${amount(r.ci_low)} – ${amount(r.ci_high)})`,
+          `log K = ${amount(r.max_entropy)} ${unit}${m.logN != null ? ` · log N = ${amount(m.logN)} ${unit} (${count(m.present)} rows)` : ""}`,
+          `efficiency ${pct(r.efficiency)} · effective levels ${num(r.effective_categories)}`,
+          `missing ${count(r.missing)} of ${count(r.n)} rows (${pct(r.missing_share)})`,
+          ...m.sentences.map((s) => `▸ ${s}`)
         ], ev.clientX, ev.clientY),
         onmouseleave: () => ctx.tip.hide(),
         onkeydown: (ev) => {
@@ -452,7 +556,7 @@ function entropyView(ctx) {
           const sib = ev.key === "ArrowDown" ? btn.nextElementSibling : btn.previousElementSibling;
           if (sib && sib.classList.contains("isc-erow")) sib.focus();
         }
-      }, h("span", { class: "isc-name" }, String(r.column)), track, h("span", { class: "isc-val" }, val(r.entropy)), flagBox);
+      }, h("span", { class: "isc-name" }, nameEl(r.column)), track, h("span", { class: "isc-val" }, val(r.entropy)), notes);
       body.append(btn);
     }
   }
@@ -694,7 +798,7 @@ function gridView(ctx) {
       g.fillRect(x, 0, 1, legendBar.height);
     }
     legendMin.textContent = "0";
-    legendMax.textContent = `${num(st.max)}${HAS_UNIT[st.measure] ? ` ${st.unit}` : ""}`;
+    legendMax.textContent = `${amount(st.max)}${HAS_UNIT[st.measure] ? ` ${st.unit}` : ""}`;
   }
   function cellAt2(ev) {
     const r = canvas.getBoundingClientRect();
@@ -702,13 +806,13 @@ function gridView(ctx) {
   }
   function describe(i, j) {
     const k = i * st.size + j, a = st.names[i], b = st.names[j];
-    if (i === j) return [String(a), "a column with itself (its own entropy)"];
+    if (i === j) return [iso(a), "a column with itself (its own entropy)"];
     const q = st.q[k];
     return [
-      `${a} × ${b}`,
-      `${MEASURE_SHORT[st.measure] || st.measure} = ${num(st.values[k])}${HAS_UNIT[st.measure] ? ` ${st.unit}` : ""}`,
+      `${iso(a)} × ${iso(b)}`,
+      `${MEASURE_SHORT[st.measure] || st.measure} = ${amount(st.values[k])}${HAS_UNIT[st.measure] ? ` ${st.unit}` : ""}`,
       `n = ${count(st.n[k])} rows with both present`,
-      `q = ${pval(q)} ${q < st.alpha ? "(significant after BH)" : "(not significant after BH)"}`
+      `${pWords("q", q)} ${q < st.alpha ? "(significant after BH)" : "(not significant after BH)"}`
     ];
   }
   function open(i, j) {
@@ -730,7 +834,7 @@ function gridView(ctx) {
     if (name != null) {
       canvas.title = String(name);
       canvas.dataset.label = String(name);
-      ctx.tip.show([String(name)], ev.clientX, ev.clientY);
+      ctx.tip.show([iso(name)], ev.clientX, ev.clientY);
       return;
     }
     if (canvas.title) {
@@ -785,21 +889,59 @@ function gridView(ctx) {
   return { el, draw, destroy: () => ro && ro.disconnect(), state: st, canvas };
 }
 
-// src/views/pair.js
+// src/pairdata.js
 function pairKey(a, b) {
   return `${a}\0${b}`;
 }
-function pairFor(ctx) {
-  const sel = ctx.get("selected_pair");
-  const live = ctx.get("_pair") || {};
-  if (!Array.isArray(sel)) return { view: live.a != null ? live : null, pending: false };
-  const [a, b] = sel;
-  if (live.a === a && live.b === b) return { view: live, pending: false, flipped: false };
-  if (live.a === b && live.b === a) return { view: live, pending: false, flipped: true };
-  const cache = ctx.get("_pair_cache") || {};
+var T = (m) => Array.isArray(m) && m.length ? m[0].map((_, j) => m.map((row) => row ? row[j] : null)) : m;
+function transposeView(view) {
+  if (!view) return view;
+  return {
+    ...view,
+    a: view.b,
+    b: view.a,
+    rows: view.cols,
+    cols: view.rows,
+    counts: T(view.counts),
+    pmi: T(view.pmi),
+    hidden_reasons: view.hidden_reasons ? T(view.hidden_reasons) : view.hidden_reasons,
+    row_totals: view.col_totals,
+    col_totals: view.row_totals,
+    ...view.expected ? { expected: T(view.expected) } : {}
+  };
+}
+function choosePair(selected, live, cache) {
+  live = live || {};
+  cache = cache || {};
+  if (!Array.isArray(selected)) return { view: live.a != null ? live : null, pending: false };
+  const [a, b] = selected;
+  if (live.a === a && live.b === b) return { view: live, pending: false };
+  if (live.a === b && live.b === a) return { view: transposeView(live), pending: false };
   if (cache[pairKey(a, b)]) return { view: cache[pairKey(a, b)], pending: false };
-  if (cache[pairKey(b, a)]) return { view: cache[pairKey(b, a)], pending: false, flipped: true };
-  return { view: live.a != null ? live : null, pending: true, wanted: sel };
+  if (cache[pairKey(b, a)]) return { view: transposeView(cache[pairKey(b, a)]), pending: false };
+  return { view: live.a != null ? live : null, pending: true, wanted: selected };
+}
+function expectedCounts(view) {
+  const r = view && view.row_totals, c = view && view.col_totals;
+  if (!Array.isArray(r) || !Array.isArray(c)) return null;
+  const n = r.reduce((s, v) => s + (v || 0), 0);
+  if (!(n > 0)) return null;
+  return r.map((ri) => c.map((cj) => (ri || 0) * (cj || 0) / n));
+}
+function residuals(view) {
+  const E = expectedCounts(view);
+  if (!E) return null;
+  return view.counts.map((row, i) => row.map((o, j) => o == null || !(E[i][j] > 0) ? null : (o - E[i][j]) / Math.sqrt(E[i][j])));
+}
+function maxAbs(m) {
+  let top = 0;
+  for (const row of m || []) for (const v of row || []) if (v != null && Number.isFinite(v)) top = Math.max(top, Math.abs(v));
+  return top || 1;
+}
+
+// src/views/pair.js
+function pairFor(ctx) {
+  return choosePair(ctx.get("selected_pair"), ctx.get("_pair"), ctx.get("_pair_cache"));
 }
 var COMPLEMENT_MARK = "·";
 function hiddenNote(view) {
@@ -826,33 +968,35 @@ function pairView(ctx) {
     clear(body);
     const { view, pending, wanted } = pairFor(ctx);
     if (!view) {
-      titleEl.textContent = "";
+      clear(titleEl);
       body.append(h("div", { class: "isc-empty" }, pending ? ctx.offline ? "This pair was not saved with the export; open it in a live notebook." : "Computing the joint table…" : "Click a cell of the information grid to open that pair's joint table."));
       return;
     }
     const unit = view.unit || ctx.unit();
-    titleEl.textContent = `${view.a} (rows) × ${view.b} (columns)`;
-    titleEl.title = titleEl.textContent;
+    clear(titleEl);
+    titleEl.append(nameEl(view.a, { max: "40%" }), " (rows) × ", nameEl(view.b, { max: "40%" }), " (columns)");
+    titleEl.title = `${iso(view.a)} (rows) × ${iso(view.b)} (columns)`;
     const holder = h("div", { class: pending ? "isc-dim" : "" });
-    if (pending) body.append(h("div", { class: "isc-note" }, ctx.offline ? `“${wanted[0]} × ${wanted[1]}” was not saved with this export; showing the last pair.` : `Computing “${wanted[0]} × ${wanted[1]}”…`));
+    if (pending) body.append(h("div", { class: "isc-note" }, ctx.offline ? ["“", nameEl(wanted[0]), " × ", nameEl(wanted[1]), "” was not saved with this export; showing the last pair."] : ["Computing “", nameEl(wanted[0]), " × ", nameEl(wanted[1]), "”…"]));
     const stat = (k, v) => h("span", null, `${k} `, h("b", null, v));
     holder.append(h(
       "div",
       { class: "isc-stats" },
-      stat("MI", `${num(view.mi)} ${unit}`),
-      stat("NMI", num(view.nmi)),
+      stat("MI", `${amount(view.mi)} ${unit}`),
+      stat("NMI", amount(view.nmi)),
       stat("G", view.g == null ? "—" : `${num(view.g, 4)} (dof ${count(view.dof)})`),
-      stat("p", pval(view.p_value)),
+      stat("p", pShort(view.p_value)),
       stat("n", count(view.n))
     ));
-    let top = 0;
-    for (const row of view.pmi || []) for (const v of row) if (v != null && Number.isFinite(v)) top = Math.max(top, Math.abs(v));
-    top = top || 1;
+    const resid = residuals(view);
+    const E = expectedCounts(view);
+    const shade = resid || view.pmi || [];
+    const top = maxAbs(shade);
     const hiddenLabel = view.min_count ? `<${view.min_count}` : "";
     const thead = h("thead", null, h(
       "tr",
       null,
-      h("th", { class: "isc-corner", scope: "col", title: `rows: ${view.a}; columns: ${view.b}` }, `${view.a} ↓  ${view.b} →`),
+      h("th", { class: "isc-corner", scope: "col", title: `rows: ${iso(view.a)}; columns: ${iso(view.b)}` }, nameEl(view.a), " ↓  ", nameEl(view.b), " →"),
       (view.cols || []).map((c) => h("th", { scope: "col", title: c }, c)),
       view.row_totals ? h("th", { scope: "col", class: "isc-tot" }, "total") : null
     ));
@@ -860,7 +1004,7 @@ function pairView(ctx) {
     (view.rows || []).forEach((rowLabel, i) => {
       const tr = h("tr", null, h("th", { scope: "row", title: rowLabel }, rowLabel));
       (view.cols || []).forEach((colLabel, j) => {
-        const n = view.counts[i][j], p = view.pmi[i][j];
+        const n = view.counts[i][j], p = view.pmi[i][j], z = shade[i] ? shade[i][j] : null;
         if (n == null) {
           const why = view.hidden_reasons && view.hidden_reasons[i] ? view.hidden_reasons[i][j] : "small";
           const small = why !== "complement";
@@ -868,18 +1012,21 @@ function pairView(ctx) {
             class: small ? "isc-hid" : "isc-hid isc-hid2",
             "data-hidden": small ? "small" : "complement",
             title: small ? `hidden: fewer than ${view.min_count} rows` : "hidden to protect a small cell",
-            "aria-label": small ? `${rowLabel}, ${colLabel}: hidden, fewer than ${view.min_count} rows` : `${rowLabel}, ${colLabel}: hidden to protect a small cell`
+            "aria-label": small ? `${iso(rowLabel)}, ${iso(colLabel)}: hidden, fewer than ${view.min_count} rows` : `${iso(rowLabel)}, ${iso(colLabel)}: hidden to protect a small cell`
           }, small ? hiddenLabel : COMPLEMENT_MARK));
           return;
         }
-        const rgb = p == null || !Number.isFinite(p) ? PAPER : DIVERGING.at(0.5 + p / (2 * top));
+        const rgb = z == null || !Number.isFinite(z) ? PAPER : DIVERGING.at(0.5 + z / (2 * top));
+        const e = E ? E[i][j] : null;
         const td = h("td", {
           style: { background: `rgb(${rgb.join(",")})`, color: inkOn(rgb) },
+          "data-shade": z == null ? null : z.toFixed(3),
           onmousemove: (ev) => ctx.tip.show([
-            `${rowLabel} × ${colLabel}`,
-            `${count(n)} rows`,
-            p == null || !Number.isFinite(p) ? "no rows: pointwise MI undefined" : `pointwise MI ${num(p)} ${unit} (${p > 0 ? "more" : "fewer"} rows than if independent)`
-          ], ev.clientX, ev.clientY),
+            `${iso(rowLabel)} × ${iso(colLabel)}`,
+            e == null ? `${count(n)} rows` : `${count(n)} rows; ${expectedWords(e)} if independent`,
+            resid && z != null ? `standardised residual ${signed(z)}: ${Math.abs(z) < 2 ? "within chance of independence" : z > 0 ? "more rows than independence gives" : "fewer rows than independence gives"}` : null,
+            p == null || !Number.isFinite(p) ? n === 0 ? "no rows: pointwise MI is minus infinity" : null : `pointwise MI ${amount(p)} ${unit}`
+          ].filter(Boolean), ev.clientX, ev.clientY),
           onmouseleave: () => ctx.tip.hide()
         }, count(n));
         tr.append(td);
@@ -913,12 +1060,13 @@ function pairView(ctx) {
       g.fillStyle = DIVERGING.css(x / (bar.width - 1));
       g.fillRect(x, 0, 1, bar.height);
     }
-    holder.append(h(
-      "div",
-      { class: "isc-legend" },
+    holder.append(h("div", { class: "isc-legend" }, resid ? [
+      h("span", null, `−${num(top)} fewer `, bar, ` more +${num(top)}`),
+      h("span", null, "colour: standardised residual (observed − expected) / √expected, expected = rows if the two columns were independent")
+    ] : [
       h("span", null, `−${num(top)} fewer `, bar, ` more +${num(top)} ${unit}`),
-      h("span", null, "colour: pointwise MI, log of observed over independent share")
-    ));
+      h("span", null, "colour: pointwise MI, log of observed over independent share (margins hidden with the small cells)")
+    ]));
     if (view.min_count) {
       holder.append(h("div", { class: "isc-note" }, view.hidden_cells ? hiddenNote(view) : `Cells with fewer than ${view.min_count} rows would be hidden; none are.`));
     }
@@ -936,26 +1084,33 @@ function relevanceView(ctx) {
   const legend = h("div", { class: "isc-legend" });
   el.append(h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Relevance"), sub), body, legend);
   function draw() {
+    keepFocus(body, drawRows);
+  }
+  function drawRows() {
     clear(body);
     const data = parseJSON(ctx.get("_relevance"));
     if (!data || data.target == null) {
-      sub.textContent = "";
+      clear(sub);
       clear(legend);
       body.append(h("div", { class: "isc-empty" }, ctx.get("target") != null ? "Computing…" : "Pick a relevance target in the controls to see how much each column tells about it."));
       return;
     }
     const unit = data.unit || ctx.unit();
-    sub.textContent = `mutual information with “${data.target}”, ${unit}`;
+    const level = levelText(data.ci);
+    clear(sub);
+    sub.append("mutual information with ", nameEl(data.target), `, ${unit}`);
+    const alpha = ctx.get("alpha_fdr") || 0.05;
     clear(legend);
     legend.append(
+      h("span", null, h("span", { class: "isc-swatch", style: { background: "var(--isc-bar)" } }), "a finding: significant after Benjamini–Hochberg and enough rows"),
       h(
         "span",
         null,
         h("span", { class: "isc-swatch", style: { background: "var(--isc-bar-muted)" } }),
-        `n.s.: not significant after Benjamini–Hochberg (q ≥ ${num(ctx.get("alpha_fdr") ?? 0.05)})`
+        `muted: not significant (q ≥ ${num(alpha)}) or too few rows per cell to tell`
       ),
-      h("span", null, h("span", { class: "isc-flag isc-leak" }, "possible leak"), " carries ≥ 95% of the target's entropy"),
-      h("span", null, "├─┤ 95% interval")
+      h("span", null, h("span", { class: "isc-leakword" }, "may leak the target"), ": carries ≥ 95% of the target's entropy"),
+      h("span", null, `├─┤ ${level} interval`)
     );
     const rows = table(data).sort((a, b) => (b.mi ?? -1) - (a.mi ?? -1));
     let top = 0;
@@ -967,42 +1122,49 @@ function relevanceView(ctx) {
     body.append(h(
       "div",
       { class: "isc-axis", "aria-hidden": "true" },
-      h("span", { class: "isc-name", style: { color: "var(--isc-ink3)", fontSize: "11px" } }, "column"),
+      h("span", { class: "isc-name isc-axislab" }, "column"),
       tickBox,
-      h("span", { class: "isc-val", style: { color: "var(--isc-ink3)", fontSize: "11px" } }, unit),
-      h("span")
+      h("span", { class: "isc-val isc-axislab" }, unit),
+      h("span", { class: "isc-axislab" }, "notes")
     ));
-    const alpha = ctx.get("alpha_fdr") || 0.05;
     for (const r of rows) {
       const sig = r.q_value != null && r.q_value < alpha;
+      const rel = reliabilityOf(r);
+      const finding = sig && rel !== "too_few" && rel !== "sparse";
       const track = h("span", { class: "isc-track" });
-      if (Number.isFinite(r.mi)) track.append(h("span", { class: "isc-fill", style: { width: x(r.mi), background: sig ? "var(--isc-bar)" : "var(--isc-bar-muted)" } }));
+      if (Number.isFinite(r.mi)) track.append(h("span", { class: "isc-fill", style: { width: x(r.mi), background: finding ? "var(--isc-bar)" : "var(--isc-bar-muted)" } }));
       if (Number.isFinite(r.ci_low) && Number.isFinite(r.ci_high)) {
         track.append(h("span", { class: "isc-whisk", style: { left: x(r.ci_low), width: `calc(${x(r.ci_high)} - ${x(r.ci_low)})` } }));
       }
-      const marks = h(
+      const words = [RELIABILITY_WORDS[rel] || (rel !== "ok" ? rel : ""), !sig ? "not significant" : ""].filter(Boolean);
+      const notes = h(
         "span",
-        { class: "isc-flags" },
-        r.leakage ? h("span", { class: "isc-flag isc-leak", title: "carries at least 95% of the target's entropy: check it is not derived from the target" }, "possible leak") : null,
-        r.sparse ? h("span", { class: "isc-flag", title: FLAG_HELP.sparse_cells }, "sparse cells") : null,
-        !sig ? h("span", { class: "isc-flag", title: "not significant after Benjamini–Hochberg" }, "n.s.") : null
+        { class: "isc-relmarks" },
+        r.leakage ? h("span", { class: "isc-leakword" }, "may leak the target") : null,
+        r.leakage && words.length ? ", " : null,
+        words.join(", ")
       );
       const rowEl = h("div", {
         class: "isc-erow",
         style: { cursor: "default" },
         tabindex: 0,
+        "data-keep": `relevance:${r.column}`,
+        "data-finding": String(finding),
+        "data-reliability": rel,
         onfocus: () => tipOnFocus(rowEl),
         onblur: () => ctx.tip.hide(),
-        "aria-label": `${r.column}: ${num(r.mi)} ${unit} about ${data.target}${r.leakage ? ", possible leak" : ""}`,
+        "aria-label": `${iso(r.column)}: ${amount(r.mi)} ${unit} about ${iso(data.target)}${r.leakage ? ", may leak the target" : ""}${words.length ? `, ${words.join(", ")}` : ""}`,
         onmousemove: (ev) => ctx.tip.show([
-          String(r.column),
-          `I(${r.column}; ${data.target}) = ${num(r.mi)} ${unit}  (95%: ${num(r.ci_low)} – ${num(r.ci_high)})`,
-          `share of the target's entropy ${pct(r.share_of_target)} · NMI ${num(r.nmi)}`,
-          `p = ${pval(r.p_value)}, q = ${pval(r.q_value)} · n = ${count(r.n)}`,
-          r.leakage ? "▸ possible leak: nearly determines the target" : null
+          [nameEl(r.column)],
+          ["I(", nameEl(r.column), "; ", nameEl(data.target), `) = ${amount(r.mi)} ${unit}  (${level}: ${amount(r.ci_low)} – ${amount(r.ci_high)})`],
+          `share of the target's entropy ${pct(r.share_of_target)} · NMI ${amount(r.nmi)}`,
+          `${pWords("p", r.p_value)}, ${pWords("q", r.q_value)} · n = ${count(r.n)}`,
+          RELIABILITY_HELP[rel] ? `▸ ${RELIABILITY_HELP[rel]}` : null,
+          !sig ? "▸ Not significant after Benjamini–Hochberg: as much as chance alone gives." : null,
+          r.leakage ? "▸ May leak the target: it nearly determines the target; check it is not derived from it." : null
         ].filter(Boolean), ev.clientX, ev.clientY),
         onmouseleave: () => ctx.tip.hide()
-      }, h("span", { class: "isc-name" }, String(r.column)), track, h("span", { class: "isc-val" }, val(r.mi)), marks);
+      }, h("span", { class: "isc-name" }, nameEl(r.column)), track, h("span", { class: "isc-val" }, val(r.mi)), notes);
       body.append(rowEl);
     }
   }
@@ -1029,8 +1191,9 @@ function statusView(ctx, onCancel) {
     const all = Array.isArray(s.notes) ? s.notes : [];
     const notes = all.length > 4 ? [...all.slice(0, 3), `… and ${all.length - 3} more notes (see the kernel log)`] : all;
     err.style.display = s.state === "error" || notes.length ? "" : "none";
-    err.textContent = s.state === "error" ? `Could not recompute: ${s.message}
-(The view shows the last finished numbers; details are in the kernel log.)` : notes.join("\n");
+    clear(err);
+    const lines = s.state === "error" ? [`Could not recompute: ${s.message}`, "(The view shows the last finished numbers; details are in the kernel log.)"] : notes;
+    for (const line of lines) err.append(h("div", { class: "isc-line" }, String(line)));
     err.classList.toggle("isc-notes", s.state !== "error");
   }
   draw();
