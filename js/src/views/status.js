@@ -1,7 +1,7 @@
 // The status line (progress, cancel, errors, notes) and the caution line under every view.
 import { h, clear } from "../dom.js";
 import { table } from "../decode.js";
-import { count } from "../format.js";
+import { count, levelText } from "../format.js";
 
 export function statusView(ctx, onCancel) {
   const el = h("div", { class: "isc-status", role: "status", "aria-live": "polite" });
@@ -42,7 +42,7 @@ export function cautionView(ctx) {
     const sampled = data.sampled || meta.sampled;
     const busy = (ctx.get("_status") || {}).state === "computing";
     if (sampled) el.append(h("span", { class: "isc-sampled" }, `Sampled: these numbers come from a seeded sample of ${count(sampled)} rows${meta.n_rows ? ` of ${count(meta.n_rows)}` : ""}${busy && !ctx.offline ? "; the full data follow" : ""}.`));
-    el.append(h("span", null, `Estimates from ${n ? `${count(n)} rows` : "a sample"}, with 95% intervals; they carry sampling error.`));
+    el.append(h("span", null, `Estimates from ${n ? `${count(n)} rows` : "a sample"}, with ${levelText(data.ci)} intervals; they carry sampling error.`));
     el.append(h("span", null, "Mutual information measures dependence, not cause."));
     el.append(h("span", null, "Bias-corrected estimates near 0 can be slightly negative."));
     el.append(h("span", null, "Profiles of personal data can reveal rare values: hide small cells, and follow the law and policy that apply."));
