@@ -1,0 +1,369 @@
+r"""Tests of independence that hold at every sample size, and how far a table can be trusted.
+
+Why not always the chi-square approximation
+-------------------------------------------
+The G statistic :math:`G = 2 \sum O \ln(O / E) = 2 N \hat I` is chi-square distributed
+with :math:`(r - 1)(c - 1)` degrees of freedom only when the table is well filled.
+A 16 x 16 table of 300 rows (about one row per cell) gives G values far above the
+chi-square law under independence: in our simulation about two thirds of the pairs
+of independent columns came out at p < 0.05.  So:
+
+* **chi-square, with Williams' correction** (``p_method = "chi2"``) where the table
+  has at least :data:`CHI2_MIN_MEAN_COUNT` rows per non-empty cell on average.  G is
+  divided by Williams' (1976) factor
+
+  .. math:: q = 1 + \frac{(N \sum_i 1/R_i - 1)(N \sum_j 1/C_j - 1)}{6 N (r - 1)(c - 1)}
+
+  (:func:`williams_correction`), which removes most of the remaining excess of G over
+  its chi-square mean.  The threshold was chosen by simulation, not from the usual
+  "expected counts of at least 5": on null tables of 8 x 8 to 64 x 64 cells with
+  uniform, mildly and strongly uneven margins, the corrected test kept its rejection
+  rate within about 1.3 times the nominal level at 0.05, 0.01 and 0.001 from 20 rows
+  per cell on, while at 5-10 rows per cell large tables with uneven margins still
+  rejected 1.5-3 times too often (``benchmarks/calibration.py``, section
+  "approximation rule", repeats that simulation).
+* **a Monte-Carlo permutation test** (``p_method = "permutation"``) everywhere else:
+  the second column is shuffled against the first on the rows where both are
+  present, which is the null distribution itself (the margins are kept), counted by
+  the engine many shuffles per compiled pass.  With :math:`b` of :math:`L` shuffles
+  reaching the observed G the p-value is :math:`(b + 1)/(L + 1)`, never below the
+  nominal size (Phipson & Smyth 2010).  Shuffling stops early (Besag & Clifford
+  1991) once :data:`PERMUTATION_STOP_AFTER` shuffles reached the observed G, with
+  :math:`p = b / L`: a pair far from significance costs a few dozen shuffles.  The
+  budget grows in stages (:data:`PERMUTATION_BUDGETS`) only for pairs whose
+  p-value is at the resolution of the budget and not yet a finding under
+  Benjamini-Hochberg, so that a single real dependence among many pairs can still
+  reach a q-value below 0.05.  ``n_permutations`` and ``p_error`` (the Monte-Carlo
+  standard error :math:`\sqrt{p(1-p)/L}`) say how precise each p-value is.
+* ``p_method = "none"``: one side has a single observed level (0 degrees of
+  freedom): p = 1, nothing to test; an empty table: p = NaN.
+
+Reliability of a table (:func:`table_reliability`)
+--------------------------------------------------
+``"ok"``: at least 5 rows per non-empty cell on average (common practice for
+chi-square style tables); ``"sparse"``: fewer; ``"too_few"``: fewer than one row
+per non-empty cell, or fewer than :data:`TOO_FEW_ROWS` rows — the MI estimate is
+then mostly its own bias and says little, although the permutation p-value stays
+valid (a strong dependence can still be found).
+"""
+from __future__ import annotations
+
+from collections.abc import Callable
+from typing import NamedTuple
+
+import numpy as np
+from scipy import special, stats
+
+__all__ = [
+    "CHI2_MIN_MEAN_COUNT",
+    "PERMUTATION_BUDGETS",
+    "PERMUTATION_MIN_SHUFFLES",
+    "PERMUTATION_ROW_BUDGET",
+    "PERMUTATION_STOP_AFTER",
+    "RELIABILITY_STATES",
+    "SPARSE_MEAN_COUNT",
+    "TOO_FEW_ROWS",
+    "IndependenceTests",
+    "g_statistics",
+    "independence_tests",
+    "monte_carlo_p_value",
+    "table_reliability",
+    "williams_correction",
+]
+
+#: The chi-square approximation (with Williams' correction) is used when a table has
+#: at least this many rows per non-empty cell on average (chosen by simulation).
+CHI2_MIN_MEAN_COUNT = 20.0
+#: Fewer rows per non-empty cell than this on average: the table is "sparse"
+#: (common practice: expected counts of at least 5).
+SPARSE_MEAN_COUNT = 5.0
+#: Fewer rows than this (or under one row per non-empty cell): "too_few".
+TOO_FEW_ROWS = 10
+#: The reliability states, best first (one vocabulary for every view).
+RELIABILITY_STATES = ("ok", "sparse", "too_few")
+#: Sequential stopping: a pair stops once this many shuffles reached its observed G.
+PERMUTATION_STOP_AFTER = 20
+#: Shuffle budgets per pair, in stages (see the module notes).
+PERMUTATION_BUDGETS = (999, 9_999, 99_999)
+#: No pair is given more shuffles than this many rows shuffled in all (a pair of
+#: 50,000 rows gets at most 4,000 shuffles); ``n_permutations`` then says the
+#: resolution of its p-value.
+PERMUTATION_ROW_BUDGET = 200_000_000
+#: ... but never fewer than this many shuffles (p-values down to 0.01).
+PERMUTATION_MIN_SHUFFLES = 99
+
+
+class IndependenceTests(NamedTuple):
+    """Per-table results of :func:`independence_tests` (arrays of one length)."""
+
+    statistic: np.ndarray  #: G = 2 N I (plug-in, nats), not corrected
+    dof: np.ndarray  #: (r' - 1)(c' - 1) over non-empty rows and columns
+    p_value: np.ndarray
+    p_method: np.ndarray  #: "chi2", "permutation" or "none"
+    n_permutations: np.ndarray  #: shuffles made (0 unless permutation)
+    exceed: np.ndarray  #: shuffles that reached the observed G
+    p_error: np.ndarray  #: Monte-Carlo standard error of p (0 unless permutation)
+    reliability: np.ndarray  #: "ok", "sparse" or "too_few"
+
+
+def _as_tables(tables) -> list[np.ndarray]:
+    if isinstance(tables, np.ndarray) and tables.ndim == 3:
+        return [np.asarray(t, dtype=np.float64) for t in tables]
+    out = []
+    for i, t in enumerate(tables):
+        arr = np.asarray(t, dtype=np.float64)
+        if arr.ndim != 2:
+            raise ValueError(f"tables[{i}] must be a 2-D table of counts, got shape {arr.shape}")
+        if arr.size and (not np.all(np.isfinite(arr)) or arr.min() < 0):
+            raise ValueError(f"tables[{i}] must hold finite non-negative counts")
+        out.append(arr)
+    return out
+
+
+def williams_correction(rows, cols) -> np.ndarray:
+    r"""Williams' (1976) correction factor q of the G-test of independence.
+
+    Parameters
+    ----------
+    rows, cols : array_like, shape (..., r) and (..., c)
+        Row and column totals of one table or of a stack of tables.  Zero totals
+        (empty rows or columns) are left out, as they carry no observation.
+
+    Returns
+    -------
+    numpy.ndarray
+        :math:`q = 1 + (N \sum_i 1/R_i - 1)(N \sum_j 1/C_j - 1) / (6 N (r'-1)(c'-1))`,
+        ``r'`` and ``c'`` the non-empty rows and columns; the corrected statistic is
+        ``G / q``.  1 where the degrees of freedom are 0.
+
+    References
+    ----------
+    .. [1] Williams, D. A. (1976). Improved likelihood ratio tests for complete
+       contingency tables. Biometrika, 63(1), 33-37.
+    .. [2] Sokal, R. R., & Rohlf, F. J. (1995). Biometry, 3rd ed., Freeman (the
+       correction applied to the G-test of independence).
+
+    Examples
+    --------
+    >>> float(williams_correction([10, 10], [10, 10]).round(6))
+    1.075
+    """
+    rows = np.asarray(rows, dtype=np.float64)
+    cols = np.asarray(cols, dtype=np.float64)
+    n = rows.sum(axis=-1)
+    with np.errstate(divide="ignore"):
+        inv_r = np.where(rows > 0, 1.0 / np.where(rows > 0, rows, 1.0), 0.0).sum(axis=-1)
+        inv_c = np.where(cols > 0, 1.0 / np.where(cols > 0, cols, 1.0), 0.0).sum(axis=-1)
+    dof = (np.count_nonzero(rows, axis=-1) - 1) * (np.count_nonzero(cols, axis=-1) - 1)
+    safe = np.where((dof > 0) & (n > 0), 6.0 * n * np.maximum(dof, 1), 1.0)
+    q = 1.0 + (n * inv_r - 1.0) * (n * inv_c - 1.0) / safe
+    return np.where(dof > 0, q, 1.0)
+
+
+def g_statistics(tables) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """G, degrees of freedom, N, non-empty rows and columns of each table.
+
+    Parameters
+    ----------
+    tables : sequence of array_like of shape (r_t, c_t)
+        Count tables (shapes may differ).
+
+    Returns
+    -------
+    g, dof, n, r_used, c_used : numpy.ndarray
+        :math:`G = 2 \\sum O \\ln(O / E)` (0 when ``dof`` is 0), the degrees of
+        freedom over non-empty rows and columns, the total, and those row and column
+        numbers.
+
+    References
+    ----------
+    .. [1] Wilks, S. S. (1938). The large-sample distribution of the likelihood
+       ratio for testing composite hypotheses. Annals of Mathematical Statistics,
+       9(1), 60-62.
+
+    Examples
+    --------
+    >>> g, dof, n, r, c = g_statistics([[[10, 0], [0, 10]]])
+    >>> round(float(g[0]), 4), int(dof[0])
+    (27.7259, 1)
+    """
+    tabs = _as_tables(tables)
+    m = len(tabs)
+    g = np.zeros(m)
+    n = np.zeros(m)
+    r_used = np.zeros(m, dtype=np.int64)
+    c_used = np.zeros(m, dtype=np.int64)
+    for i, t in enumerate(tabs):
+        rows, cols = t.sum(axis=1), t.sum(axis=0)
+        total = float(rows.sum())
+        n[i] = total
+        r_used[i] = np.count_nonzero(rows)
+        c_used[i] = np.count_nonzero(cols)
+        if total > 0:
+            # G = 2 (sum O ln O - sum R ln R - sum C ln C + N ln N)
+            value = 2.0 * (special.xlogy(t, t).sum() - special.xlogy(rows, rows).sum()
+                           - special.xlogy(cols, cols).sum() + special.xlogy(total, total))
+            g[i] = max(float(value), 0.0)  # 2 N times a KL divergence: >= 0 up to rounding
+    dof = np.maximum(r_used - 1, 0) * np.maximum(c_used - 1, 0)
+    g = np.where(dof > 0, g, 0.0)
+    return g, dof, n, r_used, c_used
+
+
+def table_reliability(n, r_used, c_used) -> np.ndarray:
+    """How far a pair table can be trusted: ``"ok"``, ``"sparse"`` or ``"too_few"``.
+
+    Parameters
+    ----------
+    n, r_used, c_used : array_like
+        Rows of the table, and its non-empty rows and columns.
+
+    Returns
+    -------
+    numpy.ndarray of str
+        ``"too_few"`` under :data:`TOO_FEW_ROWS` rows or under one row per non-empty
+        cell; ``"sparse"`` under :data:`SPARSE_MEAN_COUNT` rows per non-empty cell
+        (common practice for chi-square style tables); ``"ok"`` otherwise.
+
+    Examples
+    --------
+    >>> table_reliability([300, 300, 5000], [16, 4, 16], [16, 4, 16]).tolist()
+    ['sparse', 'ok', 'ok']
+    """
+    n = np.asarray(n, dtype=np.float64)
+    cells = np.maximum(np.asarray(r_used, dtype=np.float64) * np.asarray(c_used, dtype=np.float64), 1.0)
+    mean = n / cells
+    out = np.where(mean < SPARSE_MEAN_COUNT, "sparse", "ok").astype(object)
+    out[(n < TOO_FEW_ROWS) | (mean < 1.0)] = "too_few"
+    return out
+
+
+def monte_carlo_p_value(exceed, done, stop_after: int = PERMUTATION_STOP_AFTER) -> tuple[np.ndarray, np.ndarray]:
+    r"""p-value and its Monte-Carlo standard error from shuffle counts.
+
+    Parameters
+    ----------
+    exceed, done : array_like of int
+        Shuffles that reached the observed statistic, and shuffles made.
+    stop_after : int
+        The sequential stopping count used.
+
+    Returns
+    -------
+    p_value, p_error : numpy.ndarray
+        :math:`b / L` where shuffling stopped early (``b == stop_after``, Besag &
+        Clifford 1991), else :math:`(b + 1)/(L + 1)` (Phipson & Smyth 2010); and
+        :math:`\sqrt{p (1 - p) / L}`.  NaN where no shuffle was made.
+
+    References
+    ----------
+    .. [1] Besag, J., & Clifford, P. (1991). Sequential Monte Carlo p-values.
+       Biometrika, 78(2), 301-304.
+    .. [2] Phipson, B., & Smyth, G. K. (2010). Permutation p-values should never be
+       zero. Statistical Applications in Genetics and Molecular Biology, 9(1), 39.
+
+    Examples
+    --------
+    >>> p, se = monte_carlo_p_value([0, 20], [999, 40])
+    >>> p.tolist()
+    [0.001, 0.5]
+    """
+    b = np.asarray(exceed, dtype=np.float64)
+    L = np.asarray(done, dtype=np.float64)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        p = np.where(b >= stop_after, b / np.where(L > 0, L, 1.0), (b + 1.0) / (L + 1.0))
+        p = np.where(L > 0, np.minimum(p, 1.0), np.nan)
+        se = np.sqrt(p * (1.0 - p) / np.where(L > 0, L, np.nan))
+    return p, se
+
+
+#: ``shuffle(index, budgets, stop_after, stage) -> (done, exceed)``: the caller's
+#: permutation counter (the engine), for the tables at positions ``index``.
+Shuffler = Callable[[np.ndarray, np.ndarray, np.ndarray, int], tuple[np.ndarray, np.ndarray]]
+
+
+def independence_tests(tables, shuffle: Shuffler | None = None, *, alpha: float = 0.05,
+                       state=None) -> IndependenceTests:
+    """Test independence in every table, with a p-value that is valid at its size.
+
+    Parameters
+    ----------
+    tables : sequence of array_like of shape (r_t, c_t)
+        The pair tables of one family of tests (Benjamini-Hochberg runs over them).
+    shuffle : callable, optional
+        ``shuffle(index, budgets, stop_after, stage) -> (done, exceed)`` makes up to
+        ``budgets[j]`` more shuffles of table ``index[j]`` (stopping once
+        ``stop_after[j]`` more reached its observed G) with the random stream of
+        ``stage``; the engine's ``PairEngine.shuffle_counts`` behind it.  Without
+        one, tables outside the chi-square rule get NaN p-values.
+    alpha : float, default=0.05
+        The false-discovery level of the views: the budget of a pair grows only
+        while its q-value is not below it.
+    state : tuple of arrays (done, exceed, stage), optional
+        Shuffle counts already made (a cache); they are continued, not repeated.
+
+    Returns
+    -------
+    IndependenceTests
+        Per table: G, dof, p-value, method, shuffles, Monte-Carlo error, reliability.
+
+    References
+    ----------
+    .. [1] Williams, D. A. (1976). Biometrika, 63(1), 33-37.
+    .. [2] Besag, J., & Clifford, P. (1991). Biometrika, 78(2), 301-304.
+    .. [3] Phipson, B., & Smyth, G. K. (2010). Stat. Appl. Genet. Mol. Biol. 9(1), 39.
+    .. [4] Benjamini, Y., & Hochberg, Y. (1995). JRSS B, 57(1), 289-300.
+
+    Examples
+    --------
+    >>> res = independence_tests([[[500, 10], [10, 500]]])
+    >>> res.p_method.tolist(), bool(res.p_value[0] < 1e-100)
+    (['chi2'], True)
+    """
+    from infoscope.estimators.information import benjamini_hochberg
+
+    g, dof, n, r_used, c_used = g_statistics(tables)
+    tabs = _as_tables(tables)
+    m = len(tabs)
+    reliability = table_reliability(n, r_used, c_used)
+    mean = n / np.maximum(r_used * c_used, 1)
+    chi2 = (dof > 0) & (mean >= CHI2_MIN_MEAN_COUNT)
+    permute = (dof > 0) & ~chi2
+    method = np.where(chi2, "chi2", np.where(permute, "permutation", "none")).astype(object)
+    p = np.where(n > 0, 1.0, np.nan)
+    if chi2.any():
+        qs = np.array([float(williams_correction(tabs[i].sum(axis=1), tabs[i].sum(axis=0)))
+                       for i in np.flatnonzero(chi2)])
+        p[chi2] = stats.chi2.sf(g[chi2] / qs, dof[chi2])
+    done = np.zeros(m, dtype=np.int64)
+    exceed = np.zeros(m, dtype=np.int64)
+    stage = np.full(m, -1, dtype=np.int64)
+    if state is not None:
+        done[:] = state[0]
+        exceed[:] = state[1]
+        stage[:] = state[2]
+    h = PERMUTATION_STOP_AFTER
+    if permute.any() and shuffle is None:
+        p[permute] = np.nan
+        method[permute] = "none"
+        permute = np.zeros(m, dtype=bool)
+    cap = np.minimum(np.int64(PERMUTATION_BUDGETS[-1]),
+                     (PERMUTATION_ROW_BUDGET // np.maximum(n, 1)).astype(np.int64))
+    for s, budget in enumerate(PERMUTATION_BUDGETS):
+        limit = np.minimum(np.int64(budget), np.maximum(cap, PERMUTATION_MIN_SHUFFLES))
+        want = permute & (stage < s) & (exceed < h) & (done < limit)
+        if s > 0:
+            pp, _ = monte_carlo_p_value(exceed, done, h)
+            cur = p.copy()
+            cur[permute] = pp[permute]
+            q = benjamini_hochberg(cur)
+            want &= ~(q < alpha)  # a finding already; more shuffles would not change it
+        idx = np.flatnonzero(want)
+        if idx.size:
+            d, e = shuffle(idx, (limit[idx] - done[idx]).astype(np.int64), (h - exceed[idx]).astype(np.int64), s)
+            done[idx] += np.asarray(d, dtype=np.int64)
+            exceed[idx] += np.asarray(e, dtype=np.int64)
+            stage[idx] = s
+    pp, se = monte_carlo_p_value(exceed, done, h)
+    p[permute] = pp[permute]
+    p_error = np.where(permute, se, 0.0)
+    return IndependenceTests(g, dof, p, method, np.where(permute, done, 0), exceed, p_error, reliability)
