@@ -204,8 +204,10 @@ def test_sparse_pair_warns(unchanged):
     df = unchanged(pd.DataFrame({"a": np.arange(40.0), "b": np.arange(40.0)[::-1]}))
     with pytest.warns(SmallSampleWarning, match="'a' and 'b'.*fewer than 5 per cell"):
         pt = df.info_profile.pair("a", "b")
-    assert pt.sparse
-    assert bool(df.info_profile.pairs().loc[0, "sparse"])
+    assert pt.sparse and pt.reliability == "too_few"  # 40 rows in 256 cells: under one per cell
+    table = df.info_profile.pairs()
+    assert table.loc[0, "reliability"] == "too_few"
+    assert "sparse" not in table.columns  # the old name collided with pandas' .sparse accessor
     e = df.info_profile.entropy(n_boot=0)
     assert all("sparse_cells" in f for f in e["flags"])  # 40 rows in 16 bins
 

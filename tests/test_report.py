@@ -268,7 +268,8 @@ def test_relevance_and_drift_charts_render(wine_codes):
     rel = pd.DataFrame({"column": names, "k": 4, "n": 178, "mi": mi, "ci_low": np.array(mi) * 0.9,
                         "ci_high": np.array(mi) * 1.1, "nmi": 0.0, "p_value": 0.01, "q_value": 0.01,
                         "share_of_target": np.array(mi) / h_target,
-                        "leakage": np.array(mi) / h_target >= 0.95, "sparse": False})
+                        "leakage": np.array(mi) / h_target >= 0.95, "p_method": "chi2",
+                        "n_permutations": 0, "p_error": 0.0, "reliability": "ok"})
     rel.attrs.update(unit="bits")
     assert "<svg" in charts.chart_to_svg(charts.relevance_chart(rel, target="target"))
     drift = pd.DataFrame({"column": names[:2], "kind": "numeric", "k": 4, "n": 100, "n_reference": 78,

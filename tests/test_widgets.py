@@ -407,7 +407,7 @@ def test_payload_is_json_and_carries_pairs(frame):
     text = json.dumps(p, allow_nan=False)
     back = json.loads(text)
     assert back["format"] == "infoscope-profile/1" and back["view"] == "profile"
-    assert set(back["binary"]) == {"_grid_values", "_grid_n", "_grid_q"}
+    assert set(back["binary"]) == {"_grid_values", "_grid_n", "_grid_q", "_grid_reliability"}
     raw = base64.b64decode(back["state"]["_grid_values"])
     assert raw == w._grid_values
     assert "depot\u0000service" in back["pair_cache"] and 2 <= len(back["pair_cache"]) <= 4

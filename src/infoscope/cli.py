@@ -103,8 +103,23 @@ def _top_pairs_section(session, top: int, out) -> None:
     if kept.empty:
         body = f"no pair has q < {PAIR_Q_LEVEL:g}: no dependence between columns stands out"
     else:
-        body = format_table(kept[["a", "b", "n", "mi", "nmi", "q_value"]], max_rows=top)
+        body = format_table(kept[["a", "b", "n", "mi", "nmi", "q_value", "p_method", "reliability"]],
+                            max_rows=top)
+    body += "\n" + _reliability_note(pairs, "pairs")
     _section(title, body, out)
+
+
+def _reliability_note(table, what: str) -> str:
+    """How many rows of a pairs / relevance table rest on thin tables, and what the tests were."""
+    rel = table["reliability"].astype(str)
+    thin, few = int((rel == "sparse").sum()), int((rel == "too_few").sum())
+    permuted = int((table["p_method"].astype(str) == "permutation").sum())
+    parts = [f"{thin} of {len(table)} {what} sparse (under 5 rows per cell: estimates uncertain), "
+             f"{few} with too few rows to tell anything (under 1 row per cell)"]
+    if permuted:
+        parts.append(f"p-values of {permuted} from a permutation test (the chi-square law "
+                     "needs 20 rows per cell)")
+    return "; ".join(parts)
 
 
 def _entropy_title(session, entropy) -> str:
@@ -217,7 +232,8 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
         relevance = session.relevance(target)
         _section(_relevance_title(target, unit),
                  format_table(relevance[["column", "mi", "ci_low", "ci_high", "share_of_target",
-                                         "q_value", "leakage"]]), out)
+                                         "reliability", "q_value", "leakage"]])
+                 + "\n" + _reliability_note(relevance, "columns"), out)
         drift = ProfileSession(batch, bins=args.bins).drift(frame)
         _section(f"drift of a later batch ({len(batch)} rows) from the log "
                  "(PSI: < 0.10 stable, 0.10-0.25 moderate, >= 0.25 major; id_like / time_axis: "
@@ -547,7 +563,8 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
             relevance = session.relevance(args.target)
             _section(_relevance_title(args.target, unit),
                      format_table(relevance[["column", "mi", "ci_low", "ci_high", "share_of_target",
-                                             "q_value", "leakage"]]), out)
+                                             "reliability", "q_value", "leakage"]])
+                     + "\n" + _reliability_note(relevance, "columns"), out)
         bar.update()
         status = 0
         if args.out:

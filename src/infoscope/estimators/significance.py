@@ -64,9 +64,13 @@ __all__ = [
     "SPARSE_MEAN_COUNT",
     "TOO_FEW_ROWS",
     "IndependenceTests",
+    "P_METHODS",
+    "TableTests",
     "g_statistics",
     "independence_tests",
     "monte_carlo_p_value",
+    "permutation_p_values",
+    "table_tests",
     "table_reliability",
     "williams_correction",
 ]
@@ -160,20 +164,20 @@ def williams_correction(rows, cols) -> np.ndarray:
     return np.where(dof > 0, q, 1.0)
 
 
-def g_statistics(tables) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
-    """G, degrees of freedom, N, non-empty rows and columns of each table.
+def g_statistics(tables) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
+    """G, degrees of freedom, N, non-empty rows and columns, and Williams' q of each table.
 
     Parameters
     ----------
     tables : sequence of array_like of shape (r_t, c_t)
-        Count tables (shapes may differ).
+        Count tables (shapes may differ; tables of one shape are computed together).
 
     Returns
     -------
-    g, dof, n, r_used, c_used : numpy.ndarray
+    g, dof, n, r_used, c_used, williams : numpy.ndarray
         :math:`G = 2 \\sum O \\ln(O / E)` (0 when ``dof`` is 0), the degrees of
-        freedom over non-empty rows and columns, the total, and those row and column
-        numbers.
+        freedom over non-empty rows and columns, the total, those row and column
+        numbers, and :func:`williams_correction`.
 
     References
     ----------
@@ -183,7 +187,7 @@ def g_statistics(tables) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray
 
     Examples
     --------
-    >>> g, dof, n, r, c = g_statistics([[[10, 0], [0, 10]]])
+    >>> g, dof, n, r, c, q = g_statistics([[[10, 0], [0, 10]]])
     >>> round(float(g[0]), 4), int(dof[0])
     (27.7259, 1)
     """
@@ -193,20 +197,27 @@ def g_statistics(tables) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray
     n = np.zeros(m)
     r_used = np.zeros(m, dtype=np.int64)
     c_used = np.zeros(m, dtype=np.int64)
+    williams = np.ones(m)
+    groups: dict[tuple, list[int]] = {}
     for i, t in enumerate(tabs):
-        rows, cols = t.sum(axis=1), t.sum(axis=0)
-        total = float(rows.sum())
-        n[i] = total
-        r_used[i] = np.count_nonzero(rows)
-        c_used[i] = np.count_nonzero(cols)
-        if total > 0:
-            # G = 2 (sum O ln O - sum R ln R - sum C ln C + N ln N)
-            value = 2.0 * (special.xlogy(t, t).sum() - special.xlogy(rows, rows).sum()
-                           - special.xlogy(cols, cols).sum() + special.xlogy(total, total))
-            g[i] = max(float(value), 0.0)  # 2 N times a KL divergence: >= 0 up to rounding
+        groups.setdefault(t.shape, []).append(i)
+    for shape, index in groups.items():
+        if 0 in shape:
+            continue
+        stack = np.stack([tabs[i] for i in index])
+        rows, cols = stack.sum(axis=2), stack.sum(axis=1)
+        total = rows.sum(axis=1)
+        # G = 2 (sum O ln O - sum R ln R - sum C ln C + N ln N)
+        value = 2.0 * (special.xlogy(stack, stack).sum(axis=(1, 2)) - special.xlogy(rows, rows).sum(axis=1)
+                       - special.xlogy(cols, cols).sum(axis=1) + special.xlogy(total, total))
+        g[index] = np.maximum(value, 0.0)  # 2 N times a KL divergence: >= 0 up to rounding
+        n[index] = total
+        r_used[index] = np.count_nonzero(rows, axis=1)
+        c_used[index] = np.count_nonzero(cols, axis=1)
+        williams[index] = williams_correction(rows, cols)
     dof = np.maximum(r_used - 1, 0) * np.maximum(c_used - 1, 0)
     g = np.where(dof > 0, g, 0.0)
-    return g, dof, n, r_used, c_used
+    return g, dof, n, r_used, c_used, williams
 
 
 def table_reliability(n, r_used, c_used) -> np.ndarray:
@@ -280,6 +291,124 @@ def monte_carlo_p_value(exceed, done, stop_after: int = PERMUTATION_STOP_AFTER) 
 #: permutation counter (the engine), for the tables at positions ``index``.
 Shuffler = Callable[[np.ndarray, np.ndarray, np.ndarray, int], tuple[np.ndarray, np.ndarray]]
 
+#: Codes of the methods, for caches that hold numbers only.
+P_METHODS = ("none", "chi2", "permutation")
+
+
+class TableTests(NamedTuple):
+    """The per-table part of :func:`independence_tests` (arrays of one length)."""
+
+    statistic: np.ndarray  #: G (not corrected)
+    dof: np.ndarray
+    n: np.ndarray
+    p_value: np.ndarray  #: chi-square p (Williams) where used, 1 for dof 0, NaN pending or empty
+    p_method: np.ndarray  #: "chi2", "permutation" or "none"
+    reliability: np.ndarray  #: "ok", "sparse" or "too_few"
+
+
+def table_tests(tables) -> TableTests:
+    """The part of the tests that each table decides alone: G, the rule, chi-square p.
+
+    Parameters
+    ----------
+    tables : sequence of array_like of shape (r_t, c_t)
+
+    Returns
+    -------
+    TableTests
+        ``p_method`` is ``"chi2"`` where the table has at least
+        :data:`CHI2_MIN_MEAN_COUNT` rows per non-empty cell (p from G / q, q Williams'
+        factor), ``"permutation"`` where a shuffle test must decide (p NaN until
+        :func:`permutation_p_values` fills it), ``"none"`` with 0 degrees of freedom
+        (p = 1) or no rows (p = NaN).
+
+    References
+    ----------
+    .. [1] Williams, D. A. (1976). Improved likelihood ratio tests for complete
+       contingency tables. Biometrika, 63(1), 33-37.
+
+    Examples
+    --------
+    >>> table_tests([[[30, 10], [10, 30]], [[3, 1], [1, 3]]]).p_method.tolist()
+    ['chi2', 'permutation']
+    """
+    g, dof, n, r_used, c_used, williams = g_statistics(tables)
+    reliability = table_reliability(n, r_used, c_used)
+    mean = n / np.maximum(r_used * c_used, 1)
+    chi2 = (dof > 0) & (mean >= CHI2_MIN_MEAN_COUNT)
+    permute = (dof > 0) & ~chi2
+    method = np.where(chi2, "chi2", np.where(permute, "permutation", "none")).astype(object)
+    p = np.where(n > 0, 1.0, np.nan)
+    p[permute] = np.nan
+    if chi2.any():
+        p[chi2] = stats.chi2.sf(g[chi2] / williams[chi2], dof[chi2])
+    return TableTests(g, dof, n, p, method, reliability)
+
+
+def permutation_p_values(p_value, p_method, n, shuffle: Shuffler, *, alpha: float = 0.05, done=None,
+                         exceed=None, stage=None):
+    """Fill in the permutation p-values of one family of tests, in budget stages.
+
+    Parameters
+    ----------
+    p_value, p_method, n : array_like
+        From :func:`table_tests` (the family: Benjamini-Hochberg runs over it).
+    shuffle : callable
+        ``shuffle(index, budgets, stop_after, stage) -> (done, exceed)``.
+    alpha : float, default=0.05
+        A pair's budget grows to the next stage only while its p-value is at the
+        resolution of its budget and its q-value is not below ``alpha``.
+    done, exceed, stage : array_like of int, optional
+        Shuffles already made per table (a cache), continued rather than repeated;
+        ``stage`` is the last budget stage run (-1: none).
+
+    Returns
+    -------
+    p_value, p_error, done, exceed, stage : numpy.ndarray
+
+    References
+    ----------
+    .. [1] Besag, J., & Clifford, P. (1991). Biometrika, 78(2), 301-304.
+    .. [2] Benjamini, Y., & Hochberg, Y. (1995). JRSS B, 57(1), 289-300.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> shuffle = lambda index, budgets, stop, s: (np.minimum(budgets, 40), np.minimum(stop, 20))
+    >>> p, se, done, exceed, stage = permutation_p_values([np.nan], ["permutation"], [60], shuffle)
+    >>> p.tolist(), done.tolist()
+    ([0.5], [40])
+    """
+    from infoscope.estimators.information import benjamini_hochberg
+
+    p = np.array(p_value, dtype=np.float64)
+    m = p.size
+    permute = np.asarray(p_method, dtype=object) == "permutation"
+    n = np.asarray(n, dtype=np.float64)
+    done = np.zeros(m, dtype=np.int64) if done is None else np.array(done, dtype=np.int64)
+    exceed = np.zeros(m, dtype=np.int64) if exceed is None else np.array(exceed, dtype=np.int64)
+    stage = np.full(m, -1, dtype=np.int64) if stage is None else np.array(stage, dtype=np.int64)
+    h = PERMUTATION_STOP_AFTER
+    cap = np.maximum(np.minimum(PERMUTATION_BUDGETS[-1], PERMUTATION_ROW_BUDGET // np.maximum(n, 1)),
+                     PERMUTATION_MIN_SHUFFLES).astype(np.int64)
+    for s, budget in enumerate(PERMUTATION_BUDGETS):
+        limit = np.minimum(np.int64(budget), cap)
+        want = permute & (stage < s) & (exceed < h) & (done < limit)
+        if s > 0 and want.any():
+            cur = p.copy()
+            cur[permute] = monte_carlo_p_value(exceed, done, h)[0][permute]
+            want &= ~(benjamini_hochberg(cur) < alpha)  # a finding already: more would not change it
+        idx = np.flatnonzero(want)
+        if idx.size:
+            d, e = shuffle(idx, (limit[idx] - done[idx]).astype(np.int64), (h - exceed[idx]).astype(np.int64), s)
+            done[idx] += np.asarray(d, dtype=np.int64)
+            exceed[idx] += np.asarray(e, dtype=np.int64)
+            stage[idx] = s
+    pp, se = monte_carlo_p_value(exceed, done, h)
+    p[permute] = pp[permute]
+    p_error = np.where(permute, se, 0.0)
+    return p, p_error, done, exceed, stage
+
 
 def independence_tests(tables, shuffle: Shuffler | None = None, *, alpha: float = 0.05,
                        state=None) -> IndependenceTests:
@@ -294,10 +423,9 @@ def independence_tests(tables, shuffle: Shuffler | None = None, *, alpha: float 
         ``budgets[j]`` more shuffles of table ``index[j]`` (stopping once
         ``stop_after[j]`` more reached its observed G) with the random stream of
         ``stage``; the engine's ``PairEngine.shuffle_counts`` behind it.  Without
-        one, tables outside the chi-square rule get NaN p-values.
+        one, tables outside the chi-square rule get NaN p-values and method "none".
     alpha : float, default=0.05
-        The false-discovery level of the views: the budget of a pair grows only
-        while its q-value is not below it.
+        The false-discovery level of the views (see :func:`permutation_p_values`).
     state : tuple of arrays (done, exceed, stage), optional
         Shuffle counts already made (a cache); they are continued, not repeated.
 
@@ -319,51 +447,17 @@ def independence_tests(tables, shuffle: Shuffler | None = None, *, alpha: float 
     >>> res.p_method.tolist(), bool(res.p_value[0] < 1e-100)
     (['chi2'], True)
     """
-    from infoscope.estimators.information import benjamini_hochberg
-
-    g, dof, n, r_used, c_used = g_statistics(tables)
-    tabs = _as_tables(tables)
-    m = len(tabs)
-    reliability = table_reliability(n, r_used, c_used)
-    mean = n / np.maximum(r_used * c_used, 1)
-    chi2 = (dof > 0) & (mean >= CHI2_MIN_MEAN_COUNT)
-    permute = (dof > 0) & ~chi2
-    method = np.where(chi2, "chi2", np.where(permute, "permutation", "none")).astype(object)
-    p = np.where(n > 0, 1.0, np.nan)
-    if chi2.any():
-        qs = np.array([float(williams_correction(tabs[i].sum(axis=1), tabs[i].sum(axis=0)))
-                       for i in np.flatnonzero(chi2)])
-        p[chi2] = stats.chi2.sf(g[chi2] / qs, dof[chi2])
+    tt = table_tests(tables)
+    method = tt.p_method.copy()
+    m = len(method)
     done = np.zeros(m, dtype=np.int64)
     exceed = np.zeros(m, dtype=np.int64)
-    stage = np.full(m, -1, dtype=np.int64)
-    if state is not None:
-        done[:] = state[0]
-        exceed[:] = state[1]
-        stage[:] = state[2]
-    h = PERMUTATION_STOP_AFTER
-    if permute.any() and shuffle is None:
-        p[permute] = np.nan
-        method[permute] = "none"
-        permute = np.zeros(m, dtype=bool)
-    cap = np.minimum(np.int64(PERMUTATION_BUDGETS[-1]),
-                     (PERMUTATION_ROW_BUDGET // np.maximum(n, 1)).astype(np.int64))
-    for s, budget in enumerate(PERMUTATION_BUDGETS):
-        limit = np.minimum(np.int64(budget), np.maximum(cap, PERMUTATION_MIN_SHUFFLES))
-        want = permute & (stage < s) & (exceed < h) & (done < limit)
-        if s > 0:
-            pp, _ = monte_carlo_p_value(exceed, done, h)
-            cur = p.copy()
-            cur[permute] = pp[permute]
-            q = benjamini_hochberg(cur)
-            want &= ~(q < alpha)  # a finding already; more shuffles would not change it
-        idx = np.flatnonzero(want)
-        if idx.size:
-            d, e = shuffle(idx, (limit[idx] - done[idx]).astype(np.int64), (h - exceed[idx]).astype(np.int64), s)
-            done[idx] += np.asarray(d, dtype=np.int64)
-            exceed[idx] += np.asarray(e, dtype=np.int64)
-            stage[idx] = s
-    pp, se = monte_carlo_p_value(exceed, done, h)
-    p[permute] = pp[permute]
-    p_error = np.where(permute, se, 0.0)
-    return IndependenceTests(g, dof, p, method, np.where(permute, done, 0), exceed, p_error, reliability)
+    p, p_error = tt.p_value.copy(), np.zeros(m)
+    if shuffle is None:
+        method[method == "permutation"] = "none"
+    elif (method == "permutation").any():
+        kw = {} if state is None else {"done": state[0], "exceed": state[1], "stage": state[2]}
+        p, p_error, done, exceed, _ = permutation_p_values(tt.p_value, method, tt.n, shuffle, alpha=alpha, **kw)
+    permuted = method == "permutation"
+    return IndependenceTests(tt.statistic, tt.dof, p, method, np.where(permuted, done, 0),
+                             np.where(permuted, exceed, 0), p_error, tt.reliability)

@@ -17,7 +17,11 @@ import numpy as np
 
 from infoscope.estimators.significance import IndependenceTests, independence_tests
 
-__all__ = ["pair_seed", "pair_tests"]
+__all__ = ["FINDING_Q", "pair_seed", "pair_shuffler", "pair_tests"]
+
+#: The q-value below which the views show a pair as a finding (and below which a
+#: pair's shuffle budget need not grow further).
+FINDING_Q = 0.05
 
 
 def pair_seed(seed, a: str, b: str, stage: int) -> int:
@@ -47,8 +51,57 @@ def pair_seed(seed, a: str, b: str, stage: int) -> int:
     return int(np.random.SeedSequence(entropy).generate_state(1, np.uint64)[0])
 
 
+def pair_shuffler(engine, pairs: Sequence[tuple[str, str]], tables: Sequence, *, seed=0):
+    """The shuffler :func:`~infoscope.estimators.significance.permutation_p_values` asks for.
+
+    Parameters
+    ----------
+    engine : PairEngine
+        Holds the pairs' codes.
+    pairs : sequence of (str, str)
+        The family's pairs.
+    tables : sequence of numpy.ndarray or None
+        Their count tables (None for pairs that will not be shuffled).
+    seed : int, optional
+        The session seed.
+
+    Returns
+    -------
+    callable
+        ``shuffle(index, budgets, stop_after, stage) -> (done, exceed)``.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> from types import SimpleNamespace as Col
+    >>> from infoscope.engine import PairEngine
+    >>> codes = np.repeat(np.array([0, 1], np.uint8), 20)
+    >>> eng = PairEngine([Col(name="a", codes=codes, k=2), Col(name="b", codes=codes, k=2)], progress=False)
+    >>> shuffle = pair_shuffler(eng, [("a", "b")], [eng.table("a", "b")])
+    >>> [int(v[0]) for v in shuffle(np.array([0]), np.array([99]), np.array([20]), 0)]
+    [99, 0]
+    """
+    from infoscope.engine.permutation import score_lookup, table_score
+
+    pairs = list(pairs)
+    lookup = score_lookup(max((int(np.asarray(t).sum()) for t in tables if t is not None), default=0))
+    observed: dict[int, float] = {}
+
+    def shuffle(index, budgets, stop_after, stage):
+        chosen = [pairs[i] for i in index]
+        obs = []
+        for i in index:
+            if i not in observed:
+                observed[i] = table_score(tables[i], lookup)
+            obs.append(observed[i])
+        seeds = [pair_seed(seed, a, b, stage) for a, b in chosen]
+        return engine.shuffle_counts(chosen, obs, budgets, stop_after, seeds)
+
+    return shuffle
+
+
 def pair_tests(engine, pairs: Sequence[tuple[str, str]], tables: Sequence[np.ndarray], *, seed=0,
-               alpha: float = 0.05, state=None) -> IndependenceTests:
+               alpha: float = FINDING_Q, state=None) -> IndependenceTests:
     """Independence tests of ``pairs`` (their ``tables`` from ``engine``), one family.
 
     Parameters
@@ -82,20 +135,5 @@ def pair_tests(engine, pairs: Sequence[tuple[str, str]], tables: Sequence[np.nda
     >>> res.p_method.tolist(), bool(0 < res.p_value[0] <= 1)
     (['permutation'], True)
     """
-    from infoscope.engine.permutation import score_lookup, table_score
-
-    pairs = list(pairs)
-    lookup = score_lookup(max((int(np.asarray(t).sum()) for t in tables), default=0))
-    observed = {}
-
-    def shuffle(index, budgets, stop_after, stage):
-        chosen = [pairs[i] for i in index]
-        obs = []
-        for i in index:
-            if i not in observed:
-                observed[i] = table_score(tables[i], lookup)
-            obs.append(observed[i])
-        seeds = [pair_seed(seed, a, b, stage) for a, b in chosen]
-        return engine.shuffle_counts(chosen, obs, budgets, stop_after, seeds)
-
+    shuffle = pair_shuffler(engine, pairs, tables, seed=seed)
     return independence_tests(tables, shuffle, alpha=alpha, state=state)

@@ -35,11 +35,12 @@ ENTROPY_COLUMNS = (
     "max_entropy", "efficiency", "effective_categories", "flags",
 )
 PAIRS_COLUMNS = (
-    "a", "b", "k_a", "k_b", "n", "mi", "nmi", "value", "g", "dof", "p_value", "q_value", "sparse",
+    "a", "b", "k_a", "k_b", "n", "mi", "nmi", "value", "g", "dof", "p_value", "q_value",
+    "p_method", "n_permutations", "p_error", "reliability",
 )
 RELEVANCE_COLUMNS = (
     "column", "k", "n", "mi", "ci_low", "ci_high", "nmi", "p_value", "q_value",
-    "share_of_target", "leakage", "sparse",
+    "share_of_target", "leakage", "p_method", "n_permutations", "p_error", "reliability",
 )
 DRIFT_COLUMNS = (
     "column", "kind", "k", "n", "n_reference", "psi", "psi_chance", "psi_chance_high",
@@ -222,13 +223,18 @@ class PairTable:
     nmi : float
         Normalised mutual information (the profile's normalisation).
     g_test : GTestResult
-        ``(statistic, dof, p_value)`` of the G-test of independence.
+        ``(statistic, dof, p_value)`` of the test of independence: G, its degrees
+        of freedom and the p-value of ``p_method`` (as in ``pairs()``).
     n : int
         Number of rows where both columns are present.
     unit : str
         Unit of ``mi`` and ``pmi``.
     sparse : bool
-        Fewer than 5 observations per cell on average.
+        Fewer than 5 observations per non-empty cell on average (``reliability`` is
+        not ``"ok"``).
+    p_method, n_permutations, p_error, reliability
+        As the columns of ``pairs()``: how the p-value was found, with how many
+        shuffles and what Monte-Carlo error; ``"ok"`` / ``"sparse"`` / ``"too_few"``.
     hidden : dict or None
         Set by :meth:`suppressed` only: ``{"min_count", "small", "complementary",
         "kinds"}`` (see there); ``None`` for a table with nothing hidden.
@@ -247,6 +253,10 @@ class PairTable:
     sparse: bool = False
     attrs: dict = field(default_factory=dict)
     hidden: dict | None = None
+    p_method: str = "chi2"
+    n_permutations: int = 0
+    p_error: float = 0.0
+    reliability: str = "ok"
 
     def suppressed(self, min_count) -> "PairTable":
         """A copy with small cells, and the cells that would give them away, hidden.

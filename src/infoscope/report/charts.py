@@ -233,7 +233,7 @@ def relevance_chart(table: pd.DataFrame, *, target: str | None = None, width: in
     >>> import pandas as pd
     >>> t = pd.DataFrame({"column": ["x"], "k": [2], "n": [10], "mi": [0.5], "ci_low": [0.4],
     ...     "ci_high": [0.6], "nmi": [0.5], "p_value": [0.01], "q_value": [0.01],
-    ...     "share_of_target": [0.5], "leakage": [False], "sparse": [False]})
+    ...     "share_of_target": [0.5], "leakage": [False], "reliability": ["ok"]})
     >>> relevance_chart(t, target="y").to_dict()["layer"][0]["mark"]["type"]
     'bar'
     """

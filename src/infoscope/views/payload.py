@@ -13,8 +13,8 @@ Payload format ``"infoscope-profile/1"``::
 
     {"format": "infoscope-profile/1", "view": "profile" | "entropy" | "grid" | "pair" | "relevance",
      "state": {<control values>, "_entropy", "_grid_meta", "_grid_values", "_grid_n",
-               "_grid_q", "_pair", "_relevance", "_meta", "_status", "_view"},
-     "binary": ["_grid_values", "_grid_n", "_grid_q"],      # base64 text in "state"
+               "_grid_q", "_grid_reliability", "_pair", "_relevance", "_meta", "_status", "_view"},
+     "binary": ["_grid_values", "_grid_n", "_grid_q", "_grid_reliability"],  # base64 text in "state"
      "pair_cache": {a + "\\u0000" + b: <pair view>, ...}}
 
 The shapes of the parts are those of :mod:`infoscope.views.serialize`.
@@ -44,8 +44,8 @@ SETTINGS_TRAITS = ("bins", "strategy", "estimator", "alpha", "measure", "unit", 
 #: Control values that change only what is drawn.
 VIEW_TRAITS = ("selected_column", "selected_pair", "alpha_fdr", "sort_by")
 #: The data parts as trait names (kernel -> view).
-DATA_TRAITS = ("_view", "_entropy", "_grid_meta", "_grid_values", "_grid_n", "_grid_q", "_pair",
-               "_relevance", "_meta", "_status")
+DATA_TRAITS = ("_view", "_entropy", "_grid_meta", "_grid_values", "_grid_n", "_grid_q",
+               "_grid_reliability", "_pair", "_relevance", "_meta", "_status")
 #: Pair views precomputed into a payload for a page without a kernel.
 TOP_PAIRS = 12
 #: Control values a view starts from where the session has no setting for them.
@@ -163,6 +163,7 @@ def view_data(session, parts, *, order: str = "cluster", alpha_fdr: float = 0.05
                                 diagonal=diag, generation=generation, order_name=order)
         out["_grid_meta"] = grid["meta"]
         out["_grid_values"], out["_grid_n"], out["_grid_q"] = grid["values"], grid["n"], grid["q"]
+        out["_grid_reliability"] = grid["reliability"]
         out["_top_pairs"] = top_pairs(pairs, alpha_fdr)
     if "relevance" in parts:
         step(0.75, "Relevance to the target...")

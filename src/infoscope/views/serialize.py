@@ -17,15 +17,19 @@ Shapes of the live view and of the HTML export (the front end reads exactly thes
     ``meta``: ``{"names": [...ordered...], "measure", "unit", "order", "alpha",
     "size", "generation"}``; ``values`` (float32, row-major ``size x size``, NaN where
     unknown, the diagonal included as given by ``matrix()``), ``n`` (int32 pairwise
-    complete rows) and ``q`` (float32 BH q-values, NaN on the diagonal).
+    complete rows), ``q`` (float32 BH q-values, NaN on the diagonal) and
+    ``reliability`` (uint8: index into ``meta["reliability_states"]`` = ``["ok",
+    "sparse", "too_few"]``, 255 on the diagonal).
 ``pair_view`` -> dict
     ``{"a", "b", "rows", "cols", "counts" (null = hidden), "pmi" (null = hidden),
     "expected" (null when any cell is hidden), "row_totals"/"col_totals" (null when
     any cell is hidden), "n", "mi", "nmi", "p_value", "g", "dof", "unit",
-    "min_count", "hidden_cells", "hidden_reasons" (null when nothing is hidden,
+    "p_method", "n_permutations", "p_error", "reliability", "min_count", "hidden_cells",
+    "hidden_reasons" (null when nothing is hidden,
     else per cell null / "small" / "complement"), "generation"}``.
 ``relevance_json`` -> JSON text
-    ``{"target", "fields": [...RELEVANCE_FIELDS], "rows": [...], "unit", "generation"}``.
+    ``{"target", "fields": [...RELEVANCE_JSON_FIELDS], "rows": [...], "unit", "generation"}``
+    (the table's fields, then ``sparse``: reliability is not "ok").
 
 Records of the charts and the static picture (lists of flat dicts, one per row or
 cell): :func:`entropy_records`, :func:`grid_records`, :func:`pair_records` (the
@@ -42,6 +46,7 @@ import numpy as np
 import pandas as pd
 
 from infoscope.estimators._checks import UNIT_OF_BASE
+from infoscope.estimators.significance import RELIABILITY_STATES
 from infoscope.frame.suppression import SMALL, complement_label, pair_hidden_kinds, suppressed_label
 
 #: The units a view can show (the names of :data:`infoscope.estimators._checks.UNIT_OF_BASE`).
@@ -51,7 +56,13 @@ ENTROPY_FIELDS = ("column", "kind", "k", "n", "missing", "missing_share", "entro
                   "ci_high", "max_entropy", "efficiency", "effective_categories", "flags")
 PAIR_FIELDS = ("a", "b", "n", "value", "q_value")
 RELEVANCE_FIELDS = ("column", "k", "n", "mi", "ci_low", "ci_high", "nmi", "p_value", "q_value",
-                    "share_of_target", "leakage", "sparse")
+                    "share_of_target", "leakage", "p_method", "n_permutations", "p_error", "reliability")
+#: The relevance rows also carry ``sparse`` (reliability is not "ok"), last, for views
+#: written before ``reliability`` existed.
+RELEVANCE_JSON_FIELDS = RELEVANCE_FIELDS + ("sparse",)
+#: Codes of the grid's ``reliability`` buffer: index into this tuple; 255 = no pair
+#: (the diagonal, or a pair not in the table).
+GRID_RELIABILITY = RELIABILITY_STATES
 
 
 def scalar(value: Any) -> Any:
@@ -116,6 +127,7 @@ def grid_buffers(pairs: pd.DataFrame, order: list[str], *, alpha: float = 0.05,
     values = np.full((size, size), np.nan, dtype=np.float32)
     n = np.zeros((size, size), dtype=np.int32)
     q = np.full((size, size), np.nan, dtype=np.float32)
+    rel = np.full((size, size), 255, dtype=np.uint8)
     ia = pairs["a"].astype(str).map(index)
     ib = pairs["b"].astype(str).map(index)
     ok = ia.notna().to_numpy() & ib.notna().to_numpy()
@@ -124,10 +136,16 @@ def grid_buffers(pairs: pd.DataFrame, order: list[str], *, alpha: float = 0.05,
     v = pd.to_numeric(pairs["value"], errors="coerce").to_numpy(dtype=np.float64)[ok]
     nn = pd.to_numeric(pairs["n"], errors="coerce").fillna(0).to_numpy(dtype=np.int64)[ok]
     qq = pd.to_numeric(pairs["q_value"], errors="coerce").to_numpy(dtype=np.float64)[ok]
+    if "reliability" in pairs.columns:
+        code = {state: c for c, state in enumerate(GRID_RELIABILITY)}
+        rr = np.array([code.get(str(x), 255) for x in pairs["reliability"].to_numpy()[ok]], dtype=np.uint8)
+    else:
+        rr = np.full(int(ok.sum()), 255, dtype=np.uint8)
     for a, b in ((i, j), (j, i)):
         values[a, b] = v
         n[a, b] = nn
         q[a, b] = qq
+        rel[a, b] = rr
     if diagonal is not None:
         for name, val in diagonal.items():
             k = index.get(str(name))
@@ -137,10 +155,11 @@ def grid_buffers(pairs: pd.DataFrame, order: list[str], *, alpha: float = 0.05,
     return {
         "meta": {"names": names, "measure": attrs["measure"] or "mi", "unit": attrs["unit"],
                  "order": order_name, "alpha": float(alpha), "size": size,
-                 "generation": int(generation)},
+                 "reliability_states": list(GRID_RELIABILITY), "generation": int(generation)},
         "values": values.tobytes(),
         "n": n.tobytes(),
         "q": q.tobytes(),
+        "reliability": rel.tobytes(),
     }
 
 
@@ -197,6 +216,10 @@ def pair_view(pair, a: str | None = None, b: str | None = None, *, unit: str | N
         "col_totals": None if hidden else [scalar(x) for x in raw.sum(axis=0)],
         "n": scalar(getattr(pair, "n", None)), "mi": scalar(getattr(pair, "mi", None)),
         "nmi": scalar(getattr(pair, "nmi", None)), "g": g, "dof": dof, "p_value": p,
+        "p_method": scalar(getattr(pair, "p_method", None)),
+        "n_permutations": scalar(getattr(pair, "n_permutations", None)),
+        "p_error": scalar(getattr(pair, "p_error", None)),
+        "reliability": scalar(getattr(pair, "reliability", None)),
         "unit": str(unit if unit is not None else getattr(pair, "unit", None) or "bits"),
         "min_count": threshold, "hidden_cells": hidden,
         "hidden_reasons": reasons, "generation": int(generation),
@@ -221,11 +244,12 @@ def hidden_reasons(kinds: np.ndarray) -> list:
 def relevance_json(table: pd.DataFrame | None, target: str | None, *, generation: int = 0) -> str:
     """The relevance table as compact JSON rows; ``{"target": null}`` when no target."""
     if table is None or target is None:
-        return dumps({"target": None, "fields": list(RELEVANCE_FIELDS), "rows": [],
+        return dumps({"target": None, "fields": list(RELEVANCE_JSON_FIELDS), "rows": [],
                       "unit": None, "generation": int(generation)})
     require(table, RELEVANCE_FIELDS, "the relevance table")
-    rows = [[scalar(v) for v in row] for row in table.loc[:, list(RELEVANCE_FIELDS)].itertuples(index=False)]
-    return dumps({"target": str(target), "fields": list(RELEVANCE_FIELDS), "rows": rows,
+    rows = [[scalar(v) for v in row] + [str(row[-1]) != "ok"]
+            for row in table.loc[:, list(RELEVANCE_FIELDS)].itertuples(index=False)]
+    return dumps({"target": str(target), "fields": list(RELEVANCE_JSON_FIELDS), "rows": rows,
                   "unit": attrs_of(table)["unit"], "generation": int(generation)})
 
 

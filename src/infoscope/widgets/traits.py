@@ -80,6 +80,9 @@ class ProfileTraits(anywidget.AnyWidget):
     _grid_n = t.Bytes(b"").tag(sync=True)
     #: bytes: float32 Benjamini-Hochberg q-values of the grid (NaN on the diagonal).
     _grid_q = t.Bytes(b"").tag(sync=True)
+    #: bytes: uint8 reliability of each grid cell, an index into
+    #: ``_grid_meta["reliability_states"]`` (["ok", "sparse", "too_few"]); 255 on the diagonal.
+    _grid_reliability = t.Bytes(b"").tag(sync=True)
     #: dict: the selected pair's view, see ``_serialize.pair_view`` ({} when none).
     _pair = t.Dict({}).tag(sync=True)
     #: str (JSON): relevance rows about ``target``, see ``_serialize.relevance_json``.

@@ -12,16 +12,35 @@ from infoscope.estimators._checks import check_choice, log_base, unit_name
 from infoscope.estimators.information import (
     adjusted_mutual_information_from_table,
     benjamini_hochberg,
-    g_test_from_table,
+    GTestResult,
     pointwise_mutual_information,
     variation_of_information_from_table,
 )
+from infoscope.estimators.significance import (
+    P_METHODS,
+    RELIABILITY_STATES,
+    permutation_p_values,
+    table_tests,
+)
+from infoscope.frame.inference import FINDING_Q, pair_shuffler, pair_tests
 from infoscope.frame.ordering import _cluster_order
-from infoscope.frame.results import PAIRS_COLUMNS, SPARSE_CELL_COUNT, PairTable, result_frame
+from infoscope.frame.results import PAIRS_COLUMNS, PairTable, result_frame
 from infoscope.frame.settings import MEASURES, ORDERS
 
 _NORMALIZED = frozenset({"nmi", "adjusted_mi"})
 _ZERO_SNAP = 1e-12
+
+
+#: The numbers cached per pair, in this order.
+_STATS = ("n", "mi", "nmi", "g", "dof", "p_table", "p_method", "reliability", "done", "exceed", "stage")
+
+
+def _test_columns(tests: dict) -> dict:
+    """The test columns of a result table, in the contract's types."""
+    return {"p_method": pd.array(tests["p_method"], dtype=object),
+            "n_permutations": np.asarray(tests["n_permutations"], dtype=np.int64),
+            "p_error": np.asarray(tests["p_error"], dtype=float),
+            "reliability": pd.array(tests["reliability"], dtype=object)}
 
 
 def _zero_entropy(marginal) -> bool:
@@ -52,19 +71,30 @@ class PairTables:
         -------
         pandas.DataFrame
             Columns ``a, b, k_a, k_b, n, mi, nmi, value, g, dof, p_value, q_value,
-            sparse``, in column order: ``n`` rows where both are present, ``mi``
-            with the session's estimator, ``nmi`` with the session's
-            normalisation (same estimator), ``g`` / ``dof`` / ``p_value`` of the
-            G-test of independence, ``q_value`` Benjamini-Hochberg over all pairs
-            of the table, ``sparse`` fewer than 5 rows per cell on average.
+            p_method, n_permutations, p_error, reliability``, in column order:
+            ``n`` rows where both are present, ``mi`` with the session's
+            estimator, ``nmi`` with the session's normalisation (same estimator),
+            ``g`` / ``dof`` the G statistic of independence and its degrees of
+            freedom, ``p_value`` from the chi-square law with Williams' correction
+            where the table has at least 20 rows per non-empty cell
+            (``p_method="chi2"``) and from a seeded Monte-Carlo permutation test
+            elsewhere (``"permutation"``, with ``n_permutations`` shuffles and the
+            Monte-Carlo standard error ``p_error``); ``q_value``
+            Benjamini-Hochberg over all pairs of the table; ``reliability``
+            ``"ok"`` / ``"sparse"`` (under 5 rows per non-empty cell) /
+            ``"too_few"`` (under one row per cell or under 10 rows: the MI says
+            little). See :mod:`infoscope.estimators.significance`.
             ``attrs``: unit, estimator, sampled, measure, normalization.
 
         References
         ----------
         .. [1] Wilks, S. S. (1938). Annals of Mathematical Statistics, 9(1), 60-62
            (the G-test).
-        .. [2] Benjamini, Y., & Hochberg, Y. (1995). JRSS B, 57(1), 289-300.
-        .. [3] Vinh, N. X., Epps, J., & Bailey, J. (2010). JMLR 11, 2837-2854
+        .. [2] Williams, D. A. (1976). Biometrika, 63(1), 33-37.
+        .. [3] Besag, J., & Clifford, P. (1991). Biometrika, 78(2), 301-304
+           (sequential Monte-Carlo p-values).
+        .. [4] Benjamini, Y., & Hochberg, Y. (1995). JRSS B, 57(1), 289-300.
+        .. [5] Vinh, N. X., Epps, J., & Bailey, J. (2010). JMLR 11, 2837-2854
            (NMI normalisations, AMI).
 
         Examples
@@ -85,12 +115,13 @@ class PairTables:
             return memo[1].copy()
         pair_list = self._pair_list(columns)
         stats = self._pair_stats(pair_list)
+        tests = self._pair_p_values(pair_list, stats)
         m = len(pair_list)
         divisor = log_base(s["base"])
         n = stats[:, 0].astype(np.int64)
         mi = stats[:, 1] / divisor
         nmi = stats[:, 2]
-        p_value = stats[:, 5]
+        p_value = tests["p_value"]
         if measure == "mi":
             value = mi
         elif measure == "nmi":
@@ -108,7 +139,7 @@ class PairTables:
             "k_b": np.array([enc[b].k for _, b in pair_list], dtype=np.int64),
             "n": n, "mi": mi, "nmi": nmi, "value": np.asarray(value, dtype=float),
             "g": stats[:, 3], "dof": stats[:, 4].astype(np.int64), "p_value": p_value,
-            "q_value": np.asarray(q, dtype=float), "sparse": stats[:, 6].astype(bool),
+            "q_value": np.asarray(q, dtype=float), **_test_columns(tests),
         }, columns=list(PAIRS_COLUMNS))
         if not m:
             out = result_frame([], PAIRS_COLUMNS)
@@ -128,7 +159,7 @@ class PairTables:
     def _estimator_key(self) -> tuple:
         s = self._settings
         return (s["estimator"], s["alpha"] if s["estimator"] == "dirichlet" else None,
-                s["normalization"])
+                s["normalization"], s["seed"])  # the seed: of the permutation tests
 
     def _pairs_memo_key(self, measure: str) -> tuple:
         s = self._settings
@@ -136,11 +167,15 @@ class PairTables:
                 tuple(self._encoded[k] for k in self._names))
 
     def _pair_stats(self, pair_list: list[tuple[str, str]]) -> np.ndarray:
-        """``(n, mi [nats], nmi, g, dof, p_value, sparse)`` per pair, from the cache or estimated."""
+        """Numbers per pair, from the cache or estimated (columns: :data:`_STATS`).
+
+        The last three (shuffles made, reaching the observed G, budget stage) are
+        filled in by :meth:`_pair_p_values`, which writes them back to the cache.
+        """
         est = self._estimator_key()
         enc = self._encoded
         cache = self._pair_cache
-        out = np.empty((len(pair_list), 7))
+        out = np.empty((len(pair_list), len(_STATS)))
         todo: list[int] = []
         for i, (a, b) in enumerate(pair_list):
             hit = cache.get((a, b))
@@ -154,15 +189,42 @@ class PairTables:
             tables = self._engine.tables(wanted)
             tabs = [np.asarray(tables[p], dtype=np.int64) for p in wanted]
             tm = self._table_measures(tabs, nats=True)
+            tt = table_tests(tabs)
             for j, i in enumerate(todo):
-                t = tabs[j]
-                n = int(t.sum())
-                row = np.array([n, tm["mi"][j], tm["nmi"][j], tm["g"][j], tm["dof"][j],
-                                tm["p_value"][j], n / max(t.size, 1) < SPARSE_CELL_COUNT], dtype=float)
+                row = np.array([tt.n[j], tm["mi"][j], tm["nmi"][j], tt.statistic[j], tt.dof[j],
+                                tt.p_value[j], P_METHODS.index(tt.p_method[j]),
+                                RELIABILITY_STATES.index(tt.reliability[j]), 0, 0, -1], dtype=float)
                 out[i] = row
                 a, b = pair_list[i]
                 cache[(a, b)] = (enc[a], enc[b], est, row)
         return out
+
+    def _pair_p_values(self, pair_list: list[tuple[str, str]], stats: np.ndarray) -> dict[str, np.ndarray]:
+        """p-values of one family of pairs: permutation tests where the rule asks for them.
+
+        Shuffle counts are continued from the pair cache and written back to it, so
+        a pair is never shuffled twice for the same budget.
+        """
+        method = np.array([P_METHODS[int(c)] for c in stats[:, 6]], dtype=object)
+        p = stats[:, 5].copy()
+        done, exceed, stage = (stats[:, j].astype(np.int64) for j in (8, 9, 10))
+        p_error = np.zeros(len(pair_list))
+        permute = method == "permutation"
+        if permute.any():
+            tables = self._engine.tables([pair_list[i] for i in np.flatnonzero(permute)])
+            tabs = [np.asarray(tables[pair]) if k else None
+                    for pair, k in zip(pair_list, permute)]
+            shuffle = pair_shuffler(self._engine, pair_list, tabs, seed=self._settings["seed"])
+            p, p_error, done, exceed, stage = permutation_p_values(
+                p, method, stats[:, 0], shuffle, alpha=FINDING_Q, done=done, exceed=exceed, stage=stage)
+            cache = self._pair_cache
+            for i in np.flatnonzero(permute):
+                hit = cache.get(pair_list[i])
+                if hit is not None:
+                    hit[3][8:11] = (done[i], exceed[i], stage[i])
+        return {"p_value": p, "p_method": method, "n_permutations": np.where(permute, done, 0),
+                "p_error": p_error,
+                "reliability": np.array([RELIABILITY_STATES[int(c)] for c in stats[:, 7]], dtype=object)}
 
     def _pair_measure_values(self, pair_list: list[tuple[str, str]], measure: str) -> np.ndarray:
         """AMI (unit-free) or VI (nats) per pair, cached like :meth:`_pair_stats`."""
@@ -304,16 +366,23 @@ class PairTables:
             nan_frame = pd.DataFrame(np.nan, index=index, columns=columns)
             return PairTable(a, b, counts, nan_frame, nan_frame.copy(), math.nan, math.nan,
                              (math.nan, 0, math.nan), 0, unit_name(self._settings["base"]), True,
-                             self._attrs())
+                             self._attrs(), p_method="none", reliability="too_few")
         expected = np.outer(t.sum(axis=1), t.sum(axis=0)) / n
         pmi = pointwise_mutual_information(t, base=self._settings["base"])
         tm = self._table_measures([t])
-        sparse = bool(n / t.size < SPARSE_CELL_COUNT)
+        tests = pair_tests(self._engine, [(a, b)], [t], seed=self._settings["seed"])
+        reliability = str(tests.reliability[0])
+        sparse = reliability != "ok"
         if sparse:
+            what = ("too few rows to tell anything from the estimates" if reliability == "too_few"
+                    else "the estimates are unreliable")
             warnings.warn(f"the joint table of {a!r} and {b!r} has {t.size} cells for {n} rows "
-                          "(fewer than 5 per cell on average): the estimates are unreliable",
+                          f"(fewer than 5 per cell on average): {what}",
                           SmallSampleWarning, stacklevel=2)
+        g_test = GTestResult(float(tests.statistic[0]), int(tests.dof[0]), float(tests.p_value[0]))
         return PairTable(a, b, counts, pd.DataFrame(expected, index=index, columns=columns),
                          pd.DataFrame(pmi, index=index, columns=columns), float(tm["mi"][0]),
-                         float(tm["nmi"][0]), g_test_from_table(t), n,
-                         unit_name(self._settings["base"]), sparse, self._attrs())
+                         float(tm["nmi"][0]), g_test, n,
+                         unit_name(self._settings["base"]), sparse, self._attrs(),
+                         p_method=str(tests.p_method[0]), n_permutations=int(tests.n_permutations[0]),
+                         p_error=float(tests.p_error[0]), reliability=reliability)

@@ -10,12 +10,39 @@ import pandas as pd
 from infoscope._warnings import DataQualityWarning
 from infoscope.estimators.information import benjamini_hochberg
 from infoscope.estimators.resampling import bootstrap_mi_ci
-from infoscope.frame.results import LEAKAGE_SHARE, RELEVANCE_COLUMNS, SPARSE_CELL_COUNT, result_frame
+from infoscope.estimators.significance import permutation_p_values, table_tests
+from infoscope.frame.inference import FINDING_Q, pair_shuffler
+from infoscope.frame.results import LEAKAGE_SHARE, RELEVANCE_COLUMNS, result_frame
 from infoscope.frame.tables.estimates import _child_seed
 
 
 class RelevanceTable:
     """Session part: :meth:`relevance` (see :mod:`infoscope.frame.tables`)."""
+
+    def _relevance_p_values(self, others: list[str], target: str, rows: list[dict]) -> None:
+        """Permutation p-values of the target's family, continued from the row cache."""
+        method = np.array([r["p_method"] for r in rows], dtype=object)
+        permute = method == "permutation"
+        if not permute.any():
+            return
+        pairs = [(key, target) for key in others]
+        tables = self._engine.tables([pairs[i] for i in np.flatnonzero(permute)])
+        tabs = [np.asarray(tables[pair]) if k else None for pair, k in zip(pairs, permute)]
+        state = np.array([r["_shuffles"] for r in rows], dtype=np.int64).reshape(len(rows), 3)
+        p, p_error, done, exceed, stage = permutation_p_values(
+            np.array([r["p_value"] for r in rows], dtype=float), method,
+            np.array([r["n"] for r in rows], dtype=float),
+            pair_shuffler(self._engine, pairs, tabs, seed=self._settings["seed"]),
+            alpha=FINDING_Q, done=state[:, 0], exceed=state[:, 1], stage=state[:, 2])
+        enc = self._encoded
+        for i in np.flatnonzero(permute):
+            r = rows[i]
+            r["p_value"], r["p_error"] = float(p[i]), float(p_error[i])
+            r["n_permutations"] = int(done[i])
+            r["_shuffles"] = (int(done[i]), int(exceed[i]), int(stage[i]))
+            hit = self._relevance_cache.get((others[i], target))
+            if hit is not None and hit[0] is enc[others[i]]:
+                hit[3].update(r)
 
     def relevance(self, target: str | None = None) -> pd.DataFrame:
         """Information each other column gives about a target column.
@@ -29,12 +56,16 @@ class RelevanceTable:
         -------
         pandas.DataFrame
             One row per other column, largest MI first: ``column, k, n, mi, ci_low,
-            ci_high, nmi, p_value, q_value, share_of_target, leakage, sparse`` where
+            ci_high, nmi, p_value, q_value, share_of_target, leakage, p_method,
+            n_permutations, p_error, reliability`` where
             ``share_of_target = mi / H(target)`` (both on the rows where the two are
             present), ``leakage`` is True when that share is at least 0.95 (the
             column nearly determines the target: check whether it is known before
             the outcome), the interval is a seeded multinomial bootstrap of the
-            joint table and q-values are Benjamini-Hochberg over the table.
+            joint table and q-values are Benjamini-Hochberg over the table; the
+            p-values and the last four columns as in ``pairs()`` (chi-square with
+            Williams' correction where the table is well filled, a seeded
+            permutation test elsewhere; see :mod:`infoscope.estimators.significance`).
             ``attrs``: unit, estimator, sampled, target.
 
         References
@@ -81,6 +112,7 @@ class RelevanceTable:
                 todo.append(i)
         tabs = [np.asarray(self._engine.table(others[i], target), dtype=np.int64) for i in todo]
         tm = self._table_measures(tabs)
+        tt = table_tests(tabs)
         mi, nmi = tm["mi"], tm["nmi"]
         for j, i in enumerate(todo):
             key = others[i]
@@ -95,16 +127,19 @@ class RelevanceTable:
             rows[i] = {
                 "column": key, "k": int(enc[key].k), "n": n, "mi": mi[j],
                 "ci_low": float(low), "ci_high": float(high), "nmi": nmi[j],
-                "p_value": float(tm["p_value"][j]), "q_value": math.nan,
+                "p_value": float(tt.p_value[j]), "q_value": math.nan,
                 "share_of_target": share, "leakage": bool(share >= LEAKAGE_SHARE),
-                "sparse": bool(n / max(t.size, 1) < SPARSE_CELL_COUNT),
+                "p_method": tt.p_method[j], "n_permutations": 0, "p_error": 0.0,
+                "reliability": tt.reliability[j], "_shuffles": (0, 0, -1),
             }
             self._relevance_cache[(key, target)] = (enc[key], enc[target], (i, settings_key),
                                                     dict(rows[i]))
+        self._relevance_p_values(others, target, rows)
         q = benjamini_hochberg(np.array([r["p_value"] for r in rows], dtype=float))
         for r, qv in zip(rows, q):
             r["q_value"] = float(qv)
-        out = result_frame(rows, RELEVANCE_COLUMNS, **self._attrs(target=target))
+        out = result_frame([{k: v for k, v in r.items() if k != "_shuffles"} for r in rows],
+                           RELEVANCE_COLUMNS, **self._attrs(target=target))
         out = out.sort_values("mi", ascending=False, na_position="last", kind="stable")
         out = out.reset_index(drop=True)
         out.attrs.update(self._attrs(target=target))
