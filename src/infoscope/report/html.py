@@ -131,6 +131,23 @@ def _count_hidden(payload: dict) -> tuple[int, int]:
     return sum(int(v.get("hidden_cells") or 0) for v in views), len(views)
 
 
+def _pairs_note(meta: dict) -> str | None:
+    """How many pairs of the profile rest on thin tables, and which test gave their p-values.
+
+    From the grid's meta (``pair_counts``, :func:`infoscope.views.serialize.grid_buffers`).
+    """
+    counts = (meta or {}).get("pair_counts")
+    if not counts or not counts.get("pairs"):
+        return None
+    text = (f"Pairs: {counts.get('sparse', 0)} of {counts['pairs']} rest on sparse tables (under 5 rows "
+            f"per cell on average: uncertain estimates) and {counts.get('too_few', 0)} have too few rows "
+            "to tell anything (under one row per cell).")
+    text += (f" p-values: the chi-square law (G with Williams' correction) for {counts.get('chi2', 0)} "
+             f"pairs with at least 20 rows per cell, a permutation test for {counts.get('permutation', 0)}; "
+             "findings are read by the Benjamini-Hochberg q-value.")
+    return text
+
+
 def _payload_of(source, *, settings=None, min_count=None) -> dict:
     """The payload of a live view (its own ``payload``) or of a session (:func:`infoscope.views.payload`)."""
     if callable(getattr(source, "payload", None)) and hasattr(source, "session"):
@@ -194,6 +211,9 @@ def profile_html(source, *, min_count=None, title: str | None = None, settings=N
              "the kernel are off, the pair views saved with the export still open.",
              "Bias-corrected estimates near 0 can be slightly negative: read them as no "
              "detectable information, not as an error."]
+    pairs_note = _pairs_note(data["state"].get("_grid_meta"))
+    if pairs_note:
+        notes.append(pairs_note)
     cells, views = _count_hidden(data)
     if effective:
         notes.append(f"Small-cell suppression: counts below {effective} are hidden in every pair view "

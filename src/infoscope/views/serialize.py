@@ -15,7 +15,9 @@ Shapes of the live view and of the HTML export (the front end reads exactly thes
     "sampled", "generation"}`` with one row per column in the table's order.
 ``grid_buffers`` -> dict
     ``meta``: ``{"names": [...ordered...], "measure", "unit", "order", "alpha",
-    "size", "generation"}``; ``values`` (float32, row-major ``size x size``, NaN where
+    "size", "reliability_states", "pair_counts", "generation"}`` (``pair_counts``:
+    ``{"pairs": m, "ok"/"sparse"/"too_few": ..., "chi2"/"permutation"/"none": ...}``,
+    the pairs of the table by reliability and by test); ``values`` (float32, row-major ``size x size``, NaN where
     unknown, the diagonal included as given by ``matrix()``), ``n`` (int32 pairwise
     complete rows), ``q`` (float32 BH q-values, NaN on the diagonal) and
     ``reliability`` (uint8: index into ``meta["reliability_states"]`` = ``["ok",
@@ -136,6 +138,11 @@ def grid_buffers(pairs: pd.DataFrame, order: list[str], *, alpha: float = 0.05,
     v = pd.to_numeric(pairs["value"], errors="coerce").to_numpy(dtype=np.float64)[ok]
     nn = pd.to_numeric(pairs["n"], errors="coerce").fillna(0).to_numpy(dtype=np.int64)[ok]
     qq = pd.to_numeric(pairs["q_value"], errors="coerce").to_numpy(dtype=np.float64)[ok]
+    counts = {"pairs": int(ok.sum())}
+    for column in ("reliability", "p_method"):
+        if column in pairs.columns:
+            for key, value in pairs.loc[ok, column].astype(str).value_counts().items():
+                counts[str(key)] = int(value)
     if "reliability" in pairs.columns:
         code = {state: c for c, state in enumerate(GRID_RELIABILITY)}
         rr = np.array([code.get(str(x), 255) for x in pairs["reliability"].to_numpy()[ok]], dtype=np.uint8)
@@ -155,7 +162,8 @@ def grid_buffers(pairs: pd.DataFrame, order: list[str], *, alpha: float = 0.05,
     return {
         "meta": {"names": names, "measure": attrs["measure"] or "mi", "unit": attrs["unit"],
                  "order": order_name, "alpha": float(alpha), "size": size,
-                 "reliability_states": list(GRID_RELIABILITY), "generation": int(generation)},
+                 "reliability_states": list(GRID_RELIABILITY), "pair_counts": counts,
+                 "generation": int(generation)},
         "values": values.tobytes(),
         "n": n.tobytes(),
         "q": q.tobytes(),
