@@ -406,6 +406,22 @@ def main(argv=None) -> None:
     print(f"  finding a cached session (frame_key, XXH3 over the column buffers): {t_key * 1000:.1f} ms = "
           f"{100 * t_key / t_acc:.1f}% of the call (target <= 5%); a repeated call (cached session) "
           f"{t_hit * 1000:.1f} ms")
+    # the significance stage inside that call: which test each pair got, and what the
+    # per-table part (G, Williams' factor, the chi-square rule) costs on all tables
+    from infoscope.estimators.significance import table_tests
+
+    methods = out_acc["accessor"]["p_method"].value_counts().to_dict()
+    shuffled = out_acc["accessor"].loc[out_acc["accessor"]["p_method"] == "permutation", "n_permutations"]
+    acc_tables = [np.asarray(t) for t in frame.info_profile.session(**user).engine.tables().values()] \
+        if hasattr(frame.info_profile, "session") else None
+    if acc_tables is not None:
+        t_tests, _ = best_of(args.repeat, table_tests, acc_tables)
+        cost = f"; G + rule on all {len(acc_tables)} tables {t_tests * 1000:.0f} ms = {100 * t_tests / t_acc:.1f}% of the call"
+    else:
+        cost = ""
+    print(f"  p-values: {', '.join(f'{k} {v}' for k, v in sorted(methods.items()))} pairs"
+          + (f" (mean {shuffled.mean():.0f} shuffles)" if len(shuffled) else " (no permutation test needed)")
+          + cost)
 
     # ---- first-call costs (numba import and compile)
     if not args.skip_first_call:

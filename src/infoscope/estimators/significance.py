@@ -115,11 +115,15 @@ def _as_tables(tables) -> list[np.ndarray]:
         return [np.asarray(t, dtype=np.float64) for t in tables]
     out = []
     for i, t in enumerate(tables):
-        arr = np.asarray(t, dtype=np.float64)
+        arr = np.asarray(t)
         if arr.ndim != 2:
             raise ValueError(f"tables[{i}] must be a 2-D table of counts, got shape {arr.shape}")
-        if arr.size and (not np.all(np.isfinite(arr)) or arr.min() < 0):
-            raise ValueError(f"tables[{i}] must hold finite non-negative counts")
+        if arr.dtype.kind not in "iu":  # integer counts (the engine's) need no check for NaN
+            arr = arr.astype(np.float64)
+            if arr.size and (not np.all(np.isfinite(arr)) or arr.min() < 0):
+                raise ValueError(f"tables[{i}] must hold finite non-negative counts")
+        elif arr.size and arr.min() < 0:
+            raise ValueError(f"tables[{i}] must hold non-negative counts")
         out.append(arr)
     return out
 
@@ -198,13 +202,17 @@ def g_statistics(tables) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray
     r_used = np.zeros(m, dtype=np.int64)
     c_used = np.zeros(m, dtype=np.int64)
     williams = np.ones(m)
+    # Empty cells, rows and columns change none of these numbers, so tables are
+    # zero-padded to shapes rounded up to powers of two and computed a stack at a time
+    # (an all-pairs profile has a few such shapes, however many tables).
     groups: dict[tuple, list[int]] = {}
     for i, t in enumerate(tabs):
-        groups.setdefault(t.shape, []).append(i)
+        if t.size:
+            groups.setdefault(tuple(1 << max(int(d) - 1, 0).bit_length() for d in t.shape), []).append(i)
     for shape, index in groups.items():
-        if 0 in shape:
-            continue
-        stack = np.stack([tabs[i] for i in index])
+        stack = np.zeros((len(index), *shape))
+        for j, i in enumerate(index):
+            stack[j, : tabs[i].shape[0], : tabs[i].shape[1]] = tabs[i]
         rows, cols = stack.sum(axis=2), stack.sum(axis=1)
         total = rows.sum(axis=1)
         # G = 2 (sum O ln O - sum R ln R - sum C ln C + N ln N)
