@@ -82,6 +82,16 @@ PLANTED = MappingProxyType({
     "more_flags": MappingProxyType({
         "contents": ("rare_levels",),
     }),
+    # rows whose fields contradict each other (one per 5,000 rows, none under 1,000):
+    # the kg and lb readings are swapped (so weight_kg > weight_lb, impossible for a
+    # consistent row) and the voucher is the one of another service; the rows are
+    # late parcels, so "voucher > 0 iff late" still holds.  surprising_rows() must
+    # rank them at the top.
+    "inconsistent": MappingProxyType({
+        "columns": ("weight_kg", "weight_lb", "compensation_eur", "service"),
+        "rule": "weight_kg > weight_lb",
+        "every": 5_000,
+    }),
     # make_deliveries_batch(drift=True) against make_deliveries(): expected flag
     # per column; every other common column is expected "stable".
     "drift": MappingProxyType({
@@ -98,6 +108,23 @@ PLANTED = MappingProxyType({
     "no_drift": MappingProxyType({"parcel_ref": "id_like"}),
 })
 """What :func:`make_deliveries` and :func:`make_deliveries_batch` plant, by column."""
+
+
+def _inconsistent_positions(late: np.ndarray) -> np.ndarray:
+    """Rows of the planted inconsistencies: one late parcel per 5,000 rows (none under 1,000 rows).
+
+    The first late parcel at or after the middle of each block of ``n // m`` rows.
+    """
+    n = late.size
+    m = max(1, n // _INCONSISTENT_EVERY) if n >= 1000 else 0
+    late_rows = np.flatnonzero(late)
+    if m == 0 or late_rows.size == 0:
+        return np.zeros(0, dtype=np.int64)
+    starts = np.arange(m) * (n // m) + (n // m) // 2
+    return np.unique(late_rows[np.minimum(np.searchsorted(late_rows, starts), late_rows.size - 1)])
+
+
+_INCONSISTENT_EVERY = 5_000
 
 
 def _check_n(n, parameter: str = "n", minimum: int = 1) -> int:
@@ -144,6 +171,13 @@ def _deliveries(n: int, seed, *, first_ref: int, start: np.datetime64,
              + 0.03 * (distance_km - 24.0) + 0.3 * (stops_before - 3.0))
     late = rng.random(n) < 1.0 / (1.0 + np.exp(-logit))
     compensation = np.where(late, _SERVICE_VOUCHER[service], 0.0)
+
+    # planted inconsistent rows: two readings typed into each other's field (the
+    # kg column holds the pound reading and vice versa) and the voucher of another
+    # service paid; both keep "voucher > 0 iff late" (see PLANTED["inconsistent"])
+    bad = _inconsistent_positions(late)
+    weight_kg[bad], weight_lb[bad] = weight_lb[bad], weight_kg[bad]
+    compensation[bad] = _SERVICE_VOUCHER[(service[bad] + 1) % len(_SERVICES)]
 
     note = np.asarray(_NOTES, dtype=object)[rng.integers(0, len(_NOTES), size=n)]
     note[rng.random(n) < 0.72] = None
@@ -201,6 +235,11 @@ def make_deliveries(n: int = 50_000, seed=0) -> pd.DataFrame:
     compensation_eur     numeric     voucher paid only when late (0 otherwise): known
                                      only after the outcome, so it leaks the target
     ==================== =========== ===================================================
+
+    One row in 5,000 (none in frames under 1,000 rows) is planted as inconsistent:
+    a late parcel whose kg and lb readings were typed into each other's field and
+    whose voucher is the amount of another service (``PLANTED["inconsistent"]``;
+    such rows are the ones with ``weight_kg > weight_lb``).
 
     Parameters
     ----------

@@ -403,6 +403,76 @@ class InfoProfileAccessor:
         return select_table(self._session(settings), target, k=k, method=method, include_leaks=include_leaks,
                             n_permutations=n_permutations, fdr=fdr)
 
+    def tree(self, **settings) -> pd.DataFrame:
+        """The Chow-Liu tree of the columns: see :func:`infoscope.frame.tree.tree_table`.
+
+        Parameters
+        ----------
+        **settings
+            Settings of the session (``bins``, ``estimator`` ...).
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per edge: ``parent, child, mi, n, depth``.
+
+        References
+        ----------
+        .. [1] Chow, C. K., & Liu, C. N. (1968). IEEE Transactions on Information
+           Theory, 14(3), 462-467.
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"a": [0, 1] * 50, "b": [0, 1] * 50, "c": [0, 0, 1, 1] * 25})
+        >>> df.info_profile.tree()[["parent", "child"]].values.tolist()
+        [['a', 'b'], ['a', 'c']]
+        """
+        from infoscope.frame.tree import tree_table
+
+        return tree_table(self._session(settings))
+
+    def surprising_rows(self, n: int = 20, model: str = "tree", *, alpha: float = 0.5, top_cells: int = 3,
+                        min_count=None, **settings) -> pd.DataFrame:
+        """The rows that fit the table's structure least: see :func:`infoscope.frame.tree.surprising_rows_table`.
+
+        Parameters
+        ----------
+        n : int, default=20
+            Number of rows.
+        model : {"tree", "independent"}, default="tree"
+            Chow-Liu tree or product of the margins.
+        alpha : float, default=0.5
+            Dirichlet pseudocount of the conditional tables.
+        top_cells : int, default=3
+            Contributing cells listed per row.
+        min_count : int, optional
+            Hide the listed cells' values (for sharing personal data); scores stay.
+        **settings
+            Settings of the session.
+
+        Returns
+        -------
+        pandas.DataFrame
+            ``rank, row, position, surprisal, excess, cells, summary``.
+
+        References
+        ----------
+        .. [1] Chow, C. K., & Liu, C. N. (1968). IEEE Transactions on Information
+           Theory, 14(3), 462-467.
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"a": list("xy") * 50, "b": list("xy") * 49 + ["y", "x"]})
+        >>> df.info_profile.surprising_rows(n=2)["position"].tolist()
+        [98, 99]
+        """
+        from infoscope.frame.tree import surprising_rows_table
+
+        return surprising_rows_table(self._session(settings), n, model=model, alpha=alpha, top_cells=top_cells,
+                                     min_count=min_count)
+
     def drift(self, reference, **settings) -> pd.DataFrame:
         """Divergence of this frame from a reference frame: see :meth:`ProfileSession.drift`.
 
