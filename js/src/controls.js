@@ -7,7 +7,8 @@ import { ESTIMATOR_LABELS, MEASURE_LABELS, MISSING_LABELS, STRATEGY_LABELS } fro
 
 export function select(ctx, name, label, choices, labels, opts = {}) {
   const id = uid(name);
-  const sel = h("select", { id, "aria-label": opts.aria || label, onchange: () => {
+  const sel = h("select", { id, "aria-label": opts.aria || label, "data-keep": `ctl:${name}`, onkeydown: () => ctx.hold.touch(), onchange: () => {
+    ctx.hold.touch();
     const v = sel.value;
     ctx.set(name, opts.parse ? opts.parse(v) : v);
   } });
@@ -26,8 +27,17 @@ export function select(ctx, name, label, choices, labels, opts = {}) {
 export function range(ctx, name, label, { min, max, step, format = (v) => String(v), parse = Number, read, write }) {
   const id = uid(name);
   const out = h("output", { for: id });
-  const input = h("input", { id, type: "range", min, max, step, "aria-label": label });
+  const input = h("input", { id, type: "range", min, max, step, "aria-label": label, "data-keep": `ctl:${name}` });
+  // moving the slider (dragged or keys held) counts as one gesture for the views
+  input.addEventListener("pointerdown", () => {
+    ctx.hold.press();
+    const up = () => { ctx.hold.release(); window.removeEventListener("pointerup", up); window.removeEventListener("pointercancel", up); };
+    window.addEventListener("pointerup", up);
+    window.addEventListener("pointercancel", up);
+  });
+  input.addEventListener("keydown", () => ctx.hold.touch());
   input.addEventListener("input", () => {
+    ctx.hold.touch();
     const v = parse(input.value);
     out.textContent = format(v);
     if (write) write(v); else ctx.set(name, v);

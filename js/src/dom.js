@@ -2,8 +2,16 @@
 // as properties or attributes; no HTML string is ever parsed, so column names and
 // values (data) reach the page only as text.
 
+// Elements that take keyboard focus carry data-lm-suppress-shortcuts: JupyterLab's
+// keymap (Lumino) walks up from the focused element and stops at an element with
+// that attribute, but matches the focused element itself first, so the attribute
+// must sit on the focused element, not only on the view's root. Keys typed into the
+// widget then never reach the notebook's command-mode shortcuts.
+const FOCUSABLE = new Set(["input", "select", "button", "textarea", "canvas"]);
+
 export function h(tag, props, ...kids) {
   const e = document.createElement(tag);
+  if (FOCUSABLE.has(tag) || (props && props.tabindex != null)) e.setAttribute("data-lm-suppress-shortcuts", "true");
   for (const [k, v] of Object.entries(props || {})) {
     if (v == null || v === false) continue;
     if (k === "class") e.className = v;

@@ -29,3 +29,16 @@ export function fitText(measure, text, width) {
   }
   return text.slice(0, lo) + "\u2026";
 }
+
+// A row-major size x size matrix `values` over `names`, rearranged to the order of
+// `order` (the same names in another order); null when the two name sets differ.
+export function reorderSquare(values, names, order) {
+  const n = names.length;
+  if (!values || order.length !== n || values.length !== n * n) return null;
+  const at = new Map(names.map((name, i) => [name, i]));
+  const idx = order.map((name) => at.get(name));
+  if (idx.some((i) => i === undefined) || new Set(idx).size !== n) return null;
+  const out = new values.constructor(n * n);
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) out[i * n + j] = values[idx[i] * n + idx[j]];
+  return out;
+}

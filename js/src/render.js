@@ -2,7 +2,7 @@
 // returns the clean-up function anywidget calls when the view goes away (which saves
 // focus and scroll into `memory` for the next view of the same model).
 import { h } from "./dom.js";
-import { createMemory, restore, save } from "./memory.js";
+import { createMemory, restore, save, track } from "./memory.js";
 import { makeCtx } from "./context.js";
 import { ESTIMATOR_LABELS } from "./vocabulary.js";
 import { controlsView } from "./controls.js";
@@ -13,12 +13,13 @@ import { relevanceView } from "./views/relevance.js";
 import { statusView, cautionView } from "./views/status.js";
 
 export function render({ model, el }, memory = createMemory()) {
-  // data-lm-suppress-shortcuts: JupyterLab (Lumino) stops looking for a keyboard
-  // shortcut when a key press comes from inside an element carrying it, so keys
-  // typed into the controls never reach the notebook's command-mode shortcuts.
+  // data-lm-suppress-shortcuts on the root and on every focusable element (dom.js):
+  // keys typed into the widget never reach the notebook's command-mode shortcuts
   const root = h("div", { class: "isc-root", "data-lm-suppress-shortcuts": "true" });
   el.append(root);
   const ctx = makeCtx(model, root);
+  ctx.memory = memory;
+  const untrack = track(memory, root);
   const view = model.get("_view") || "profile";
   const status = statusView(ctx, () => model.send({ type: "cancel" }));
   const parts = {};
@@ -80,10 +81,11 @@ export function render({ model, el }, memory = createMemory()) {
   }
   // controls sync is a method named sync, not draw
   if (parts.controls) parts.controls.draw = parts.controls.sync;
-  ctx.memory = memory;
   requestAnimationFrame(() => requestAnimationFrame(() => restore(memory, root)));
   return () => {
     save(memory, root);
+    untrack();
+    ctx.hold.stop();
     for (const [evt, cb] of handlers) model.off(evt, cb);
     for (const part of Object.values(parts)) if (part && part.destroy) part.destroy();
     if (frame) cancelAnimationFrame(frame);

@@ -1,7 +1,7 @@
 // Layout arithmetic of the views (js/src/layout.js).
 import { test } from "node:test";
 import assert from "node:assert/strict";
-import { cellAt, fitText, gridLayout } from "../src/layout.js";
+import { cellAt, fitText, gridLayout, reorderSquare } from "../src/layout.js";
 
 test("grid cells fill the width left after the label margin, within 2 .. 30 px", () => {
   assert.deepEqual(gridLayout({ avail: 520, size: 17, labelWidth: 60 }), { cell: 26, mx: 68, my: 68 });
@@ -31,4 +31,13 @@ test("fitText keeps the longest prefix that fits with an ellipsis", () => {
   assert.equal(fitText(mono, "a much longer name", 60), "a muc\u2026");
   assert.equal(fitText(mono, "x".repeat(5000), 30).length, 3);
   assert.equal(fitText(mono, "abc", 5), "\u2026");
+});
+
+test("a square matrix rearranged to another order of the same names", () => {
+  const v = Float32Array.from([0, 1, 2, 10, 11, 12, 20, 21, 22]); // rows a, b, c
+  const out = reorderSquare(v, ["a", "b", "c"], ["c", "a", "b"]);
+  assert.deepEqual([...out], [22, 20, 21, 2, 0, 1, 12, 10, 11]);
+  assert.ok(out instanceof Float32Array);
+  assert.equal(reorderSquare(v, ["a", "b", "c"], ["a", "b", "d"]), null);
+  assert.equal(reorderSquare(v, ["a", "b", "c"], ["a", "b"]), null);
 });

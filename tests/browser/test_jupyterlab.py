@@ -70,3 +70,80 @@ def test_bins_slider_round_trip(lab, web, artifacts):
     # anywidget warns about modules that export `render` by name (its old format)
     deprecations = [w for w in web.console_warnings if "anywidget" in w and "eprecat" in w]
     assert deprecations == [], deprecations[0][:300]
+
+
+NOTEBOOK_STATE = """() => {
+  const nb = window.jupyterapp.shell.currentWidget.content;
+  const at = nb.widgets.findIndex((c) => c.node.querySelector('.isc-root'));
+  return { active: nb.activeCellIndex, mode: nb.mode, widgetCell: at,
+           types: nb.widgets.map((c) => c.model.type), cells: nb.widgets.length,
+           focused: document.activeElement ? (document.activeElement.getAttribute('data-keep') || document.activeElement.tagName) : null };
+}"""
+
+
+def test_keys_in_the_widget_never_reach_the_notebook(lab, web, artifacts):
+    # JupyterLab's command-mode shortcuts (ArrowUp/Down move between cells, m makes a
+    # Markdown cell, a/b insert cells) match any focused element inside a notebook;
+    # the widget root carries data-lm-suppress-shortcuts, which Lumino's keymap honours
+    server, name, root = lab
+    page = web.page
+    page.set_default_timeout(120_000)
+    open_notebook_and_run_all(page, server, name)
+    page.wait_for_selector(f".isc-root {BINS}", timeout=60_000)
+    slider = page.locator(f".isc-root {BINS}").first
+    slider.scroll_into_view_if_needed()
+    slider.click()  # as a person does: the notebook goes to command mode, the slider has focus
+    page.wait_for_timeout(300)
+    before = page.evaluate(NOTEBOOK_STATE)
+    assert before["widgetCell"] >= 0 and before["mode"] == "command", before
+    value = int(slider.input_value())
+    page.keyboard.press("ArrowUp")
+    page.keyboard.press("ArrowUp")
+    page.keyboard.press("ArrowDown")
+    page.wait_for_timeout(300)
+    after = page.evaluate(NOTEBOOK_STATE)
+    assert int(slider.input_value()) == value + 1, ("the arrow keys did not move the slider", before, after)
+    assert after["active"] == before["active"] and after["cells"] == before["cells"], (before, after)
+    assert after["focused"] == "ctl:bins", after
+    # letters typed into the estimator dropdown: no cell becomes Markdown, none is added
+    estimator = page.locator(".isc-root select[aria-label=Estimator]").first
+    estimator.focus()
+    for key in ("m", "a", "b", "y"):
+        page.keyboard.press(key)
+    page.wait_for_timeout(300)
+    typed = page.evaluate(NOTEBOOK_STATE)
+    assert typed["types"] == before["types"] and typed["cells"] == before["cells"], (before, typed)
+    assert page.locator(".isc-root").count() >= 1, "the widget's output disappeared"
+    # the kernel saw the slider move (and nothing else broke)
+    seen = kernel_exec(page, "profile.wait(60); print(profile.bins)")
+    assert seen.strip() == str(value + 1)
+    web.screenshot(artifacts / "jupyterlab-keys.png", full_page=False)
+    assert web.page_errors == [], web.page_errors
+
+
+def test_focus_and_grid_cursor_survive_a_kernel_side_update(lab, web):
+    server, name, root = lab
+    page = web.page
+    page.set_default_timeout(120_000)
+    open_notebook_and_run_all(page, server, name)
+    page.wait_for_function(f"() => {{ const c = document.querySelector('{GRID}'); return c && c.width > 1; }}")
+    canvas = page.locator(GRID).first
+    canvas.scroll_into_view_if_needed()
+    canvas.focus()
+    for key in ("ArrowDown", "ArrowRight", "ArrowRight"):
+        page.keyboard.press(key)
+    cursor = page.evaluate(f"JSON.parse(document.querySelector('{GRID}').dataset.cursor)")
+    scroll = page.evaluate("document.querySelector('.jp-WindowedPanel-outer, .jp-Notebook').scrollTop")
+    before = canvas.evaluate("c => c.toDataURL()")
+    kernel_exec(page, "profile.bins = 6\nprofile.wait(60)")
+    page.wait_for_function("(b) => { const c = document.querySelector('" + GRID + "'); return c && c.toDataURL() !== b; }",
+                           arg=before, timeout=90_000, polling=200)
+    page.wait_for_timeout(4000)  # past the static picture's refresh beside the view
+    assert page.evaluate("document.activeElement && document.activeElement.getAttribute('data-keep')") == "grid"
+    assert page.evaluate(f"JSON.parse(document.querySelector('{GRID}').dataset.cursor || 'null')") in (cursor, None)
+    page.keyboard.press("ArrowLeft")
+    moved = page.evaluate(f"JSON.parse(document.querySelector('{GRID}').dataset.cursor)")
+    assert moved[0] == cursor[0], (cursor, moved)
+    after = page.evaluate("document.querySelector('.jp-WindowedPanel-outer, .jp-Notebook').scrollTop")
+    assert abs(after - scroll) < 40, f"the notebook scrolled from {scroll} to {after}"
+    assert web.page_errors == [], web.page_errors

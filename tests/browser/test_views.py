@@ -65,6 +65,16 @@ function decode(state, binary) {
   }
   return out;
 }
+// the same grid in the reverse column order (values moved with their names)
+function reverseGrid(st) {
+  const names = st._grid_meta.names, n = names.length;
+  for (const [k, Arr] of [["_grid_values", Float32Array], ["_grid_n", Int32Array], ["_grid_q", Float32Array]]) {
+    const src = new Arr(st[k].buffer.slice(0)), out = new Arr(n * n);
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) out[i * n + j] = src[(n - 1 - i) * n + (n - 1 - j)];
+    st[k] = new DataView(out.buffer);
+  }
+  st._grid_meta = { ...st._grid_meta, names: [...names].reverse() };
+}
 // the fake kernel: answer a change with the payload computed for those settings
 function answer(keys, m) {
   window.__saves.push(Object.fromEntries(keys.map((k) => [k, m.get(k)])));
@@ -85,6 +95,7 @@ function answer(keys, m) {
       return;
     }
     const st = decode(found.state, found.binary);
+    if (window.__reverseOrder) reverseGrid(st); // a kernel whose similarity order changed
     for (const k of DATA) m.set(k, st[k]);
     m.set("_status", { state: "idle", message: "", generation: gen, progress: null, notes: [] });
   }, window.__delay ?? 40);
@@ -96,6 +107,8 @@ if (only) data[which].state._view = only;
 const model = modelFromPayload(data[which], offline ? {} : { onSave: answer, onSend: (msg) => window.__sent.push(msg) });
 window.__model = model;
 window.__cleanup = render({ model, el: document.getElementById("app") });
+// the view taken down and drawn again for the same model (a re-rendered output)
+window.__rerender = () => { window.__cleanup(); window.__cleanup = render({ model, el: document.getElementById("app") }); };
 window.__ready = true;
 </script></body></html>
 """
@@ -157,7 +170,10 @@ def harness(served, web, payloads):
 
     def open_(query: str = ""):
         web.goto(served.url("/harness.html" + query))
-        web.page.wait_for_function("window.__ready === true")
+        try:
+            web.page.wait_for_function("window.__ready === true", timeout=15_000)
+        except Exception:
+            raise AssertionError(f"the harness did not start: {web.page_errors} {web.console_errors}")
         web.page.wait_for_timeout(120)  # one animation frame of batched redraws
         return web.page
 
@@ -558,3 +574,77 @@ def test_long_and_right_to_left_names_stay_in_their_place(harness, web, artifact
     assert aria.startswith("\u2068" + RTL + "\u2069:"), aria[:40]
     assert web.page_errors == [] and web.outside_requests == []
     web.screenshot(artifacts / "odd-names.png", full_page=True)
+
+
+def _grid_cursor(page):
+    return page.evaluate("JSON.parse(document.querySelector('.isc-grid canvas').dataset.cursor || 'null')")
+
+
+def test_focus_scroll_and_grid_cursor_survive_updates_and_redraws(harness, web):
+    page = harness()
+    page.set_viewport_size({"width": 1280, "height": 600})
+    canvas = page.locator(".isc-grid canvas").first
+    canvas.focus()
+    for key in ("ArrowDown", "ArrowDown", "ArrowRight", "ArrowRight", "ArrowRight"):
+        page.keyboard.press(key)
+    cursor = _grid_cursor(page)
+    names = page.evaluate("window.__model.get('_grid_meta').names")
+    assert cursor == [names[2], names[4]]
+    # new numbers arrive in a new column order: focus stays, the cursor stays on the pair
+    page.evaluate("window.__reverseOrder = true")
+    page.evaluate("window.__model.set('bins', 17); window.__model.save_changes()")
+    page.wait_for_function("(window.__model.get('_status')||{}).state === 'idle' && window.__model.get('_grid_meta').names[0] !== %s" % json.dumps(names[0]))
+    page.wait_for_timeout(1200)  # past the hold time of the programmatic change
+    page.evaluate("window.__model.set('_status', {...window.__model.get('_status')})")  # any redraw
+    page.wait_for_timeout(100)
+    assert page.evaluate("document.activeElement && document.activeElement.dataset.keep") == "grid"
+    assert _grid_cursor(page) == cursor
+    # the whole view taken down and drawn again (as a notebook re-renders an output)
+    page.mouse.wheel(0, 400)
+    page.evaluate("document.querySelector('.isc-pair .isc-tablewrap').scrollLeft = 120")
+    page.wait_for_timeout(80)
+    page.evaluate("window.__rerender()")
+    page.wait_for_timeout(200)
+    assert page.evaluate("document.activeElement && document.activeElement.dataset.keep") == "grid", "focus fell to the page"
+    assert _grid_cursor(page) is None or _grid_cursor(page) == cursor
+    page.keyboard.press("ArrowRight")  # the cursor goes on from where it was
+    moved = _grid_cursor(page)
+    new_names = page.evaluate("window.__model.get('_grid_meta').names")
+    assert moved[0] == cursor[0] and new_names.index(moved[1]) == new_names.index(cursor[1]) + 1
+    assert page.evaluate("document.querySelector('.isc-pair .isc-tablewrap').scrollLeft") >= 100
+    # an entropy row keeps focus when the bars are redrawn with new numbers
+    row = page.locator(".isc-entropy .isc-erow[data-column='depot']")
+    row.focus()
+    page.evaluate("window.__reverseOrder = false; window.__model.set('bins', 8); window.__model.save_changes()")
+    page.wait_for_function("window.__model.get('bins') === 8 && (window.__model.get('_status')||{}).state === 'idle'")
+    page.wait_for_timeout(120)
+    assert page.evaluate("document.activeElement.dataset.column") == "depot"
+    assert web.page_errors == []
+
+
+def test_grid_keeps_its_column_order_while_the_slider_moves(harness, web, artifacts):
+    page = harness()
+    names = page.evaluate("window.__model.get('_grid_meta').names")
+    page.evaluate("window.__reverseOrder = true")
+    slider = page.locator(".isc-controls input[type=range]").first
+    slider.focus()
+    page.keyboard.press("ArrowRight")  # 16 -> 17: the kernel's answer comes in another order
+    page.wait_for_function("(window.__model.get('_status')||{}).state === 'idle' && window.__model.get('bins') === 17")
+    page.wait_for_timeout(60)
+    state = page.evaluate("window.__model.get('_grid_meta').names")
+    assert state != names and sorted(state) == sorted(names)
+    # the slider was touched a moment ago: the grid still shows the old order, with the new numbers
+    assert "order kept" in page.text_content(".isc-grid .isc-phead")
+    page.locator(".isc-grid").screenshot(path=str(artifacts / "grid-order-held.png"))
+    canvas = page.locator(".isc-grid canvas").first
+    cell = float(canvas.get_attribute("data-cell")); off = float(canvas.get_attribute("data-offset"))
+    canvas.hover(position={"x": off + 1.5 * cell, "y": off + 0.5 * cell})
+    said = page.text_content(".isc-tip").replace("\u2068", "").replace("\u2069", "")
+    assert said.startswith(f"{names[0]} \u00d7 {names[1]}"), said[:80]
+    # let go: the new order follows without another change
+    page.mouse.move(2, 2)
+    page.wait_for_function("!document.querySelector('.isc-grid .isc-phead').textContent.includes('order kept')", timeout=5000)
+    canvas.hover(position={"x": off + 1.5 * cell, "y": off + 0.5 * cell})
+    said = page.text_content(".isc-tip").replace("\u2068", "").replace("\u2069", "")
+    assert said.startswith(f"{state[0]} \u00d7 {state[1]}"), said[:80]
+    assert web.page_errors == []

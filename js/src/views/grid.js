@@ -4,7 +4,7 @@ import { h, iso } from "../dom.js";
 import { asFloat32, asInt32 } from "../decode.js";
 import { amount, count, num, pWords } from "../format.js";
 import { SEQUENTIAL, gridT, mute } from "../scales.js";
-import { cellAt as cellUnder, fitText, gridLayout } from "../layout.js";
+import { cellAt as cellUnder, fitText, gridLayout, reorderSquare } from "../layout.js";
 import { HAS_UNIT, MEASURE_LABELS, MEASURE_SHORT, ORDER_LABELS } from "../vocabulary.js";
 import { select } from "../controls.js";
 
@@ -12,8 +12,8 @@ export function gridView(ctx) {
   const el = h("section", { class: "isc-panel isc-grid", "aria-label": "information grid" });
   const order = select(ctx, "order", "Order", ["cluster", "name"], ORDER_LABELS);
   const unitEl = h("span", { class: "isc-punit" });
-  const canvas = h("canvas", { tabindex: 0, role: "img", "aria-label": "information grid: arrow keys move, Enter opens the pair" });
-  const wrap = h("div", { class: "isc-gridwrap" }, canvas);
+  const canvas = h("canvas", { tabindex: 0, role: "img", "data-keep": "grid", "aria-label": "information grid: arrow keys move, Enter opens the pair" });
+  const wrap = h("div", { class: "isc-gridwrap", "data-keep-scroll": "grid" }, canvas);
   const live = h("div", { class: "isc-sr", "aria-live": "polite" });
   const legendBar = h("canvas", { width: 140, height: 10, "aria-hidden": "true" });
   const legendMin = h("span"), legendMax = h("span");
@@ -22,19 +22,41 @@ export function gridView(ctx) {
   const legend = h("div", { class: "isc-legend" }, h("span", null, legendMin, " ", legendBar, " ", legendMax),
     h("span", null, mutedSw, mutedText), h("span", null, h("span", { class: "isc-swatch", style: { background: "linear-gradient(135deg,#fff 45%,#c9c4b8 45% 55%,#fff 55%)" } }), "a column with itself"),
     h("span", null, "colour ∝ √ value"));
-  el.append(h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Information grid"), unitEl, order.el), wrap, legend, live);
+  const held = h("span", { class: "isc-held", role: "note" });
+  const memory = ctx.memory || {};
+  el.append(h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Information grid"), unitEl, held, order.el), wrap, legend, live);
   const st = { names: [], size: 0, values: null, n: null, q: null, cell: 10, mx: 0, my: 0, max: 1, cursor: [0, 1], alpha: 0.05 };
+
 
   function load() {
     const meta = ctx.get("_grid_meta") || {};
-    st.names = meta.names || [];
+    let names = meta.names || [];
+    let values = asFloat32(ctx.get("_grid_values")), n = asInt32(ctx.get("_grid_n")), q = asFloat32(ctx.get("_grid_q"));
+    // while a control is being moved the columns keep the order on screen, so cells
+    // do not jump under the pointer; the new order comes when the control is let go
+    held.textContent = "";
+    if (ctx.hold.active() && st.names.length === names.length && st.names.join("\u0000") !== names.join("\u0000")) {
+      const keep = st.names;
+      const moved = [reorderSquare(values, names, keep), reorderSquare(n, names, keep), reorderSquare(q, names, keep)];
+      if (moved.every(Boolean)) {
+        [values, n, q] = moved;
+        names = keep;
+        held.textContent = "order kept while a control moves";
+      }
+    }
+    st.names = names;
     st.size = st.names.length;
-    st.values = asFloat32(ctx.get("_grid_values"));
-    st.n = asInt32(ctx.get("_grid_n"));
-    st.q = asFloat32(ctx.get("_grid_q"));
+    st.values = values; st.n = n; st.q = q;
     st.alpha = ctx.get("alpha_fdr") ?? meta.alpha ?? 0.05;
     st.measure = meta.measure || ctx.get("measure") || "mi";
     st.unit = meta.unit || ctx.unit();
+    // the keyboard cursor stays on the same pair of columns, wherever they moved
+    const want = memory.cursor;
+    if (Array.isArray(want)) {
+      const i = st.names.indexOf(want[0]), j = st.names.indexOf(want[1]);
+      if (i >= 0 && j >= 0) st.cursor = [i, j];
+    }
+    st.cursor = [Math.min(st.cursor[0], Math.max(0, st.size - 1)), Math.min(st.cursor[1], Math.max(0, st.size - 1))];
     if (st.values.length !== st.size * st.size) st.size = 0; // incomplete update: draw nothing stale
     let top = 0;
     for (let i = 0; i < st.size; i++) for (let j = 0; j < st.size; j++) {
@@ -173,7 +195,12 @@ export function gridView(ctx) {
     ctx.tip.show(describe(c[0], c[1]), ev.clientX, ev.clientY);
   });
   canvas.addEventListener("mouseleave", () => ctx.tip.hide());
-  canvas.addEventListener("click", (ev) => { const c = cellAt(ev); if (c) { st.cursor = c; open(c[0], c[1]); } });
+  const setCursor = (c) => {
+    st.cursor = c;
+    memory.cursor = [st.names[c[0]], st.names[c[1]]];
+    canvas.dataset.cursor = JSON.stringify(memory.cursor);
+  };
+  canvas.addEventListener("click", (ev) => { const c = cellAt(ev); if (c) { setCursor(c); open(c[0], c[1]); } });
   canvas.addEventListener("focus", () => draw());
   canvas.addEventListener("blur", () => draw());
   canvas.addEventListener("keydown", (ev) => {
@@ -182,7 +209,7 @@ export function gridView(ctx) {
     if (moves[ev.key]) {
       ev.preventDefault();
       const [di, dj] = moves[ev.key];
-      st.cursor = [Math.max(0, Math.min(st.size - 1, st.cursor[0] + di)), Math.max(0, Math.min(st.size - 1, st.cursor[1] + dj))];
+      setCursor([Math.max(0, Math.min(st.size - 1, st.cursor[0] + di)), Math.max(0, Math.min(st.size - 1, st.cursor[1] + dj))]);
       live.textContent = describe(...st.cursor).join(", ");
       draw();
     } else if (ev.key === "Enter" || ev.key === " ") {
@@ -196,6 +223,7 @@ export function gridView(ctx) {
     ro = new ResizeObserver(() => { const w = wrap.clientWidth; if (Math.abs(w - last) > 4) { last = w; draw(); } });
     ro.observe(wrap);
   }
+  const unhold = ctx.hold.onRelease(() => draw()); // the new order, once let go
   requestAnimationFrame(draw);
-  return { el, draw, destroy: () => ro && ro.disconnect(), state: st, canvas };
+  return { el, draw, destroy: () => { if (ro) ro.disconnect(); unhold(); }, state: st, canvas };
 }

@@ -31,9 +31,14 @@ export function pairView(ctx) {
   let cue = null;
   const ro = typeof ResizeObserver !== "undefined" ? new ResizeObserver(() => cue && cue()) : null;
 
+  let shownKey = null;
   function draw() {
     if (ro) ro.disconnect();
     cue = null;
+    // the same pair redrawn (new numbers, a setting) keeps its table's scroll
+    const prev = body.querySelector(".isc-tablewrap");
+    const scroll = prev ? [prev.scrollTop, prev.scrollLeft] : null;
+    const prevKey = shownKey;
     clear(body);
     const { view, pending, wanted } = pairFor(ctx);
     if (!view) {
@@ -103,7 +108,7 @@ export function pairView(ctx) {
     });
     const tfoot = view.col_totals ? h("tfoot", null, h("tr", null, h("th", { scope: "row", class: "isc-tot" }, "total"),
       view.col_totals.map((v) => h("td", { class: "isc-tot" }, count(v))), h("td", { class: "isc-tot" }, count(view.n)))) : null;
-    const tableWrap = h("div", { class: "isc-tablewrap" }, h("table", { class: "isc-ptable" }, thead, tbody, tfoot));
+    const tableWrap = h("div", { class: "isc-tablewrap", "data-keep-scroll": "pair" }, h("table", { class: "isc-ptable" }, thead, tbody, tfoot));
     const more = h("div", { class: "isc-note isc-more", "aria-hidden": "true", style: { display: "none" } }, "scroll sideways for more columns \u2192");
     const box = h("div", { class: "isc-tablebox" }, tableWrap);
     holder.append(box, more);
@@ -115,6 +120,12 @@ export function pairView(ctx) {
       box.classList.toggle("isc-overflow", over && !atEnd);
       more.style.display = over ? "" : "none";
     };
+    shownKey = `${view.a}\u0000${view.b}`;
+    if (scroll && prevKey === shownKey) requestAnimationFrame(() => { tableWrap.scrollTop = scroll[0]; tableWrap.scrollLeft = scroll[1]; });
+    else if (ctx.memory && ctx.memory.scroll.get("pair") && prevKey == null) {
+      const at = ctx.memory.scroll.get("pair");
+      requestAnimationFrame(() => { tableWrap.scrollTop = at[0]; tableWrap.scrollLeft = at[1]; });
+    }
     tableWrap.addEventListener("scroll", cue);
     requestAnimationFrame(cue);
     if (ro) ro.observe(tableWrap);
