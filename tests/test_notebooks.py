@@ -1,8 +1,9 @@
 """Every example notebook runs top to bottom in a real kernel (nbclient, no browser).
 
-Also checks what a shared notebook shows: the profile cell's output carries the
-widget view *and* the static SVG picture (``image/svg+xml`` plus an ``<img>`` data
-URI in ``text/html``), and the stored notebooks hold no outputs or widget state.
+Also checks what a shared notebook shows: the profile cell's outputs are the
+widget view and, right after it, the static SVG picture (``image/svg+xml`` plus an
+``<img>`` data URI in ``text/html``), and the stored notebooks hold no outputs or
+widget state.
 """
 from __future__ import annotations
 
@@ -43,13 +44,16 @@ def test_notebook_runs_and_shows_widget_and_picture(path, tmp_path):
     assert errors == [], errors and "\n".join(errors[0].get("traceback", []))[-2000:]
     bundles = [o.get("data", {}) for c in nb.cells if c.cell_type == "code" for o in c.outputs
                if o.output_type in ("display_data", "execute_result")]
-    views = [b for b in bundles if WIDGET_MIME in b]
+    views = [i for i, b in enumerate(bundles) if WIDGET_MIME in b]
     assert views, "the profile cell displays a live widget"
-    view = views[0]
-    svg = view.get("image/svg+xml")
+    # right after the live view, its static picture as an output of its own (refreshed
+    # through its display id, so the live view is never re-rendered)
+    picture = bundles[views[0] + 1]
+    assert WIDGET_MIME not in picture
+    svg = picture.get("image/svg+xml")
     assert svg, "beside the widget: a static SVG picture for saved / untrusted notebooks"
     ET.fromstring(svg if isinstance(svg, str) else "".join(svg))  # well-formed
-    img = re.search(r'<img [^>]*src="data:image/svg\+xml;base64,([^"]+)"', view.get("text/html", ""))
+    img = re.search(r'<img [^>]*src="data:image/svg\+xml;base64,([^"]+)"', picture.get("text/html", ""))
     assert img and base64.b64decode(img.group(1)).decode("utf-8").startswith("<svg")
     pages = list(tmp_path.glob("*.html"))
     assert pages, "the notebook ends with an offline export"

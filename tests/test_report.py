@@ -495,3 +495,19 @@ def test_cli_demo_out_writes_the_page(tmp_path, capsys):
     assert f"wrote {page}" in capsys.readouterr().out
     text = page.read_text(encoding="utf-8")
     assert 'id="isc-payload"' in text and "counts below 5 are hidden" in text
+
+
+def test_picture_is_wide_enough_for_every_caption(wine_codes):
+    # a viewer clips what lies beyond the SVG's width (the grid's caption used to run
+    # past it): every left-aligned line must end inside, estimated at 0.55 em per
+    # character, about the average advance of a sans-serif face (common practice)
+    import re
+
+    for matrix in (None, _matrix(wine_codes)):
+        svg = picture.profile_svg_from_tables(_entropy_table(wine_codes), matrix)
+        width = float(re.search(r'<svg [^>]*width="([\d.]+)"', svg).group(1))
+        for m in re.finditer(r'<text x="([\d.]+)"([^>]*)>([^<]*)</text>', svg):
+            if 'text-anchor="end"' in m.group(2):
+                continue
+            size = float(re.search(r'font-size="([\d.]+)"', m.group(2)).group(1))
+            assert float(m.group(1)) + 0.55 * size * len(m.group(3)) <= width, m.group(3)

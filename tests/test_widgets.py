@@ -430,7 +430,7 @@ def test_markup_names_travel_as_plain_data():
     assert data["text/html"].count("<img ") == 1              # only our own tag
 
 
-def test_displayed_picture_follows_the_view(frame, monkeypatch):
+def test_displayed_picture_follows_the_view_without_touching_it(frame, monkeypatch):
     import IPython.display as ipd
 
     shown, updated = [], []
@@ -438,8 +438,13 @@ def test_displayed_picture_follows_the_view(frame, monkeypatch):
     monkeypatch.setattr(ipd, "update_display", lambda data, raw=False, display_id=None, **kw: updated.append((data, display_id)))
     w = widget(frame, picture_delay=0.05)
     w._ipython_display_()
-    (data, display_id), = shown
-    assert "image/svg+xml" in data and "application/vnd.jupyter.widget-view+json" in data
+    # two outputs: the live view (no picture in it, no display id: never updated) ...
+    (view, view_id), (data, display_id) = shown
+    assert view_id is None and "application/vnd.jupyter.widget-view+json" in view
+    assert "image/svg+xml" not in view and "text/html" not in view
+    # ... and the static picture under its own display id, hidden beside a drawn live view
+    assert display_id and "image/svg+xml" in data and "application/vnd.jupyter.widget-view+json" not in data
+    assert 'class="isc-static"' in data["text/html"] and ":has(.isc-root)" in data["text/html"]
     w.bins = 4
     deadline = time.monotonic() + 10
     while not updated and time.monotonic() < deadline:
@@ -447,6 +452,51 @@ def test_displayed_picture_follows_the_view(frame, monkeypatch):
     assert updated, "the static picture was not refreshed after the view changed"
     new, same_id = updated[-1]
     assert same_id == display_id and new["image/svg+xml"] != data["image/svg+xml"]
+    assert all("application/vnd.jupyter.widget-view+json" not in d for d, _ in updated)  # the view is left alone
+
+
+def test_threaded_widget_shows_at_once_and_fills_in(frame, monkeypatch):
+    import IPython.display as ipd
+
+    shown, updated = [], []
+    monkeypatch.setattr(ipd, "display", lambda data, raw=False, display_id=None, **kw: shown.append((data, display_id)))
+    monkeypatch.setattr(ipd, "update_display", lambda data, raw=False, display_id=None, **kw: updated.append((data, display_id)))
+    gate = threading.Event()
+    original = ProfileWidget._check_settings
+
+    def gated(self):  # the first view cannot finish before the widget is shown
+        gate.wait(10)
+        return original(self)
+
+    monkeypatch.setattr(ProfileWidget, "_check_settings", gated)
+    w = quiet(ProfileWidget, session_of(frame), picture_delay=0.05, first_view="background")
+    assert w._status["state"] == "computing" and "first view" in w._status["message"]
+    assert not w._entropy
+    w._ipython_display_()
+    (_, _), (placeholder, display_id) = shown
+    assert "image/svg+xml" not in placeholder and "computing" in placeholder["text/plain"]
+    with warnings.catch_warnings():  # warning filters are process-wide: keep ours open meanwhile
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        gate.set()
+        assert w.wait(30) and w._status["state"] == "idle", w._status
+    assert_same_entropy(w, direct_entropy(frame))
+    deadline = time.monotonic() + 10
+    while not updated and time.monotonic() < deadline:
+        time.sleep(0.02)
+    assert updated and updated[-1][1] == display_id and "image/svg+xml" in updated[-1][0]
+    w.close()
+
+
+def test_threaded_preview_then_full_data_and_wait_covers_both(frame):
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        w = ProfileWidget(session_of(frame), preview_rows=200, first_view="background")  # 600 rows: sampled first
+        assert w._status["state"] == "computing" and "seeded sample of 200 rows" in w._status["message"]
+        assert w.wait(60)
+    data = json.loads(w._entropy)
+    assert data["rows"] and w.session.settings["sample"] is None  # the full data, not the sample
+    assert_same_entropy(w, direct_entropy(frame))
+    w.close()
 
 
 @pytest.mark.parametrize("name", ["ProfileWidget", "EntropyBarsWidget", "InformationGridWidget",

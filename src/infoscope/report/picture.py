@@ -210,9 +210,10 @@ def _draw(bars: list, grid, relevance: list | None, *, unit: str, estimator, sam
             for i, name in enumerate(shown):
                 parts.append(f'<text x="{gx - 4:.1f}" y="{gy + (i + 0.8) * size:.1f}" font-size="{min(size - 1, 10):.0f}" '
                              f'text-anchor="end" {FONT}>{svg_text(name, 16)}</text>')
+        caption = f"darker: more shared information (square-root scale, max {_fmt(top, 3)})"
         parts.append(f'<text x="{gx:.1f}" y="{gy + n * size + 12:.1f}" font-size="9" {FONT}>'
-                     f'darker: more shared information (square-root scale, max {svg_text(_fmt(top, 3))})</text>')
-        width = gx + n * size + 20
+                     f'{svg_text(caption)}</text>')
+        width = max(gx + n * size + 20, _text_right(gx, caption, 9))
         height = max(height, gy + n * size + 20)
 
     if relevance:
@@ -225,8 +226,10 @@ def _draw(bars: list, grid, relevance: list | None, *, unit: str, estimator, sam
                             outline_key=None, value_key="mi", scale_max=top)
         parts += body
         if any(r["leakage"] for r in items):
+            leak = "orange: tells >= 95 % of the target (possible leakage)"
             parts.append(f'<text x="{x + 330:.1f}" y="{ry + 34:.1f}" font-size="10" fill="{PALETTE["leak"]}" {FONT}>'
-                         "orange: tells >= 95 % of the target (possible leakage)</text>")
+                         f"{svg_text(leak)}</text>")
+            width = max(width, _text_right(x + 330, leak, 10))
         height = ry + h_rel
 
     notes = [f"Estimator {estimator or '?'}; unit {unit}; whiskers: confidence intervals.",
@@ -238,6 +241,7 @@ def _draw(bars: list, grid, relevance: list | None, *, unit: str, estimator, sam
     for k, note in enumerate(notes):
         parts.append(f'<text x="10" y="{height + 14 + 13 * k:.1f}" font-size="10" fill="#444" {FONT}>'
                      f"{svg_text(note)}</text>")
+        width = max(width, _text_right(10, note, 10))
     height += 14 + 13 * len(notes)
     head = (f'<text x="10" y="16" font-size="14" font-weight="bold" {FONT}>infoscope profile</text>'
             f'<text x="150" y="16" font-size="10" fill="#444" {FONT}>{n_columns} columns</text>')
@@ -245,6 +249,15 @@ def _draw(bars: list, grid, relevance: list | None, *, unit: str, estimator, sam
     return (f'<svg xmlns="http://www.w3.org/2000/svg" width="{w}" height="{h}" viewBox="0 0 {w} {h}" '
             f'role="img" aria-label="infoscope profile"><rect width="{w}" height="{h}" fill="#ffffff"/>'
             + head + "".join(parts) + "</svg>")
+
+
+def _text_right(x: float, text: str, size: float) -> float:
+    """Right end of a line of sans-serif text, generously estimated (0.62 em a character), plus a margin.
+
+    The picture's width must hold every caption: a viewer clips what lies beyond
+    the SVG's width.
+    """
+    return x + 0.62 * size * len(text) + 10
 
 
 def profile_svg(session, *, max_columns: int = 40, min_count=None) -> str:

@@ -46,6 +46,13 @@ _STATIC = Path(__file__).with_name("static")
 
 #: Frames longer than this get a first view from a seeded sample of this many rows.
 PREVIEW_ROWS = 200_000
+#: ``first_view="auto"``: frames of at least this many cells (rows x columns) are
+#: shown at once with a progress line and filled in from the worker thread; smaller
+#: ones (well under a second) are computed in the constructor, so the first paint
+#: already has the numbers.
+BACKGROUND_FIRST_VIEW_CELLS = 2_000_000
+#: Choices of ``first_view``.
+FIRST_VIEWS = ("auto", "background", "now")
 
 
 class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits):
@@ -56,12 +63,14 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
 
     def __init__(self, session, *, debounce: float = 0.15, threaded: bool = True,
                  live_picture: bool = True, preview_rows: int | None = PREVIEW_ROWS,
-                 picture_delay: float = 2.0, **kwargs):
+                 picture_delay: float = 1.0, first_view: str = "auto", **kwargs):
         if not all(hasattr(session, m) for m in ("update", "entropy", "pairs", "names", "settings")):
             raise TypeError("the profile widgets need an infoscope ProfileSession "
                             f"(infoscope.frame.session), got {type(session).__name__}")
         if debounce < 0:
             raise ValueError(f"debounce must be >= 0 seconds, got {debounce}")
+        if first_view not in FIRST_VIEWS:
+            raise ValueError(f"first_view={first_view!r} is not one of {', '.join(map(repr, FIRST_VIEWS))}")
         if preview_rows is not None and (isinstance(preview_rows, bool) or not isinstance(preview_rows, int)
                                          or preview_rows < 100):
             raise ValueError(f"preview_rows must be None or a number of rows >= 100, got {preview_rows!r}")
@@ -77,8 +86,8 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
         self._debounce = float(debounce)
         self._threaded = bool(threaded)
         self._live_picture = bool(live_picture)
-        # Refreshing the picture re-sends the whole output (the live view re-renders),
-        # so it waits until the controls have been still for picture_delay seconds.
+        # The static picture (its own output beside the live view) is redrawn when the
+        # controls have been still for picture_delay seconds (not on every move).
         self._picture_delay = float(picture_delay)
         self._picture_timer: threading.Timer | None = None
         self._lock = threading.RLock()          # guards generation bookkeeping
@@ -106,14 +115,51 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
         self.observe(self._on_pair, names=["selected_pair"])
         self.on_msg(self._on_custom)
         self._set_meta()
-        # first view: computed now, in the caller's thread, so that a widget shown right
-        # after construction is never empty (errors still land in _status)
-        self._request(set(self._parts), immediate=True, first=True)
-        if self._preview:
-            self._sample = self._user_sample
-            self._preview = False
-            self._request(set(self._parts))
-            self._status = {**self._status, "message": "First view from a seeded sample; computing the full data..."}
+        n_cells = (n_rows or 0) * len(session.names)
+        background = self._threaded and (first_view == "background"
+                                         or (first_view == "auto" and n_cells >= BACKGROUND_FIRST_VIEW_CELLS))
+        if background:
+            # the widget shows at once with a progress line; the first view is computed
+            # on the worker thread (a sample first for a big frame, then the full data)
+            self._start_first_view(set(self._parts))
+        else:
+            self._request(set(self._parts), immediate=True, first=True)
+            if self._preview:
+                self._sample = self._user_sample
+                self._preview = False
+                self._request(set(self._parts))
+                self._status = {**self._status, "message": "First view from a seeded sample; computing the full data..."}
+
+    def _start_first_view(self, parts: set[str]) -> None:
+        with self._lock:
+            self._requested += 1
+            gen = self._requested
+            self._pending_parts |= parts
+            # one count for the first view, one held for the full data that follow a
+            # sampled preview (so wait() never returns between the two)
+            self._outstanding += 2 if self._preview else 1
+        first = f"a seeded sample of {self._sample:,} rows, then the full data" if self._preview else "every row"
+        self._status = {"state": "computing", "message": f"Computing the first view ({first})...",
+                        "generation": gen, "progress": 0.0, "notes": []}
+        self._executor.submit(self._first_views, gen, parts)
+
+    def _first_views(self, gen: int, parts: set[str]) -> None:
+        preview = self._preview
+        try:
+            self._run(gen)
+        finally:
+            if preview:
+                try:
+                    self._sample = self._user_sample
+                    self._preview = False
+                    if self._requested == gen:  # nothing newer was asked meanwhile
+                        self._request(parts)
+                        self._status = {**self._status,
+                                        "message": "First view from a seeded sample; computing the full data..."}
+                finally:
+                    with self._idle:
+                        self._outstanding -= 1
+                        self._idle.notify_all()
 
     @property
     def session(self):
@@ -162,12 +208,18 @@ class ProfileWidget(_ProfileBase):
     preview_rows : int or None, default=200_000
         A frame with more rows gets its first view from a seeded sample of this many
         rows (labelled "sampled"), then the full data; None always uses every row.
-    picture_delay : float, default=2.0
+    picture_delay : float, default=1.0
         Seconds of still controls before the static picture beside a displayed view
-        is refreshed (a refresh re-renders the output).
+        is redrawn (its own output: the live view is not re-rendered).
     threaded : bool, default=True
         Recompute on a worker thread (the kernel stays responsive). ``False``
         recomputes synchronously in the thread that changed a setting.
+    first_view : {"auto", "background", "now"}, default="auto"
+        "background": the constructor returns at once and the widget shows a
+        progress line until the worker thread has the first numbers (a seeded
+        sample first for a frame longer than ``preview_rows``); "now": the first
+        view is computed in the constructor; "auto": "background" for frames of at
+        least :data:`BACKGROUND_FIRST_VIEW_CELLS` cells (with ``threaded=True``).
     live_picture : bool, default=True
         Refresh the static picture beside a displayed view after each recompute.
     **traits

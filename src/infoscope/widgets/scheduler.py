@@ -179,7 +179,9 @@ class Scheduler:
                                     "progress": None, "notes": notes}
             finally:
                 self._reverting = False
-        self._refresh_picture()
+            first = not getattr(self, "_picture_drawn", False)
+            self._picture_drawn = True
+        self._refresh_picture(now=first)  # the first numbers replace the "computing" line at once
 
     def _revert(self) -> None:
         with self._lock:
