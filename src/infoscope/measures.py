@@ -30,12 +30,11 @@ from __future__ import annotations
 
 import math
 import numbers
-import warnings
 from collections.abc import Mapping
 
 import numpy as np
 
-from infoscope._warnings import DataQualityWarning, SmallSampleWarning
+from infoscope._warnings import DataQualityWarning, SmallSampleWarning, warn_user
 from infoscope.estimators import information as _info
 from infoscope.estimators._checks import check_choice, check_same_length, log_base
 
@@ -169,11 +168,10 @@ def _label_codes(present_values, name: str, stacklevel: int = 5) -> tuple[np.nda
     if bad_types:
         bad = np.isin(type_codes, bad_types)
         names = ", ".join(sorted(type_list[i].__name__ for i in bad_types))
-        warnings.warn(
+        warn_user(
             f"{name} has {int(bad.sum())} unhashable cell(s) ({names}); they are read as labels "
             "by a stable text form of their contents",
             DataQualityWarning,
-            stacklevel=stacklevel,  # the caller of the public function
         )
         cells = cells.copy()
         # a (type, text) tuple never equals a string cell of the same text
@@ -182,11 +180,10 @@ def _label_codes(present_values, name: str, stacklevel: int = 5) -> tuple[np.nda
     if len(type_list) > 1:
         pairs, pair_uniques = pd.factorize(codes.astype(np.int64) * len(type_list) + type_codes)
         if len(pair_uniques) > len(uniques):
-            warnings.warn(
+            warn_user(
                 f"{name} holds values of different types that compare equal (such as 1, 1.0 and "
                 "True); they are kept apart as different labels",
                 DataQualityWarning,
-                stacklevel=stacklevel,  # the caller of the public function
             )
             return pairs.astype(np.int64, copy=False), len(pair_uniques)
     return codes.astype(np.int64, copy=False), len(uniques)
@@ -217,10 +214,9 @@ def _missing_mask(series, name: str, stacklevel: int = 5) -> np.ndarray:
         with np.errstate(invalid="ignore"):
             inf = np.isinf(series.to_numpy(dtype=np.float64, na_value=np.nan))
         if inf.any():
-            warnings.warn(
+            warn_user(
                 f"{name} has {int(inf.sum())} infinite value(s); they are treated as missing",
                 DataQualityWarning,
-                stacklevel=stacklevel,  # the caller of the public function
             )
             mask |= inf
     return mask
@@ -234,12 +230,11 @@ def _warn_if_continuous(series, present: np.ndarray, n_distinct: int, name: str)
         return
     values = series.to_numpy(dtype=np.float64, na_value=np.nan)[present]
     if n_distinct >= _CONTINUOUS_SHARE * n and np.any(values != np.round(values)):
-        warnings.warn(
+        warn_user(
             f"{name} looks continuous ({n_distinct} distinct values in {n} rows) but is read as "
             "labels, so nearly every row is its own symbol; pass bins= to bin it "
             "(or estimator='ksg' for mutual information)",
             DataQualityWarning,
-            stacklevel=5,  # the caller of the public function
         )
 
 
@@ -329,11 +324,10 @@ def _warn_if_sparse(table: np.ndarray, cols: list[_Coded], what: str) -> None:
     n = int(table.sum())
     if n < _SPARSE_CELL_COUNT * table.size:
         names = _join(cols)
-        warnings.warn(
+        warn_user(
             f"the joint table of {names} has {table.size} cells for {n} rows "
             f"({n / table.size:.2g} per cell on average, fewer than 5): {what}",
             SmallSampleWarning,
-            stacklevel=3,
         )
 
 
@@ -376,12 +370,11 @@ def _weighted_estimate(cols: list[_Coded], w: np.ndarray, estimator: str, alpha,
     table = np.bincount(flat, weights=wk, minlength=math.prod(shape)).reshape(shape)
     n_eff = float(wk.sum()) ** 2 / float(np.dot(wk, wk))
     if n_eff < _SPARSE_CELL_COUNT * table.size:
-        warnings.warn(
+        warn_user(
             f"the weighted joint table of {_join(cols)} has {table.size} cells for an effective "
             f"sample size of {n_eff:.4g} rows (Kish; {int(keep.sum())} rows): the estimate is "
             "unreliable (use fewer bins or levels)",
             SmallSampleWarning,
-            stacklevel=4,
         )
     d = table.ndim
     nats = 0.0

@@ -12,13 +12,12 @@ edge.  :func:`assign_bins` puts values into bins by exactly this rule.
 from __future__ import annotations
 
 import math
-import warnings
 from collections.abc import Sequence
 
 import numpy as np
 from scipy.special import gammaln
 
-from infoscope._warnings import DataQualityWarning
+from infoscope._warnings import DataQualityWarning, warn_user
 
 __all__ = [
     "NUMPY_RULES",
@@ -649,7 +648,7 @@ def bin_edges(values, *, bins=16, strategy: str = "uniform", target=None) -> np.
         raise ValueError("values: no finite values to bin (all are missing or infinite)")
     edges, note = _edges(x, bins, strategy)
     if note is not None:
-        warnings.warn(f"bin_edges: {note}", DataQualityWarning, stacklevel=2)
+        warn_user(f"bin_edges: {note}", DataQualityWarning)
     return edges
 
 

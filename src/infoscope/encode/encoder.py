@@ -13,7 +13,7 @@ import warnings
 import numpy as np
 import pandas as pd
 
-from infoscope._warnings import DataQualityWarning
+from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.encode.cache import EncodingCache, content_key, default_cache
 from infoscope.encode.checks import _as_series, _check_settings
 from infoscope.encode.drafts import (
@@ -223,7 +223,7 @@ def encode_column(
     """
     col, messages = _encode(values, name, bins, strategy, missing, max_categories, categorical_threshold, cache)
     for m in messages:
-        warnings.warn(m, DataQualityWarning, stacklevel=2)
+        warn_user(m, DataQualityWarning)
     return col
 
 

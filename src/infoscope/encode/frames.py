@@ -2,13 +2,12 @@
 from __future__ import annotations
 
 import os
-import warnings
 from collections.abc import Mapping
 from concurrent.futures import ThreadPoolExecutor
 
 import pandas as pd
 
-from infoscope._warnings import DataQualityWarning
+from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.encode.drafts import DEFAULT_CATEGORICAL_THRESHOLD
 from infoscope.encode.encoded import EncodedColumn
 from infoscope.encode.encoder import _encode
@@ -158,7 +157,7 @@ def _run(jobs, threads, n_rows: int) -> list[EncodedColumn]:
         for job in jobs:
             col, messages = one(job)
             for m in messages:  # issued here so that they point at the caller's line
-                warnings.warn(m, DataQualityWarning, stacklevel=3)
+                warn_user(m, DataQualityWarning)
             out.append(col)
         return out
     with ThreadPoolExecutor(max_workers=n_threads, thread_name_prefix="infoscope-encode") as pool:
@@ -167,7 +166,7 @@ def _run(jobs, threads, n_rows: int) -> list[EncodedColumn]:
             for future in futures:
                 col, messages = future.result()  # the first failing column raises, as serially
                 for m in messages:
-                    warnings.warn(m, DataQualityWarning, stacklevel=3)
+                    warn_user(m, DataQualityWarning)
                 out.append(col)
         except BaseException:
             for future in futures:

@@ -1,10 +1,9 @@
 """Unique string keys for column labels (repeated names, numbers, MultiIndex tuples)."""
 from __future__ import annotations
 
-import warnings
 from collections.abc import Sequence
 
-from infoscope._warnings import DataQualityWarning
+from infoscope._warnings import DataQualityWarning, warn_user
 
 __all__ = ["column_keys"]
 
@@ -65,9 +64,8 @@ def column_keys(columns: Sequence, *, warn: bool = True, _stacklevel: int = 2) -
         repeated.append(t)
     if repeated and warn:
         names = ", ".join(repr(t) for t in dict.fromkeys(repeated))
-        warnings.warn(
+        warn_user(
             f"column names repeat ({names}); later ones are keyed with ' (2)', ' (3)', ...",
             DataQualityWarning,
-            stacklevel=_stacklevel,
         )
     return out

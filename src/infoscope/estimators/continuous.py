@@ -24,13 +24,12 @@ from __future__ import annotations
 
 import math
 import numbers
-import warnings
 
 import numpy as np
 from scipy.spatial import cKDTree
 from scipy.special import digamma, gammaln
 
-from infoscope._warnings import DataQualityWarning, SmallSampleWarning
+from infoscope._warnings import DataQualityWarning, SmallSampleWarning, warn_user
 from infoscope.estimators._checks import check_choice, check_same_length, log_base
 
 __all__ = [
@@ -152,13 +151,12 @@ def _warn_if_discrete_looking(samples: np.ndarray, parameter: str, stacklevel: i
         n_distinct = np.unique(samples[:, j]).size
         if n_distinct <= _DISCRETE_LOOKING_SHARE * n and n_distinct > 1:
             where = parameter if samples.shape[1] == 1 else f"{parameter} column {j}"
-            warnings.warn(
+            warn_user(
                 f"{where} has only {n_distinct} distinct values in {n} rows: it looks "
                 "discrete, and a nearest-neighbour estimate on tied values depends on the "
                 "tie-breaking noise (jitter/seed). Consider a discrete estimator (or "
                 "mixed_mutual_information for a discrete variable).",
                 DataQualityWarning,
-                stacklevel=stacklevel,
             )
 
 
@@ -288,12 +286,11 @@ def differential_entropy(x, *, k=3, base=2, metric="chebyshev", jitter=None, see
                 "-inf (the data look discrete). Use a discrete entropy estimator, or pass "
                 "jitter=<small number> to break ties with seeded noise."
             )
-        warnings.warn(
+        warn_user(
             f"x has {n_zero} point(s) with at least k={k} exact duplicates; noise of "
             f"jitter={jitter:g} x column sd was added to break ties, and the estimate "
             "depends on that choice",
             DataQualityWarning,
-            stacklevel=2,
         )
         scales = _column_scales(samples)
         _add_jitter(samples, scales, jitter, _rng(seed))
@@ -644,11 +641,10 @@ def mixed_mutual_information(
                 f"k={k} needs classes of at least k + 1 = {k + 1} members; y_discrete has "
                 f"{small.size} smaller class(es): {detail}{more}"
             )
-        warnings.warn(
+        warn_user(
             f"y_discrete has {small.size} class(es) with k={k} or fewer members: {detail}{more}; "
             "they use fewer neighbours and single-member classes are left out",
             SmallSampleWarning,
-            stacklevel=2,
         )
 
     keep = class_sizes[codes] > 1

@@ -57,7 +57,7 @@ from dataclasses import dataclass
 import numpy as np
 import pandas as pd
 
-from infoscope._warnings import DataQualityWarning
+from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.frame.results import TEST_LEVEL, drift_verdict
 
 __all__ = [
@@ -301,7 +301,7 @@ def align_to_reference(current: pd.Series, reference: pd.Series, name: str, sett
                 "compared without knowing the zone of the naive ones, so it was not compared "
                 "(flag 'type_changed'); localize the naive side (Series.dt.tz_localize) or "
                 "drop the zone of the other (Series.dt.tz_convert(None)) to compare it")
-        warnings.warn(note, DataQualityWarning, stacklevel=3)
+        warn_user(note, DataQualityWarning)
         return _not_compared(name, ref.kind, flags, note)
     if ref.edges is not None:
         return _align_bins(current, reference, name, settings, ref, flags, dtypes)
@@ -330,10 +330,10 @@ def _align_bins(current, reference, name, settings, ref, flags, dtypes) -> Share
     if cur is None or cur.edges is None:
         note = (f"column {name!r} is {dtypes}: its values cannot be put on the reference's "
                 f"{ref.kind} bins, so it was not compared (flag 'type_changed')")
-        warnings.warn(note, DataQualityWarning, stacklevel=4)
+        warn_user(note, DataQualityWarning)
         return _not_compared(name, ref.kind, flags, note)
     if note:
-        warnings.warn(note, DataQualityWarning, stacklevel=4)
+        warn_user(note, DataQualityWarning)
     n_bins = len(edges) - 1
     labels = list(ref.labels)
     if MISSING_LABEL in cur.labels[n_bins:] and MISSING_LABEL not in labels:
@@ -383,11 +383,11 @@ def _align_levels(current, reference, name, settings, ref, flags, dtypes) -> Sha
             note = (f"column {name!r} is {dtypes} ({ref.kind} against {cur_all.kind}): only "
                     f"{matched:.1%} of this frame's values match a reference level, so it was not "
                     "compared (flag 'type_changed')")
-            warnings.warn(note, DataQualityWarning, stacklevel=4)
+            warn_user(note, DataQualityWarning)
             return _not_compared(name, ref.kind, flags, note)
         note = (f"column {name!r} is {dtypes} ({ref.kind} against {cur_all.kind}): compared on the "
                 f"printed values, on which {matched:.1%} of this frame's rows match a reference level")
-        warnings.warn(note, DataQualityWarning, stacklevel=4)
+        warn_user(note, DataQualityWarning)
 
     # fold on the pooled counts, so that the alphabet does not depend on the side
     mapping = np.arange(len(union))
@@ -567,8 +567,8 @@ def _drift_row(al: SharedAlphabet, current, reference, *, pseudocount, ln_base, 
     if n == 0 or n_ref == 0:
         if warn:
             side = "this frame" if n == 0 else "the reference"
-            warnings.warn(f"column {al.name!r} has no non-missing values in {side}: its drift is "
-                          "undefined (NaN)", DataQualityWarning, stacklevel=4)
+            warn_user(f"column {al.name!r} has no non-missing values in {side}: its drift is "
+                          "undefined (NaN)", DataQualityWarning)
         return row
     if null == "chi2":
         t = drift_chi2_test(ref_counts, cur_counts, pseudocount=pseudocount)

@@ -1,11 +1,10 @@
 """The session side of drift: ``ProfileSession.drift()`` (the method is :mod:`infoscope.frame.drift`)."""
 from __future__ import annotations
 
-import warnings
 
 import pandas as pd
 
-from infoscope._warnings import DataQualityWarning
+from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.estimators._checks import unit_name
 from infoscope.frame.drift import drift_table
 from infoscope.frame.keys import as_pandas, column_keys
@@ -33,8 +32,8 @@ class DriftTable:
                 parts.append("only in this frame: " + ", ".join(map(repr, only_here)))
             if only_there:
                 parts.append("only in the reference: " + ", ".join(map(repr, only_there)))
-            warnings.warn("drift compares the common columns; " + "; ".join(parts),
-                          DataQualityWarning, stacklevel=3)
+            warn_user("drift compares the common columns; " + "; ".join(parts),
+                          DataQualityWarning)
         return common, ref_series
 
     def drift(self, reference, *, pseudocount: float = 0.5, n_perm: int = 999,

@@ -2,12 +2,11 @@
 from __future__ import annotations
 
 import math
-import warnings
 
 import numpy as np
 import pandas as pd
 
-from infoscope._warnings import DataQualityWarning
+from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.encode.columns import MISSING_LABEL
 from infoscope.estimators._checks import log_base
 from infoscope.estimators.resampling import bootstrap_entropy_ci
@@ -140,8 +139,8 @@ class EntropyTable:
             hit = self._entropy_cache.get(key)
             if hit is not None and hit[0] is col and hit[1] == (i, settings_key):
                 if hit[3]:  # no observed value: the warning of a fresh computation
-                    warnings.warn(f"column {key!r} has no non-missing values: its entropy is "
-                                  "undefined (NaN)", DataQualityWarning, stacklevel=2)
+                    warn_user(f"column {key!r} has no non-missing values: its entropy is "
+                                  "undefined (NaN)", DataQualityWarning)
                 rows.append(dict(hit[2]))
                 continue
             marginal = np.asarray(self._engine.marginal(key), dtype=np.int64)
@@ -151,8 +150,8 @@ class EntropyTable:
             h = self._entropy(counts)
             low = high = math.nan
             if observed == 0:
-                warnings.warn(f"column {key!r} has no non-missing values: its entropy is undefined (NaN)",
-                              DataQualityWarning, stacklevel=2)
+                warn_user(f"column {key!r} has no non-missing values: its entropy is undefined (NaN)",
+                              DataQualityWarning)
             elif s["n_boot"] > 0 and np.count_nonzero(counts) > 1:
                 low, high = bootstrap_entropy_ci(counts, level=s["ci"], n_boot=s["n_boot"],
                                                  seed=_child_seed(s["seed"], i), **self._kw())

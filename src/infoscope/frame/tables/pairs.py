@@ -2,12 +2,11 @@
 from __future__ import annotations
 
 import math
-import warnings
 
 import numpy as np
 import pandas as pd
 
-from infoscope._warnings import DataQualityWarning, SmallSampleWarning
+from infoscope._warnings import DataQualityWarning, SmallSampleWarning, warn_user
 from infoscope.estimators._checks import check_choice, log_base, unit_name
 from infoscope.estimators.information import (
     adjusted_mutual_information_from_table,
@@ -361,8 +360,8 @@ class PairTables:
         n = int(t.sum())
         counts = pd.DataFrame(t, index=index, columns=columns)
         if n == 0:
-            warnings.warn(f"columns {a!r} and {b!r} are never present in the same row: "
-                          "their joint table is empty", DataQualityWarning, stacklevel=2)
+            warn_user(f"columns {a!r} and {b!r} are never present in the same row: "
+                          "their joint table is empty", DataQualityWarning)
             nan_frame = pd.DataFrame(np.nan, index=index, columns=columns)
             return PairTable(a, b, counts, nan_frame, nan_frame.copy(), math.nan, math.nan,
                              (math.nan, 0, math.nan), 0, unit_name(self._settings["base"]), True,
@@ -376,9 +375,9 @@ class PairTables:
         if sparse:
             what = ("too few rows to tell anything from the estimates" if reliability == "too_few"
                     else "the estimates are unreliable")
-            warnings.warn(f"the joint table of {a!r} and {b!r} has {t.size} cells for {n} rows "
-                          f"(fewer than 5 per cell on average): {what}",
-                          SmallSampleWarning, stacklevel=2)
+            warn_user(f"the joint table of {a!r} and {b!r} has {t.size} cells for {n} rows "
+                      f"(fewer than 5 per cell on average): {what}",
+                      SmallSampleWarning)
         g_test = GTestResult(float(tests.statistic[0]), int(tests.dof[0]), float(tests.p_value[0]))
         return PairTable(a, b, counts, pd.DataFrame(expected, index=index, columns=columns),
                          pd.DataFrame(pmi, index=index, columns=columns), float(tm["mi"][0]),

@@ -2,12 +2,11 @@
 from __future__ import annotations
 
 import math
-import warnings
 
 import numpy as np
 import pandas as pd
 
-from infoscope._warnings import DataQualityWarning
+from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.estimators.information import benjamini_hochberg
 from infoscope.estimators.resampling import bootstrap_mi_ci
 from infoscope.estimators.significance import permutation_p_values, table_tests
@@ -95,8 +94,8 @@ class RelevanceTable:
         if not others:
             raise ValueError(f"the profile has only the target column {target!r}: nothing to relate to it")
         if np.count_nonzero(self._engine.marginal(target)) <= 1:
-            warnings.warn(f"target {target!r} has at most one value: no column can inform it",
-                          DataQualityWarning, stacklevel=2)
+            warn_user(f"target {target!r} has at most one value: no column can inform it",
+                          DataQualityWarning)
         # rows cached like the pairs (see _pair_stats): a row depends on the column,
         # the target, its position (the bootstrap seed) and these settings
         enc = self._encoded
