@@ -368,7 +368,7 @@ def main(argv=None) -> None:
     import infoscope  # noqa: F401  (registers the accessor)
     from infoscope.encode import clear_cache
     from infoscope.encode.cache import frame_key
-    from infoscope.frame import accessor
+    from infoscope.frame import sessions as accessor
 
     user = {"estimator": "plugin", "bins": 16, "strategy": "quantile", "missing": "category"}
     from infoscope.encode import encode_frame as encode_all

@@ -223,7 +223,7 @@ def test_session_does_not_see_later_edits():
 
 def test_polars_namespace_bad_input_is_named():
     pl = pytest.importorskip("polars")
-    import infoscope.frame.polars  # noqa: F401
+    import infoscope.polars  # noqa: F401
 
     with pytest.raises(ValueError, match="no columns"):
         pl.DataFrame().info_profile.entropy()

@@ -17,8 +17,8 @@ from scipy.stats import entropy as scipy_entropy
 import infoscope  # noqa: F401  (registers df.info_profile)
 from infoscope.encode import clear_cache
 from infoscope.encode.cache import content_key, frame_key
-from infoscope.frame import accessor
-from infoscope.frame.accessor import session_for
+from infoscope.frame import sessions as accessor
+from infoscope.frame.sessions import session_for
 
 pytestmark = pytest.mark.filterwarnings("ignore:column .a.. values of several types:UserWarning")
 
@@ -129,7 +129,7 @@ def test_cells_whose_text_may_not_tell_them_apart_are_not_keyed():
 
 # ------------------------------------------------------------------ Polars
 pl = pytest.importorskip("polars")
-import infoscope.frame.polars  # noqa: E402,F401  (registers pl.DataFrame.info_profile)
+import infoscope.polars  # noqa: E402,F401  (registers pl.DataFrame.info_profile)
 
 
 def _pl_entropy(ns, column="a"):

@@ -354,7 +354,7 @@ def test_drift_missing_policy_on_binned_columns():
 @pytest.mark.parametrize("module_name", ["infoscope.datasets", "infoscope.frame.session",
                                          "infoscope.frame.keys",
                                          "infoscope.frame.results", "infoscope.frame.drift",
-                                         "infoscope.frame.accessor", "infoscope.frame.polars",
+                                         "infoscope.frame.sessions", "infoscope.accessor", "infoscope.polars",
                                          "infoscope.cli"])
 def test_public_functions_have_numpydoc_sections(module_name):
     import importlib
@@ -392,7 +392,7 @@ def test_public_functions_have_numpydoc_sections(module_name):
                                          "infoscope.frame.tables.pairs", "infoscope.frame.tables.relevance",
                                          "infoscope.frame.tables.drift",
                                          "infoscope.frame.results", "infoscope.frame.drift",
-                                         "infoscope.frame.accessor", "infoscope.frame.polars"])
+                                         "infoscope.frame.sessions", "infoscope.accessor", "infoscope.polars"])
 def test_docstring_examples_run(module_name):
     import doctest
     import importlib
@@ -455,7 +455,7 @@ def test_polars_reference_and_lazy_frames(log):
 def test_accessor_session_is_fresh_and_tables_reuse_one(log):
     df = log[["depot", "late"]]
     assert df.info_profile.session() is not df.info_profile.session()
-    from infoscope.frame.accessor import session_for
+    from infoscope.frame.sessions import session_for
     assert session_for(df, n_boot=0) is session_for(df.copy(), n_boot=0)
     assert session_for(df, n_boot=0) is not session_for(df, n_boot=1)
 
@@ -472,7 +472,7 @@ def test_widget_call_returns_the_live_profile(log):
 # ------------------------------------------------------------------ Polars namespace
 def test_polars_namespace_equals_the_pandas_accessor(log):
     pl = pytest.importorskip("polars")
-    import infoscope.frame.polars  # noqa: F401  (the explicit registration)
+    import infoscope.polars  # noqa: F401  (the explicit registration)
 
     small = log[["depot", "weight_kg", "stops_before", "fragile", "courier_note", "contents", TARGET]]
     pl_df = pl.from_pandas(small)
@@ -496,14 +496,14 @@ def test_polars_namespace_equals_the_pandas_accessor(log):
 def test_import_infoscope_never_imports_polars_and_registers_when_present():
     import subprocess
 
-    code = ("import sys, infoscope, infoscope.frame.accessor; "
+    code = ("import sys, infoscope, infoscope.accessor; "
             "assert 'polars' not in sys.modules, 'polars imported'; "
             "import polars as pl; assert not hasattr(pl.DataFrame, 'info_profile'); "
-            "import infoscope.frame.polars; assert hasattr(pl.DataFrame, 'info_profile'); "
+            "import infoscope.polars; assert hasattr(pl.DataFrame, 'info_profile'); "
             "assert hasattr(pl.LazyFrame, 'info_profile')")
     subprocess.run([sys.executable, "-c", code], check=True, timeout=120)
     # polars first, then infoscope: registered without the explicit import
     code = ("import polars as pl, infoscope; "
-            "from infoscope.frame.polars import PolarsInfoProfile; "
+            "from infoscope.polars import PolarsInfoProfile; "
             "assert isinstance(pl.DataFrame({'a': [1, 2]}).info_profile, PolarsInfoProfile)")
     subprocess.run([sys.executable, "-c", code], check=True, timeout=120)

@@ -487,6 +487,33 @@ def test_to_html_of_a_session_writes_an_offline_page(demo_session, tmp_path):
     assert "counts below 10 are hidden" in text
 
 
+def test_accessor_to_html_is_the_report_of_its_session(tmp_path):
+    import warnings
+
+    from infoscope.frame.sessions import session_for
+    from infoscope.report.html import to_html
+
+    df = pd.DataFrame({"<b>x</b>": ["u", "v"] * 30 + ["w"] * 3, "y": [0, 1] * 30 + [1] * 3,
+                       "z": list("pqr") * 21})
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        out = df.info_profile.to_html(tmp_path / "p.html", min_count=5, target="y", n_boot=0, order="name")
+        direct = to_html(session_for(df, target="y", n_boot=0), None, min_count=5, settings={"order": "name"})
+    assert out == tmp_path / "p.html"
+    text = out.read_text(encoding="utf-8")
+    assert text == direct  # the accessor adds nothing of its own
+    payload = json.loads(re.search(r'id="isc-payload">(.*?)</script>', text, re.S).group(1))
+    state = payload["state"]
+    assert state["target"] == "y" and state["order"] == "name" and state["min_count"] == 5
+    assert json.loads(state["_relevance"])["target"] == "y"
+    assert "<b>x</b>" not in text  # the name travels escaped
+    # the 3-row level 'w' is a small cell in every pair view with x
+    views = [v for k, v in payload["pair_cache"].items() if "<b>x</b>" in k]
+    assert views and all(v["hidden_cells"] > 0 and v["row_totals"] is None for v in views)
+    with pytest.raises(ValueError, match="differ from the session"):
+        to_html(session_for(df, n_boot=0), None, settings={"estimator": "plugin"})
+
+
 def test_cli_demo_out_writes_the_page(tmp_path, capsys):
     from infoscope.cli import main
 

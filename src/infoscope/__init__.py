@@ -6,10 +6,10 @@ and the widget stack is loaded only when a widget is asked for.
 from __future__ import annotations
 
 import importlib
+import sys
 
+from infoscope._version import __version__
 from infoscope._warnings import DataQualityWarning, InfoscopeWarning, SmallSampleWarning
-
-__version__ = "0.1.0"
 
 # public name -> module that defines it
 _PUBLIC = {
@@ -75,7 +75,7 @@ _PUBLIC = {
     # engine
     "PairEngine": "infoscope.engine.engine",
     # frame level
-    "InfoProfileAccessor": "infoscope.frame.accessor",
+    "InfoProfileAccessor": "infoscope.accessor",
     "ProfileSession": "infoscope.frame.session",
     "PairTable": "infoscope.frame.results",
     # live views (anywidget; imported only when asked for)
@@ -113,7 +113,12 @@ def _register_accessor() -> None:
         importlib.import_module("pandas")
     except ImportError:  # pandas missing: the functional core still works
         return
-    importlib.import_module("infoscope.frame.accessor")
+    importlib.import_module("infoscope.accessor")
+    if "polars" in sys.modules:  # never imports Polars itself: `import infoscope.polars` does
+        try:
+            importlib.import_module("infoscope.polars")
+        except ImportError:  # a broken or partial Polars install: the pandas accessor still works
+            pass
 
 
 _register_accessor()

@@ -1,4 +1,4 @@
-"""infoscope.frame: tidy pandas results, ``ProfileSession`` and the ``df.info_profile`` accessor.
+"""infoscope.frame: tidy pandas results and ``ProfileSession`` (the accessor is :mod:`infoscope.accessor`).
 
 Names are imported lazily (PEP 562) so that registering the accessor at
 ``import infoscope`` stays cheap.
@@ -10,8 +10,7 @@ import importlib
 _PUBLIC = {
     "ProfileSession": "infoscope.frame.session",
     "PairTable": "infoscope.frame.results",
-    "InfoProfileAccessor": "infoscope.frame.accessor",
-    "session_for": "infoscope.frame.accessor",
+    "session_for": "infoscope.frame.sessions",
     "drift_table": "infoscope.frame.drift",
 }
 __all__ = sorted(_PUBLIC)

@@ -28,6 +28,7 @@ import json
 import os
 from pathlib import Path
 
+from infoscope._version import __version__
 from infoscope.frame.suppression import check_min_count
 from infoscope.report.picture import profile_svg_from_payload, svg_data_uri
 from infoscope.views.payload import payload as build_payload
@@ -196,8 +197,6 @@ def profile_html(source, *, min_count=None, title: str | None = None, settings=N
     >>> profile_html(s, min_count=5).startswith("<!DOCTYPE html>")
     True
     """
-    import infoscope
-
     check_min_count(min_count)
     data = _payload_of(source, settings=settings, min_count=min_count)
     effective = data["state"].get("min_count") or None
@@ -223,7 +222,7 @@ def profile_html(source, *, min_count=None, title: str | None = None, settings=N
     page_title = title or "infoscope profile"
     return _PAGE.format(
         csp=_html.escape(CONTENT_SECURITY_POLICY, quote=True),
-        version=_html.escape(str(infoscope.__version__)),
+        version=_html.escape(__version__),
         title=_html.escape(page_title),
         css=_style_text(_static_text("profile.css")),
         picture=picture,

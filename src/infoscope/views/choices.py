@@ -11,7 +11,7 @@ from __future__ import annotations
 from collections.abc import Mapping
 from typing import Any
 
-from infoscope import __version__
+from infoscope._version import __version__
 from infoscope.estimators._checks import unit_name
 from infoscope.frame.settings import CHOICES
 from infoscope.frame.suppression import check_min_count

@@ -247,8 +247,13 @@ def payload(session, settings: Mapping | None = None, *, min_count=None, top_pai
     if unknown:
         raise TypeError(f"unknown view setting(s) {sorted(unknown)}; the view settings are "
                         f"{', '.join(SETTINGS_TRAITS + VIEW_TRAITS)}")
-    state: dict[str, Any] = {**VIEW_DEFAULTS, **view_settings_from_session(session.settings),
-                             **dict(settings or {})}
+    shown = view_settings_from_session(session.settings)
+    given = dict(settings or {})
+    differ = sorted(k for k in given if k in shown and given[k] != shown[k])
+    if differ:
+        raise ValueError(f"view setting(s) {', '.join(f'{k}={given[k]!r}' for k in differ)} differ from the "
+                         "session's settings; the numbers come from the session: update it first")
+    state: dict[str, Any] = {**VIEW_DEFAULTS, **shown, **given}
     check_view_settings(state, session.names)
     threshold = max(check_min_count(min_count) or 0, check_min_count(state["min_count"] or None) or 0)
     state["min_count"] = threshold

@@ -1,98 +1,23 @@
-"""``DataFrame.info_profile``: the pandas accessor.
+"""``DataFrame.info_profile``: the pandas accessor, an entry point like the command line.
 
-A thin layer: every method builds (or reuses) a :class:`ProfileSession` and calls
-the method of the same name.  Sessions are reused by the *content* of the frame
-plus the settings (:func:`infoscope.encode.cache.frame_key`, the key function of
-the encoder's cache too) — not by the accessor object, which pandas caches on the
-frame and which would therefore keep stale results after the frame changed in
-place.  Finding a cached session hashes the column buffers (XXH3, about 15 ms for
-1,000,000 x 50), a few per cent of computing the pairs.
+A thin layer: every method builds (or reuses, :func:`infoscope.frame.sessions.session_for`)
+a :class:`ProfileSession` and calls the method of the same name; ``to_html`` writes
+the offline report (:mod:`infoscope.report.html`) and the call returns the live
+widget.  It sits on top of the layers (estimators -> encode -> engine -> frame ->
+views -> report -> widgets), beside the CLI.
 
-Importing this module is cheap: the session, the encoder and the engine (numba)
-are imported on the first call.
+Importing this module is cheap (``import infoscope`` registers it): the session,
+the encoder, the engine (numba), the report and the widget are imported on the
+first call that needs them.
 """
 from __future__ import annotations
 
-import importlib
-import sys
-from collections import OrderedDict
-
 import pandas as pd
 
-__all__ = ["InfoProfileAccessor", "session_for"]
+__all__ = ["InfoProfileAccessor"]
 
-# content key -> session; small, because a session holds its frame's codes
-_SESSIONS: OrderedDict = OrderedDict()
-_MAX_SESSIONS = 4
-
-
-def _settings_key(settings: dict):
-    # (name, type, value): 1, 1.0 and True are equal and hash alike in Python, but
-    # they are different settings (and a bad one must reach the session's own check)
-    try:
-        key = tuple(sorted((name, type(value).__qualname__, value) for name, value in settings.items()))
-        hash(key)
-    except TypeError:
-        return None
-    return key
-
-
-def _eager(frame):
-    """A Polars LazyFrame collected; anything else as it is."""
-    if type(frame).__module__.split(".")[0] == "polars" and hasattr(frame, "collect") \
-            and not hasattr(frame, "to_pandas"):
-        return frame.collect()
-    return frame
-
-
-def session_for(frame, **settings):
-    """A :class:`ProfileSession` of ``frame`` with ``settings``, reused by content.
-
-    Parameters
-    ----------
-    frame : pandas.DataFrame or polars.DataFrame
-        The data (never modified).
-    **settings
-        Settings of :class:`~infoscope.frame.session.ProfileSession`.
-
-    Returns
-    -------
-    ProfileSession
-        A cached session when the same content was profiled with the same
-        settings (and its settings were not changed since), else a new one.
-        Call ``update`` only on sessions you build yourself.
-
-    References
-    ----------
-    .. [1] pandas documentation, "Extending pandas: registering custom accessors".
-
-    Examples
-    --------
-    >>> import pandas as pd
-    >>> df = pd.DataFrame({"a": [1, 2, 1, 2], "b": list("xyxy")})
-    >>> session_for(df) is session_for(df.copy())
-    True
-    """
-    from infoscope.encode.cache import frame_key
-    from infoscope.frame.session import ProfileSession, as_pandas
-
-    frame = _eager(frame)
-    content = None
-    if isinstance(frame, pd.DataFrame) or type(frame).__module__.split(".")[0] == "polars":
-        content = frame_key(frame) if frame.shape[1] else None
-    skey = _settings_key(settings)
-    key = None if content is None or skey is None else (content, skey)
-    if key is not None and key in _SESSIONS:
-        cached = _SESSIONS[key]
-        if cached.settings == {**cached.settings, **settings}:
-            _SESSIONS.move_to_end(key)
-            return cached
-    session = ProfileSession(as_pandas(frame), **settings)
-    if key is not None:
-        _SESSIONS[key] = session
-        while len(_SESSIONS) > _MAX_SESSIONS:
-            _SESSIONS.popitem(last=False)
-    return session
+#: Settings of ``to_html`` that shape the views rather than the numbers.
+_VIEW_SETTINGS = ("order", "alpha_fdr", "selected_pair", "selected_column", "sort_by")
 
 
 @pd.api.extensions.register_dataframe_accessor("info_profile")
@@ -135,6 +60,8 @@ class InfoProfileAccessor:
         return frame
 
     def _session(self, settings: dict):
+        from infoscope.frame.sessions import session_for
+
         return session_for(self._checked_frame(), **settings)
 
     def session(self, **settings):
@@ -503,6 +430,50 @@ class InfoProfileAccessor:
         options = {k: settings.pop(k) for k in ("pseudocount", "n_perm", "null") if k in settings}
         return self._session(settings).drift(reference, **options)
 
+    def to_html(self, path=None, *, min_count=None, title: str | None = None, **settings):
+        """The profile as one self-contained HTML file that works offline.
+
+        The file holds the live view's front end and every view's data
+        (:func:`infoscope.views.payload`): hover, sorting and the strongest pair
+        views work without a kernel; names and values are escaped and nothing
+        loads from the network (:func:`infoscope.report.html.to_html`).
+
+        Parameters
+        ----------
+        path : str or os.PathLike, optional
+            File to write.  Without it the HTML text is returned.
+        min_count : int, optional
+            Hide counts ``1 .. min_count - 1`` in every pair view of the file, with
+            the cells and totals that would give them away (small counts of
+            personal data can identify people).
+        title : str, optional
+            Title of the page.
+        **settings
+            Settings of the session (``bins``, ``estimator``, ``target`` ...) and
+            view settings (``order``, ``alpha_fdr``, ``selected_pair``, ``sort_by``).
+
+        Returns
+        -------
+        pathlib.Path or str
+            The path written, or the HTML text when ``path`` is None.
+
+        References
+        ----------
+        .. [1] W3C (2016). Content Security Policy Level 2 (the policy that keeps
+           the page offline).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"a": list("xyxy") * 10, "b": list("xxyy") * 10})
+        >>> df.info_profile.to_html(min_count=5, n_boot=0).startswith("<!DOCTYPE html>")
+        True
+        """
+        from infoscope.report.html import to_html
+
+        view = {k: settings.pop(k) for k in list(settings) if k in _VIEW_SETTINGS}
+        return to_html(self._session(settings), path, min_count=min_count, title=title, settings=view)
+
     def __call__(self, **settings):
         """The live profile widget of this frame (needs the widget extra).
 
@@ -533,19 +504,3 @@ class InfoProfileAccessor:
                 f"{error}. The tables work without it: df.info_profile.entropy(), .pairs(), ..."
             ) from error
         return ProfileWidget(self.session(**settings))
-
-
-def _register_polars_if_imported() -> None:
-    """Register ``polars.DataFrame.info_profile`` when Polars is already imported.
-
-    Never imports Polars itself; ``import infoscope.frame.polars`` is the explicit
-    way when Polars is imported after infoscope.
-    """
-    if "polars" in sys.modules:
-        try:
-            importlib.import_module("infoscope.frame.polars")
-        except ImportError:  # a broken or partial Polars install: the pandas accessor still works
-            pass
-
-
-_register_polars_if_imported()

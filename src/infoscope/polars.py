@@ -1,7 +1,7 @@
 """``polars.DataFrame.info_profile`` (and ``LazyFrame.info_profile``): the Polars namespace.
 
-``import infoscope.frame.polars`` registers the namespace explicitly.  It is also
-registered when ``infoscope`` is imported after Polars (the pandas accessor module
+``import infoscope.polars`` registers the namespace explicitly.  It is also
+registered when ``infoscope`` is imported after Polars (``import infoscope``
 checks ``sys.modules``); infoscope never imports Polars itself when the user has
 not, so ``import infoscope`` stays free of it.
 
@@ -17,7 +17,7 @@ from __future__ import annotations
 
 import polars as pl
 
-from infoscope.frame.accessor import InfoProfileAccessor
+from infoscope.accessor import InfoProfileAccessor
 
 __all__ = ["PolarsInfoProfile"]
 
@@ -26,7 +26,7 @@ class PolarsInfoProfile(InfoProfileAccessor):
     """Information profile of a Polars frame: ``pl_df.info_profile.<method>(**settings)``.
 
     The methods and settings are those of the pandas accessor
-    (:class:`~infoscope.frame.accessor.InfoProfileAccessor`): ``entropy``,
+    (:class:`~infoscope.accessor.InfoProfileAccessor`): ``entropy``,
     ``pairs``, ``matrix``, ``pair``, ``relevance``, ``drift``, ``session`` and the
     call that returns the live profile widget.
 
@@ -43,7 +43,7 @@ class PolarsInfoProfile(InfoProfileAccessor):
     Examples
     --------
     >>> import polars as pl
-    >>> import infoscope.frame.polars  # registers pl.DataFrame.info_profile
+    >>> import infoscope.polars  # registers pl.DataFrame.info_profile
     >>> df = pl.DataFrame({"a": [1, 2, 1, 2] * 5, "b": list("xyxy") * 5})
     >>> df.info_profile.pairs(estimator="plugin")[["a", "b", "nmi"]].values.tolist()
     [['a', 'b', 1.0]]
@@ -58,7 +58,7 @@ class PolarsInfoProfile(InfoProfileAccessor):
         # in place (q[0, "a"] = 99, insert_column, drop_in_place): nothing converted
         # is kept here. Every call finds its session by the frame's current content
         # (frame_key over the arrow buffers) and converts to pandas only on a miss.
-        from infoscope.frame.accessor import _eager
+        from infoscope.frame.sessions import _eager  # the session machinery loads on first use
 
         return _eager(self._source)
 
