@@ -18,6 +18,8 @@ import numpy as np
 from scipy.special import gammaln
 
 from infoscope._warnings import DataQualityWarning, warn_user
+from infoscope.encode.arrays import _numeric_array
+from infoscope.encode.mdlp import mdlp_edges
 
 __all__ = [
     "NUMPY_RULES",
@@ -69,44 +71,6 @@ RULE_MAX_BINS = 10_000
 #: An explicit number of bins above this is refused (a clear error, not a
 #: multi-gigabyte allocation); no profile needs more.
 MAX_BINS = 2**20
-
-
-def _numeric_array(values, parameter: str = "values") -> np.ndarray:
-    """Return a 1-D numeric NumPy array of ``values`` (a view where possible, never modified)."""
-    if hasattr(values, "dtype") and hasattr(values, "to_numpy") and not isinstance(values, np.ndarray):
-        # pandas Series / Index (nullable dtypes: NA becomes NaN)
-        dtype = values.dtype
-        kind = getattr(dtype, "kind", "O")
-        if kind in "iu" and not values.isna().any():
-            arr = values.to_numpy(dtype=np.dtype(kind + str(dtype.itemsize)) if hasattr(dtype, "itemsize") else None)
-        elif kind in "iufb":
-            arr = values.to_numpy(dtype=np.float64, na_value=np.nan)
-        else:
-            arr = values.to_numpy()
-    else:
-        try:
-            arr = np.asarray(values)
-        except (TypeError, ValueError):  # ragged nesting: numpy cannot make one array of it
-            raise TypeError(f"{parameter} must be a 1-D sequence of numbers; got nested or ragged values") from None
-    if arr.ndim == 0:
-        arr = arr.reshape(1)
-    if arr.ndim != 1:
-        raise ValueError(f"{parameter} must be one-dimensional, got shape {arr.shape}")
-    if arr.dtype == bool:
-        arr = arr.astype(np.int8)
-    if arr.dtype.kind == "c":
-        raise TypeError(f"{parameter} holds complex numbers; bin edges need real numbers (complex values have no order)")
-    if arr.dtype.kind in "mM":
-        raise TypeError(
-            f"{parameter} holds {arr.dtype} values; bin_edges works on numbers. "
-            "Use infoscope.encode_column, which bins datetimes and durations on their time axis"
-        )
-    if arr.dtype.kind not in "iuf":
-        try:
-            arr = arr.astype(np.float64)
-        except (TypeError, ValueError):
-            raise TypeError(f"{parameter} must be numeric, got dtype {arr.dtype}") from None
-    return arr
 
 
 def _finite(arr: np.ndarray) -> np.ndarray:
@@ -635,8 +599,6 @@ def bin_edges(values, *, bins=16, strategy: str = "uniform", target=None) -> np.
     if isinstance(bins, str) and bins.strip().lower() == "mdlp":
         if target is None:
             raise ValueError("bins='mdlp' chooses cuts against a target: pass target= (one class label per value)")
-        from infoscope.encode.mdlp import mdlp_edges
-
         return mdlp_edges(values, target)
     if target is not None:
         raise ValueError(f"target= is used only by bins='mdlp', not bins={bins!r}")

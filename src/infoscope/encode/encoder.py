@@ -8,7 +8,6 @@ and keep the result in the encoding cache (:mod:`.cache`).
 from __future__ import annotations
 
 import dataclasses
-import warnings
 
 import numpy as np
 import pandas as pd

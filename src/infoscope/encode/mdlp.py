@@ -30,6 +30,9 @@ from __future__ import annotations
 import math
 
 import numpy as np
+import pandas as pd
+
+from infoscope.encode.arrays import _numeric_array
 
 __all__ = ["mdlp_accepts", "mdlp_cut_points", "mdlp_edges"]
 
@@ -170,10 +173,6 @@ def mdlp_edges(values, target) -> np.ndarray:
     >>> mdlp_edges([1.0, 2.0, 3.0, 4.0] * 10, ["a", "a", "b", "b"] * 10).tolist()
     [1.0, 2.5, 4.0]
     """
-    import pandas as pd
-
-    from infoscope.encode.binning import _numeric_array
-
     x = _numeric_array(values).astype(np.float64)
     labels = pd.Series(target.to_numpy() if hasattr(target, "to_numpy") else list(target)
                        if not isinstance(target, np.ndarray) else target)
