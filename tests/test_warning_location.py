@@ -14,7 +14,7 @@ import pytest
 import infoscope
 from infoscope import DataQualityWarning, InfoscopeWarning
 from infoscope.encode import clear_cache, encode_column
-from infoscope.frame import accessor
+from infoscope.frame import sessions as accessor
 from infoscope.frame.session import ProfileSession
 
 
