@@ -29,6 +29,8 @@ from infoscope.engine.sampling import sample_rows
 from infoscope.estimators._checks import unit_name
 from infoscope.estimators.entropy import entropy_from_counts
 from infoscope.frame.keys import _name_text, as_pandas, column_keys
+from infoscope.frame.supervised import FALLBACK_BINS, supervised_edges
+from infoscope.frame.supervised import _applies as _supervised_applies
 from infoscope.frame.settings import (
     _DEFAULTS,
     MEASURES,
@@ -341,8 +343,12 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
         return sample_rows(n_rows, sample, seed=self._settings["seed"])
 
     def _encoding_settings(self, key: str, settings: Mapping) -> tuple:
-        return (self._bins_override.get(key, settings["bins"]), settings["strategy"],
-                settings["missing"], settings["max_categories"])
+        bins = self._bins_override.get(key, settings["bins"])
+        if bins == "mdlp":
+            # supervised cuts depend on the target too (frame/supervised.py); the
+            # target itself keeps an unsupervised rule
+            bins = ("mdlp", settings["target"]) if key != settings["target"] else ("mdlp", None)
+        return (bins, settings["strategy"], settings["missing"], settings["max_categories"])
 
     def _values(self, key: str) -> pd.Series:
         series = self._series[key]
@@ -353,8 +359,13 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
     def _encode(self, keys) -> set[str]:
         keys = list(keys)
         jobs = []
+        supervised = []
         for key in keys:
             bins, strategy, missing, max_categories = self._encoding_settings(key, self._settings)
+            if isinstance(bins, tuple):  # ("mdlp", target): first the fallback rule, cut below
+                if bins[1] is not None:
+                    supervised.append(key)
+                bins = FALLBACK_BINS
             jobs.append((key, self._values(key), {"bins": bins, "strategy": strategy,
                                                   "missing": missing, "max_categories": max_categories}))
         done: set[str] = set()
@@ -365,11 +376,28 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
             done.add(key)
             if self._engine is not None:
                 self._engine.set_column(encoded)
+        if supervised:
+            self._encode_supervised(supervised)
         if done:
             self._prune_caches()
         if self._engine is None:
             self._engine = PairEngine([self._encoded[k] for k in self._names], progress=False)
         return done
+
+    def _encode_supervised(self, keys) -> None:
+        """Re-encode binned numeric columns with MDLP edges against the target (``bins="mdlp"``)."""
+        target = self._settings["target"]
+        jobs = []
+        for key in keys:
+            if _supervised_applies(self, key, target):
+                _, strategy, missing, max_categories = self._encoding_settings(key, self._settings)
+                edges = supervised_edges(self, key, target)
+                jobs.append((key, self._values(key), {"bins": edges, "strategy": strategy,
+                                                      "missing": missing, "max_categories": max_categories}))
+        for (key, _, _), encoded in zip(jobs, encode_columns(jobs)):
+            self._encoded[key] = encoded
+            if self._engine is not None:
+                self._engine.set_column(encoded)
 
     def _prune_caches(self) -> None:
         """Drop cached numbers of replaced encodings (they would keep old codes alive)."""

@@ -72,6 +72,8 @@ def _check_settings(settings: Mapping) -> dict:
     check_choice(s["measure"], MEASURES, "measure")
     check_choice(s["normalization"], NORMALIZATIONS, "normalization")
     _check_bins(s["bins"], "bins")
+    if s["bins"] == "mdlp" and s["target"] is None:
+        raise ValueError("bins='mdlp' cuts numeric columns against the target: set target= as well")
     if not isinstance(s["strategy"], str):
         raise TypeError(f"strategy must be a string such as 'quantile', got {s['strategy']!r}")
     check_choice(s["strategy"], STRATEGIES, "strategy")
@@ -97,6 +99,8 @@ def _check_settings(settings: Mapping) -> dict:
 
 
 def _check_bins(bins, parameter: str):
+    if isinstance(bins, str) and bins == "mdlp":
+        return bins  # supervised cuts against the target (frame/supervised.py)
     if isinstance(bins, str):
         # checked here too: a rule change reaches the encoder only for binned columns
         return check_choice(bins, BIN_RULES, parameter)

@@ -12,6 +12,7 @@ from infoscope.estimators.resampling import bootstrap_mi_ci
 from infoscope.estimators.significance import permutation_p_values, table_tests
 from infoscope.frame.inference import FINDING_Q, pair_shuffler
 from infoscope.frame.results import LEAKAGE_SHARE, RELEVANCE_COLUMNS, result_frame
+from infoscope.frame.supervised import supervised_attrs
 from infoscope.frame.tables.estimates import _child_seed
 
 
@@ -142,4 +143,5 @@ class RelevanceTable:
         out = out.sort_values("mi", ascending=False, na_position="last", kind="stable")
         out = out.reset_index(drop=True)
         out.attrs.update(self._attrs(target=target))
+        out.attrs.update(supervised_attrs(self, target))  # bins="mdlp": the note and held-out MI
         return out
