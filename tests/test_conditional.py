@@ -139,7 +139,7 @@ def test_frame_conditional_matches_a_crosstab_table(rng):
     assert r["ci_low"] <= r["cmi"] <= r["ci_high"]
     assert r["co_information"] == pytest.approx(r["mi"] - r["cmi"])
     assert r["p_value"] == pytest.approx(1 / 200)
-    assert r["strata"] == 4 and r["n"] == n and r["given"] == ("depot",) and not r["sparse"]
+    assert r["strata"] == 4 and r["n"] == n and r["given"] == ("depot",) and r["reliability"] == "ok"
     assert row.attrs["unit"] == "bits" and row.attrs["n_permutations"] == 199
 
 
@@ -148,7 +148,7 @@ def test_frame_conditional_says_when_the_table_is_sparse(rng):
     df = pd.DataFrame({c: rng.integers(0, 6, n).astype(str) for c in "abcd"})
     row = df.info_profile.conditional("a", "b", given=["c", "d"], n_boot=0, n_permutations=49)
     r = row.iloc[0]
-    assert r["sparse"] and r["strata"] == 36
+    assert r["reliability"] == "too_few" and r["strata"] == 36
     assert "fewer than 5" in r["note"] and "permutation p-value stays valid" in r["note"]
     assert math.isnan(r["ci_low"])
 

@@ -12,7 +12,7 @@ columns is missing are left out (under ``missing="drop"``).
 
 Strata multiply cells: with ``k_x * k_y`` cells per stratum and many strata, the
 three-way table quickly has fewer than 5 rows per cell.  The row says so
-(``sparse`` and ``note``): the estimate is then biased upwards and the interval too
+(``reliability`` and ``note``): the estimate is then biased upwards and the interval too
 narrow, while the permutation p-value stays valid (it is only less powerful).
 """
 from __future__ import annotations
@@ -31,7 +31,7 @@ __all__ = ["CONDITIONAL_COLUMNS", "conditional_table", "joint_codes", "present_r
 #: Columns of the ``conditional()`` result row (DEVELOPERS.md, "Result tables").
 CONDITIONAL_COLUMNS = (
     "x", "y", "given", "n", "k_x", "k_y", "strata", "mi", "cmi", "ci_low", "ci_high", "p_value",
-    "null_mean", "co_information", "rows_per_cell", "sparse", "note",
+    "null_mean", "co_information", "rows_per_cell", "reliability", "note",
 )
 
 
@@ -112,8 +112,10 @@ def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> 
         within strata), ``null_mean`` (the mean plug-in CMI under the shuffles, the
         chance level), ``co_information`` = mi - cmi (positive: the given columns
         explain part of the dependence; negative: they reveal dependence),
-        ``rows_per_cell`` = n / (k_x k_y strata), ``sparse`` (fewer than 5) and a
-        ``note`` that says what sparsity does to the numbers.  ``attrs``: unit,
+        ``rows_per_cell`` = n / (k_x k_y strata), ``reliability`` ("ok", "sparse":
+        fewer than 5 rows per cell, "too_few": under 1 or too few rows; the rule of
+        ``infoscope.estimators.significance.table_reliability``) and a ``note`` that
+        says what sparsity does to the numbers.  ``attrs``: unit,
         estimator, sampled, n_permutations.
 
     References
@@ -142,6 +144,7 @@ def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> 
         mutual_information_from_table,
     )
     from infoscope.estimators.resampling import _check_positive_int
+    from infoscope.estimators.significance import table_reliability
 
     given = _given_list(given)
     names = [x, y, *given]
@@ -157,9 +160,9 @@ def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> 
     attrs = {"unit": unit_name(s["base"]), "estimator": s["estimator"], "sampled": session.sampled,
              "n_permutations": int(n_permutations)}
     row = dict.fromkeys(CONDITIONAL_COLUMNS, math.nan)
-    row.update(x=keys[0], y=keys[1], given=tuple(keys[2:]), n=n, sparse=False, note="")
+    row.update(x=keys[0], y=keys[1], given=tuple(keys[2:]), n=n, reliability="ok", note="")
     if n < 2:
-        row.update(k_x=0, k_y=0, strata=0, sparse=True,
+        row.update(k_x=0, k_y=0, strata=0, reliability="too_few",
                    note=f"{n} row(s) where {', '.join(map(repr, keys))} are all present: nothing to estimate")
         return result_frame([row], CONDITIONAL_COLUMNS, **attrs)
     xc, kx = joint_codes([np.asarray(cols[0].codes)[keep]])
@@ -188,5 +191,5 @@ def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> 
     row.update(k_x=kx, k_y=ky, strata=kz, mi=float(mi), cmi=float(cmi), ci_low=float(low),
                ci_high=float(high), p_value=float(p_value), null_mean=float(null_mean),
                co_information=float(mi - cmi), rows_per_cell=n / cells,
-               sparse=bool(n < SPARSE_CELL_COUNT * cells), note=sparse_note(what, cells, n))
+               reliability=str(table_reliability([n], [kx * ky], [kz])[0]), note=sparse_note(what, cells, n))
     return result_frame([row], CONDITIONAL_COLUMNS, **attrs)

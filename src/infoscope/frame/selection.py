@@ -51,7 +51,7 @@ import pandas as pd
 
 from infoscope.estimators._checks import check_choice, log_base, unit_name
 from infoscope.frame.conditional import joint_codes
-from infoscope.frame.results import LEAKAGE_SHARE, SPARSE_CELL_COUNT, result_frame
+from infoscope.frame.results import LEAKAGE_SHARE, result_frame
 
 __all__ = ["SELECTION_COLUMNS", "SELECTION_METHODS", "SELECTION_STATUS", "select_table"]
 
@@ -391,6 +391,7 @@ def _step_test(cols: _Columns, best: str, remaining: list[str], chosen: list[str
     the observed (X, Z) cells.
     """
     from infoscope.estimators.conditional import _shuffle_within
+    from infoscope.estimators.significance import table_reliability
 
     base_keep = present_rows_codes(cols, [target, *chosen])
     rows = np.flatnonzero(base_keep)
@@ -408,7 +409,7 @@ def _step_test(cols: _Columns, best: str, remaining: list[str], chosen: list[str
     gain = _cmi_nats(h, table) if n_best else math.nan
     cells = int(np.count_nonzero(table.sum(axis=(1, 2)))) * int(np.count_nonzero(table.sum(axis=(0, 2)))) \
         * int(np.count_nonzero(table.sum(axis=(0, 1))))
-    supported = bool(n_best >= SPARSE_CELL_COUNT * max(cells, 1))
+    supported = table_reliability([n_best], [cells], [1])[0] == "ok"  # the rule of the pair tables
     note = "" if supported else (
         f"gain not estimated: the joint table of {best!r}, {target!r} and the strata of the chosen columns has "
         f"{cells:,} cells for {n_best:,} rows (fewer than 5 per cell); the p-value stays valid")
