@@ -355,7 +355,7 @@ def test_drift_missing_policy_on_binned_columns():
                                          "infoscope.frame.keys",
                                          "infoscope.frame.results", "infoscope.frame.drift",
                                          "infoscope.frame.sessions", "infoscope.accessor", "infoscope.polars",
-                                         "infoscope.cli"])
+                                         "infoscope.cli", "infoscope.reading"])
 def test_public_functions_have_numpydoc_sections(module_name):
     import importlib
     import inspect
@@ -392,7 +392,8 @@ def test_public_functions_have_numpydoc_sections(module_name):
                                          "infoscope.frame.tables.pairs", "infoscope.frame.tables.relevance",
                                          "infoscope.frame.tables.drift",
                                          "infoscope.frame.results", "infoscope.frame.drift",
-                                         "infoscope.frame.sessions", "infoscope.accessor", "infoscope.polars"])
+                                         "infoscope.frame.sessions", "infoscope.accessor", "infoscope.polars",
+                                         "infoscope.reading"])
 def test_docstring_examples_run(module_name):
     import doctest
     import importlib

@@ -8,18 +8,25 @@ declares its options, so that new subcommands slot in beside the others:
   ``--out profile.html`` also writes the self-contained offline profile page.
 * ``infoscope profile DATA.csv|DATA.parquet`` — profile a file of your own: print
   its tables, and with ``--out`` write the self-contained offline profile page.
+
+Files are read by :func:`infoscope.reading.read_table` (one reader for every
+subcommand: :func:`read_input` with the ``--sep`` / ``--encoding`` options that
+:func:`add_read_options` declares, and :func:`print_read_notes` to say what the
+reader decided).
 """
 from __future__ import annotations
 
 import argparse
-import re
 import sys
 import warnings
 
 import numpy as np
 import pandas as pd
 
-__all__ = ["build_parser", "main", "cmd_demo", "cmd_profile", "format_table"]
+from infoscope.reading import ReadError, parse_datetime_columns, read_table
+
+__all__ = ["build_parser", "main", "cmd_demo", "cmd_profile", "format_table", "read_input",
+           "print_read_notes", "parse_datetime_columns", "read_table"]
 
 CAUTION = (
     "Caution: these are estimates from a sample (see the intervals and p-values); "
@@ -280,7 +287,127 @@ def _check_out(args):
         raise CommandError(f"--out {args.out!r} is a folder; name a file such as profile.html")
     if not path.parent.exists():
         raise CommandError(f"the folder of --out {args.out!r} does not exist")
+    _probe_writable(path, args.out)
     return path
+
+
+def _probe_writable(path, shown: str) -> None:
+    """Fail now, not after the work, when ``path`` cannot be written (a file is made and removed)."""
+    import os
+
+    if path.exists():
+        if not path.is_file() or not os.access(path, os.W_OK):
+            raise CommandError(f"--out {shown!r} cannot be written (permission denied or not a file)")
+        return
+    try:
+        with open(path, "xb"):
+            pass
+    except OSError as exc:
+        raise CommandError(f"--out {shown!r} cannot be written: {exc.strerror or exc}") from None
+    try:
+        path.unlink()
+    except OSError:  # pragma: no cover - made a moment ago
+        pass
+
+
+def add_read_options(p: argparse.ArgumentParser) -> None:
+    """Declare ``--sep`` and ``--encoding`` (how a text data file is read).
+
+    Parameters
+    ----------
+    p : argparse.ArgumentParser
+        The subcommand's parser.
+
+    Returns
+    -------
+    None
+
+    References
+    ----------
+    .. [1] Python documentation, ``argparse``; pandas.read_csv (``sep``, ``encoding``).
+
+    Examples
+    --------
+    >>> p = argparse.ArgumentParser(); add_read_options(p)
+    >>> p.parse_args(["--sep", ";"]).sep
+    ';'
+    """
+    p.add_argument("--sep", default=None, metavar="CHAR",
+                   help="delimiter of a CSV file (one character, or 'tab'); sniffed from the "
+                        "first lines when not given")
+    p.add_argument("--encoding", default=None,
+                   help="text encoding of a CSV file (default utf-8), e.g. latin-1 or cp1252")
+
+
+def read_input(path: str, args: argparse.Namespace) -> pd.DataFrame:
+    """Read a data file with the options of :func:`add_read_options`; one line on failure.
+
+    Parameters
+    ----------
+    path : str
+        The data file.
+    args : argparse.Namespace
+        Parsed options (``sep``, ``encoding``; missing ones count as not given).
+
+    Returns
+    -------
+    pandas.DataFrame
+        As :func:`infoscope.reading.read_table` returns it (notes in ``attrs``).
+
+    Raises
+    ------
+    CommandError
+        When the file cannot be read (the reader's message).
+
+    References
+    ----------
+    .. [1] pandas.read_csv, pandas.read_parquet (through :func:`infoscope.reading.read_table`).
+
+    Examples
+    --------
+    >>> read_input("no-such-file.csv", argparse.Namespace())
+    Traceback (most recent call last):
+    ...
+    infoscope.cli.CommandError: no such file: 'no-such-file.csv'
+    """
+    try:
+        return read_table(path, sep=getattr(args, "sep", None), encoding=getattr(args, "encoding", None))
+    except ReadError as exc:
+        raise CommandError(str(exc)) from None
+
+
+def print_read_notes(frame: pd.DataFrame, out, *, label: str = "") -> None:
+    """Print what the reader decided about a file (delimiter, encoding, stray fields, dates).
+
+    Parameters
+    ----------
+    frame : pandas.DataFrame
+        From :func:`read_input`.
+    out : file-like
+        Where to print.
+    label : str, optional
+        Put before each line (e.g. the file's role when a command reads two).
+
+    Returns
+    -------
+    None
+
+    References
+    ----------
+    .. [1] :func:`infoscope.reading.read_table` (what the notes say).
+
+    Examples
+    --------
+    >>> import io
+    >>> df = pd.DataFrame({"a": [1]}); df.attrs["read_notes"] = ["read as delimited text"]
+    >>> buf = io.StringIO(); print_read_notes(df, buf); print(buf.getvalue().strip())
+    read as delimited text
+    """
+    for note in frame.attrs.get("read_notes") or []:
+        print(f"{label}{note}", file=out)
+    parsed = frame.attrs.get("parsed_datetimes") or []
+    if parsed:
+        print(f"{label}read as dates/times (text in the file): " + ", ".join(map(repr, parsed)), file=out)
 
 
 def _bins_option(text: str):
@@ -325,160 +452,10 @@ def add_profile_parser(subparsers) -> argparse.ArgumentParser:
     p.add_argument("--seed", type=int, default=0, help="seed of the sample and the bootstrap (default 0)")
     p.add_argument("--top", type=int, default=10, help="pairs to show (default 10)")
     p.add_argument("--title", default=None, help="title of the HTML page")
+    add_read_options(p)
     _add_export_options(p)
     p.set_defaults(handler=cmd_profile)
     return p
-
-
-def read_table(path: str) -> pd.DataFrame:
-    """Read a CSV or Parquet file for ``infoscope profile``; one clear error otherwise.
-
-    Parameters
-    ----------
-    path : str
-        A ``.csv``, ``.csv.gz``, ``.tsv`` or ``.parquet`` / ``.pq`` file.
-
-    Returns
-    -------
-    pandas.DataFrame
-
-    Raises
-    ------
-    CommandError
-        The file is missing, unreadable, empty or of an unknown kind.
-
-    References
-    ----------
-    .. [1] pandas.read_csv, pandas.read_parquet (Apache Parquet format).
-
-    Examples
-    --------
-    >>> read_table("no-such-file.csv")
-    Traceback (most recent call last):
-    ...
-    infoscope.cli.CommandError: no such file: 'no-such-file.csv'
-    """
-    from pathlib import Path
-
-    file = Path(path)
-    if not file.exists():
-        raise CommandError(f"no such file: {path!r}")
-    if file.is_dir():
-        raise CommandError(f"{path!r} is a folder, not a data file")
-    name = file.name.lower()
-    try:
-        if name.endswith((".parquet", ".pq")):
-            frame = pd.read_parquet(file)
-        elif name.endswith((".csv", ".csv.gz", ".csv.bz2", ".csv.zip", ".csv.xz")):
-            frame = pd.read_csv(file)
-        elif name.endswith((".tsv", ".tsv.gz")):
-            frame = pd.read_csv(file, sep="\t")
-        else:
-            raise CommandError(f"cannot tell the format of {path!r}: name it .csv, .tsv or .parquet")
-    except CommandError:
-        raise
-    except ImportError as exc:
-        raise CommandError(f"reading {path!r} needs a package that is missing ({exc}); "
-                           "pip install pyarrow") from None
-    except (pd.errors.EmptyDataError,) as exc:
-        raise CommandError(f"{path!r} holds no data ({exc})") from None
-    except (OSError, ValueError, UnicodeDecodeError, pd.errors.ParserError) as exc:
-        first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
-        raise CommandError(f"cannot read {path!r}: {first}") from None
-    except Exception as exc:  # e.g. pyarrow's own errors on a damaged Parquet file
-        first = str(exc).strip().splitlines()[0] if str(exc).strip() else type(exc).__name__
-        raise CommandError(f"cannot read {path!r}: {first}") from None
-    if frame.shape[1] == 0 or len(frame) == 0:
-        raise CommandError(f"{path!r} has no rows or no columns")
-    if not name.endswith((".parquet", ".pq")):  # Parquet keeps its own types
-        frame, parsed = parse_datetime_columns(frame)
-        frame.attrs["parsed_datetimes"] = parsed
-    return frame
-
-
-#: Share of a text column's non-missing values that must read as dates / times
-#: for :func:`parse_datetime_columns` to convert it (our choice: a few stray
-#: entries such as "unknown" do not block it, a mixed column stays text).
-DATETIME_PARSE_SHARE = 0.95
-_DATE_LIKE = re.compile(r"^\s*(\d{4}[-/.]\d{1,2}[-/.]\d{1,2}|\d{1,2}[-/.]\d{1,2}[-/.]\d{4})"
-                        r"([ T]\d{1,2}:\d{2}(:\d{2}(\.\d+)?)?)?\s*(Z|[+-]\d{2}:?\d{2})?\s*$")
-
-
-def _to_datetime(values: pd.Series, fmt):
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore")  # pandas' "could not infer format" notices
-        try:
-            return pd.to_datetime(values, format=fmt, errors="coerce")
-        except (ValueError, TypeError, OverflowError):
-            try:  # mixed UTC offsets: one time line in UTC
-                return pd.to_datetime(values, format=fmt, errors="coerce", utc=True)
-            except (ValueError, TypeError, OverflowError):
-                return None
-
-
-def parse_datetime_columns(frame: pd.DataFrame, *, sample: int = 200) -> tuple[pd.DataFrame, list]:
-    """Convert the text columns of a CSV that hold dates or times to datetimes.
-
-    A CSV has no types: a timestamp column arrives as text, and as text every
-    distinct instant is its own level.  A text column is converted when its first
-    ``sample`` non-missing values all look like dates (``2024-03-01``,
-    ``2024-03-01 08:15:00``, ``01/03/2024``, optional time zone) and at least
-    :data:`DATETIME_PARSE_SHARE` of the sample and of the whole column parse
-    (``pandas.to_datetime``, ISO 8601 first, else the format pandas infers).
-    Numeric and boolean columns are never touched; the input frame is not
-    changed.
-
-    Parameters
-    ----------
-    frame : pandas.DataFrame
-        As read by :func:`pandas.read_csv`.
-    sample : int, default=200
-        How many leading non-missing values decide.
-
-    Returns
-    -------
-    (pandas.DataFrame, list of str)
-        The frame (a copy when a column was converted) and the names of the
-        converted columns.
-
-    References
-    ----------
-    .. [1] ISO 8601:2019, Date and time -- Representations for information
-       interchange.
-    .. [2] pandas.to_datetime (``format="ISO8601"``, ``errors="coerce"``).
-
-    Examples
-    --------
-    >>> df = pd.DataFrame({"when": ["2024-03-01 08:15", "2024-03-02 09:00"], "n": [1, 2]})
-    >>> out, names = parse_datetime_columns(df)
-    >>> names, str(out["when"].dtype).startswith("datetime64")
-    (['when'], True)
-    """
-    parsed: list = []
-    result = frame
-    for column in frame.columns:
-        values = frame[column]
-        if not (values.dtype == object or pd.api.types.is_string_dtype(values.dtype)):
-            continue
-        present = values.dropna()
-        if present.empty:
-            continue
-        head = present.iloc[:sample]
-        if not all(isinstance(v, str) and _DATE_LIKE.match(v) for v in head):
-            continue
-        for fmt in ("ISO8601", None):
-            trial = _to_datetime(head, fmt)
-            if trial is None or trial.notna().mean() < DATETIME_PARSE_SHARE:
-                continue
-            full = _to_datetime(values, fmt)
-            if full is None or full[values.notna()].notna().mean() < DATETIME_PARSE_SHARE:
-                continue
-            if result is frame:
-                result = frame.copy()
-            result[column] = full
-            parsed.append(str(column))
-            break
-    return result, parsed
 
 
 def cmd_profile(args: argparse.Namespace, out=None) -> int:
@@ -488,7 +465,8 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
     ----------
     args : argparse.Namespace
         Parsed options (``data``, ``target``, ``bins``, ``strategy``, ``estimator``,
-        ``sample``, ``seed``, ``top``, ``out``, ``min_count``, ``title``).
+        ``sample``, ``seed``, ``top``, ``out``, ``min_count``, ``title``, ``sep``,
+        ``encoding``).
     out : file-like, optional
         Where to print (default ``sys.stdout``).
 
@@ -526,7 +504,7 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always", InfoscopeWarning)
         bar.set_postfix_str("reading")
-        frame = read_table(args.data)
+        frame = read_input(args.data, args)
         bar.update()
         if args.target is not None and args.target not in frame.columns:
             names = ", ".join(repr(str(c)) for c in list(frame.columns)[:12])
@@ -543,9 +521,7 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
         bar.update()
         print(f"infoscope profile: {args.data}, {len(frame)} rows x {frame.shape[1]} columns"
               + (f"; target {args.target!r}" if args.target else "") + ".", file=out)
-        parsed = frame.attrs.get("parsed_datetimes") or []
-        if parsed:
-            print("read as dates/times (text in the file): " + ", ".join(map(repr, parsed)), file=out)
+        print_read_notes(frame, out)
         print(CAUTION, file=out)
         bar.set_postfix_str("entropy")
         entropy = session.entropy()
@@ -631,9 +607,14 @@ def main(argv=None) -> int:
         return 2
     try:
         return int(args.handler(args) or 0)
-    except CommandError as exc:
+    except (CommandError, ReadError) as exc:
         print(f"infoscope {args.command}: {exc}", file=sys.stderr)
         return 2
+    except BrokenPipeError:  # the output was piped into a reader that stopped (| head)
+        import os
+
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 1
 
 
 if __name__ == "__main__":  # pragma: no cover

@@ -129,9 +129,10 @@ def content_key(series) -> str | None:
     missing mask, plus for object columns the type of every cell (pandas hashes
     objects through their text, so 1 and "1", or b"a" and "a", would otherwise
     collide).  Polars series are hashed through their arrow buffers.
-    Unhashable cells (lists, dicts), cell types whose text may not tell unequal
-    values apart (user classes), nested arrow / Polars types and Polars ``Object``
-    columns have no key: None, and the column is then never cached.
+    Cells pandas cannot hash (lists, dicts; tuples beside numbers), cell types
+    whose text may not tell unequal values apart (user classes), nested arrow /
+    Polars types and Polars ``Object`` columns have no key: None, and the column
+    is then never cached.
 
     Parameters
     ----------
@@ -193,7 +194,9 @@ def content_key(series) -> str | None:
         h.update(f"pandas|{dtype}|{len(series)}|values|".encode())
     try:
         hashed = pd.util.hash_pandas_object(series, index=False).to_numpy()
-    except TypeError:
+    except (TypeError, ValueError):
+        # unhashable cells raise TypeError; cells pandas turns into arrays (tuples
+        # beside numbers: "setting an array element with a sequence") ValueError
         return None
     _update_array(h, hashed)
     _update_array(h, np.packbits(series.isna().to_numpy(dtype=bool)))
