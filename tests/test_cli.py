@@ -45,9 +45,12 @@ def test_main_without_command_prints_help(capsys):
     assert "demo" in capsys.readouterr().out
 
 
-def test_bad_option_is_one_clear_line():
-    with pytest.raises(SystemExit, match="--rows must be >= 1"):
-        main(["demo", "--rows", "0"])
+@pytest.mark.parametrize(("option", "match"), [(["--rows", "0"], "--rows must be >= 1, got 0"),
+                                               (["--seed", "-1"], "--seed must be >= 0, got -1")])
+def test_bad_option_is_one_clear_line(capsys, option, match):
+    assert main(["demo", *option]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert err == [f"infoscope demo: {match}"]
 
 
 def test_python_dash_m_runs_the_demo():

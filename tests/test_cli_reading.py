@@ -230,3 +230,12 @@ def test_writable_out_probe_leaves_no_file_behind_on_a_later_error(tmp_path):
     result = run("profile", path, "--out", tmp_path / "p.html", "--target", "nope")
     one_line_error(result, "--target 'nope'")
     assert not (tmp_path / "p.html").exists()
+
+
+def test_negative_seed_is_one_line_before_the_header(tmp_path):
+    # it was exit 1 with numpy's traceback, after the header had been printed
+    path = tmp_path / "data.csv"
+    path.write_text(CHURN)
+    result = run("profile", path, "--seed", "-1")
+    one_line_error(result, "seed=-1 must be an integer >= 0")
+    assert result.stdout == ""

@@ -28,6 +28,11 @@ from infoscope.reading import ReadError, parse_datetime_columns, read_table
 __all__ = ["build_parser", "main", "cmd_demo", "cmd_profile", "format_table", "read_input",
            "print_read_notes", "parse_datetime_columns", "read_table"]
 
+
+class CommandError(Exception):
+    """A problem with the user's input: printed as one line, exit status 2."""
+
+
 CAUTION = (
     "Caution: these are estimates from a sample (see the intervals and p-values); "
     "mutual information measures dependence, not cause."
@@ -220,7 +225,9 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
     _check_out(args)
     for name in ("rows", "batch_rows", "top", "bins"):
         if getattr(args, name) < 1:
-            raise SystemExit(f"infoscope demo: --{name.replace('_', '-')} must be >= 1")
+            raise CommandError(f"--{name.replace('_', '-')} must be >= 1, got {getattr(args, name)}")
+    if args.seed < 0:
+        raise CommandError(f"--seed must be >= 0, got {args.seed}")
     target = PLANTED["target"]
     frame = make_deliveries(args.rows, seed=args.seed)
     batch = make_deliveries_batch(args.batch_rows, seed=args.seed + 1, drift=True)
@@ -257,10 +264,6 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
 
 
 # --------------------------------------------------------------------------- profile
-class CommandError(Exception):
-    """A problem with the user's input: printed as one line, exit status 2."""
-
-
 def _add_export_options(p: argparse.ArgumentParser) -> None:
     p.add_argument("--out", metavar="PAGE.html", default=None,
                    help="also write the profile as one self-contained HTML page (works offline)")

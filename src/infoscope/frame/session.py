@@ -18,6 +18,7 @@ Data flow: frame -> :mod:`infoscope.encode` -> :mod:`infoscope.engine` ->
 from __future__ import annotations
 
 import math
+import numbers
 from collections.abc import Mapping
 
 import numpy as np
@@ -150,7 +151,7 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
         # measure -> (memo key, the last full pairs() table): matrix() reuses it
         self._pairs_memo: dict = {}
         self._pairs_estimated: list[tuple[str, str]] = []
-        self._check_target(self._settings["target"], "target")
+        self._settings["target"] = self._check_target(self._settings["target"], "target")
         self._encode(self._names)
 
     # ---------------------------------------------------------- state
@@ -269,9 +270,9 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
         >>> s.update(estimator="plugin")
         set()
         """
-        merged = _check_settings({**self._settings, **settings})
         old = self._settings
-        self._check_target(merged["target"], "target")
+        merged = _check_settings({**old, **settings}, old)
+        merged["target"] = self._check_target(merged["target"], "target")
         resample = merged["sample"] != old["sample"] or (
             merged["sample"] is not None and merged["seed"] != old["seed"])
         self._settings = merged
@@ -416,15 +417,16 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
     def _check_name(self, name, parameter: str) -> str:
         if isinstance(name, str) and name in self._series:
             return name
-        label = _name_text(name) if isinstance(name, tuple) else name
+        # a MultiIndex tuple or a number names the column whose key it gives (column_keys)
+        label = _name_text(name) if isinstance(name, (tuple, numbers.Integral)) and not isinstance(name, bool) else name
         if isinstance(label, str) and label in self._series:
             return label
         shown = ", ".join(repr(k) for k in self._names[:12]) + (" ..." if len(self._names) > 12 else "")
         raise KeyError(f"{parameter}={name!r} is not a column of the profile; the columns are: {shown}")
 
-    def _check_target(self, target, parameter: str) -> None:
-        if target is not None:
-            self._check_name(target, parameter)
+    def _check_target(self, target, parameter: str) -> str | None:
+        """The target's column key (a tuple or number label becomes the key), or None."""
+        return None if target is None else self._check_name(target, parameter)
 
     def _attrs(self, **extra) -> dict:
         s = self._settings

@@ -7,11 +7,13 @@ mapping; the widgets derive their controls from these lists.
 from __future__ import annotations
 
 import numbers
+import warnings
 from collections.abc import Mapping
 
+from infoscope._warnings import InfoscopeWarning
 from infoscope.encode.binning import BIN_RULES, STRATEGIES
 from infoscope.estimators._checks import check_choice, log_base
-from infoscope.estimators.entropy import ENTROPY_ESTIMATORS
+from infoscope.estimators.entropy import ENTROPY_ESTIMATORS, resolve_alpha
 from infoscope.estimators.information import NORMALIZATIONS
 
 __all__ = ["CHOICES", "MEASURES", "MISSING_POLICIES", "ORDERS"]
@@ -58,7 +60,12 @@ CHOICES = {
 }
 
 
-def _check_settings(settings: Mapping) -> dict:
+def _check_settings(settings: Mapping, previous: Mapping | None = None) -> dict:
+    """Validate a full settings mapping; every bad value is named in one clear error.
+
+    ``previous`` (the settings before an update) only decides whether the note
+    that ``alpha`` is unused is new.
+    """
     unknown = sorted(set(settings) - set(_DEFAULTS))
     if unknown:
         raise TypeError(
@@ -93,9 +100,28 @@ def _check_settings(settings: Mapping) -> dict:
     seed = s["seed"]
     if seed is not None and (isinstance(seed, bool) or not isinstance(seed, numbers.Integral)):
         raise TypeError(f"seed={seed!r} must be an integer or None")
-    if s["target"] is not None and not isinstance(s["target"], str):
-        raise TypeError(f"target must be a column key (a string) or None, got {s['target']!r}")
+    if seed is not None and seed < 0:
+        raise ValueError(f"seed={seed!r} must be an integer >= 0 or None (None: a fresh random seed)")
+    _check_alpha(s, previous)
+    target = s["target"]
+    if target is not None and (isinstance(target, bool) or not isinstance(target, (str, tuple, numbers.Integral))):
+        raise TypeError(f"target must be a column key (a string, or a MultiIndex tuple) or None, got {target!r}")
     return s
+
+
+def _check_alpha(s: Mapping, previous: Mapping | None) -> None:
+    """``alpha`` is checked whatever the estimator; set but unused, it is said (once)."""
+    alpha = s["alpha"]
+    if alpha is None:
+        return
+    resolve_alpha("dirichlet", alpha)  # the one rule for a pseudocount: errors name alpha
+    if s["estimator"] == "dirichlet":
+        return
+    if previous is not None and previous.get("alpha") == alpha and previous.get("estimator") == s["estimator"]:
+        return  # said when it was set
+    warnings.warn(
+        f"alpha={alpha!r} is not used: only estimator='dirichlet' takes a pseudocount, and the "
+        f"estimator is {s['estimator']!r}", InfoscopeWarning, stacklevel=4)
 
 
 def _check_bins(bins, parameter: str):
