@@ -8,6 +8,7 @@ of the counts that the values imply.
 from __future__ import annotations
 
 import copy
+import importlib
 import warnings
 
 import numpy as np
@@ -108,3 +109,137 @@ def test_multiindex_target_is_a_tuple_like_in_pair():
         df.info_profile.relevance(("g", "x"))
     numbered = pd.DataFrame({0: [0, 1] * 20, 1: [0, 1] * 20})
     assert quiet(numbered.info_profile.relevance, 0, n_boot=0)["column"].tolist() == ["1"]
+
+
+# ------------------------------------------------------------------ integers beyond 2**53
+BIG = 2**60
+
+
+@pytest.mark.parametrize("dtype", ["int64", "uint64", "Int64", "int64[pyarrow]", "uint64[pyarrow]"])
+@pytest.mark.parametrize("bins", [4, 16, "fd"])
+def test_large_integers_are_binned_as_integers(dtype, bins):
+    # 2**60 + i: float64 holds these as a handful of values, so float bins collapsed
+    # (k = 0, entropy NaN, "no non-missing values").  Reference: the same offsets i
+    # binned by numpy (np.quantile / np.histogram_bin_edges, then np.histogram),
+    # where every integer is exact; binning is shift-invariant.
+    offsets = np.random.default_rng(7).integers(0, 5_000, 1_000)
+    df = pd.DataFrame({"x": pd.Series([BIG + int(i) for i in offsets], dtype=dtype)})
+    before = df.copy()
+    col = infoscope.encode_column(df["x"], name="x", bins=bins)
+    if bins == "fd":
+        edges = np.histogram_bin_edges(offsets, bins="fd")
+    else:
+        edges = np.quantile(offsets, np.linspace(0, 1, bins + 1))
+    expected, _ = np.histogram(offsets, bins=edges)
+    assert np.bincount(col.codes, minlength=col.k).tolist() == expected.tolist()
+    assert col.labels[0].startswith(f"[{BIG + int(offsets.min())}, ")
+    assert col.labels[-1].endswith(f", {BIG + int(offsets.max())}]")
+    row = quiet(df.info_profile.entropy, bins=bins, estimator="plugin", n_boot=0).iloc[0]
+    assert row["k"] == len(expected) and row["n"] == 1_000
+    assert row["entropy"] == pytest.approx(scipy.stats.entropy(expected, base=2), rel=1e-12)
+    pd.testing.assert_frame_equal(df, before)
+
+
+def test_large_integers_in_pairs_and_drift():
+    df = pd.DataFrame({"x": [BIG + i for i in range(100)], "y": np.arange(100) % 3})
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")  # no false "no non-missing values"
+        pair = df.info_profile.pair("x", "y", bins=4)
+    assert pair.n == 100 and pair.counts.to_numpy().sum() == 100
+    later = pd.DataFrame({"x": [BIG + i for i in range(50, 150)], "y": np.arange(100) % 3})
+    drift = quiet(later.info_profile.drift, df, bins=4).set_index("column")
+    # the later batch on the reference's edges: 25 in the third bin, 25 in the fourth,
+    # 50 above the last edge (counted in the end bin) -> PSI of (0, 0, .25, .75) vs .25 each
+    # (pseudocount 0.5, the session's default): checked against the closed form below
+    ref = np.array([25, 25, 25, 25]) + 0.5
+    cur = np.array([0, 0, 25, 75]) + 0.5
+    p, q = cur / cur.sum(), ref / ref.sum()
+    assert drift.loc["x", "psi"] == pytest.approx(float(np.sum((p - q) * np.log(p / q))), rel=1e-9)
+
+
+def test_extreme_integers_keep_their_order():
+    values = [-(2**63), 2**63 - 1] * 30 + list(range(-40, 40))
+    col = infoscope.encode_column(pd.Series(values), name="x", bins=4)
+    # numpy on exact Python integers (object array) gives the same quantile split:
+    # 35 rows per bin, the extremes in the end bins
+    assert np.bincount(col.codes).tolist() == [35, 35, 35, 35]
+    assert col.labels[0] == f"[{-(2**63)}, -35)" and col.labels[-1] == f"[35, {2**63 - 1}]"
+    top = np.array([2**64 - 1, 2**64 - 2, 0, 5] * 20, dtype=np.uint64)
+    col = infoscope.encode_column(top, name="u", bins=3, categorical_threshold=2)
+    assert col.labels[-1].endswith(f"{2**64 - 1}]") and np.bincount(col.codes).sum() == 80
+
+
+def test_polars_integers_with_nulls_stay_exact():
+    pl = pytest.importorskip("polars")
+    importlib.import_module("infoscope.frame.polars")  # registers pl.DataFrame.info_profile
+
+    frame = pl.DataFrame({"x": [BIG + i for i in range(99)] + [None], "u": pl.Series([2**63 + i for i in range(100)],
+                                                                                    dtype=pl.UInt64)})
+    table = quiet(frame.info_profile.entropy, bins=4, estimator="plugin", n_boot=0).set_index("column")
+    # 99 present values in 4 quantile bins: np.histogram(range(99), np.quantile(range(99), ...))
+    expected, _ = np.histogram(np.arange(99), bins=np.quantile(np.arange(99), np.linspace(0, 1, 5)))
+    assert table.loc["x", "missing"] == 1 and table.loc["x", "k"] == 4
+    assert table.loc["x", "entropy"] == pytest.approx(scipy.stats.entropy(expected, base=2), rel=1e-12)
+    assert table.loc["u", "entropy"] == pytest.approx(2.0)  # 25 per bin
+    assert frame["x"].null_count() == 1  # unchanged
+
+
+# ------------------------------------------------------------------ ordered objects
+def test_period_columns_are_binned_on_their_start_times():
+    months = pd.Series(pd.period_range("2020-01", periods=48, freq="M"))
+    df = pd.DataFrame({"month": months, "quarter": pd.Series(pd.period_range("2020Q1", periods=4, freq="Q")).repeat(
+        12).reset_index(drop=True)})
+    col = infoscope.encode_column(df["month"], name="month", bins=4)
+    # the same as binning the start instants: pandas' own start_time, then our datetime encoder
+    ref = infoscope.encode_column(months.dt.start_time, name="month", bins=4)
+    assert col.kind == "datetime" and col.codes.tolist() == ref.codes.tolist() and col.labels == ref.labels
+    quarters = infoscope.encode_column(df["quarter"], name="quarter")
+    assert quarters.labels == ("2020Q1", "2020Q2", "2020Q3", "2020Q4")
+    row = quiet(df.info_profile.entropy, bins=4, estimator="plugin", n_boot=0).set_index("column")
+    assert row.loc["month", "k"] == 4 and row.loc["month", "entropy"] == pytest.approx(2.0)  # 12 per bin
+    assert "id_like" not in row.loc["month", "flags"]
+
+
+def test_interval_columns_are_read_by_their_midpoints():
+    iv = pd.Series(pd.interval_range(0, 40, periods=40))
+    col = infoscope.encode_column(iv, name="iv", bins=4)
+    ref = infoscope.encode_column(pd.Series(np.arange(40) + 0.5), name="iv", bins=4)  # the midpoints
+    assert col.kind == "numeric" and col.codes.tolist() == ref.codes.tolist() and col.labels == ref.labels
+    few = infoscope.encode_column(pd.Series(list(pd.interval_range(0, 3, periods=3)) * 5), name="few")
+    assert few.labels == ("(0, 1]", "(1, 2]", "(2, 3]")
+    shared = pd.Series(pd.IntervalIndex.from_tuples([(0, 10), (4, 6), (20, 30)] * 4))
+    with pytest.warns(infoscope.DataQualityWarning, match=r"column 'ivs': 1 distinct interval\(s\) share their midpoint"):
+        both = infoscope.encode_column(shared, name="ivs")
+    assert both.k == 2
+    dates = pd.Series(pd.interval_range(pd.Timestamp("2024-01-01"), periods=40, freq="D"))
+    assert infoscope.encode_column(dates, name="d", bins=4).kind == "datetime"
+
+
+@pytest.mark.parametrize("library", ["pandas", "polars"])
+def test_times_of_day_are_binned_as_time_since_midnight(library):
+    import datetime
+
+    times = [datetime.time(h % 24, (7 * h) % 60, 30) for h in range(96)]
+    seconds = np.array([(t.hour * 60 + t.minute) * 60 + t.second for t in times])
+    if library == "polars":
+        pl = pytest.importorskip("polars")
+        importlib.import_module("infoscope.frame.polars")  # registers pl.DataFrame.info_profile
+
+        frame = pl.DataFrame({"t": times + [None]})
+    else:
+        frame = pd.DataFrame({"t": pd.Series(times + [None], dtype=object)})
+    table = quiet(frame.info_profile.entropy, bins=4, estimator="plugin", n_boot=0).iloc[0]
+    # reference: numpy's quantile bins of the seconds of the day
+    expected, _ = np.histogram(seconds, bins=np.quantile(seconds, np.linspace(0, 1, 5)))
+    assert table["kind"] == "timedelta" and table["missing"] == 1 and table["k"] == 4
+    assert table["entropy"] == pytest.approx(scipy.stats.entropy(expected, base=2), rel=1e-12)
+    col = quiet(infoscope.encode_column, pd.Series(times, dtype=object), name="t", bins=4)
+    assert col.labels[0].startswith("[00:00") and "days" not in " ".join(col.labels)
+
+
+def test_complex_numbers_are_labels_and_say_so():
+    df = pd.DataFrame({"z": np.array([1 + 2j, 3j, 1 + 2j, 0j] * 10)})
+    with pytest.warns(infoscope.DataQualityWarning, match="column 'z': complex numbers have no order"):
+        row = df.info_profile.entropy(estimator="plugin", n_boot=0).iloc[0]
+    # counts 20, 10, 10: scipy.stats.entropy([20, 10, 10], base=2) = 1.5 bits
+    assert row["k"] == 3 and row["entropy"] == pytest.approx(scipy.stats.entropy([20, 10, 10], base=2))

@@ -23,6 +23,8 @@ from infoscope.encode.mdlp import mdlp_edges
 
 __all__ = [
     "NUMPY_RULES",
+    "FLOAT_EXACT_INTEGER",
+    "beyond_float",
     "BIN_RULES",
     "RULE_MAX_BINS",
     "MAX_BINS",
@@ -82,6 +84,34 @@ def _finite(arr: np.ndarray) -> np.ndarray:
     return arr
 
 
+#: The largest magnitude below which float64 holds every integer exactly.
+FLOAT_EXACT_INTEGER = 2**53
+
+
+def beyond_float(lo, hi) -> bool:
+    """True when integers between ``lo`` and ``hi`` are not all exact as float64 (``|v| > 2**53``).
+
+    Parameters
+    ----------
+    lo, hi : int
+        The smallest and largest value.
+
+    Returns
+    -------
+    bool
+
+    References
+    ----------
+    .. [1] IEEE 754-2019, binary64: a 53-bit significand.
+
+    Examples
+    --------
+    >>> beyond_float(0, 2**53), beyond_float(2**60, 2**60 + 99)
+    (False, True)
+    """
+    return max(abs(int(lo)), abs(int(hi))) > FLOAT_EXACT_INTEGER
+
+
 def _check_bins(bins, parameter: str = "bins"):
     """Normalise ``bins``: an int >= 1, a rule name, or an increasing sequence of edges."""
     if isinstance(bins, str):
@@ -112,6 +142,11 @@ def _check_bins(bins, parameter: str = "bins"):
         raise ValueError(f"{parameter}: a sequence of bin edges needs at least two values, got shape {edges.shape}")
     if edges.dtype.kind in "mM":
         return edges  # checked by the caller on its own time axis
+    if edges.dtype.kind in "iu" and beyond_float(edges.min(), edges.max()):
+        # integer edges beyond float64's exact range stay integers (exact for integer columns)
+        if np.any(edges[1:] <= edges[:-1]):
+            raise ValueError(f"{parameter}: bin edges must increase strictly")
+        return edges
     try:
         edges = edges.astype(np.float64)
     except (TypeError, ValueError):

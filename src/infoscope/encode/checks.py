@@ -56,6 +56,37 @@ def _check_settings(bins, strategy, missing, max_categories, categorical_thresho
     return bins, strategy, missing, max_categories, int(categorical_threshold), settings
 
 
+def _nullable_integer(dtype):
+    """pyarrow integer type -> pandas nullable integer dtype (``types_mapper`` of ``to_pandas``)."""
+    import pyarrow as pa
+
+    if pa.types.is_integer(dtype):
+        return pd.api.types.pandas_dtype(str(dtype).replace("int", "Int").replace("uInt", "UInt"))
+    return None
+
+
+def _polars_to_pandas(obj):
+    """A Polars DataFrame / Series as pandas, integers with missing values kept exact.
+
+    ``to_pandas()`` turns a Polars integer column with nulls into float64, which
+    rounds integers beyond 2**53 (``2**60 + 1`` becomes ``2**60``); such columns
+    are converted to pandas' nullable integers instead.  Everything else is
+    Polars' own conversion.
+    """
+    import polars as pl
+
+    if isinstance(obj, pl.Series):
+        if obj.dtype.is_integer() and obj.null_count():
+            return obj.to_pandas(types_mapper=_nullable_integer)
+        return obj.to_pandas()
+    out = obj.to_pandas()
+    for i, (name, dtype) in enumerate(obj.schema.items()):
+        column = obj.get_column(name)
+        if dtype.is_integer() and column.null_count():
+            out.isetitem(i, column.to_pandas(types_mapper=_nullable_integer).array)
+    return out
+
+
 def _as_series(values, name: str) -> pd.Series:
     """A pandas Series over ``values`` without copying NumPy data (never written to)."""
     if isinstance(values, pd.Series):
@@ -66,7 +97,8 @@ def _as_series(values, name: str) -> pd.Series:
         return pd.Series(values, copy=False)
     if not isinstance(values, np.ndarray) and hasattr(values, "to_pandas"):
         # Polars Series, pyarrow (Chunked)Array
-        converted = values.to_pandas()
+        polars = type(values).__module__.split(".")[0] == "polars"
+        converted = _polars_to_pandas(values) if polars else values.to_pandas()
         if isinstance(converted, pd.DataFrame):
             raise ValueError(f"column {name!r}: expected one column, got a table")
         return pd.Series(converted, copy=False)

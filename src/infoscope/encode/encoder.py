@@ -27,6 +27,7 @@ from infoscope.encode.drafts import (
 from infoscope.encode.encoded import FLAGS, EncodedColumn, codes_dtype
 from infoscope.encode.levels import _categorical, _finish_bins, _finish_levels
 from infoscope.encode.numeric import _numeric
+from infoscope.encode.ordered import _interval, _period
 from infoscope.encode.temporal import _temporal
 from infoscope.encode.text import _factorized, _objects
 
@@ -69,7 +70,12 @@ def _draft(series: pd.Series, notes: _Notes, bins, strategy, threshold):
         return _factorized(series, "text")
     if dtype == object:
         return _objects(series, notes, bins, strategy, threshold)
-    # anything else (complex, period, interval, arrow lists / structs ...): cell by cell
+    if isinstance(dtype, pd.PeriodDtype):
+        return _period(series, notes, bins, strategy, threshold)
+    if isinstance(dtype, pd.IntervalDtype):
+        return _interval(series, notes, bins, strategy, threshold)
+    # anything else (complex: labels, with a warning, as they have no order; arrow
+    # lists / structs ...): cell by cell
     return _objects(pd.Series(series.to_numpy(dtype=object), dtype=object), notes, bins, strategy, threshold)
 
 

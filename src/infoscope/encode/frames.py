@@ -8,6 +8,7 @@ from concurrent.futures import ThreadPoolExecutor
 import pandas as pd
 
 from infoscope._warnings import DataQualityWarning, warn_user
+from infoscope.encode.checks import _polars_to_pandas
 from infoscope.encode.drafts import DEFAULT_CATEGORICAL_THRESHOLD
 from infoscope.encode.encoded import EncodedColumn
 from infoscope.encode.encoder import _encode
@@ -77,7 +78,9 @@ def encode_frame(frame, *, threads: int | None = None, **settings) -> list[Encod
         raise TypeError("encode_frame: 'name' is not a setting (columns are keyed by their labels)")
     _check_frame_settings(settings, "encode_frame")
     if not isinstance(frame, pd.DataFrame):
-        if hasattr(frame, "to_pandas"):
+        if type(frame).__module__.split(".")[0] == "polars" and hasattr(frame, "schema"):
+            frame = _polars_to_pandas(frame.collect() if not hasattr(frame, "to_pandas") else frame)
+        elif hasattr(frame, "to_pandas"):
             frame = frame.to_pandas()
         else:
             raise TypeError(f"frame must be a pandas or Polars DataFrame, got {type(frame).__name__}")

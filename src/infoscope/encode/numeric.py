@@ -1,6 +1,8 @@
 """Numeric columns (floats, integers, nullable numbers): levels or bins, ID-like and heavy tails."""
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from infoscope.encode import binning, order_stats
@@ -28,7 +30,8 @@ def _integer_id_like(values: np.ndarray, n_distinct: int, lo, hi, name: str) -> 
     n_valid = values.size
     if n_valid < ID_LIKE_MIN_ROWS or n_distinct < ID_LIKE_SHARE * n_valid:
         return False
-    span = float(hi) - float(lo) + 1
+    # exact for integers beyond 2**53 (Python ints), floats otherwise
+    span = (int(hi) - int(lo) + 1) if isinstance(lo, (int, np.integer)) else float(hi) - float(lo) + 1
     dense = span <= 2 * n_distinct
     monotone = bool(np.all(values[1:] > values[:-1]) or np.all(values[1:] < values[:-1]))
     return dense or monotone or _is_id_name(name)
@@ -136,6 +139,8 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
             raw[~missing] = np.searchsorted(distinct, v)
         kind = "integer_categories" if n_distinct else "numeric"
         return _Levels(raw, _format_numbers(distinct), True, kind, n_distinct)
+    if x.dtype.kind in "iu" and (binning.beyond_float(s[0], s[-1]) or (explicit and bins.dtype.kind in "iu")):
+        return _integer_bins(v, s, n, missing, notes, bins, strategy, n_distinct)
     edges, note = binning._edges(s, bins, strategy, is_sorted=True)
     if note is not None:
         notes.warn(note)
@@ -202,3 +207,77 @@ def _float_bins(v, n, missing, any_missing, notes, bins, strategy, threshold) ->
     if tail and _tail_index_of(*quantiles[n_edges:]) > HEAVY_TAIL_INDEX:
         notes.flags.add("heavy_tail")
     return _binned(v, n, missing, any_missing, edges, n_distinct)
+
+
+def _integer_bins(v: np.ndarray, s: np.ndarray, n: int, missing: np.ndarray, notes: _Notes, bins, strategy,
+                  n_distinct: int) -> _Bins:
+    """Bins of integers beyond float64's exact range (``|v| > 2**53``), in integer arithmetic.
+
+    float64 holds integers exactly only up to 2**53: ``2**60 + i`` for ``i < 100``
+    are a handful of floats, and binning them as floats merged every edge.  Here
+    the values become exact offsets from the smallest (uint64; the span of an
+    int64 or uint64 column fits), the edges are placed on the offsets (as floats,
+    exact when the span is below 2**53) and then made integers: the integers in
+    ``[e_i, e_i+1)`` are those from ``ceil(e_i)`` on, so integer edges lose nothing.
+    Codes come from integer comparisons; labels and edges are the exact integers.
+    """
+    explicit = isinstance(bins, np.ndarray)
+    origin = int(s[0]) if not explicit else min(int(s[0]), int(bins[0]))
+    shift = np.uint64(origin % 2**64)
+
+    def offsets(a: np.ndarray) -> np.ndarray:
+        # a - origin, exact: two's-complement wrap-around gives the true difference (< 2**64)
+        return a.astype(np.uint64) - shift
+
+    s_off = offsets(s)
+    span = int(s_off[-1])
+    if explicit:
+        edges_off = offsets(bins)
+        outside = int(np.count_nonzero(s < bins[0]) + np.count_nonzero(s > bins[-1]))
+        if outside:
+            notes.warn(f"{outside} value(s) lie outside the given bin edges [{int(bins[0])}, "
+                       f"{int(bins[-1])}] and are counted in the end bins")
+    elif span == 0:
+        edges_off = np.array([0, 1], dtype=np.uint64)
+    else:
+        if strategy == "quantile" and not isinstance(bins, str):
+            wanted = _integer_quantile_edges(s_off, bins)  # exact: floats of the offsets may merge
+        else:  # widths: the float's relative error (2**-53 of the span) moves no edge by a bin
+            wanted = [int(math.ceil(e)) for e in binning._edges(s_off.astype(np.float64), bins, strategy,
+                                                                 is_sorted=True)[0][1:-1]]
+        inner = sorted({min(max(e, 1), span) for e in wanted} - {span})
+        edges_off = np.array([0, *inner, span], dtype=np.uint64)
+        if edges_off.size < len(wanted) + 2:
+            notes.warn(f"{len(wanted) + 1} bins were asked for but tied values make "
+                       f"{len(wanted) + 2 - edges_off.size} edge(s) coincide; {edges_off.size - 1} bin(s) remain")
+    codes = np.searchsorted(edges_off[1:-1], offsets(v), side="right")
+    codes = codes.astype(np.uint8 if edges_off.size <= 256 else np.int64)
+    if missing.any():
+        raw = np.full(n, -1, dtype=np.int16 if edges_off.size <= 32_000 else np.int64)
+        raw[~missing] = codes
+    else:
+        raw = codes
+    if _heavy_tail(s_off.astype(np.float64)):
+        notes.flags.add("heavy_tail")
+    values = [origin + int(e) for e in edges_off]
+    edges = np.array(values, dtype=bins.dtype if explicit else s.dtype)
+    labels = list(binning.interval_labels([str(e) for e in values]))
+    return _Bins(raw, labels, edges, "numeric", n_distinct)
+
+
+def _integer_quantile_edges(s_off: np.ndarray, bins: int) -> list[int]:
+    """Interior quantile edges of sorted uint64 offsets, rounded up to whole numbers, exactly.
+
+    numpy's "linear" quantile at ``h = (n - 1) p`` lies between the order
+    statistics ``s[floor h]`` and the next; the smallest integer at or above it is
+    ``s[i] + ceil(g (s[i + 1] - s[i]))`` with ``g = h - floor h``, computed here in
+    Python integers (only the fraction ``g`` is a float).
+    """
+    n = s_off.size
+    out = []
+    for p in np.linspace(0.0, 1.0, int(bins) + 1)[1:-1]:
+        h = (n - 1) * float(p)
+        i = min(int(math.floor(h)), n - 1)
+        a, b = int(s_off[i]), int(s_off[min(i + 1, n - 1)])
+        out.append(a + int(math.ceil((h - i) * (b - a))))
+    return out

@@ -99,6 +99,12 @@ def _objects(series: pd.Series, notes: _Notes, bins, strategy, threshold):
         if num.dtype != object and exact and int(num.isna().sum()) == int(series.isna().sum()):
             arr = num.to_numpy()
             return _numeric(arr, None, notes, bins, strategy, threshold)
+    if inferred == "time":  # datetime.time cells (a Polars Time column): time since midnight
+        from infoscope.encode.ordered import _time_of_day
+
+        return _time_of_day(series, notes, bins, strategy, threshold)
+    if inferred == "complex":
+        notes.warn("complex numbers have no order to bin on: each distinct value is read as a label")
     if inferred in ("datetime", "datetime64", "date", "timedelta", "timedelta64"):
         try:
             with warnings.catch_warnings():

@@ -23,7 +23,9 @@ def as_pandas(frame, parameter: str = "frame") -> pd.DataFrame:
     pandas.DataFrame
         pandas frames are shallow-copied (with copy-on-write, pandas 3, this costs
         nothing and later edits of the user's frame do not reach the copy); Polars
-        frames (eager or lazy) are converted with ``to_pandas()``.
+        frames (eager or lazy) are converted with ``to_pandas()``, except that
+        integer columns with nulls become pandas' nullable integers (not floats,
+        which round integers beyond 2**53).
 
     Raises
     ------
@@ -45,9 +47,11 @@ def as_pandas(frame, parameter: str = "frame") -> pd.DataFrame:
         return frame.copy(deep=False)
     module = type(frame).__module__.split(".")[0]
     if module == "polars":
+        from infoscope.encode.checks import _polars_to_pandas
+
         if hasattr(frame, "collect") and not hasattr(frame, "to_pandas"):
             frame = frame.collect()  # a LazyFrame
-        return frame.to_pandas()
+        return _polars_to_pandas(frame)
     raise TypeError(
         f"{parameter} must be a pandas or Polars DataFrame, got {type(frame).__name__}"
     )
