@@ -371,7 +371,7 @@ def _align_levels(current, reference, name, settings, ref, flags, dtypes) -> Sha
     cur_level = np.bincount(cur_all.codes, minlength=cur_all.k + 1)[: cur_all.k]
     cur_u = np.zeros(len(union), dtype=np.int64)
     np.add.at(cur_u, cur_to_union, cur_level)
-    is_missing = np.array([label == MISSING_LABEL for label in union])
+    is_missing = np.array([label == MISSING_LABEL for label in union], dtype=bool)  # bool when empty
     seen = (ref_u > 0) & ~is_missing
     present = cur_u[~is_missing].sum()
     new_share = float(cur_u[~seen & ~is_missing].sum() / present) if present else math.nan
