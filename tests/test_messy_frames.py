@@ -22,7 +22,6 @@ The examples are derandomized (the project's hypothesis profile in
 from __future__ import annotations
 
 import copy
-import decimal
 import math
 import traceback
 import warnings
