@@ -66,6 +66,12 @@ def test_negative_seed_is_named_before_any_work(seed):
         ProfileSession(SMALL).update(seed=-1)
     with pytest.raises(ValueError, match="seed=-1"):
         SMALL.info_profile(seed=-1)  # the widget: at the call, not in its worker thread
+    pl = pytest.importorskip("polars")
+    importlib.import_module("infoscope.frame.polars")
+    with pytest.raises(ValueError, match="seed=-1 must be an integer >= 0"):
+        pl.from_pandas(SMALL).info_profile.entropy(seed=-1)
+    with pytest.raises(ValueError, match="alpha=-1 is invalid"):
+        pl.from_pandas(SMALL).info_profile.entropy(alpha=-1)
 
 
 @pytest.mark.parametrize("estimator", ["plugin", "miller_madow", "chao_shen", "james_stein", "dirichlet",
