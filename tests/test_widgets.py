@@ -555,3 +555,18 @@ def test_charts_are_the_profile_charts_of_this_session(frame):
             assert cells.get((str(a), str(b)), 0) == table.loc[a, b]
     with pytest.raises(TypeError):
         w.charts(no_such_option=1)
+
+
+def test_nsb_says_what_it_costs_before_it_starts(frame):
+    w = widget(frame)
+    seen = []
+    w.observe(lambda change: seen.append(change["new"].get("message", "")), names=["_status"])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        w.estimator = "nsb"
+    said = [m for m in seen if m.startswith("NSB estimator: up to")]
+    assert said and seen.index(said[0]) < len(seen) - 1, seen  # before the numbers, not after
+    p = len(w.session.names)
+    integrals = p + p * (p - 1) // 2 + p  # entropy bars + grid (no target here)
+    assert f"{integrals:,} posterior integrals" in said[0]
+    assert w._status["state"] == "idle" and json.loads(w._entropy)["estimator"] == "nsb"
