@@ -478,3 +478,30 @@ def test_no_triples_when_tables_would_outgrow_the_rows():
     layout = counting.pair_layout([16, 16, 16], [(0, 1), (0, 2), (1, 2)], triples=True, rows=100)
     assert layout.triples.shape[0] == 0 and layout.first.shape[0] == 3
     assert counting.pair_layout([16] * 3, [(0, 1), (0, 2), (1, 2)], triples=True).triples.shape[0] == 1
+
+
+def test_auto_backend_counts_with_numpy_until_numba_is_loaded(monkeypatch):
+    # Reference: the numpy kernel (numpy.bincount per pair) and the numba kernel give
+    # the same tables (checked against pandas.crosstab above); "auto" must answer at
+    # once with numpy while numba's kernels load on a background thread, then use numba.
+    from types import SimpleNamespace
+
+    from infoscope.engine import counting
+    from infoscope.engine.engine import PairEngine
+
+    rng = np.random.default_rng(5)
+    cols = [SimpleNamespace(name=f"c{i}", codes=rng.integers(0, 4, 5000).astype(np.uint8), k=4) for i in range(4)]
+    state = dict(counting._NUMBA_STATE)
+    monkeypatch.setitem(counting._NUMBA_STATE, "ready", False)
+    monkeypatch.setitem(counting._NUMBA_STATE, "thread", None)
+    monkeypatch.setattr(counting, "_load_numba_kernels", lambda: None)  # loading never finishes here
+    eng = PairEngine(cols, progress=False)
+    first = eng.tables()
+    assert eng.backend == "numpy" and counting._NUMBA_STATE["thread"] is not None
+    counting._NUMBA_STATE["thread"].join()
+    monkeypatch.setitem(counting._NUMBA_STATE, "ready", True)
+    again = PairEngine(cols, progress=False)
+    assert again.backend == "numba"
+    second = again.tables()
+    assert first.keys() == second.keys() and all(np.array_equal(first[p], second[p]) for p in first)
+    assert state["lock"] is counting._NUMBA_STATE["lock"]

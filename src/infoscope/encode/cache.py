@@ -28,7 +28,7 @@ import numpy as np
 import pandas as pd
 import xxhash
 
-__all__ = ["content_key", "frame_key", "EncodingCache", "DEFAULT_CACHE_BYTES", "default_cache", "clear_cache"]
+__all__ = ["content_key", "frame_key", "array_digest", "EncodingCache", "DEFAULT_CACHE_BYTES", "default_cache", "clear_cache"]
 
 #: Default byte budget of the process-wide cache (codes of ~256 million rows at uint8).
 DEFAULT_CACHE_BYTES = 256 * 2**20
@@ -55,6 +55,33 @@ def _update_array(h, arr: np.ndarray) -> None:
     h.update(f"{arr.dtype.str}|{arr.size}|".encode())
     if arr.size:
         h.update(arr.reshape(-1).view(np.uint8))
+
+
+def array_digest(arr: np.ndarray) -> str:
+    """XXH3-128 of an array's dtype, length and bytes (the engine keys its pair tables by this).
+
+    Parameters
+    ----------
+    arr : numpy.ndarray
+
+    Returns
+    -------
+    str
+        A hex digest.
+
+    References
+    ----------
+    .. [1] Y. Collet, "xxHash" (XXH3), https://xxhash.com.
+
+    Examples
+    --------
+    >>> import numpy as np
+    >>> array_digest(np.arange(3)) == array_digest(np.arange(3)), array_digest(np.arange(3)) == array_digest(np.arange(4))
+    (True, False)
+    """
+    h = _digest()
+    _update_array(h, arr)
+    return h.hexdigest()
 
 
 def _text_exact_type(t: type) -> bool:

@@ -282,6 +282,65 @@ def resolve_backend(backend: str) -> str:
     return "numba"
 
 
+_NUMBA_STATE: dict = {"ready": False, "thread": None, "lock": threading.Lock()}
+
+
+def _load_numba_kernels() -> None:
+    """Load (compile on the first run on a machine, read numba's cache later) every counting kernel."""
+    with _NUMBA_STATE["lock"]:
+        if _NUMBA_STATE["ready"]:
+            return
+        from infoscope.engine import _numba_kernels
+
+        ks = [3, 3, 3]
+        layout = pair_layout(ks, [(0, 1), (0, 2), (1, 2)], triples=True, rows=64)
+        block = np.zeros((3, 64), dtype=np.uint8)
+        out = np.zeros(layout.cells, dtype=np.int64)
+        args = (block, layout.first, layout.second, layout.stride, layout.pitch, layout.offset,
+                layout.triples, layout.tstride, layout.toffset, out)
+        _numba_kernels.count_pairs_serial(*args)
+        with _PARALLEL_LOCK:
+            _numba_kernels.count_pairs(*args)
+        _NUMBA_STATE["ready"] = True
+
+
+def numba_ready(*, wait: bool = False) -> bool:
+    """Whether the compiled counting kernels are loaded; starts loading them on a background thread.
+
+    ``backend="auto"`` counts with numpy (the same tables) until they are: the first
+    compile on a machine takes a few seconds, which a first view should not wait for.
+
+    Parameters
+    ----------
+    wait : bool, default=False
+        Load them in this thread first.
+
+    Returns
+    -------
+    bool
+
+    References
+    ----------
+    .. [1] numba documentation, "Compiling Python code with @jit" (``cache=True``).
+
+    Examples
+    --------
+    >>> numba_ready(wait=True)
+    True
+    """
+    if _NUMBA_STATE["ready"]:
+        return True
+    if wait:
+        _load_numba_kernels()
+        return True
+    with _NUMBA_STATE["lock"]:
+        if _NUMBA_STATE["thread"] is None and not _NUMBA_STATE["ready"]:
+            # not a daemon: interpreter exit waits for a compile in progress
+            _NUMBA_STATE["thread"] = threading.Thread(target=_load_numba_kernels, name="infoscope-count-kernels")
+            _NUMBA_STATE["thread"].start()
+    return _NUMBA_STATE["ready"]
+
+
 def available_threads() -> int:
     """All cores this process may use."""
     try:

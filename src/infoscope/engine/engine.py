@@ -2,12 +2,13 @@
 from __future__ import annotations
 
 import contextlib
-import hashlib
 import numbers
 from collections import OrderedDict
 from collections.abc import Callable, Iterable, Sequence
 
 import numpy as np
+
+from infoscope.encode.cache import array_digest
 
 from infoscope.engine.counting import (
     KERNELS,
@@ -64,8 +65,7 @@ def _numba_threads(threads: int):
 def _content_key(codes: np.ndarray, k: int) -> tuple:
     # Keyed by content, not identity: a slider that returns to an earlier binning
     # finds that binning's tables still cached.
-    digest = hashlib.sha1(np.ascontiguousarray(codes).data, usedforsecurity=False).hexdigest()
-    return (int(k), codes.dtype.str, digest)
+    return (int(k), codes.dtype.str, array_digest(codes))  # XXH3: the one key function of the package
 
 
 class PairEngine:
@@ -94,7 +94,10 @@ class PairEngine:
         chunk (an exception it raises, e.g. KeyboardInterrupt, cancels the count and
         leaves the engine as it was).
     backend : {"auto", "numba", "numpy"}, default="auto"
-        Counting kernel (see :mod:`infoscope.engine.counting`).
+        Counting kernel (see :mod:`infoscope.engine.counting`). "auto" counts with
+        numba once its compiled kernels are loaded (the first count starts loading
+        them on a background thread: a first compile on a machine takes a few
+        seconds) and with numpy until then; the tables are the same.
     sample : int or None, default=None
         Count only a seeded random subset of this many rows (simple random sampling
         without replacement). :attr:`sampled` then says how many rows were used.
@@ -157,6 +160,8 @@ class PairEngine:
             raise ValueError(f"progress: expected 'auto', True, False or a callable, got {progress!r}")
         self._progress = progress
         self._backend = resolve_backend(backend)
+        # "auto": numba once its kernels are loaded, numpy (identical tables) until then
+        self._auto = backend == "auto" and self._backend == "numba"
         self._sample = _positive_int(sample, "sample")
         self._seed = seed
         self._columns: dict[str, object] = {}
@@ -187,7 +192,19 @@ class PairEngine:
 
     @property
     def backend(self) -> str:
-        """The counting kernel in use (``"numba"`` or ``"numpy"``)."""
+        """The counting kernel in use (``"numba"`` or ``"numpy"``).
+
+        With ``backend="auto"`` this is ``"numpy"`` until numba's kernels are loaded
+        (on a background thread, started by the first count) and ``"numba"`` after.
+        """
+        return self._kernel_backend(start=False)
+
+    def _kernel_backend(self, start: bool = True) -> str:
+        if self._auto:
+            from infoscope.engine.counting import numba_ready
+
+            if not (numba_ready() if start else _numba_loaded()):
+                return "numpy"
         return self._backend
 
     @property
@@ -485,9 +502,10 @@ class PairEngine:
             ys.append(cb[both])
             widths.append(max(kb, 1))
         threads = self._threads or available_threads()
-        scope = _numba_threads(threads) if self._backend == "numba" else contextlib.nullcontext()
+        backend = self._kernel_backend()
+        scope = _numba_threads(threads) if backend == "numba" else contextlib.nullcontext()
         with scope:
-            return shuffle_counts(xs, ys, widths, observed, budgets, stop_after, seeds, backend=self._backend)
+            return shuffle_counts(xs, ys, widths, observed, budgets, stop_after, seeds, backend=backend)
 
     def _check_name(self, name) -> None:
         if name not in self._columns:
@@ -519,16 +537,17 @@ class PairEngine:
         involved = list(dict.fromkeys(name for pair in pairs for name in pair))
         index = {name: i for i, name in enumerate(involved)}
         ks = [self._keys[name][1] for name in involved]
+        backend = self._kernel_backend()
         layout = pair_layout(ks, [(index[a], index[b]) for a, b in pairs], names=involved,
-                             triples=self._backend == "numba", rows=self.n or 0)
+                             triples=backend == "numba", rows=self.n or 0)
         dtype = block_dtype(ks)
         codes = [self._codes[name] for name in involved]
         rows = self.n or 0
-        kernel = KERNELS[self._backend]
+        kernel = KERNELS[backend]
         flat = np.zeros(layout.cells, dtype=np.int64)  # a temporary until every chunk is in
         report, bar = self._progress_reporter(rows, len(pairs))
         threads = self._threads or available_threads()
-        scope = _numba_threads(threads) if self._backend == "numba" else contextlib.nullcontext()
+        scope = _numba_threads(threads) if backend == "numba" else contextlib.nullcontext()
         step = self._chunk_rows
         # One buffer for every chunk; the shorter last chunk is a C-contiguous view of
         # its start, so no second buffer is allocated.
@@ -557,3 +576,9 @@ class PairEngine:
     def __repr__(self) -> str:
         sampled = f", sampled={self.sampled}" if self.sampled is not None else ""
         return f"PairEngine({len(self._columns)} columns, n={self.n}{sampled}, backend={self._backend!r})"
+
+
+def _numba_loaded() -> bool:
+    from infoscope.engine.counting import _NUMBA_STATE
+
+    return _NUMBA_STATE["ready"]
