@@ -474,6 +474,36 @@ class InfoProfileAccessor:
         view = {k: settings.pop(k) for k in list(settings) if k in _VIEW_SETTINGS}
         return to_html(self._session(settings), path, min_count=min_count, title=title, settings=view)
 
+    def pair_drift(self, reference, **settings) -> pd.DataFrame:
+        """Pairs whose dependence changed from a reference frame: see :meth:`ProfileSession.pair_drift`.
+
+        Parameters
+        ----------
+        reference : pandas.DataFrame or polars.DataFrame
+            The frame to compare with.
+        **settings
+            Settings of the session (``n_perm`` is passed to ``pair_drift``).
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per pair of comparable common columns.
+
+        References
+        ----------
+        .. [1] Cover, T. M., & Thomas, J. A. (2006). Elements of Information Theory, Wiley.
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> ref = pd.DataFrame({"x": list("ab") * 100, "y": list("ab") * 100})
+        >>> cur = pd.DataFrame({"x": list("ab") * 100, "y": list("ab") * 50 + list("ba") * 50})
+        >>> cur.info_profile.pair_drift(ref, n_boot=0)["flag"].tolist()
+        ['weaker']
+        """
+        options = {k: settings.pop(k) for k in ("n_perm",) if k in settings}
+        return self._session(settings).pair_drift(reference, **options)
+
     def __call__(self, **settings):
         """The live profile widget of this frame (needs the widget extra).
 

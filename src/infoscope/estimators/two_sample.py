@@ -391,8 +391,8 @@ def _mi_rows_nats(flat: np.ndarray, shape: tuple[int, int], estimator: str, alph
 
 
 def mi_change_test(reference, current, *, estimator: str = "miller_madow", alpha=None,
-                   n_perm: int = 999, n_boot: int = 200, level: float = 0.95, seed=0,
-                   refine: bool = True) -> MIChangeTest:
+                   n_perm: int = 499, n_boot: int = 200, level: float = 0.95, seed=0,
+                   refine_splits: int = 4500) -> MIChangeTest:
     r"""Did the dependence of a pair change?  MI in both samples, the change, its interval and chance level.
 
     Parameters
@@ -404,17 +404,17 @@ def mi_change_test(reference, current, *, estimator: str = "miller_madow", alpha
         (a name of ``infoscope.ENTROPY_ESTIMATORS``).
     alpha : float, str or None, default=None
         Pseudocount of the ``dirichlet`` estimator.
-    n_perm : int, default=999
-        Random splits of the pooled rows for the chance level and the p-value
-        (refined as in :func:`drift_permutation_test`).
+    n_perm : int, default=499
+        Random splits of the pooled rows for the chance level and the p-value.
     n_boot : int, default=200
         Bootstrap replicates of each sample for the interval (0: no interval).
     level : float, default=0.95
         Level of the interval.
     seed : int, numpy.random.Generator or None, default=0
         Seed of the splits and the replicates.
-    refine : bool, default=True
-        Add :data:`REFINE_SPLITS` splits when the first p-value is below :data:`REFINE_BELOW`.
+    refine_splits : int, default=4500
+        Splits added when the first p-value is below :data:`REFINE_BELOW` (0: none);
+        the smallest p-value is then ``1 / (n_perm + refine_splits + 1)``.
 
     Returns
     -------
@@ -476,8 +476,8 @@ def mi_change_test(reference, current, *, estimator: str = "miller_madow", alpha
     tol = _TIE * max(1.0, distance)
     exceed = int(np.count_nonzero(np.abs(null - centre) >= distance - tol))
     total = n_perm
-    if refine and (1 + exceed) / (total + 1) < REFINE_BELOW:
-        for size in _blocks(REFINE_SPLITS, pooled.size):
+    if refine_splits and (1 + exceed) / (total + 1) < REFINE_BELOW:
+        for size in _blocks(int(refine_splits), pooled.size):
             cur, ref = _split_tables(rng, pooled, m, size)
             more = _mi_rows_nats(cur, shape, estimator, a) - _mi_rows_nats(ref, shape, estimator, a)
             exceed += int(np.count_nonzero(np.abs(more - centre) >= distance - tol))

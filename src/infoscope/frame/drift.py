@@ -66,6 +66,7 @@ __all__ = [
     "TYPE_MATCH_SHARE",
     "SharedAlphabet",
     "align_to_reference",
+    "axis_flag",
     "NULL_METHODS",
     "check_reference_rows",
     "column_seed",
@@ -578,7 +579,7 @@ def _drift_row(al: SharedAlphabet, current, reference, *, pseudocount, ln_base, 
     row.update(psi=t.psi, psi_chance=t.psi_chance, psi_chance_high=t.psi_chance_high,
                kl=t.kl / ln_base, kl_chance=t.kl_chance / ln_base,
                js=t.js / ln_base, js_chance=t.js_chance / ln_base, p_value=t.p_value)
-    row["flag"] = _axis_flag(al, current, reference)
+    row["flag"] = axis_flag(al, current, reference)
     return row
 
 
@@ -621,7 +622,7 @@ def finish_drift_rows(rows: list[dict], *, level: float = TEST_LEVEL) -> None:
         rows[i]["flag"] = drift_verdict(rows[i]["psi"], rows[i]["psi_chance"], float(qv), level=level)
 
 
-def _axis_flag(al: SharedAlphabet, current: pd.Series, reference: pd.Series) -> str:
+def axis_flag(al: SharedAlphabet, current: pd.Series, reference: pd.Series) -> str:
     """``"id_like"`` or ``"time_axis"`` when a column drifts by construction, else ``""``.
 
     An identifier (the encoder's ``id_like`` flag on the reference) has new values
@@ -629,6 +630,30 @@ def _axis_flag(al: SharedAlphabet, current: pd.Series, reference: pd.Series) -> 
     values lie outside the reference's range (:data:`TIME_AXIS_SHARE`) is a time
     axis of another period.  Both show a large PSI that says nothing about a
     change of distribution; the numbers are kept, the flag says why.
+
+    Parameters
+    ----------
+    al : SharedAlphabet
+        The column on its shared alphabet.
+    current, reference : pandas.Series
+        The column's values in both frames.
+
+    Returns
+    -------
+    str
+        ``"id_like"``, ``"time_axis"`` or ``""``.
+
+    References
+    ----------
+    None.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> t = pd.Series(pd.date_range("2026-01-01", periods=100, freq="D"))
+    >>> al = align_to_reference(t + pd.Timedelta(days=200), t, "t", (16, "quantile", "drop", 64))
+    >>> axis_flag(al, t + pd.Timedelta(days=200), t)
+    'time_axis'
     """
     if "id_like" in al.reference_flags:
         return "id_like"

@@ -6,13 +6,14 @@ import pandas as pd
 
 from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.estimators._checks import unit_name
-from infoscope.frame.drift import drift_table
+from infoscope.frame.drift import align_to_reference, axis_flag, check_reference_rows, drift_table
 from infoscope.frame.keys import as_pandas, column_keys
+from infoscope.frame.pair_drift import PAIR_DRIFT_COLUMNS, pair_drift_table
 from infoscope.frame.results import DRIFT_COLUMNS, result_frame
 
 
 class DriftTable:
-    """Session part: :meth:`drift` (see :mod:`infoscope.frame.tables`)."""
+    """Session part: :meth:`drift`, :meth:`pair_drift`, :meth:`drift_over` (see :mod:`infoscope.frame.tables`)."""
 
     def _reference_columns(self, reference) -> tuple[list[str], dict]:
         """The common column keys and the reference's columns; warns about the others."""
@@ -118,3 +119,64 @@ class DriftTable:
             units={"psi": "nats", "psi_chance": "nats", "psi_chance_high": "nats",
                    "kl": unit, "kl_chance": unit, "js": unit, "js_chance": unit,
                    "new_share": "share of rows"}))
+
+    def pair_drift(self, reference, *, n_perm: int = 499) -> pd.DataFrame:
+        """Pairs of columns whose dependence changed from a reference frame to this one.
+
+        See :mod:`infoscope.frame.pair_drift` for the method: both frames on each
+        column's shared alphabet (as in :meth:`drift`), the joint tables of every
+        pair counted by the engine, the MI of each pair in both frames (the
+        session's estimator and unit), the change with a bootstrap interval
+        (``n_boot``, ``ci``) and the change sampling alone gives (random splits of
+        the pooled rows).
+
+        Parameters
+        ----------
+        reference : pandas.DataFrame or polars.DataFrame
+            The frame to compare with; at least 2 rows.
+        n_perm : int, default=499
+            Random splits of the pooled rows per pair (p-values below 0.05 get
+            4,500 more: the smallest p-value is 2e-4).
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per pair: ``a, b, k_a, k_b, n, n_reference, mi_reference, mi,
+            change, ci_low, ci_high, change_chance, chance_low, chance_high,
+            p_value, q_value, flag`` (``"stronger"`` / ``"weaker"`` at q < 0.05,
+            else ``"unchanged"``; legend ``infoscope.frame.pair_drift.PAIR_DRIFT_FLAGS``),
+            sorted by p-value, most changed first.  MI columns in the session's unit.
+
+        Raises
+        ------
+        ValueError
+            A reference that is too small, or fewer than two comparable columns.
+
+        References
+        ----------
+        .. [1] Cover, T. M., & Thomas, J. A. (2006). Elements of Information
+           Theory, 2nd ed. Wiley, ch. 2.
+
+        Examples
+        --------
+        >>> import numpy as np, pandas as pd
+        >>> from infoscope.frame.session import ProfileSession
+        >>> rng = np.random.default_rng(0)
+        >>> x = rng.integers(0, 2, 400)
+        >>> ref = pd.DataFrame({"x": x, "y": x})                          # y copies x
+        >>> cur = pd.DataFrame({"x": x[:300], "y": rng.integers(0, 2, 300)})  # y no longer does
+        >>> ProfileSession(cur, n_boot=50).pair_drift(ref).loc[0, "flag"]
+        'weaker'
+        """
+        common, ref_series = self._reference_columns(reference)
+        check_reference_rows({k: ref_series[k] for k in common})
+        s = self._settings
+        alphabets, flags = [], {}
+        for k in common:
+            al = align_to_reference(self._values(k), ref_series[k], k, self._encoding_settings(k, s))
+            alphabets.append(al)
+            flags[k] = axis_flag(al, self._values(k), ref_series[k]) if al.compared else "type_changed"
+        rows = pair_drift_table(alphabets, flags, estimator=s["estimator"], alpha=s["alpha"],
+                                base=s["base"], n_perm=n_perm, n_boot=s["n_boot"], ci=s["ci"],
+                                seed=s["seed"])
+        return result_frame(rows, PAIR_DRIFT_COLUMNS, **self._attrs(n_perm=n_perm))
