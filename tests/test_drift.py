@@ -379,3 +379,116 @@ def test_pair_drift_p_values_are_uniform_under_no_change():
     p = np.array(p)
     assert scipy.stats.kstest(p, "uniform").pvalue > 0.001
     assert np.mean(p <= 0.05) <= 0.05 + 3 * np.sqrt(0.05 * 0.95 / p.size)
+
+
+# ------------------------------------------------------------------ drift over time
+def _weekly_log(seed, weeks=8, per_week=400, shift_week=None):
+    rng = np.random.default_rng(seed)
+    start = pd.Timestamp("2026-01-05")  # a Monday: weeks "W-SUN" start on Mondays
+    frames = []
+    for w in range(weeks):
+        f = _mixed_frame(rng, per_week)
+        if w == shift_week:
+            f["amount"] = f["amount"] * 1.8
+        f.insert(0, "at", start + pd.Timedelta(days=7 * w) + pd.to_timedelta(rng.integers(0, 7 * 86400, per_week), "s"))
+        frames.append(f)
+    return pd.concat(frames, ignore_index=True)
+
+
+def test_drift_over_counts_every_period_in_one_pass_and_matches_drift_of_the_period():
+    # The numbers of one (period, column) equal those of drift() on that period's
+    # rows against the first period's rows (columns whose levels occur in every
+    # period, so both see the same alphabet); the row counts equal pandas groupby.
+    log = _weekly_log(31)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        over = ProfileSession(log).drift_over("at", every="1W")
+        week = log["at"].dt.to_period("W")
+        first, third = log[week == week.min()], log[week == week.min() + 2]
+        direct = ProfileSession(third.drop(columns="at")).drift(first.drop(columns="at")).set_index("column")
+    assert over["period"].nunique() == 7 and over["reference"].eq(str(week.min())).all()
+    got = over[over["period"] == str(week.min() + 2)].set_index("column")
+    for key in ("amount", "channel", "express"):  # ("items": a rare count missing in some week)
+        for number in ("n", "n_reference", "psi", "psi_chance", "kl", "js"):
+            # the splits of the two calls are seeded differently (the stream is keyed by
+            # column and period): the chance level agrees to Monte Carlo error, so do
+            # the p-values
+            rel = 0.15 if number == "psi_chance" else 1e-9  # 999 splits: 4.5 % sd at 1 dof
+            assert got.loc[key, number] == pytest.approx(direct.loc[key, number], rel=rel), (key, number)
+        assert got.loc[key, "p_value"] == pytest.approx(direct.loc[key, "p_value"], abs=0.05)
+    counts = log.groupby(week.astype(str))["amount"].size()
+    assert dict(zip(over.loc[over["column"] == "amount", "period"], over.loc[over["column"] == "amount", "n"])) \
+        == {p: int(c) for p, c in counts.items() if p != str(week.min())}
+
+
+def test_drift_over_flags_the_planted_week_only():
+    # week 5 of 8 has amounts x 1.8 (400 rows a week): "first" flags that week's
+    # amount; "previous" flags week 5 (the change) and week 6 (the return).  The
+    # q-values control false flags within a week, not across the 7 weeks x 5
+    # columns: one false flag elsewhere is allowed (none with seed 32 for "first";
+    # "previous" shows one, 'product' in the last week, p = 0.003)
+    log = _weekly_log(32, shift_week=5)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        first = ProfileSession(log).drift_over("at", every="1W")
+        prev = ProfileSession(log).drift_over("at", every="1W", reference="previous")
+    weeks = sorted(first["period"].unique())
+    hit = set(zip(*first.loc[first["flag"].isin(["moderate", "major"]), ["period", "column"]].T.values))
+    assert (weeks[4], "amount") in hit and len(hit) <= 2
+    hit = set(zip(*prev.loc[prev["flag"].isin(["moderate", "major"]), ["period", "column"]].T.values))
+    assert {(weeks[4], "amount"), (weeks[5], "amount")} <= hit and len(hit) <= 3
+    assert first.loc[(first["column"] == "amount") & (first["period"] != weeks[4]), "flag"].isin(
+        ["stable", "within_chance"]).all()
+    assert (prev.groupby("period")["reference"].first().tolist()[1:] == weeks[:-1])
+
+
+def test_drift_over_null_flag_rate():
+    # a stationary log: 3 seeded logs of 12 weeks x 300 rows, 5 columns, each week
+    # against the first (165 (period, column) tests); flags at q < 0.05 within a
+    # week: at most 5 % + 3 sd
+    flags = []
+    for seed in range(3):
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", DataQualityWarning)
+            flags += ProfileSession(_weekly_log(40 + seed, weeks=12, per_week=300)).drift_over(
+                "at", n_perm=199)["flag"].tolist()
+    rate = np.mean(np.isin(flags, ["moderate", "major"]))
+    assert rate <= 0.05 + 3 * np.sqrt(0.05 * 0.95 / len(flags))
+
+
+def test_drift_over_against_a_reference_frame_and_a_zoned_time_column():
+    log = _weekly_log(33, weeks=4)
+    log["at"] = log["at"].dt.tz_localize("Europe/Berlin")
+    ref = _mixed_frame(np.random.default_rng(99), 1500)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        d = ProfileSession(log).drift_over("at", every="2W", reference=ref)
+    assert d["period"].nunique() == 2 and (d["reference"] == "frame").all()
+    assert d["period"].iloc[0] == "2026-01-05/2026-01-18" and d["n"].max() == 800
+
+
+def test_drift_over_bad_input_is_one_clear_message():
+    log = _weekly_log(34, weeks=3).drop(columns="product")  # no folding warnings
+    kept = _unchanged(log)
+    with pytest.raises(TypeError, match=r"time column 'channel' is not a datetime column \(dtype "):
+        ProfileSession(log).drift_over("channel")
+    text_times = log.assign(at=log["at"].astype(str))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)  # the text times' own profile warnings
+        with pytest.raises(TypeError, match="convert it with pandas.to_datetime first"):
+            ProfileSession(text_times).drift_over("at")
+    with pytest.raises(ValueError, match="every='fortnight' is not a pandas period frequency"):
+        ProfileSession(log).drift_over("at", every="fortnight")
+    with pytest.raises(KeyError, match="time_column='nope' is not a column"):
+        ProfileSession(log).drift_over("nope")
+    with pytest.raises(ValueError, match="rows in only one period"):
+        ProfileSession(log).drift_over("at", every="1Y")
+    with pytest.raises(ValueError, match="reference='last' is not valid"):
+        ProfileSession(log).drift_over("at", reference="last")
+    # a week with no rows: a warning naming it, NaN rows with an empty flag
+    gap = log[log["at"].dt.to_period("W") != log["at"].dt.to_period("W").min() + 1]
+    with pytest.warns(DataQualityWarning, match=r"1 of 3 period\(s\) have no rows: 2026-01-12/2026-01-18"):
+        d = ProfileSession(gap).drift_over("at")
+    empty = d[d["period"] == "2026-01-12/2026-01-18"]
+    assert (empty["n"] == 0).all() and empty["psi"].isna().all() and (empty["flag"] == "").all()
+    _assert_unchanged(kept)

@@ -504,6 +504,39 @@ class InfoProfileAccessor:
         options = {k: settings.pop(k) for k in ("n_perm",) if k in settings}
         return self._session(settings).pair_drift(reference, **options)
 
+    def drift_over(self, time_column, *, every: str = "1W", reference="first", **settings) -> pd.DataFrame:
+        """Drift of every column period by period: see :meth:`ProfileSession.drift_over`.
+
+        Parameters
+        ----------
+        time_column : str
+            A datetime column.
+        every : str, default="1W"
+            A pandas period frequency ("1D", "1W", "1M", ...).
+        reference : {"first", "previous"} or DataFrame, default="first"
+            What each period is compared with.
+        **settings
+            Settings of the session (``pseudocount`` and ``n_perm`` are passed on).
+
+        Returns
+        -------
+        pandas.DataFrame
+            One row per (period, column).
+
+        References
+        ----------
+        .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (PSI).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> df = pd.DataFrame({"t": pd.date_range("2026-01-05", periods=28, freq="D"), "c": list("ab") * 14})
+        >>> df.info_profile.drift_over("t", every="1W")["flag"].tolist()
+        ['stable', 'stable', 'stable']
+        """
+        options = {k: settings.pop(k) for k in ("pseudocount", "n_perm") if k in settings}
+        return self._session(settings).drift_over(time_column, every=every, reference=reference, **options)
+
     def __call__(self, **settings):
         """The live profile widget of this frame (needs the widget extra).
 

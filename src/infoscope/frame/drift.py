@@ -70,6 +70,7 @@ __all__ = [
     "NULL_METHODS",
     "check_reference_rows",
     "column_seed",
+    "counts_row",
     "drift_table",
     "finish_drift_rows",
 ]
@@ -551,25 +552,54 @@ def drift_table(current: dict, reference: dict, *, encoding: dict, pseudocount: 
     return rows
 
 
-def _drift_row(al: SharedAlphabet, current, reference, *, pseudocount, ln_base, n_perm, seed,
-               null: str = "permutation", warn: bool = True) -> dict:
+def counts_row(al: SharedAlphabet, ref_counts, cur_counts, *, new_share: float, pseudocount: float,
+               ln_base: float, n_perm: int, seed, null: str = "permutation") -> dict:
+    """One drift row from the counts of both sides on a column's shared alphabet.
+
+    ``flag`` is left ``""`` for :func:`finish_drift_rows` (or ``"type_changed"``
+    when the column was not compared); the caller sets ``id_like`` / ``time_axis``.
+
+    Parameters
+    ----------
+    al : SharedAlphabet
+        The column (name, kind, labels, whether it was compared).
+    ref_counts, cur_counts : numpy.ndarray
+        Counts per symbol of the reference and of the current rows.
+    new_share : float
+        The ``new_share`` to report.
+    pseudocount, ln_base, n_perm, seed, null
+        As in :func:`drift_table` (``ln_base``: natural log of the unit's base).
+
+    Returns
+    -------
+    dict
+        The keys of ``DRIFT_COLUMNS``; numbers NaN when a side has no rows.
+
+    References
+    ----------
+    None (see :func:`drift_table`).
+
+    Examples
+    --------
+    >>> import numpy as np, pandas as pd
+    >>> al = align_to_reference(pd.Series(list("ab")), pd.Series(list("ab")), "c",
+    ...                         (16, "quantile", "drop", 64))
+    >>> counts_row(al, np.array([5, 5]), np.array([5, 5]), new_share=0.0, pseudocount=0.5,
+    ...            ln_base=1.0, n_perm=99, seed=0)["p_value"]
+    1.0
+    """
     from infoscope.estimators.two_sample import drift_chi2_test, drift_permutation_test
 
     row = {"column": al.name, "kind": al.kind, "k": al.k, "n": 0, "n_reference": 0,
            "psi": math.nan, "psi_chance": math.nan, "psi_chance_high": math.nan,
            "kl": math.nan, "kl_chance": math.nan, "js": math.nan, "js_chance": math.nan,
-           "p_value": math.nan, "q_value": math.nan, "new_share": al.new_share,
+           "p_value": math.nan, "q_value": math.nan, "new_share": new_share,
            "flag": "" if al.compared else "type_changed"}
     if not al.compared:
         return row
-    ref_counts, cur_counts = al.counts("reference"), al.counts("current")
-    n, n_ref = int(cur_counts.sum()), int(ref_counts.sum())
+    n, n_ref = int(np.sum(cur_counts)), int(np.sum(ref_counts))
     row.update(n=n, n_reference=n_ref)
     if n == 0 or n_ref == 0:
-        if warn:
-            side = "this frame" if n == 0 else "the reference"
-            warn_user(f"column {al.name!r} has no non-missing values in {side}: its drift is "
-                          "undefined (NaN)", DataQualityWarning)
         return row
     if null == "chi2":
         t = drift_chi2_test(ref_counts, cur_counts, pseudocount=pseudocount)
@@ -579,6 +609,21 @@ def _drift_row(al: SharedAlphabet, current, reference, *, pseudocount, ln_base, 
     row.update(psi=t.psi, psi_chance=t.psi_chance, psi_chance_high=t.psi_chance_high,
                kl=t.kl / ln_base, kl_chance=t.kl_chance / ln_base,
                js=t.js / ln_base, js_chance=t.js_chance / ln_base, p_value=t.p_value)
+    return row
+
+
+def _drift_row(al: SharedAlphabet, current, reference, *, pseudocount, ln_base, n_perm, seed,
+               null: str = "permutation") -> dict:
+    if not al.compared:
+        return counts_row(al, None, None, new_share=al.new_share, pseudocount=pseudocount,
+                          ln_base=ln_base, n_perm=n_perm, seed=seed, null=null)
+    row = counts_row(al, al.counts("reference"), al.counts("current"), new_share=al.new_share,
+                     pseudocount=pseudocount, ln_base=ln_base, n_perm=n_perm, seed=seed, null=null)
+    if row["n"] == 0 or row["n_reference"] == 0:
+        side = "this frame" if row["n"] == 0 else "the reference"
+        warn_user(f"column {al.name!r} has no non-missing values in {side}: its drift is "
+                  "undefined (NaN)", DataQualityWarning)
+        return row
     row["flag"] = axis_flag(al, current, reference)
     return row
 
