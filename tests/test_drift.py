@@ -492,3 +492,39 @@ def test_drift_over_bad_input_is_one_clear_message():
     empty = d[d["period"] == "2026-01-12/2026-01-18"]
     assert (empty["n"] == 0).all() and empty["psi"].isna().all() and (empty["flag"] == "").all()
     _assert_unchanged(kept)
+
+
+# ------------------------------------------------------------------ documentation
+DRIFT_MODULES = ["infoscope.estimators.two_sample", "infoscope.frame.drift", "infoscope.frame.pair_drift",
+                 "infoscope.frame.drift_over", "infoscope.frame.drift_report", "infoscope.frame.tables.drift",
+                 "infoscope.report.drift_page", "infoscope.cli_drift"]
+
+
+@pytest.mark.parametrize("module_name", DRIFT_MODULES)
+def test_drift_modules_have_numpydoc_sections_and_running_examples(module_name):
+    import doctest
+    import importlib
+    import inspect
+
+    module = importlib.import_module(module_name)
+    names = getattr(module, "__all__", None) or [n for n, v in vars(module).items()
+                                                 if inspect.isclass(v) and v.__module__ == module_name]
+    for name in names:
+        obj = getattr(module, name)
+        members = [obj] + ([m for n, m in vars(obj).items() if not n.startswith("_") and inspect.isfunction(m)]
+                           if inspect.isclass(obj) else [])
+        for member in members:
+            if not callable(member):
+                continue
+            doc = inspect.getdoc(member) or ""
+            if inspect.isclass(member):
+                sections = ("Attributes",) if "Attributes\n---" in doc else ("References", "Examples")
+            else:
+                params = [p for p in inspect.signature(member).parameters if p != "self"]
+                sections = ("Parameters",) * bool(params) + ("Returns", "References", "Examples")
+            for section in sections:
+                assert f"\n{section}\n---" in doc, f"{module_name}.{name}: {member.__name__} lacks {section}"
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        result = doctest.testmod(module, optionflags=doctest.ELLIPSIS | doctest.NORMALIZE_WHITESPACE)
+    assert result.attempted > 0 and result.failed == 0

@@ -537,6 +537,39 @@ class InfoProfileAccessor:
         options = {k: settings.pop(k) for k in ("pseudocount", "n_perm") if k in settings}
         return self._session(settings).drift_over(time_column, every=every, reference=reference, **options)
 
+    def drift_report(self, reference, *, pairs: bool = False, **settings):
+        """The drift check as one record with ``to_dict()`` / ``to_json()``: see :meth:`ProfileSession.drift_report`.
+
+        Parameters
+        ----------
+        reference : pandas.DataFrame or polars.DataFrame
+            The frame to compare with.
+        pairs : bool, default=False
+            Include the relationship drift of every pair.
+        **settings
+            Settings of the session (``pseudocount``, ``n_perm``, ``null``,
+            ``reference_name`` and ``current_name`` are passed on).
+
+        Returns
+        -------
+        infoscope.frame.drift_report.DriftReport
+            The same record ``infoscope drift REFERENCE CURRENT --json`` writes.
+
+        References
+        ----------
+        .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (PSI).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> ref = pd.DataFrame({"c": list("ab") * 100})
+        >>> pd.DataFrame({"c": list("ab") * 60}).info_profile.drift_report(ref).worst
+        'stable'
+        """
+        names = ("pseudocount", "n_perm", "null", "reference_name", "current_name")
+        options = {k: settings.pop(k) for k in names if k in settings}
+        return self._session(settings).drift_report(reference, pairs=pairs, **options)
+
     def __call__(self, **settings):
         """The live profile widget of this frame (needs the widget extra).
 

@@ -579,6 +579,9 @@ def build_parser() -> argparse.ArgumentParser:
     subparsers = parser.add_subparsers(dest="command", metavar="COMMAND")
     add_demo_parser(subparsers)
     add_profile_parser(subparsers)
+    from infoscope.cli_drift import add_drift_parser
+
+    add_drift_parser(subparsers)
     return parser
 
 

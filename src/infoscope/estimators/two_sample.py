@@ -55,7 +55,21 @@ _BLOCK_CELLS = 4_000_000
 
 
 class DriftTest(NamedTuple):
-    """Observed divergences of one column, their chance level and the permutation p-value (nats)."""
+    """Observed divergences of one column, their chance level and the permutation p-value (nats).
+
+    Attributes
+    ----------
+    psi, kl, js : float
+        Observed PSI, KL(current || reference) and JS divergence.
+    psi_chance, kl_chance, js_chance : float
+        Their means over the splits: what sampling alone gives at these sizes.
+    psi_chance_high : float
+        The 95 % point of PSI over the splits (the top of the chance band).
+    p_value : float
+        Share of splits with PSI at least the observed one, counted with it.
+    n_perm : int
+        Splits the p-value rests on (0 for the chi-square form).
+    """
 
     psi: float
     kl: float
@@ -363,7 +377,23 @@ def drift_chi2_test(reference, current, *, pseudocount: float = 0.5) -> DriftTes
 
 
 class MIChangeTest(NamedTuple):
-    """How the mutual information of one pair changed between two samples (nats)."""
+    """How the mutual information of one pair changed between two samples (nats).
+
+    Attributes
+    ----------
+    mi_reference, mi : float
+        MI of the pair in the reference and in the current sample.
+    change : float
+        ``mi - mi_reference``.
+    ci_low, ci_high : float
+        Bootstrap interval of the change.
+    change_chance, chance_low, chance_high : float
+        Mean and 2.5 % / 97.5 % points of the change over random splits of the pooled rows.
+    p_value : float
+        Two-sided permutation p-value.
+    n_perm : int
+        Splits the p-value rests on.
+    """
 
     mi_reference: float
     mi: float

@@ -487,7 +487,7 @@ def column_seed(seed, key: str):
 
 def drift_table(current: dict, reference: dict, *, encoding: dict, pseudocount: float = 0.5,
                 base=2, n_perm: int = 999, seed=0, level: float = TEST_LEVEL,
-                null: str = "permutation") -> list[dict]:
+                null: str = "permutation", alphabets_out: dict | None = None) -> list[dict]:
     """Rows of the drift table (see :meth:`ProfileSession.drift`).
 
     Parameters
@@ -509,6 +509,8 @@ def drift_table(current: dict, reference: dict, *, encoding: dict, pseudocount: 
         The q-value below which a change counts as significant in the flag.
     null : {"permutation", "chi2"}, default="permutation"
         How the chance level and the p-value are computed (:data:`NULL_METHODS`).
+    alphabets_out : dict, optional
+        When given, receives the :class:`SharedAlphabet` of every column by key.
 
     Returns
     -------
@@ -546,6 +548,8 @@ def drift_table(current: dict, reference: dict, *, encoding: dict, pseudocount: 
     rows = []
     for key, values in current.items():
         al = align_to_reference(values, reference[key], key, encoding[key])
+        if alphabets_out is not None:
+            alphabets_out[key] = al
         rows.append(_drift_row(al, values, reference[key], pseudocount=pseudocount, ln_base=ln_base,
                                n_perm=n_perm, seed=column_seed(seed, key), null=null))
     finish_drift_rows(rows, level=level)

@@ -14,10 +14,28 @@ from infoscope.frame.results import DRIFT_COLUMNS, result_frame
 
 
 class DriftTable:
-    """Session part: :meth:`drift`, :meth:`pair_drift`, :meth:`drift_over` (see :mod:`infoscope.frame.tables`)."""
+    """Session part: :meth:`drift`, :meth:`pair_drift`, :meth:`drift_over`, :meth:`drift_report`.
 
-    def _reference_columns(self, reference) -> tuple[list[str], dict]:
-        """The common column keys and the reference's columns; warns about the others."""
+    A mixin of :class:`~infoscope.frame.session.ProfileSession` (see
+    :mod:`infoscope.frame.tables`); the methods live in :mod:`infoscope.frame.drift`,
+    :mod:`infoscope.frame.pair_drift` and :mod:`infoscope.frame.drift_over`.
+
+    References
+    ----------
+    .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (PSI).
+
+    Examples
+    --------
+    >>> from infoscope.frame.session import ProfileSession
+    >>> issubclass(ProfileSession, DriftTable)
+    True
+    """
+
+    def _reference_columns(self, reference, *, sides: list | None = None) -> tuple[list[str], dict]:
+        """The common column keys and the reference's columns; warns about the others.
+
+        ``sides``, when given, receives ``[only in this frame, only in the reference]``.
+        """
         ref = as_pandas(reference, "reference")
         if ref.shape[1] == 0 or ref.shape[0] == 0:
             raise ValueError("reference has no rows or no columns: there is nothing to compare with")
@@ -26,6 +44,8 @@ class DriftTable:
         only_here = [k for k in self._names if k not in ref_series]
         only_there = [k for k in ref_keys if k not in self._series]
         common = [k for k in self._names if k in ref_series]
+        if sides is not None:
+            sides[:] = [only_here, only_there]
         if not common:
             raise ValueError("the frame and the reference have no column in common: nothing to compare")
         if only_here or only_there:
@@ -39,7 +59,8 @@ class DriftTable:
         return common, ref_series
 
     def drift(self, reference, *, pseudocount: float = 0.5, n_perm: int = 999,
-              null: str = "permutation") -> pd.DataFrame:
+              null: str = "permutation", _alphabets: dict | None = None,
+              _sides: list | None = None) -> pd.DataFrame:
         """Per-column divergence of this frame from a reference frame, against chance.
 
         See :mod:`infoscope.frame.drift` for the method; this session's encoding
@@ -107,12 +128,13 @@ class DriftTable:
         >>> d.set_index("column").loc["booking_channel", "flag"]
         'moderate'
         """
-        common, ref_series = self._reference_columns(reference)
+        common, ref_series = self._reference_columns(reference, sides=_sides)
         s = self._settings
         rows = drift_table(
             {k: self._values(k) for k in common}, {k: ref_series[k] for k in common},
             encoding={k: self._encoding_settings(k, s) for k in common},
             pseudocount=pseudocount, base=s["base"], n_perm=n_perm, seed=s["seed"], null=null,
+            alphabets_out=_alphabets,
         )
         unit = unit_name(s["base"])
         return result_frame(rows, DRIFT_COLUMNS, **self._attrs(
@@ -277,3 +299,72 @@ class DriftTable:
             units={"psi": "nats", "psi_chance": "nats", "psi_chance_high": "nats",
                    "kl": unit, "kl_chance": unit, "js": unit, "js_chance": unit,
                    "new_share": "share of rows"}))
+
+    def drift_report(self, reference, *, pairs: bool = False, pseudocount: float = 0.5,
+                     n_perm: int = 999, null: str = "permutation", reference_name: str = "reference",
+                     current_name: str = "current"):
+        """The drift check as one record: tables, per-bin detail, JSON (what ``infoscope drift`` writes).
+
+        Parameters
+        ----------
+        reference : pandas.DataFrame or polars.DataFrame
+            The frame to compare with.
+        pairs : bool, default=False
+            Also run :meth:`pair_drift` (slower: every pair of columns).
+        pseudocount, n_perm, null
+            As in :meth:`drift`.
+        reference_name, current_name : str
+            What the two frames are (shown in the record, e.g. file names).
+
+        Returns
+        -------
+        infoscope.frame.drift_report.DriftReport
+            ``.columns`` (the drift table), ``.pairs``, ``.bins``,
+            ``.missing_columns`` / ``.extra_columns``, ``.notes`` (the warnings,
+            which are also issued), ``.reaching(level)``, ``.worst``,
+            ``.to_dict()`` / ``.to_json()``.
+
+        References
+        ----------
+        .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (PSI).
+
+        Examples
+        --------
+        >>> import pandas as pd
+        >>> from infoscope.frame.session import ProfileSession
+        >>> ref = pd.DataFrame({"c": list("ab") * 100})
+        >>> r = ProfileSession(pd.DataFrame({"c": list("a" * 160 + "b" * 40)})).drift_report(ref)
+        >>> r.worst, r.reaching("moderate"), r.to_dict()["version"]
+        ('major', ['c'], 1)
+        """
+        from infoscope.frame.drift_report import DriftReport, bin_rows
+        from infoscope.frame.keys import as_pandas
+
+        alphabets: dict = {}
+        sides: list = [[], []]
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always", DataQualityWarning)
+            table = self.drift(reference, pseudocount=pseudocount, n_perm=n_perm, null=null,
+                               _alphabets=alphabets, _sides=sides)
+            pair_table = self.pair_drift(reference) if pairs else None
+        notes = []
+        for w in caught:  # given back to the caller as they came, and kept in the record
+            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+            if issubclass(w.category, DataQualityWarning) and str(w.message) not in notes:
+                notes.append(str(w.message))
+        bins = {key: bin_rows(al.labels, al.counts("reference"), al.counts("current"),
+                              pseudocount=pseudocount)
+                for key, al in alphabets.items() if al.compared}
+        s = self._settings
+        settings = {k: s[k] for k in ("bins", "strategy", "missing", "max_categories", "base", "seed",
+                                      "estimator")}
+        settings.update(pseudocount=pseudocount, n_perm=n_perm, null=null, level=0.05,
+                        sample=s["sample"])
+        ref = as_pandas(reference, "reference")
+        return DriftReport(
+            columns=table, pairs=pair_table, bins=bins, missing_columns=list(sides[1]),
+            extra_columns=list(sides[0]), notes=notes, settings=settings,
+            reference_rows=len(ref), current_rows=self._n_rows,
+            reference_name=reference_name, current_name=current_name,
+            units=dict(table.attrs.get("units", {})),
+        )
