@@ -100,3 +100,16 @@ def test_bad_options_are_one_line(files, capsys):
     assert "--n-perm must be >= 1" in err and "the folder does not exist" in err
     with pytest.raises(SystemExit):
         main(["drift", ref, new, "--fail-on", "minor"])
+
+
+def test_the_command_reads_files_with_the_shared_reader(tmp_path, capsys):
+    # semicolon-separated files: sniffed, or told with --sep (infoscope.reading.read_table)
+    rng = np.random.default_rng(3)
+    for name, n in (("r.csv", 400), ("c.csv", 300)):
+        pd.DataFrame({"a": rng.normal(size=n).round(3), "b": rng.choice(list("xyz"), size=n)}).to_csv(
+            tmp_path / name, sep=";", index=False)
+    args = ["drift", str(tmp_path / "r.csv"), str(tmp_path / "c.csv"), "--fail-on", "moderate"]
+    assert main(args) == 0
+    assert main(args + ["--sep", ";"]) == 0
+    out = capsys.readouterr().out
+    assert "2 common column(s)" in out

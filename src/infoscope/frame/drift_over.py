@@ -32,7 +32,7 @@ import warnings
 import numpy as np
 import pandas as pd
 
-from infoscope._warnings import DataQualityWarning
+from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.frame.results import DRIFT_COLUMNS, TEST_LEVEL
 
 __all__ = ["DRIFT_OVER_COLUMNS", "REFERENCE_MODES", "assign_periods", "drift_over_table"]
@@ -198,10 +198,9 @@ def drift_over_table(frame_columns: dict, time_codes: np.ndarray, labels: list, 
 
     empty = [labels[p] for p in range(n_periods) if rows_per_period[p] == 0]
     if empty:
-        warnings.warn(f"{len(empty)} of {n_periods} period(s) have no rows: "
+        warn_user(f"{len(empty)} of {n_periods} period(s) have no rows: "
                       + ", ".join(empty[:6]) + (", ..." if len(empty) > 6 else "")
-                      + " (their rows in the table are NaN with an empty flag)",
-                      DataQualityWarning, stacklevel=3)
+                      + " (their rows in the table are NaN with an empty flag)", DataQualityWarning)
     out = []
     previous = first
     for p in range(n_periods):

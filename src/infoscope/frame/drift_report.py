@@ -188,7 +188,7 @@ class DriftReport:
         >>> d = r.to_dict(); d["schema"], d["version"], d["summary"]["worst"]
         ('infoscope-drift', 1, 'stable')
         """
-        from infoscope import __version__
+        from infoscope._version import __version__
 
         columns = _records(self.columns) or []
         for row in columns:

@@ -22,11 +22,10 @@ drift.  Dependence is not cause.
 from __future__ import annotations
 
 import math
-import warnings
 
 import numpy as np
 
-from infoscope._warnings import DataQualityWarning
+from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.frame.results import TEST_LEVEL
 
 __all__ = ["PAIR_DRIFT_COLUMNS", "PAIR_DRIFT_FLAGS", "pair_drift_table"]
@@ -116,9 +115,8 @@ def pair_drift_table(alphabets: list, flags: dict, *, estimator: str = "miller_m
     used = [al for al in alphabets if al.compared and flags.get(al.name, "") not in skip and al.k >= 2]
     left_out = [al.name for al in alphabets if al not in used]
     if left_out and len(used) >= 2:
-        warnings.warn("pair drift leaves out " + ", ".join(map(repr, left_out)) +
-                      " (identifiers, time axes, columns not compared or with one symbol)",
-                      DataQualityWarning, stacklevel=3)
+        warn_user("pair drift leaves out " + ", ".join(map(repr, left_out)) +
+                      " (identifiers, time axes, columns not compared or with one symbol)", DataQualityWarning)
     if len(used) < 2:
         raise ValueError("pair drift needs at least two common columns that can be compared "
                          f"(usable: {[al.name for al in used]!r}; left out: {left_out!r})")

@@ -1,6 +1,7 @@
 """The session side of drift: ``ProfileSession.drift()`` (the method is :mod:`infoscope.frame.drift`)."""
 from __future__ import annotations
 
+import warnings
 
 import numpy as np
 import pandas as pd
@@ -268,8 +269,8 @@ class DriftTable:
         codes, labels, starts = assign_periods(times, every, key)
         valid = codes >= 0
         if not valid.all():
-            warnings.warn(f"time column {key!r}: {int((~valid).sum())} row(s) without a time are left "
-                          "out of drift_over", DataQualityWarning, stacklevel=2)
+            warn_user(f"time column {key!r}: {int((~valid).sum())} row(s) without a time are left "
+                          "out of drift_over", DataQualityWarning)
         if np.count_nonzero(np.bincount(codes[valid], minlength=len(labels))) < 2 and \
                 isinstance(reference, str):
             raise ValueError(f"time column {key!r} has rows in only one period of every={every!r}: "
