@@ -10,6 +10,7 @@ from __future__ import annotations
 import copy
 import importlib
 import warnings
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
@@ -249,3 +250,21 @@ def test_complex_numbers_are_labels_and_say_so():
         row = df.info_profile.entropy(estimator="plugin", n_boot=0).iloc[0]
     # counts 20, 10, 10: scipy.stats.entropy([20, 10, 10], base=2) = 1.5 bits
     assert row["k"] == 3 and row["entropy"] == pytest.approx(scipy.stats.entropy([20, 10, 10], base=2))
+
+
+def test_export_and_widget_take_the_converted_columns(tmp_path):
+    import datetime
+
+    from infoscope.frame.session import ProfileSession
+    from infoscope.report.html import to_html
+
+    df = pd.DataFrame({"x": [BIG + i for i in range(100)], "p": pd.period_range("2020-01", periods=100, freq="D"),
+                       "iv": pd.interval_range(0, 100, periods=100),
+                       "t": [datetime.time(i % 24, i % 60) for i in range(100)], "y": np.arange(100) % 3})
+    session = quiet(ProfileSession, df, target="y", n_boot=0, bins=4)
+    page = Path(quiet(to_html, session, tmp_path / "p.html")).read_text()
+    assert f"[{BIG}, {BIG + 25})" in page  # the exact integer edges reach the page
+    widget = quiet(df.info_profile, n_boot=0, bins=4)
+    assert widget.wait(timeout=60)
+    assert widget._status["state"] == "idle", widget._status
+    widget.close()
