@@ -268,3 +268,16 @@ def test_export_and_widget_take_the_converted_columns(tmp_path):
     assert widget.wait(timeout=60)
     assert widget._status["state"] == "idle", widget._status
     widget.close()
+
+
+def test_decimals_that_float64_cannot_tell_apart_are_said():
+    from decimal import Decimal
+
+    cells = [Decimal("0.1"), Decimal("0.10000000000000000001"), Decimal("2.5")] * 10
+    with pytest.warns(infoscope.DataQualityWarning, match=r"column 'd': 1 Decimal value\(s\) differ"):
+        col = infoscope.encode_column(pd.Series(cells, dtype=object), name="d")
+    assert col.k == 2
+    plain = [Decimal("0.1"), Decimal("2.5")] * 10
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        assert infoscope.encode_column(pd.Series(plain, dtype=object), name="d").k == 2

@@ -98,6 +98,12 @@ def _objects(series: pd.Series, notes: _Notes, bins, strategy, threshold):
         exact = not (inferred == "integer" and num.dtype.kind == "f")  # ints beyond 64 bits
         if num.dtype != object and exact and int(num.isna().sum()) == int(series.isna().sum()):
             arr = num.to_numpy()
+            if inferred == "decimal":
+                # Decimals are read as float64: say when that merges values that differ
+                merged = int(series.nunique(dropna=True)) - int(num.nunique(dropna=True))
+                if merged > 0:
+                    notes.warn(f"{merged} Decimal value(s) differ from another only beyond float64 precision "
+                               "(about 15 significant digits) and are counted together")
             return _numeric(arr, None, notes, bins, strategy, threshold)
     if inferred == "time":  # datetime.time cells (a Polars Time column): time since midnight
         from infoscope.encode.ordered import _time_of_day
