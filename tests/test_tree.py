@@ -182,3 +182,27 @@ def test_docstring_examples_run():
 
     result = doctest.testmod(tree, optionflags=doctest.NORMALIZE_WHITESPACE)
     assert result.attempted > 0 and result.failed == 0
+
+
+@pytest.mark.filterwarnings(FOLDED)
+def test_payload_carries_both_views_and_hides_values_under_min_count():
+    import json
+
+    from infoscope.views.payload import payload
+
+    df = make_deliveries(6_000, seed=2)
+    s = ProfileSession(df, target="late", n_boot=0)
+    p = payload(s, min_count=10)
+    surprising = json.loads(p["state"]["_surprising"])
+    assert surprising["hidden_values"] is True and surprising["rows"]
+    for cells in surprising["cells"]:
+        for cell in cells:
+            assert cell["value"] is None and cell["symbol"] is None and cell["parent_value"] is None
+            assert cell["bits"] > 0
+    assert {tuple(e[:2]) for e in surprising["tree"]["edges"]} == {
+        tuple(e) for e in tree_table(s)[["parent", "child"]].values.tolist()}
+    selection = json.loads(p["state"]["_selection"])
+    assert selection["target"] == "late" and selection["rows"][0][selection["fields"].index("status")] == "selected"
+    assert any(r[selection["fields"].index("status")] == "leakage" for r in selection["rows"])
+    shown = json.loads(payload(s)["state"]["_surprising"])
+    assert shown["hidden_values"] is False and any(c["value"] is not None for c in shown["cells"][0])

@@ -22,7 +22,7 @@ import pandas as pd
 from infoscope.frame.suppression import check_min_count
 from infoscope.report._style import DEPENDENCE_CAUTION, PALETTE
 from infoscope.views import serialize as ser
-from infoscope.views.payload import payload
+from infoscope.views.payload import CORE_PARTS, payload
 
 __all__ = ["profile_svg", "profile_svg_from_payload", "profile_svg_from_tables", "svg_data_uri", "svg_text"]
 
@@ -289,7 +289,7 @@ def profile_svg(session, *, max_columns: int = 40, min_count=None) -> str:
     """
     session = getattr(session, "session", session)
     check_min_count(min_count)
-    return profile_svg_from_payload(payload(session, top_pairs=0), max_columns=max_columns)
+    return profile_svg_from_payload(payload(session, top_pairs=0, parts=CORE_PARTS), max_columns=max_columns)
 
 
 def _buffer(value, dtype) -> np.ndarray:

@@ -13,7 +13,8 @@ Payload format ``"infoscope-profile/1"``::
 
     {"format": "infoscope-profile/1", "view": "profile" | "entropy" | "grid" | "pair" | "relevance",
      "state": {<control values>, "_entropy", "_grid_meta", "_grid_values", "_grid_n",
-               "_grid_q", "_grid_reliability", "_pair", "_relevance", "_meta", "_status", "_view"},
+               "_grid_q", "_grid_reliability", "_pair", "_relevance", "_selection", "_surprising",
+               "_meta", "_status", "_view"},
      "binary": ["_grid_values", "_grid_n", "_grid_q", "_grid_reliability"],  # base64 text in "state"
      "pair_cache": {a + "\\u0000" + b: <pair view>, ...}}
 
@@ -32,27 +33,33 @@ from infoscope.frame.suppression import check_min_count
 from infoscope.views import serialize as ser
 from infoscope.views.choices import check_view_settings, meta, view_settings_from_session
 
-__all__ = ["FORMAT", "PARTS", "SETTINGS_TRAITS", "VIEW_TRAITS", "DATA_TRAITS", "TOP_PAIRS",
+__all__ = ["CORE_PARTS", "FORMAT", "PARTS", "SETTINGS_TRAITS", "VIEW_TRAITS", "DATA_TRAITS", "TOP_PAIRS",
            "payload", "view_data", "top_pairs"]
 
 FORMAT = "infoscope-profile/1"
 #: The data parts a view can ask for.
-PARTS = ("entropy", "grid", "pair", "relevance")
+PARTS = ("entropy", "grid", "pair", "relevance", "selection", "surprising")
+#: The parts every profile layout draws (the static picture needs no more).
+CORE_PARTS = ("entropy", "grid", "pair", "relevance")
 #: Control values that change numbers (they map to session settings or to a part's shape).
 SETTINGS_TRAITS = ("bins", "strategy", "estimator", "alpha", "measure", "unit", "target", "missing",
-                   "column_bins", "order", "min_count")
+                   "column_bins", "order", "min_count", "selection_method", "selection_k", "surprise_model",
+                   "surprise_n")
 #: Control values that change only what is drawn.
 VIEW_TRAITS = ("selected_column", "selected_pair", "alpha_fdr", "sort_by")
 #: The data parts as trait names (kernel -> view).
 DATA_TRAITS = ("_view", "_entropy", "_grid_meta", "_grid_values", "_grid_n", "_grid_q",
-               "_grid_reliability", "_pair", "_relevance", "_meta", "_status")
+               "_grid_reliability", "_pair", "_relevance", "_selection", "_surprising", "_meta", "_status")
 #: Pair views precomputed into a payload for a page without a kernel.
 TOP_PAIRS = 12
 #: Control values a view starts from where the session has no setting for them.
 VIEW_DEFAULTS = {"bins": 16, "strategy": "quantile", "estimator": "miller_madow", "alpha": 0.5,
                  "measure": "mi", "unit": "bits", "target": None, "missing": "drop",
                  "column_bins": {}, "order": "cluster", "min_count": 0, "selected_column": None,
-                 "selected_pair": None, "alpha_fdr": 0.05, "sort_by": "entropy"}
+                 "selected_pair": None, "alpha_fdr": 0.05, "sort_by": "entropy",
+                 "selection_method": "mrmr", "selection_k": None, "surprise_model": "tree", "surprise_n": 20}
+#: Shuffles per step of the selection a view computes (the table's default is 199).
+SELECTION_PERMUTATIONS = 99
 
 
 def _no_step(progress: float, message: str) -> None:
@@ -95,7 +102,8 @@ def top_pairs(pairs: pd.DataFrame, alpha: float, k: int = TOP_PAIRS) -> list[tup
 
 def view_data(session, parts, *, order: str = "cluster", alpha_fdr: float = 0.05,
               selected_pair=None, min_count=None, generation: int = 0,
-              step: Callable[[float, str], None] | None = None) -> tuple[dict, dict]:
+              step: Callable[[float, str], None] | None = None, selection_method: str = "mrmr",
+              selection_k=None, surprise_model: str = "tree", surprise_n: int = 20) -> tuple[dict, dict]:
     """The data parts of a view, from the session as it stands.
 
     Parameters
@@ -119,6 +127,12 @@ def view_data(session, parts, *, order: str = "cluster", alpha_fdr: float = 0.05
     step : callable, optional
         ``step(progress, message)`` before each stage (the widget reports progress
         and cancels through it).
+    selection_method, selection_k : str, int or None
+        Method and number of steps of the ``selection`` part (``select()``; needs a
+        target).
+    surprise_model, surprise_n : str, int
+        Model and number of rows of the ``surprising`` part (``surprising_rows()``,
+        with the values hidden when ``min_count`` is set, and ``tree()``).
 
     Returns
     -------
@@ -171,6 +185,25 @@ def view_data(session, parts, *, order: str = "cluster", alpha_fdr: float = 0.05
         table = session.relevance(target=target) if target is not None else None
         tables["relevance"] = table
         out["_relevance"] = ser.relevance_json(table, target, generation=generation)
+    if "selection" in parts:
+        from infoscope.frame.selection import select_table
+
+        step(0.8, "Choosing columns for the target...")
+        target = settings.get("target")
+        table = None
+        if target is not None:
+            table = select_table(session, target, k=selection_k, method=selection_method,
+                                 n_permutations=SELECTION_PERMUTATIONS, fdr=alpha_fdr)
+        tables["selection"] = table
+        out["_selection"] = ser.selection_json(table, target, generation=generation)
+    if "surprising" in parts:
+        from infoscope.frame.tree import surprising_rows_table, tree_table
+
+        step(0.85, "Scoring the rows...")
+        tables["tree"] = tree_table(session)
+        tables["surprising"] = surprising_rows_table(session, int(surprise_n), model=surprise_model,
+                                                     min_count=min_count or None)
+        out["_surprising"] = ser.surprising_json(tables["surprising"], tables["tree"], generation=generation)
     if "pair" in parts:
         pair = list(selected_pair) if selected_pair else None
         if pair is None and out.get("_top_pairs"):
@@ -195,7 +228,8 @@ def _pair_view(session, a: str, b: str, unit: str, min_count, generation: int) -
 
 
 def payload(session, settings: Mapping | None = None, *, min_count=None, top_pairs: int = TOP_PAIRS,
-            view: str = "profile", generation: int = 0, status: Mapping | None = None) -> dict:
+            view: str = "profile", generation: int = 0, status: Mapping | None = None,
+            parts=PARTS) -> dict:
     """Every view's data of a profile as one JSON-able dict (see the module docstring).
 
     Parameters
@@ -220,6 +254,9 @@ def payload(session, settings: Mapping | None = None, *, min_count=None, top_pai
         Stamped on every part.
     status : mapping, optional
         The ``_status`` part (default: idle, no notes).
+    parts : iterable of str, default=PARTS
+        The data parts to build (the static picture needs only :data:`CORE_PARTS`;
+        ``selection`` runs permutation tests and costs seconds on a large frame).
 
     Returns
     -------
@@ -259,9 +296,11 @@ def payload(session, settings: Mapping | None = None, *, min_count=None, top_pai
     state["min_count"] = threshold
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")  # a sparse pair still exports; its note is in the status
-        data, _ = view_data(session, PARTS, order=state["order"], alpha_fdr=float(state["alpha_fdr"]),
+        data, _ = view_data(session, parts, order=state["order"], alpha_fdr=float(state["alpha_fdr"]),
                             selected_pair=state["selected_pair"], min_count=threshold or None,
-                            generation=generation)
+                            generation=generation, selection_method=state["selection_method"],
+                            selection_k=state["selection_k"], surprise_model=state["surprise_model"],
+                            surprise_n=state["surprise_n"])
         ranked = data.pop("_top_pairs", [])
         if "selected_pair" in data:
             state["selected_pair"] = data.pop("selected_pair")

@@ -346,3 +346,69 @@ def drift_records(table: pd.DataFrame) -> list[dict]:
         rec["column"] = str(row.column)
         out.append(rec)
     return out
+
+
+# ------------------------------------------------------------------ selection and surprising rows
+#: Fields of the ``_selection`` rows (the ``select()`` table's columns).
+SELECTION_FIELDS = ("step", "column", "relevance", "criterion", "gain", "gain_supported", "redundancy",
+                    "p_value", "q_value", "significant", "status", "note")
+#: Fields of the ``_surprising`` rows (``cells`` travel beside them, one list per row).
+SURPRISING_FIELDS = ("rank", "row", "position", "surprisal", "excess", "summary")
+#: Keys of one contributing cell of a surprising row.
+SURPRISING_CELL_KEYS = ("column", "value", "symbol", "bits", "parent", "parent_value", "parent_symbol")
+
+
+def selection_json(table: pd.DataFrame | None, target: str | None, *, generation: int = 0) -> str:
+    """The ``select()`` table as compact JSON rows; ``{"target": null, ...}`` when there is no target.
+
+    ``{"target", "method", "k", "fdr", "stop_step", "n_permutations", "unit", "fields", "rows",
+    "statuses" (legend text per status), "generation"}``: one row per step in order, then
+    one per column left out (``step`` null).
+    """
+    from infoscope.frame.selection import SELECTION_STATUS
+
+    if table is None or target is None:
+        return dumps({"target": None, "fields": list(SELECTION_FIELDS), "rows": [], "unit": None,
+                      "statuses": dict(SELECTION_STATUS), "generation": int(generation)})
+    require(table, SELECTION_FIELDS, "the selection table")
+    attrs = getattr(table, "attrs", None) or {}
+    rows = [[scalar(v) for v in row] for row in table.loc[:, list(SELECTION_FIELDS)].itertuples(index=False)]
+    return dumps({"target": str(target), "method": scalar(attrs.get("method")), "k": scalar(attrs.get("k")),
+                  "fdr": scalar(attrs.get("fdr")), "stop_step": scalar(attrs.get("stop_step")),
+                  "n_permutations": scalar(attrs.get("n_permutations")), "unit": attrs_of(table)["unit"],
+                  "fields": list(SELECTION_FIELDS), "rows": rows, "statuses": dict(SELECTION_STATUS),
+                  "generation": int(generation)})
+
+
+def surprising_json(table: pd.DataFrame, tree: pd.DataFrame, *, generation: int = 0) -> str:
+    """The ``surprising_rows()`` table and the ``tree()`` edges as compact JSON.
+
+    ``{"model", "unit", "alpha", "mean_surprisal", "hidden_values", "min_count", "fields",
+    "rows", "cells" (per row, a list of dicts with :data:`SURPRISING_CELL_KEYS`), "tree":
+    {"root", "edges": [[parent, child, mi, depth], ...], "unit", "left_out"}, "generation"}``.
+    ``row`` (the frame's index label) travels as text; with ``hidden_values`` every
+    value and symbol of the cells is null (the scores stay).
+    """
+    require(table, SURPRISING_FIELDS + ("cells",), "the surprising-rows table")
+    require(tree, ("parent", "child", "mi", "depth"), "the tree table")
+    attrs = getattr(table, "attrs", None) or {}
+    hidden = bool(attrs.get("hidden_values"))
+    rows, cells = [], []
+    for rec in table.itertuples(index=False):
+        rows.append([scalar(getattr(rec, f)) if f != "row" else str(rec.row) for f in SURPRISING_FIELDS])
+        listed = []
+        for cell in rec.cells:
+            item = {key: scalar(cell.get(key)) for key in SURPRISING_CELL_KEYS}
+            if hidden:  # never send a hidden value, whatever the table holds
+                item.update(value=None, symbol=None, parent_value=None, parent_symbol=None)
+            listed.append(item)
+        cells.append(listed)
+    tattrs = getattr(tree, "attrs", None) or {}
+    edges = [[str(r.parent), str(r.child), scalar(r.mi), scalar(r.depth)] for r in tree.itertuples(index=False)]
+    return dumps({"model": scalar(attrs.get("model")), "unit": "bits", "alpha": scalar(attrs.get("alpha")),
+                  "mean_surprisal": scalar(attrs.get("mean_surprisal")), "hidden_values": hidden,
+                  "min_count": scalar(attrs.get("min_count")), "fields": list(SURPRISING_FIELDS),
+                  "rows": rows, "cells": cells,
+                  "tree": {"root": scalar(tattrs.get("root")), "edges": edges, "unit": attrs_of(tree)["unit"],
+                           "left_out": {str(k): str(v) for k, v in dict(tattrs.get("left_out") or {}).items()}},
+                  "generation": int(generation)})

@@ -68,6 +68,14 @@ class ProfileTraits(anywidget.AnyWidget):
     order = t.Unicode("cluster").tag(sync=True)
     #: str, "entropy": sort key of the entropy bars (entropy, name, efficiency, missing_share).
     sort_by = t.Unicode("entropy").tag(sync=True)
+    #: str, "mrmr": criterion of the selection view ("mrmr", "jmi", "cmim"; see ``select()``).
+    selection_method = t.Unicode("mrmr").tag(sync=True)
+    #: int or None, None: steps of the selection view (None: stop when the next gain is not significant).
+    selection_k = t.Int(None, allow_none=True).tag(sync=True)
+    #: str, "tree": row model of the surprising-rows view ("tree" or "independent").
+    surprise_model = t.Unicode("tree").tag(sync=True)
+    #: int, 20: rows listed by the surprising-rows view.
+    surprise_n = t.Int(20).tag(sync=True)
 
     # ---- data for the front end (kernel -> view) -----------------------------------------
     #: str (JSON): entropy rows, see ``_serialize.entropy_json``.
@@ -87,6 +95,10 @@ class ProfileTraits(anywidget.AnyWidget):
     _pair = t.Dict({}).tag(sync=True)
     #: str (JSON): relevance rows about ``target``, see ``_serialize.relevance_json``.
     _relevance = t.Unicode("").tag(sync=True)
+    #: str (JSON): the selection steps for ``target``, see ``views.serialize.selection_json``.
+    _selection = t.Unicode("").tag(sync=True)
+    #: str (JSON): the surprising rows and the tree, see ``views.serialize.surprising_json``.
+    _surprising = t.Unicode("").tag(sync=True)
     #: dict: names, kinds, n_rows, sampled, choices of every control, version.
     _meta = t.Dict({}).tag(sync=True)
     #: dict: {state: "idle"|"computing"|"error", message, generation, progress, notes}.
