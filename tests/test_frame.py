@@ -508,3 +508,22 @@ def test_import_infoscope_never_imports_polars_and_registers_when_present():
             "from infoscope.polars import PolarsInfoProfile; "
             "assert isinstance(pl.DataFrame({'a': [1, 2]}).info_profile, PolarsInfoProfile)")
     subprocess.run([sys.executable, "-c", code], check=True, timeout=120)
+
+
+def test_flattened_multiindex_labels_name_the_same_column_everywhere():
+    # a groupby-agg leaves ('a', '') beside ('b', 'x'): the key of ('a', '') is 'a'
+    # in the names, and the tuple finds that column in every method
+    df = pd.DataFrame({("a", ""): list("pq") * 20, ("b", "x"): list("ppqq") * 10, ("b", "y"): [1, 2] * 20})
+    s = ProfileSession(df, n_boot=0)
+    assert s.names == ["a", "b / x", "b / y"]
+    by_tuple = s.pair(("a", ""), ("b", "x"))
+    by_key = s.pair("a", "b / x")
+    assert by_tuple.counts.equals(by_key.counts) and by_tuple.n == 40
+    # reference: pandas.crosstab of the two columns
+    expected = pd.crosstab(df[("a", "")], df[("b", "x")]).to_numpy()
+    assert sorted(by_tuple.counts.to_numpy().ravel().tolist()) == sorted(expected.ravel().tolist())
+    assert set(s.relevance(("b", "y"))["column"]) == {"a", "b / x"}
+    assert s.column(("a", "")).name == "a"
+    assert df.info_profile.pair(("a", ""), ("b", "x"), n_boot=0).n == 40
+    with pytest.raises(KeyError, match="not a column"):
+        s.pair(("a", "z"), ("b", "x"))

@@ -5,10 +5,35 @@ from collections.abc import Sequence
 
 from infoscope._warnings import DataQualityWarning, warn_user
 
-__all__ = ["column_keys"]
+__all__ = ["column_keys", "key_text"]
 
 
-def _key_text(label) -> str:
+def key_text(label) -> str:
+    """The text of one column label: the one rule every layer uses to name a column.
+
+    Parameters
+    ----------
+    label : object
+        A column label: a string, a number, or a MultiIndex tuple.
+
+    Returns
+    -------
+    str
+        Strings as they are, other labels by ``str``; tuples joined with ``" / "``
+        with their empty parts (``""`` or None) left out, so ``("a", "")`` — the
+        label a flattened groupby-agg leaves — is ``"a"``.  A tuple of empty parts
+        only is ``str(label)``.
+
+    References
+    ----------
+    .. [1] pandas, ``pandas.MultiIndex`` (tuple labels; the empty level a
+       groupby-agg leaves); joining the parts with a separator is common practice.
+
+    Examples
+    --------
+    >>> key_text(("a", "")), key_text(("b", "x")), key_text(3)
+    ('a', 'b / x', '3')
+    """
     if isinstance(label, tuple):
         parts = [str(p) for p in label if not (p is None or (isinstance(p, str) and p == ""))]
         return " / ".join(parts) if parts else str(label)
@@ -28,8 +53,8 @@ def column_keys(columns: Sequence, *, warn: bool = True, _stacklevel: int = 2) -
     Returns
     -------
     list of str
-        One key per label: strings as they are, other labels by ``str``, tuples
-        joined with ``" / "`` (empty parts left out); a repeated key gets
+        One key per label (:func:`key_text`: strings as they are, other labels by
+        ``str``, tuples joined with ``" / "``, empty parts left out); a repeated key gets
         ``" (2)"``, ``" (3)"``, ... in order of appearance.
 
     References
@@ -42,7 +67,7 @@ def column_keys(columns: Sequence, *, warn: bool = True, _stacklevel: int = 2) -
     >>> column_keys(["a", "a", 3, ("b", "x")], warn=False)
     ['a', 'a (2)', '3', 'b / x']
     """
-    texts = [_key_text(c) for c in columns]
+    texts = [key_text(c) for c in columns]
     used = set(texts)
     seen: dict[str, int] = {}
     out = []

@@ -3,9 +3,10 @@ from __future__ import annotations
 
 import pandas as pd
 
-from infoscope.encode.columns import column_keys as encode_keys
+# one rule for the text of a label: the encoder's (re-exported here for the session)
+from infoscope.encode.keys import column_keys, key_text
 
-__all__ = ["as_pandas", "column_keys"]
+__all__ = ["as_pandas", "column_keys", "key_text"]
 
 
 def as_pandas(frame, parameter: str = "frame") -> pd.DataFrame:
@@ -55,38 +56,3 @@ def as_pandas(frame, parameter: str = "frame") -> pd.DataFrame:
     raise TypeError(
         f"{parameter} must be a pandas or Polars DataFrame, got {type(frame).__name__}"
     )
-
-
-def _name_text(name) -> str:
-    if isinstance(name, tuple):
-        return " / ".join(_name_text(part) for part in name)
-    return name if isinstance(name, str) else str(name)
-
-
-def column_keys(columns, *, warn: bool = True) -> list[str]:
-    """Unique string keys for column labels (``infoscope.encode.columns.column_keys``).
-
-    Parameters
-    ----------
-    columns : sequence
-        Column labels, e.g. ``df.columns``.
-    warn : bool, default=True
-        Warn (:class:`DataQualityWarning`) when labels repeat.
-
-    Returns
-    -------
-    list of str
-        Non-string labels become ``str(label)``, MultiIndex tuples are joined with
-        ``" / "``, and repeated keys get ``" (2)"``, ``" (3)"``, ... in order of
-        appearance.
-
-    References
-    ----------
-    .. [1] DEVELOPERS.md, "ProfileSession" (``names``).
-
-    Examples
-    --------
-    >>> column_keys(["a", "a", 3], warn=False)
-    ['a', 'a (2)', '3']
-    """
-    return encode_keys(list(columns), warn=warn)

@@ -29,7 +29,7 @@ from infoscope.engine.engine import PairEngine
 from infoscope.engine.sampling import sample_rows
 from infoscope.estimators._checks import unit_name
 from infoscope.estimators.entropy import entropy_from_counts
-from infoscope.frame.keys import _name_text, as_pandas, column_keys
+from infoscope.frame.keys import as_pandas, column_keys, key_text
 from infoscope.frame.supervised import FALLBACK_BINS, supervised_edges
 from infoscope.frame.supervised import _applies as _supervised_applies
 from infoscope.frame.settings import (
@@ -418,7 +418,7 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
         if isinstance(name, str) and name in self._series:
             return name
         # a MultiIndex tuple or a number names the column whose key it gives (column_keys)
-        label = _name_text(name) if isinstance(name, (tuple, numbers.Integral)) and not isinstance(name, bool) else name
+        label = key_text(name) if isinstance(name, (tuple, numbers.Integral)) and not isinstance(name, bool) else name
         if isinstance(label, str) and label in self._series:
             return label
         shown = ", ".join(repr(k) for k in self._names[:12]) + (" ..." if len(self._names) > 12 else "")
