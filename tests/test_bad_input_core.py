@@ -12,6 +12,7 @@ from __future__ import annotations
 import copy
 import math
 import warnings
+from pathlib import Path
 
 import numpy as np
 import pandas as pd
@@ -50,13 +51,38 @@ def call_unchanged(func, *args, **kwargs):
             _same(a, b)
 
 
+#: the package's own source folder: a clean error is raised by a file in it
+PACKAGE_DIR = Path(I.__file__).resolve().parent
+
+
 def raises_clearly(exc, match, func, *args, **kwargs):
-    """``func`` raises ``exc`` matching ``match`` from infoscope's own code, inputs untouched."""
+    """``func`` raises ``exc`` matching ``match`` from infoscope's own code, inputs untouched.
+
+    A clean error: the innermost frame of the traceback (where the exception was
+    raised) is a file of the infoscope package itself (under ``PACKAGE_DIR``), not
+    of numpy, pandas, scipy or the standard library, and the message matches.  The
+    path is compared as a path, not as text, so a checkout or a virtual environment
+    whose folder happens to be called "infoscope" does not count.
+    """
     with pytest.raises(exc, match=match) as info:
         call_unchanged(func, *args, **kwargs)
-    last = str(info.traceback[-1].path)
-    assert "infoscope" in last, f"raised from {last}, not from infoscope's checks"
+    last = Path(str(info.traceback[-1].path)).resolve()
+    assert last.is_relative_to(PACKAGE_DIR), f"raised from {last}, not from infoscope's checks in {PACKAGE_DIR}"
     return info
+
+
+def test_raises_clearly_refuses_errors_from_outside_the_package(tmp_path):
+    # the check must be able to fail: an error raised by numpy, and one raised by a
+    # file in a folder that is merely *called* infoscope, are not clean errors
+    with pytest.raises(AssertionError, match="not from infoscope"):
+        raises_clearly(ValueError, "could not convert", np.array(["x"]).astype, float)
+    fake = tmp_path / "infoscope" / "checks.py"
+    fake.parent.mkdir()
+    fake.write_text("def check(x):\n    raise ValueError('x is bad')\n")
+    namespace: dict = {}
+    exec(compile(fake.read_text(), str(fake), "exec"), namespace)
+    with pytest.raises(AssertionError, match="not from infoscope"):
+        raises_clearly(ValueError, "x is bad", namespace["check"], 1)
 
 
 def plugin_bits(labels) -> float:
@@ -618,7 +644,7 @@ def test_complex_values_are_labels_and_cannot_be_binned():
 
 
 def test_nested_arrow_cells_are_read_by_their_contents():
-    pa = pytest.importorskip("pyarrow")
+    import pyarrow as pa
     lists = pd.Series(pd.array([[1], [2], [1], None, [1]], dtype=pd.ArrowDtype(pa.list_(pa.int64()))))
     # labels [1] x3, [2] x1 (the missing row dropped): scipy.stats.entropy([3, 1], base=2)
     with pytest.warns(DataQualityWarning, match=r"values has 4 unhashable cell\(s\) \(ndarray\)"):

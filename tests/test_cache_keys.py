@@ -110,7 +110,7 @@ def test_content_keys_differ_for_different_content(left, right):
 
 
 def test_arrow_dictionary_columns_hash_their_dictionary():
-    pa = pytest.importorskip("pyarrow")
+    import pyarrow as pa
     one = pd.Series(pd.arrays.ArrowExtensionArray(pa.array(["x", "y"]).dictionary_encode()))
     indices = pa.array([0, 1], pa.int32())
     other = pd.Series(pd.arrays.ArrowExtensionArray(
@@ -128,7 +128,7 @@ def test_cells_whose_text_may_not_tell_them_apart_are_not_keyed():
 
 
 # ------------------------------------------------------------------ Polars
-pl = pytest.importorskip("polars")
+import polars as pl
 import infoscope.polars  # noqa: E402,F401  (registers pl.DataFrame.info_profile)
 
 

@@ -5,7 +5,10 @@ import io
 import subprocess
 import sys
 
+import numpy as np
+import pandas as pd
 import pytest
+import scipy.stats
 
 from infoscope.cli import CAUTION, build_parser, cmd_demo, main
 from infoscope.datasets import PLANTED
@@ -59,3 +62,88 @@ def test_python_dash_m_runs_the_demo():
     assert result.returncode == 0, result.stderr
     assert "== drift of a later batch" in result.stdout
     assert "Traceback" not in result.stderr
+
+
+# ------------------------------------------------------------------ CLI: CSV datetimes
+def _profile_output(capsys, argv):
+    from infoscope.cli import main
+
+    status = main(argv)
+    return status, capsys.readouterr().out
+
+
+def _kind_of(output: str, column: str) -> str:
+    section = output.split("== entropy per column", 1)[1].split("\n== ", 1)[0]
+    row = next(line for line in section.splitlines() if line.strip().startswith(column + " "))
+    return row.split()[1]
+
+
+def test_cli_reads_csv_timestamps_as_datetimes(tmp_path, capsys):
+    rng = np.random.default_rng(3)
+    n = 600
+    frame = pd.DataFrame({
+        "picked_up": pd.Timestamp("2025-02-01") + pd.to_timedelta(rng.integers(0, 10**7, n), unit="s"),
+        "parcels": rng.integers(1, 90, n),            # numeric: never touched
+        "zone": rng.choice(["north", "south", "east"], n),
+    })
+    path = tmp_path / "log.csv"
+    frame.to_csv(path, index=False)  # reference: pandas writes datetimes as ISO 8601 text
+    assert pd.read_csv(path)["picked_up"].dtype.kind not in "mM"  # as text without the fix
+    status, out = _profile_output(capsys, ["profile", str(path)])
+    assert status == 0
+    assert "read as dates/times (text in the file): 'picked_up'" in out
+    assert _kind_of(out, "picked_up") == "datetime"
+    assert _kind_of(out, "parcels") in ("numeric", "integer_categories")
+    assert _kind_of(out, "zone") != "datetime"  # words stay text
+
+
+def test_parse_datetime_columns_leaves_mixed_text_alone():
+    from infoscope.cli import parse_datetime_columns
+
+    dates = [str(d.date()) for d in pd.date_range("2025-01-01", periods=100)]
+    mixed = pd.DataFrame({"d": dates[:90] + ["soon"] * 10, "code": ["2025-01-01x"] * 100,
+                          "ok": dates, "num": np.arange(100.0)})
+    before = mixed.copy()
+    out, names = parse_datetime_columns(mixed)
+    assert names == ["ok"]
+    assert out["ok"].dtype.kind == "M" and out["num"].dtype == np.float64
+    pd.testing.assert_frame_equal(mixed, before)  # the input frame is not changed
+
+
+# ------------------------------------------------------------------ CLI headers
+def test_cli_top_pairs_only_significant_and_headers(tmp_path, capsys):
+    rng = np.random.default_rng(5)
+    n = 800
+    a = rng.choice(list("pqrs"), n)
+    indep = pd.DataFrame({"u": rng.choice(list("abc"), n), "v": rng.choice(list("xyz"), n)})
+    linked = pd.DataFrame({"a": a, "b": np.where(rng.random(n) < 0.9, a, "t"),
+                           "w": rng.choice(list("mn"), n)})
+    p1, p2 = tmp_path / "indep.csv", tmp_path / "linked.csv"
+    indep.to_csv(p1, index=False)
+    linked.to_csv(p2, index=False)
+    from infoscope.frame.session import ProfileSession
+
+    # reference for the filter: scipy.stats.chi2_contingency's G-test (lambda_="log-likelihood")
+    # p-value of the one pair of the independent frame; with one pair q = p
+    g = scipy.stats.chi2_contingency(pd.crosstab(indep["u"], indep["v"]).to_numpy(),
+                                     lambda_="log-likelihood", correction=False)
+    status, out = _profile_output(capsys, ["profile", str(p1)])
+    assert status == 0
+    assert "only pairs with q < 0.05" in out
+    assert g.pvalue >= 0.05  # independent draws (seeded): the reference finds nothing
+    assert "no pair has q < 0.05" in out
+    status, out = _profile_output(capsys, ["profile", str(p2), "--target", "b"])
+    section = out.split("== top", 1)[1].split("\n== ", 1)[0]
+    shown = [line.split()[:2] for line in section.splitlines()[2:] if line.strip()]
+    assert ["a", "b"] in shown  # b copies a 90% of the time
+    q = ProfileSession(linked).pairs("nmi").set_index(["a", "b"])["q_value"]
+    assert all(q.loc[tuple(pair)] < 0.05 for pair in shown if tuple(pair) in q.index)
+    assert "95% bootstrap interval" in out.split("== entropy per column", 1)[1].splitlines()[0]
+    assert "an estimate below 0 means no dependence beyond the bias correction" in out
+
+
+def test_cli_demo_drift_header_states_units(capsys):
+    status, out = _profile_output(capsys, ["demo", "--rows", "1500", "--batch-rows", "600"])
+    assert status == 0
+    header = next(line for line in out.splitlines() if line.startswith("== drift of"))
+    assert "PSI in nats; KL and JS in bits" in header

@@ -644,7 +644,7 @@ def test_encode_frame_keys_duplicates_and_multiindex():
 
 
 def test_encode_frame_accepts_polars():
-    pl = pytest.importorskip("polars")
+    import polars as pl
     frame = pl.DataFrame({"n": [1.0, 2.0, None], "s": ["a", None, "a"]})
     cols = encode_frame(frame, cache=False)
     assert [(c.name, c.n_missing) for c in cols] == [("n", 1), ("s", 1)]

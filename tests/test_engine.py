@@ -5,8 +5,6 @@ both columns are present (pairwise-complete cases), with every category 0..k-1 k
 """
 from __future__ import annotations
 
-import dataclasses
-
 import numpy as np
 import pandas as pd
 import pytest
@@ -15,25 +13,11 @@ from hypothesis import strategies as st
 
 from infoscope.engine import PairEngine, count_chunk, counting, finalize, merge, sample_rows
 
-try:  # the real EncodedColumn (encode/ has landed); the engine reads name, codes, k
-    from infoscope.encode.columns import EncodedColumn, encode_column
-except ImportError:  # pragma: no cover - only while encode/ is being written
-    EncodedColumn = encode_column = None
-
-
-@dataclasses.dataclass(frozen=True)
-class _Fields:
-    """The fields of EncodedColumn the engine reads (fallback only)."""
-
-    name: str
-    codes: np.ndarray
-    k: int
+from infoscope.encode.columns import EncodedColumn, encode_column
 
 
 def Col(name, codes, k):
     """An EncodedColumn of these codes (the other fields only describe them)."""
-    if EncodedColumn is None:  # pragma: no cover
-        return _Fields(name, codes, k)
     missing = int(np.count_nonzero(codes == k))
     return EncodedColumn(name=name, codes=codes, k=k, labels=tuple(str(i) for i in range(k)),
                          kind="integer_categories", n=codes.shape[0], n_missing=missing, edges=None,
@@ -113,7 +97,6 @@ def test_tables_equal_pandas_crosstab_for_every_backend_chunking_and_thread_coun
             np.testing.assert_array_equal(t, expected[pair], err_msg=f"pair {pair} with {options}")
 
 
-@pytest.mark.skipif(encode_column is None, reason="encode/ not available")
 def test_columns_from_encode_column(rng):
     n = 3000
     x = rng.normal(size=n)

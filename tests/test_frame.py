@@ -6,11 +6,13 @@ the numbers against outside references are in test_frame_reference.py.
 """
 from __future__ import annotations
 
+import math
 import sys
 
 import numpy as np
 import pandas as pd
 import pytest
+import scipy.stats
 
 import infoscope  # noqa: F401  (registers df.info_profile)
 from infoscope.datasets import PLANTED, make_deliveries, make_deliveries_batch
@@ -328,7 +330,7 @@ def test_widget_call_without_widgets_is_a_clear_import_error(monkeypatch, log):
 
 
 def test_polars_frame_gives_the_same_entropy_table(log):
-    pl = pytest.importorskip("polars")
+    import polars as pl
     small = log[["depot", "weight_kg", "stops_before", "fragile", "courier_note", TARGET]]
     from_polars = ProfileSession(pl.from_pandas(small), n_boot=20).entropy()
     from_pandas = ProfileSession(small, n_boot=20).entropy()
@@ -445,7 +447,7 @@ def test_vectorised_pair_measures_equal_the_per_table_functions(estimator):
 
 
 def test_polars_reference_and_lazy_frames(log):
-    pl = pytest.importorskip("polars")
+    import polars as pl
     small = log[["depot", "weight_kg", "late"]]
     batch = make_deliveries_batch(5_000, seed=4)[["depot", "weight_kg", "late"]]
     from_polars = ProfileSession(pl.from_pandas(batch)).drift(pl.from_pandas(small).lazy())
@@ -462,8 +464,7 @@ def test_accessor_session_is_fresh_and_tables_reuse_one(log):
 
 
 def test_widget_call_returns_the_live_profile(log):
-    pytest.importorskip("anywidget")
-    profile = pytest.importorskip("infoscope.widgets.profile")
+    from infoscope.widgets import profile
     df = log[["depot", "service", TARGET]]
     widget = df.info_profile(target=TARGET, n_boot=0)
     assert isinstance(widget, profile.ProfileWidget)
@@ -472,7 +473,7 @@ def test_widget_call_returns_the_live_profile(log):
 
 # ------------------------------------------------------------------ Polars namespace
 def test_polars_namespace_equals_the_pandas_accessor(log):
-    pl = pytest.importorskip("polars")
+    import polars as pl
     import infoscope.polars  # noqa: F401  (the explicit registration)
 
     small = log[["depot", "weight_kg", "stops_before", "fragile", "courier_note", "contents", TARGET]]
@@ -527,3 +528,109 @@ def test_flattened_multiindex_labels_name_the_same_column_everywhere():
     assert df.info_profile.pair(("a", ""), ("b", "x"), n_boot=0).n == 40
     with pytest.raises(KeyError, match="not a column"):
         s.pair(("a", "z"), ("b", "x"))
+
+
+# ================================================================== result-table details
+# ------------------------------------------------------------------ exceeds_log_k
+@pytest.mark.filterwarnings("ignore:column 'ident'")
+def test_all_distinct_column_is_flagged_above_log_k():
+    n = 2000
+    df = pd.DataFrame({"ident": [f"r{i}" for i in range(n)],
+                       "grp": list("abcd") * (n // 4)})
+    row = ProfileSession(df, estimator="miller_madow", n_boot=0, base=2).entropy().set_index("column")
+    ident = row.loc["ident"]
+    # reference: scipy.stats.entropy of the all-distinct counts (plug-in, log2 n)
+    # plus the Miller (1955) correction (K - 1) / (2 n) nats, converted to bits
+    plug = scipy.stats.entropy(np.ones(n), base=2)
+    expected = plug + (n - 1) / (2 * n) / math.log(2)
+    assert ident["entropy"] == pytest.approx(expected, rel=1e-9)
+    assert ident["max_entropy"] == pytest.approx(math.log2(n), rel=1e-12)
+    assert ident["efficiency"] > 1.0  # kept as computed, not clipped
+    assert "exceeds_log_k" in ident["flags"].split(",")
+    # a uniform four-level column under the plug-in equals log K: no flag
+    # (scipy.stats.entropy of [1, 1, 1, 1] in bits = 2, closed form log2 4)
+    plain = ProfileSession(df, estimator="plugin", n_boot=0, base=2).entropy().set_index("column")
+    assert plain.loc["grp", "entropy"] == pytest.approx(scipy.stats.entropy([1, 1, 1, 1], base=2))
+    assert "exceeds_log_k" not in plain.loc["grp", "flags"].split(",")
+    assert "exceeds_log_k" not in plain.loc["ident", "flags"].split(",")
+
+
+def test_binned_column_is_clipped_to_log_k_not_flagged():
+    # Quantile bins make the 16 bins almost equally full; Miller-Madow adds
+    # (K - 1) / (2 n) nats (Miller 1955) and passes log2 16 = 4 bits.  The alphabet is
+    # fixed by the binning, so H <= log K holds for the truth (Shannon 1948, the
+    # uniform distribution maximises entropy; common practice to project onto it):
+    # the estimate and its interval stop at log K and no flag is raised.
+    rng = np.random.default_rng(5)
+    df = pd.DataFrame({"x": rng.normal(size=400), "flag": rng.integers(0, 2, 400).astype(bool)})
+    out = ProfileSession(df, estimator="miller_madow", bins=16, n_boot=50).entropy().set_index("column")
+    x = out.loc["x"]
+    raw = scipy.stats.entropy(np.full(16, 25), base=2) + 15 / (2 * 400) / math.log(2)
+    assert raw > 4.0  # the unclipped Miller-Madow value would pass log K
+    assert x["entropy"] == pytest.approx(4.0, abs=1e-12)
+    assert x["ci_high"] <= 4.0 + 1e-12 and x["ci_low"] <= x["entropy"]
+    assert x["efficiency"] <= 1.0 + 1e-12 and x["effective_categories"] <= 16 + 1e-9
+    assert "exceeds_log_k" not in x["flags"].split(",")
+
+
+# ------------------------------------------------------------------ drift units
+def test_drift_units_psi_in_nats_kl_js_in_session_unit():
+    from scipy.spatial.distance import jensenshannon
+
+    cur = pd.DataFrame({"c": ["a"] * 50 + ["b"] * 30 + ["c"] * 20})
+    ref = pd.DataFrame({"c": ["a"] * 30 + ["b"] * 30 + ["c"] * 40})
+    d = ProfileSession(cur, n_boot=0, base=2).drift(ref, pseudocount=0.5)
+    units = d.attrs["units"]
+    assert (units["psi"], units["psi_chance"], units["kl"], units["kl_chance"], units["js"]) == (
+        "nats", "nats", "bits", "bits", "bits")
+    row = d.set_index("column").loc["c"]
+    a = np.array([50, 30, 20]) + 0.5  # this frame, pseudocount added to every cell
+    e = np.array([30, 30, 40]) + 0.5  # reference
+    # reference: PSI = KL(a||e) + KL(e||a) in nats (scipy.stats.entropy, natural log)
+    assert row["psi"] == pytest.approx(scipy.stats.entropy(a, e) + scipy.stats.entropy(e, a), rel=1e-10)
+    # reference: scipy.stats.entropy(a, e, base=2) for KL in bits
+    assert row["kl"] == pytest.approx(scipy.stats.entropy(a, e, base=2), rel=1e-10)
+    # reference: scipy.spatial.distance.jensenshannon(base=2) squared, raw counts
+    js = jensenshannon([50, 30, 20], [30, 30, 40], base=2) ** 2
+    assert row["js"] == pytest.approx(js, rel=1e-9)
+    nats = ProfileSession(cur, n_boot=0, base="nats").drift(ref)
+    assert {nats.attrs["units"][k] for k in ("psi", "kl", "js", "js_chance")} == {"nats"}
+    assert nats.set_index("column").loc["c", "psi"] == pytest.approx(row["psi"], rel=1e-12)
+
+
+# ------------------------------------------------------------------ matrix diagonal
+def _frame_with_constant():
+    return pd.DataFrame({"x": list("abc") * 40, "y": list("aaabbbcccddd") * 10, "k": [1.5] * 120})
+
+
+def test_matrix_diagonal_of_constant_column_is_nan():
+    s = ProfileSession(_frame_with_constant(), estimator="plugin", n_boot=0)
+    for measure in ("nmi", "adjusted_mi"):
+        m = s.matrix(measure)
+        assert math.isnan(m.loc["k", "k"]), measure  # 0/0: undefined
+        assert m.loc["x", "x"] == 1.0 and m.loc["y", "y"] == 1.0
+    # the MI diagonal is H(X): scipy.stats.entropy of the counts (closed form log2 3)
+    mi = s.matrix("mi")
+    assert mi.loc["x", "x"] == pytest.approx(scipy.stats.entropy([40, 40, 40], base=2))
+    assert mi.loc["k", "k"] == 0.0
+    assert s.matrix("vi").loc["k", "k"] == 0.0
+    # clustering still works with an undefined diagonal
+    assert sorted(s.matrix("nmi", order="cluster").index) == ["k", "x", "y"]
+
+
+def test_matrix_plugin_float_noise_becomes_exact_zero(monkeypatch):
+    s = ProfileSession(_frame_with_constant(), estimator="plugin", n_boot=0)
+    real = s.pairs
+
+    def noisy(measure=None):  # the rounding residue the review saw on the engine path
+        t = real(measure).copy()
+        t["value"] = t["value"] + np.array([4e-16, -3e-16, 2e-13])[: len(t)]
+        return t
+
+    monkeypatch.setattr(s, "pairs", noisy)
+    m = s.matrix("nmi")
+    off = m.to_numpy()[~np.eye(3, dtype=bool)]
+    # x and y are exactly independent (each x level meets each y level equally):
+    # plug-in MI = 0 in closed form; every off-diagonal cell is then exactly 0
+    assert np.all(off == 0.0)
+    assert np.all(np.signbit(off) == False)  # noqa: E712  (no -0.0 either)

@@ -44,48 +44,32 @@ def wine_codes():
     return {renamed[k]: v for k, v in codes.items()}
 
 
-def _entropy_table(codes: dict) -> pd.DataFrame:
-    rows = []
-    for name, c in codes.items():
-        counts = np.bincount(c)
-        h = scipy_entropy(counts, base=2)  # scipy.stats.entropy, plug-in, bits
-        rows.append({"column": name, "kind": "numeric", "k": len(counts), "n": len(c), "missing": 0,
-                     "missing_share": 0.0, "entropy": h, "ci_low": h * 0.97, "ci_high": h * 1.02,
-                     "max_entropy": np.log2(len(counts)), "efficiency": h / np.log2(len(counts)),
-                     "effective_categories": 2 ** h, "flags": ""})
-    table = pd.DataFrame(rows)
-    table.attrs.update(unit="bits", estimator="plugin", sampled=None)
-    return table
+@pytest.fixture(scope="module")
+def wine_tables(wine_codes):
+    """The real result tables of a session over the wine codes (plug-in estimator, bits).
+
+    The numbers are checked against scipy and scikit-learn where they are used; the
+    small cells of hue x target (scikit-learn's wine data) are real.
+    """
+    import warnings
+
+    from infoscope.frame.session import ProfileSession
+
+    frame = pd.DataFrame(wine_codes)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # sparse-cell notes of the small wine sample
+        session = ProfileSession(frame, estimator="plugin", n_boot=50, seed=0)
+        tables = {"entropy": session.entropy(), "matrix": session.matrix("mi"),
+                  "pair": session.pair("hue", "target"), "relevance": session.relevance("target"),
+                  "drift": ProfileSession(frame.iloc[:90]).drift(frame.iloc[90:])}
+    return tables
 
 
-def _matrix(codes: dict) -> pd.DataFrame:
-    names = list(codes)
-    m = pd.DataFrame(np.nan, index=names, columns=names)
-    for a in names:
-        for b in names:
-            # sklearn.metrics.mutual_info_score is in nats
-            m.loc[a, b] = mutual_info_score(codes[a], codes[b]) / np.log(2)
-    m.attrs.update(unit="bits", measure="mi", estimator="plugin", sampled=None)
-    return m
-
-
-class _Pair:
-    """The PairTable shape of DEVELOPERS.md, from pandas.crosstab."""
-
-    def __init__(self, x, y, a, b):
-        self.a, self.b = a, b
-        self.counts = pd.crosstab(pd.Series(x, name=a), pd.Series(y, name=b))
-        self.counts.index = [f"bin {i}" for i in self.counts.index]
-        self.counts.columns = [f"class {j}" for j in self.counts.columns]
-        n = self.counts.to_numpy().sum()
-        r = self.counts.sum(axis=1).to_numpy()[:, None]
-        c = self.counts.sum(axis=0).to_numpy()[None, :]
-        self.expected = pd.DataFrame(r * c / n, index=self.counts.index, columns=self.counts.columns)
-        with np.errstate(divide="ignore"):
-            self.pmi = np.log2(self.counts / self.expected)
-        self.n = int(n)
-        self.mi = mutual_info_score(x, y) / np.log(2)
-        self.nmi = 0.5
+def _crosstab(codes: dict, a: str, b: str, pair) -> np.ndarray:
+    """pandas.crosstab of two code columns, in the row / column order of ``pair``."""
+    table = pd.crosstab(pd.Series(codes[a]), pd.Series(codes[b]))
+    table.index, table.columns = table.index.astype(str), table.columns.astype(str)
+    return table.loc[list(pair.counts.index), list(pair.counts.columns)].to_numpy()
 
 
 def _svg_texts(svg: str) -> list[str]:
@@ -165,9 +149,9 @@ def test_suppression_closes_a_bridge_between_two_hidden_blocks():
     assert _pinned_down(mask, table) == []
 
 
-def test_pair_records_ship_no_hidden_count(wine_codes):
-    pair = _Pair(wine_codes["hue"], wine_codes["target"], "hue", "target")
-    raw = pair.counts.to_numpy()
+def test_pair_records_ship_no_hidden_count(wine_codes, wine_tables):
+    pair = wine_tables["pair"]
+    raw = _crosstab(wine_codes, "hue", "target", pair)
     assert ((raw > 0) & (raw < 10)).any(), "the wine crosstab has small cells to hide"
     out = rec.pair_records(pair, min_count=10)
     hidden = [c for c in out["cells"] if c["hidden"]]
@@ -186,16 +170,16 @@ def test_pair_records_ship_no_hidden_count(wine_codes):
                 assert visible[(row, col)] == raw[i, j]  # pandas.crosstab count
 
 
-def test_pair_records_without_threshold_keep_totals(wine_codes):
-    pair = _Pair(wine_codes["hue"], wine_codes["target"], "hue", "target")
+def test_pair_records_without_threshold_keep_totals(wine_codes, wine_tables):
+    pair = wine_tables["pair"]
     out = rec.pair_records(pair)
     assert out["hidden_cells"] == 0
-    assert out["row_totals"] == pair.counts.sum(axis=1).tolist()
+    assert out["row_totals"] == _crosstab(wine_codes, "hue", "target", pair).sum(axis=1).tolist()
 
 
 # ----------------------------------------------------------------- charts
-def test_entropy_chart_shows_the_table(wine_codes):
-    table = _entropy_table(wine_codes)
+def test_entropy_chart_shows_the_table(wine_codes, wine_tables):
+    table = wine_tables["entropy"]
     spec = charts.entropy_chart(table).to_dict()
     values = spec["data"]["values"] if "data" in spec else spec["layer"][0]["data"]["values"]
     by_name = {v["column"]: v["entropy"] for v in values}
@@ -221,8 +205,8 @@ def _fields(spec) -> set[str]:
     return found
 
 
-def test_chart_fields_are_fixed_and_names_render_as_text(wine_codes):
-    table = _entropy_table(wine_codes)
+def test_chart_fields_are_fixed_and_names_render_as_text(wine_tables):
+    table = wine_tables["entropy"]
     chart = charts.entropy_chart(table)
     fields = _fields(chart.to_dict())
     assert fields and not fields & set(HOSTILE)
@@ -234,8 +218,8 @@ def test_chart_fields_are_fixed_and_names_render_as_text(wine_codes):
     assert "<img" not in svg
 
 
-def test_grid_chart_values_match_sklearn(wine_codes):
-    m = _matrix(wine_codes)
+def test_grid_chart_values_match_sklearn(wine_codes, wine_tables):
+    m = wine_tables["matrix"]
     spec = charts.grid_chart(m).to_dict()
     names = list(wine_codes)
     assert spec["encoding"]["x"]["sort"] == names
@@ -247,8 +231,8 @@ def test_grid_chart_values_match_sklearn(wine_codes):
     assert charts.chart_to_svg(spec).startswith("<svg")
 
 
-def test_pair_chart_suppression_reaches_the_rendered_picture(wine_codes):
-    pair = _Pair(wine_codes["hue"], wine_codes["target"], "hue", "target")
+def test_pair_chart_suppression_reaches_the_rendered_picture(wine_tables):
+    pair = wine_tables["pair"]
     chart = charts.pair_chart(pair, min_count=10)
     spec = chart.to_dict()
     assert any("hidden" in s for s in spec["title"]["subtitle"])
@@ -261,20 +245,13 @@ def test_pair_chart_suppression_reaches_the_rendered_picture(wine_codes):
     assert not shown_counts & hidden_only
 
 
-def test_relevance_and_drift_charts_render(wine_codes):
-    names = [n for n in wine_codes if n != "target"]
-    mi = [mutual_info_score(wine_codes[n], wine_codes["target"]) / np.log(2) for n in names]
-    h_target = scipy_entropy(np.bincount(wine_codes["target"]), base=2)
-    rel = pd.DataFrame({"column": names, "k": 4, "n": 178, "mi": mi, "ci_low": np.array(mi) * 0.9,
-                        "ci_high": np.array(mi) * 1.1, "nmi": 0.0, "p_value": 0.01, "q_value": 0.01,
-                        "share_of_target": np.array(mi) / h_target,
-                        "leakage": np.array(mi) / h_target >= 0.95, "p_method": "chi2",
-                        "n_permutations": 0, "p_error": 0.0, "reliability": "ok"})
-    rel.attrs.update(unit="bits")
+def test_relevance_and_drift_charts_render(wine_codes, wine_tables):
+    rel = wine_tables["relevance"]
+    # the relevance the chart draws: scikit-learn's mutual_info_score (nats) / ln 2
+    for row in rel.itertuples():
+        assert row.mi == pytest.approx(mutual_info_score(wine_codes[row.column], wine_codes["target"]) / np.log(2))
     assert "<svg" in charts.chart_to_svg(charts.relevance_chart(rel, target="target"))
-    drift = pd.DataFrame({"column": names[:2], "kind": "numeric", "k": 4, "n": 100, "n_reference": 78,
-                          "psi": [0.05, 0.4], "kl": 0.1, "js": 0.05, "p_value": 0.2, "flag": ["stable", "major"]})
-    png = charts.chart_to_png(charts.drift_chart(drift))
+    png = charts.chart_to_png(charts.drift_chart(wine_tables["drift"]))
     assert png[:4] == b"\x89PNG"
 
 
@@ -286,8 +263,8 @@ def test_charts_refuse_a_table_that_is_not_a_result_table():
 
 
 # ----------------------------------------------------------------- picture
-def test_picture_escapes_names_and_is_well_formed(wine_codes):
-    svg = picture.profile_svg_from_tables(_entropy_table(wine_codes), _matrix(wine_codes))
+def test_picture_escapes_names_and_is_well_formed(wine_tables):
+    svg = picture.profile_svg_from_tables(wine_tables["entropy"], wine_tables["matrix"])
     texts = _svg_texts(svg)
     assert any(HOSTILE[0][:20] in t for t in texts)
     assert "<img" not in svg and "ctrl\x01" not in svg
@@ -295,8 +272,8 @@ def test_picture_escapes_names_and_is_well_formed(wine_codes):
     assert any(t.startswith('say "hi"') for t in titles)
 
 
-def test_picture_bar_lengths_follow_the_entropies(wine_codes):
-    table = _entropy_table(wine_codes)
+def test_picture_bar_lengths_follow_the_entropies(wine_tables):
+    table = wine_tables["entropy"]
     svg = picture.profile_svg_from_tables(table)
     root = ET.fromstring(svg)
     filled = [r for r in root.iter(f"{SVG_NS}rect") if r.get("fill") == charts.PALETTE["bar"]]
@@ -306,9 +283,9 @@ def test_picture_bar_lengths_follow_the_entropies(wine_codes):
     assert ratio == pytest.approx([ratio[0]] * len(ratio), rel=0.02)
 
 
-def test_picture_refuses_bad_max_columns(wine_codes):
+def test_picture_refuses_bad_max_columns(wine_tables):
     with pytest.raises(ValueError, match="max_columns"):
-        picture.profile_svg_from_tables(_entropy_table(wine_codes), max_columns=0)
+        picture.profile_svg_from_tables(wine_tables["entropy"], max_columns=0)
 
 
 def test_svg_data_uri_round_trips():
@@ -524,14 +501,14 @@ def test_cli_demo_out_writes_the_page(tmp_path, capsys):
     assert 'id="isc-payload"' in text and "counts below 5 are hidden" in text
 
 
-def test_picture_is_wide_enough_for_every_caption(wine_codes):
+def test_picture_is_wide_enough_for_every_caption(wine_tables):
     # a viewer clips what lies beyond the SVG's width (the grid's caption used to run
     # past it): every left-aligned line must end inside, estimated at 0.55 em per
     # character, about the average advance of a sans-serif face (common practice)
     import re
 
-    for matrix in (None, _matrix(wine_codes)):
-        svg = picture.profile_svg_from_tables(_entropy_table(wine_codes), matrix)
+    for matrix in (None, wine_tables["matrix"]):
+        svg = picture.profile_svg_from_tables(wine_tables["entropy"], matrix)
         width = float(re.search(r'<svg [^>]*width="([\d.]+)"', svg).group(1))
         for m in re.finditer(r'<text x="([\d.]+)"([^>]*)>([^<]*)</text>', svg):
             if 'text-anchor="end"' in m.group(2):
