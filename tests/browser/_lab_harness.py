@@ -1,6 +1,6 @@
 """A real JupyterLab on 127.0.0.1 for one browser round trip (and the latency benchmark).
 
-What WIDGET-TESTING.md found necessary on these machines, in one place:
+What docs/widget-testing.md describes for these machines, in one place:
 
 - the server runs as root (``ServerApp.allow_root=True``) in its own process group,
   stopped with SIGTERM and then SIGKILL of the group;

@@ -11,7 +11,7 @@ Fixtures
     its URL; ``served.put_file("/x.js", path)`` serves a file from disk.
 ``browser``
     One Chromium per test session, launched with the flags that work on these machines
-    (see WIDGET-TESTING.md). Playwright gives every launch a fresh temporary profile
+    (see docs/widget-testing.md). Playwright gives every launch a fresh temporary profile
     (user-data dir), so no state leaks in from an earlier run.
 ``web``
     A fresh page (its own browser context) wrapped in :class:`WebPage`, which records
