@@ -206,7 +206,7 @@ def test_utf8_byte_order_mark_is_not_part_of_the_first_name(tmp_path):
 
 
 def test_parquet_refuses_text_options(tmp_path):
-    pytest.importorskip("pyarrow")
+    import pyarrow  # noqa: F401  (the test extra installs it)
     path = tmp_path / "t.parquet"
     pd.DataFrame({"a": [1, 2]}).to_parquet(path)
     with pytest.raises(ReadError, match="--sep and --encoding apply to text files"):

@@ -26,7 +26,7 @@ LAYERS = {
     "estimators": 1,
     "encode": 2,
     "engine": 3,
-    "frame": 4, "measures": 4, "datasets": 4, "reading": 4,
+    "frame": 4, "measures": 4, "datasets": 4,
     "views": 5,
     "report": 6,
     "widgets": 7,

@@ -67,7 +67,7 @@ def test_negative_seed_is_named_before_any_work(seed):
         ProfileSession(SMALL).update(seed=-1)
     with pytest.raises(ValueError, match="seed=-1"):
         SMALL.info_profile(seed=-1)  # the widget: at the call, not in its worker thread
-    pl = pytest.importorskip("polars")
+    import polars as pl
     importlib.import_module("infoscope.polars")
     with pytest.raises(ValueError, match="seed=-1 must be an integer >= 0"):
         pl.from_pandas(SMALL).info_profile.entropy(seed=-1)
@@ -177,7 +177,7 @@ def test_extreme_integers_keep_their_order():
 
 
 def test_polars_integers_with_nulls_stay_exact():
-    pl = pytest.importorskip("polars")
+    import polars as pl
     importlib.import_module("infoscope.polars")  # registers pl.DataFrame.info_profile
 
     frame = pl.DataFrame({"x": [BIG + i for i in range(99)] + [None], "u": pl.Series([2**63 + i for i in range(100)],
@@ -229,7 +229,7 @@ def test_times_of_day_are_binned_as_time_since_midnight(library):
     times = [datetime.time(h % 24, (7 * h) % 60, 30) for h in range(96)]
     seconds = np.array([(t.hour * 60 + t.minute) * 60 + t.second for t in times])
     if library == "polars":
-        pl = pytest.importorskip("polars")
+        import polars as pl
         importlib.import_module("infoscope.polars")  # registers pl.DataFrame.info_profile
 
         frame = pl.DataFrame({"t": times + [None]})

@@ -16,7 +16,7 @@ from urllib.parse import urlsplit
 import nbformat
 import pytest
 
-nbconvert = pytest.importorskip("nbconvert")
+import nbconvert  # noqa: E402  (installed with jupyterlab, in the test extra)
 from nbclient import NotebookClient  # noqa: E402
 
 WIDGET_STATE = "application/vnd.jupyter.widget-state+json"
