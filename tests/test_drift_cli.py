@@ -113,3 +113,32 @@ def test_the_command_reads_files_with_the_shared_reader(tmp_path, capsys):
     assert main(args + ["--sep", ";"]) == 0
     out = capsys.readouterr().out
     assert "2 common column(s)" in out
+
+
+def test_the_view_payload_carries_the_drift_record_with_small_cells_hidden():
+    # views.payload(session, reference=...) adds the "_drift" part: the same record as
+    # drift_report(...).to_dict(), with per-symbol counts below min_count hidden and
+    # never exactly one hidden cell per side (the column total would give it back)
+    from infoscope.frame.session import ProfileSession
+    from infoscope.views.payload import payload
+
+    rng = np.random.default_rng(9)
+    ref = pd.DataFrame({"c": rng.choice(list("abcdef"), size=600, p=[.4, .3, .2, .06, .03, .01]),
+                        "x": rng.normal(size=600)})
+    cur = pd.DataFrame({"c": rng.choice(list("abcdefg"), size=300, p=[.3, .3, .2, .1, .05, .03, .02]),
+                        "x": rng.normal(0.5, 1, size=300)})
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        session = ProfileSession(cur, n_boot=0)
+        part = payload(session, min_count=10, reference=ref)["state"]["_drift"]
+        plain = session.drift_report(ref).to_dict()
+    assert part["schema"] == SCHEMA and part["settings"]["min_count"] == 10
+    assert [c["psi"] for c in part["columns"]] == [c["psi"] for c in plain["columns"]]
+    bins = {c["column"]: c["bins"] for c in part["columns"]}["c"]
+    for side in ("reference", "current"):
+        hidden = [b for b in bins if b[side] is None]
+        shown = [b[side] for b in bins if b[side] is not None]
+        assert all(v == 0 or v >= 10 for v in shown)
+        assert len(hidden) != 1
+    assert any(b["hidden"] == "small" for b in bins) and any(b["hidden"] == "complement" for b in bins)
+    assert payload(session)["state"]["_drift"] is None

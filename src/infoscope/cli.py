@@ -615,6 +615,8 @@ def add_drift_parser(subparsers) -> argparse.ArgumentParser:
     p.add_argument("--n-perm", type=int, default=999, dest="n_perm",
                    help="random splits of the pooled rows per column (default 999)")
     p.add_argument("--seed", type=int, default=0, help="seed of the splits (default 0)")
+    p.add_argument("--min-count", type=int, default=None, metavar="N", dest="min_count",
+                   help="in the JSON and the page, hide per-bin counts below N (small-cell suppression)")
     add_read_options(p)
     p.set_defaults(handler=cmd_drift)
     return p
@@ -665,6 +667,8 @@ def cmd_drift(args: argparse.Namespace, out=None) -> int:
         raise CommandError(f"--n-perm must be >= 1, got {args.n_perm}")
     if args.seed < 0:
         raise CommandError(f"--seed must be >= 0, got {args.seed}")
+    if args.min_count is not None and args.min_count < 1:
+        raise CommandError(f"--min-count must be >= 1, got {args.min_count}")
     for option, path in (("--out", args.out), ("--json", args.json_path)):
         if path and path != "-" and not Path(path).resolve().parent.is_dir():
             raise CommandError(f"{option} {path!r}: the folder does not exist")
@@ -701,7 +705,7 @@ def cmd_drift(args: argparse.Namespace, out=None) -> int:
     if notes:
         _section("notes on the data", "\n".join(f"- {m}" for m in notes), show)
     if args.json_path:
-        text = report.to_json()
+        text = report.to_json(min_count=args.min_count)
         if to_stdout:
             print(text, file=out)
         else:
@@ -710,7 +714,7 @@ def cmd_drift(args: argparse.Namespace, out=None) -> int:
     if args.out:
         from infoscope.report.drift_page import drift_page
 
-        Path(args.out).write_text(drift_page(report), encoding="utf-8")
+        Path(args.out).write_text(drift_page(report, min_count=args.min_count), encoding="utf-8")
         print(f"wrote {args.out}", file=show)
     print(f"\n{CAUTION}", file=show)
     if args.fail_on:

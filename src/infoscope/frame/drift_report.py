@@ -17,7 +17,7 @@ import pandas as pd
 
 from infoscope.frame.results import DRIFT_FLAGS, TEST_LEVEL
 
-__all__ = ["FAIL_LEVELS", "SCHEMA", "SCHEMA_VERSION", "DriftReport", "bin_rows"]
+__all__ = ["FAIL_LEVELS", "SCHEMA", "SCHEMA_VERSION", "DriftReport", "bin_rows", "suppress_bins"]
 
 SCHEMA = "infoscope-drift"
 SCHEMA_VERSION = 1
@@ -66,6 +66,54 @@ def bin_rows(labels, reference_counts, current_counts, *, pseudocount: float = 0
     return [{"label": str(lab), "reference": int(x), "current": int(y), "reference_share": float(es),
              "current_share": float(cs), "contribution": float(max(v, 0.0))}
             for lab, x, y, es, cs, v in zip(labels, r, c, e, a, contribution)]
+
+
+def suppress_bins(bins: list[dict], min_count: int) -> list[dict]:
+    """Hide small counts of one column's bins (and the cells that would give them back).
+
+    A count ``1 .. min_count - 1`` on either side is hidden (``None``) with its
+    share and the symbol's contribution to PSI; when a side has exactly one hidden
+    cell, its next smallest non-zero count is hidden too, so that the total (the
+    column's ``n``) cannot give the small one back (common practice in official
+    statistics: primary and complementary suppression).
+
+    Parameters
+    ----------
+    bins : list of dict
+        Rows of :func:`bin_rows`.
+    min_count : int
+        Smallest count shown.
+
+    Returns
+    -------
+    list of dict
+        New rows; each gains ``"hidden"``: ``None``, ``"small"`` or ``"complement"``.
+
+    References
+    ----------
+    .. [1] Hundepool, A. et al. (2012). Statistical Disclosure Control. Wiley, ch. 4
+       (cell suppression in tables).
+
+    Examples
+    --------
+    >>> rows = suppress_bins(bin_rows(["a", "b", "c"], [50, 40, 30], [3, 40, 30]), 5)
+    >>> [(r["current"], r["hidden"]) for r in rows]
+    [(None, 'small'), (40, None), (None, 'complement')]
+    """
+    out = [dict(b, hidden=None) for b in bins]
+    for side in ("reference", "current"):
+        small = [i for i, b in enumerate(out) if 0 < (b[side] or 0) < min_count]
+        if len(small) == 1:
+            others = [i for i, b in enumerate(out) if i not in small and (b[side] or 0) > 0]
+            if others:
+                small.append(min(others, key=lambda i: (out[i][side], i)))
+                out[small[-1]]["hidden"] = "complement"
+        for i in small:
+            out[i]["hidden"] = out[i]["hidden"] or "small"
+            out[i][side] = None
+            out[i][f"{side}_share"] = None
+            out[i]["contribution"] = None
+    return out
 
 
 def _plain(value):
@@ -170,8 +218,14 @@ class DriftReport:
         flags = set(self.columns["flag"])
         return "major" if "major" in flags else "moderate" if "moderate" in flags else "stable"
 
-    def to_dict(self) -> dict:
+    def to_dict(self, *, min_count: int | None = None) -> dict:
         """The record as plain Python (the JSON schema ``infoscope-drift`` version 1).
+
+        Parameters
+        ----------
+        min_count : int, optional
+            Hide per-symbol counts below this in ``bins`` (:func:`suppress_bins`);
+            the record says so in ``settings["min_count"]``.
 
         Returns
         -------
@@ -192,7 +246,10 @@ class DriftReport:
 
         columns = _records(self.columns) or []
         for row in columns:
-            row["bins"] = self.bins.get(row["column"])
+            bins = self.bins.get(row["column"])
+            if bins is not None and min_count:
+                bins = suppress_bins(bins, int(min_count))
+            row["bins"] = bins
         by_flag = {flag: self.columns.loc[self.columns["flag"] == flag, "column"].astype(str).tolist()
                    for flag in DRIFT_FLAGS}
         return {
@@ -201,7 +258,7 @@ class DriftReport:
             "infoscope_version": __version__,
             "reference": {"name": self.reference_name, "rows": int(self.reference_rows)},
             "current": {"name": self.current_name, "rows": int(self.current_rows)},
-            "settings": _plain(dict(self.settings)),
+            "settings": _plain({**self.settings, "min_count": min_count}),
             "units": dict(self.units),
             "level": float(self.settings.get("level", TEST_LEVEL)),
             "flags": dict(DRIFT_FLAGS),
@@ -213,13 +270,15 @@ class DriftReport:
             "notes": list(self.notes),
         }
 
-    def to_json(self, *, indent: int | None = 2) -> str:
+    def to_json(self, *, indent: int | None = 2, min_count: int | None = None) -> str:
         """The record as JSON text (strict JSON: no NaN, no Infinity).
 
         Parameters
         ----------
         indent : int or None, default=2
             Indentation (None: one line).
+        min_count : int, optional
+            As in :meth:`to_dict`.
 
         Returns
         -------
@@ -235,4 +294,5 @@ class DriftReport:
         >>> DriftReport(pd.DataFrame({"column": ["a"], "flag": ["stable"]})).to_json(indent=None)[:40]
         '{"schema": "infoscope-drift", "version":'
         """
-        return json.dumps(self.to_dict(), indent=indent, allow_nan=False, ensure_ascii=False)
+        return json.dumps(self.to_dict(min_count=min_count), indent=indent, allow_nan=False,
+                          ensure_ascii=False)

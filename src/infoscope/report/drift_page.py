@@ -64,7 +64,7 @@ def _bins_table(bins) -> str:
             f"{rows}</table>")
 
 
-def drift_page(report, *, title: str | None = None) -> str:
+def drift_page(report, *, title: str | None = None, min_count: int | None = None) -> str:
     """The page of one drift check.
 
     Parameters
@@ -73,6 +73,8 @@ def drift_page(report, *, title: str | None = None) -> str:
         The check (``df.info_profile.drift_report(reference)``).
     title : str, optional
         The page title (default names both frames).
+    min_count : int, optional
+        Hide per-symbol counts below this (and the ones that would give them back).
 
     Returns
     -------
@@ -92,7 +94,7 @@ def drift_page(report, *, title: str | None = None) -> str:
     >>> page = drift_page(r); page.startswith("<!DOCTYPE html>") and "<script" not in page
     True
     """
-    record = report.to_dict()
+    record = report.to_dict(min_count=min_count)
     columns = record["columns"]
     finite = [v for c in columns for v in (c["psi"], c["psi_chance_high"]) if v is not None]
     scale = max([0.3] + [min(v, 3.0) for v in finite])

@@ -34,7 +34,7 @@ from infoscope.views import serialize as ser
 from infoscope.views.choices import check_view_settings, meta, view_settings_from_session
 
 __all__ = ["CORE_PARTS", "FORMAT", "PARTS", "SETTINGS_TRAITS", "VIEW_TRAITS", "DATA_TRAITS", "TOP_PAIRS",
-           "payload", "view_data", "top_pairs"]
+           "drift_data", "payload", "view_data", "top_pairs"]
 
 FORMAT = "infoscope-profile/1"
 #: The data parts a view can ask for.
@@ -49,7 +49,7 @@ SETTINGS_TRAITS = ("bins", "strategy", "estimator", "alpha", "measure", "unit", 
 VIEW_TRAITS = ("selected_column", "selected_pair", "alpha_fdr", "sort_by")
 #: The data parts as trait names (kernel -> view).
 DATA_TRAITS = ("_view", "_entropy", "_grid_meta", "_grid_values", "_grid_n", "_grid_q",
-               "_grid_reliability", "_pair", "_relevance", "_selection", "_surprising", "_meta", "_status")
+               "_grid_reliability", "_pair", "_relevance", "_selection", "_surprising", "_meta", "_status", "_drift")
 #: Pair views precomputed into a payload for a page without a kernel.
 TOP_PAIRS = 12
 #: Control values a view starts from where the session has no setting for them.
@@ -227,9 +227,50 @@ def _pair_view(session, a: str, b: str, unit: str, min_count, generation: int) -
                          generation=generation)
 
 
+def drift_data(session, reference, *, min_count=None, pairs: bool = True, generation: int = 0) -> dict:
+    """The drift part of a view: the record of ``session.drift_report(reference)``.
+
+    Parameters
+    ----------
+    session : ProfileSession
+        The profile (the batch).
+    reference : DataFrame
+        The frame it is compared with.
+    min_count : int, optional
+        Per-symbol counts below this are hidden in the bins (with the ones that
+        would give them back).
+    pairs : bool, default=True
+        Include relationship drift (every pair of comparable columns).
+    generation : int, default=0
+        Stamped on the part.
+
+    Returns
+    -------
+    dict
+        The ``infoscope-drift`` record (``docs/drift-json.md``) plus ``"generation"``:
+        one bar per column (``psi``, chance band up to ``psi_chance_high``), its
+        ``bins`` (both distributions and each symbol's share of PSI), the pairs
+        that moved, the flags' legend.
+
+    References
+    ----------
+    .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (PSI bands, common practice).
+
+    Examples
+    --------
+    >>> from infoscope.frame.session import ProfileSession
+    >>> s = ProfileSession(pd.DataFrame({"a": list("xyxy") * 10, "b": list("xxyy") * 10}), n_boot=0)
+    >>> d = drift_data(s, pd.DataFrame({"a": list("xy") * 30, "b": list("yx") * 30}))
+    >>> d["schema"], [c["flag"] for c in d["columns"]]
+    ('infoscope-drift', ['stable', 'stable'])
+    """
+    report = session.drift_report(reference, pairs=pairs)
+    return {**report.to_dict(min_count=min_count or None), "generation": int(generation)}
+
+
 def payload(session, settings: Mapping | None = None, *, min_count=None, top_pairs: int = TOP_PAIRS,
             view: str = "profile", generation: int = 0, status: Mapping | None = None,
-            parts=PARTS) -> dict:
+            parts=PARTS, reference=None) -> dict:
     """Every view's data of a profile as one JSON-able dict (see the module docstring).
 
     Parameters
@@ -257,6 +298,8 @@ def payload(session, settings: Mapping | None = None, *, min_count=None, top_pai
     parts : iterable of str, default=PARTS
         The data parts to build (the static picture needs only :data:`CORE_PARTS`;
         ``selection`` runs permutation tests and costs seconds on a large frame).
+    reference : DataFrame, optional
+        A reference frame: adds the ``_drift`` part (:func:`drift_data`; None without one).
 
     Returns
     -------
@@ -311,8 +354,11 @@ def payload(session, settings: Mapping | None = None, *, min_count=None, top_pai
         cache = {}
         for a, b in dict.fromkeys(tuple(p) for p in wanted):
             cache[a + "\u0000" + b] = _pair_view(session, a, b, unit, threshold or None, generation)
+        drift = None if reference is None else drift_data(session, reference, min_count=threshold or None,
+                                                          generation=generation)
     notes = sorted({f"{w.category.__name__}: {w.message}" for w in caught})
     state.update(data)
+    state["_drift"] = drift
     state["_view"] = view
     state["_meta"] = meta(session)
     state["_status"] = dict(status) if status is not None else {
