@@ -49,7 +49,8 @@ SETTINGS_TRAITS = ("bins", "strategy", "estimator", "alpha", "measure", "unit", 
 VIEW_TRAITS = ("selected_column", "selected_pair", "alpha_fdr", "sort_by")
 #: The data parts as trait names (kernel -> view).
 DATA_TRAITS = ("_view", "_entropy", "_grid_meta", "_grid_values", "_grid_n", "_grid_q",
-               "_grid_reliability", "_pair", "_relevance", "_selection", "_surprising", "_meta", "_status", "_drift")
+               "_grid_reliability", "_pair", "_relevance", "_selection", "_surprising", "_meta", "_status",
+               "_drift")
 #: Pair views precomputed into a payload for a page without a kernel.
 TOP_PAIRS = 12
 #: Control values a view starts from where the session has no setting for them.
