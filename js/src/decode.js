@@ -22,6 +22,8 @@ export function bytesOf(x) {
 export function asFloat32(x) { const b = bytesOf(x); return new Float32Array(b.buffer, 0, Math.floor(b.byteLength / 4)); }
 export function asInt32(x) { const b = bytesOf(x); return new Int32Array(b.buffer, 0, Math.floor(b.byteLength / 4)); }
 
+export function asUint8(x) { return bytesOf(x); }
+
 export function parseJSON(text) {
   if (text == null || text === "") return null;
   if (typeof text === "object") return text;

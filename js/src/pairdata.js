@@ -32,9 +32,11 @@ export function choosePair(selected, live, cache) {
   return { view: live.a != null ? live : null, pending: true, wanted: selected };
 }
 
-// Expected counts under independence, r_i c_j / n, from the margins; null when the
-// margins are not shown (a view with hidden cells drops them on purpose).
+// Expected counts under independence, r_i c_j / n: the kernel's `expected` when it
+// sent them, else from the margins; null when neither is shown (a view with hidden
+// cells drops both on purpose: they would give the hidden counts back).
 export function expectedCounts(view) {
+  if (view && Array.isArray(view.expected) && view.expected.length) return view.expected; // the kernel's own
   const r = view && view.row_totals, c = view && view.col_totals;
   if (!Array.isArray(r) || !Array.isArray(c)) return null;
   const n = r.reduce((s, v) => s + (v || 0), 0);
@@ -58,4 +60,18 @@ export function maxAbs(m) {
   let top = 0;
   for (const row of m || []) for (const v of row || []) if (v != null && Number.isFinite(v)) top = Math.max(top, Math.abs(v));
   return top || 1;
+}
+
+// The test behind a pair's p-value, in words: the method, its size and its
+// Monte-Carlo error where it has one.
+export function testWords(view) {
+  const m = view && view.p_method;
+  if (m === "permutation") {
+    const n = Number.isFinite(view.n_permutations) ? view.n_permutations.toLocaleString("en-US") : "?";
+    const err = Number.isFinite(view.p_error) && view.p_error > 0 ? `, Monte-Carlo error of p \u00b1${Number(view.p_error.toPrecision(2))}` : "";
+    return `permutation test, ${n} shuffles${err}`;
+  }
+  if (m === "chi2") return "G-test against chi-square (Williams' correction)";
+  if (m === "none") return "no test: nothing to compare";
+  return "";
 }

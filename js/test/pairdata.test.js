@@ -49,3 +49,12 @@ test("an empty cell where many rows were expected is the most surprising cell", 
   assert.equal(maxAbs(z2), Math.abs(z2[0][0]));
   assert.equal(maxAbs([[null]]), 1);
 });
+
+test("the kernel's expected counts are used when sent; the test is said in words", async () => {
+  const { testWords } = await import("../src/pairdata.js");
+  assert.deepEqual(expectedCounts({ ...view, expected: [[1, 2, 3], [4, 5, 6]] })[1], [4, 5, 6]);
+  assert.equal(testWords({ p_method: "permutation", n_permutations: 9999, p_error: 0.00312 }),
+    "permutation test, 9,999 shuffles, Monte-Carlo error of p \u00b10.0031");
+  assert.match(testWords({ p_method: "chi2" }), /Williams/);
+  assert.equal(testWords({}), "");
+});

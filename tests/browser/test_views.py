@@ -48,14 +48,15 @@ window.ResizeObserver = class extends Native {
 <body style="margin:16px;background:var(--jp-layout-color0,#fff)">
 <div id="app" style="max-width:1240px"></div>
 <script type="module">
-import widget, { modelFromPayload } from "/profile.js";
+import widget, { modelFromPayload, SEQUENTIAL } from "/profile.js";
+window.__SEQ = SEQUENTIAL;
 const { render } = widget();
 const data = await (await fetch("/payloads.json")).json();
 window.__pwned = false;
 window.__saves = [];
 window.__sent = [];
 const SETTINGS = ["bins", "strategy", "estimator", "alpha", "measure", "unit", "missing", "target", "min_count", "column_bins"];
-const DATA = ["_entropy", "_grid_meta", "_grid_values", "_grid_n", "_grid_q", "_pair", "_relevance", "_meta"];
+const DATA = ["_entropy", "_grid_meta", "_grid_values", "_grid_n", "_grid_q", "_grid_reliability", "_pair", "_relevance", "_meta"];
 function decode(state, binary) {
   const out = { ...state };
   for (const k of binary || []) {
@@ -68,7 +69,7 @@ function decode(state, binary) {
 // the same grid in the reverse column order (values moved with their names)
 function reverseGrid(st) {
   const names = st._grid_meta.names, n = names.length;
-  for (const [k, Arr] of [["_grid_values", Float32Array], ["_grid_n", Int32Array], ["_grid_q", Float32Array]]) {
+  for (const [k, Arr] of [["_grid_values", Float32Array], ["_grid_n", Int32Array], ["_grid_q", Float32Array], ["_grid_reliability", Uint8Array]]) {
     const src = new Arr(st[k].buffer.slice(0)), out = new Arr(n * n);
     for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) out[i * n + j] = src[(n - 1 - i) * n + (n - 1 - j)];
     st[k] = new DataView(out.buffer);
@@ -648,3 +649,49 @@ def test_grid_keeps_its_column_order_while_the_slider_moves(harness, web, artifa
     said = page.text_content(".isc-tip").replace("\u2068", "").replace("\u2069", "")
     assert said.startswith(f"{state[0]} \u00d7 {state[1]}"), said[:80]
     assert web.page_errors == []
+
+
+GRID_READ = """() => {
+  const c = document.querySelector('.isc-grid canvas'), m = window.__model;
+  const meta = m.get('_grid_meta'), n = meta.names.length;
+  const dec = (k, A) => { const dv = m.get(k); return new A(dv.buffer.slice(dv.byteOffset, dv.byteOffset + dv.byteLength)); };
+  const v = dec('_grid_values', Float32Array), q = dec('_grid_q', Float32Array), r = dec('_grid_reliability', Uint8Array);
+  const cell = +c.dataset.cell, off = +c.dataset.offset, dpr = window.devicePixelRatio || 1;
+  const g = c.getContext('2d');
+  let max = 0; for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) if (i !== j && Number.isFinite(v[i*n+j])) max = Math.max(max, v[i*n+j]);
+  const out = [];
+  for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) {
+    if (i === j) continue;
+    // a corner of the cell (the centre may hold the dot of 'too few rows')
+    const px = g.getImageData(Math.round((off + j * cell + 2) * dpr), Math.round((off + i * cell + 2) * dpr), 1, 1).data;
+    const full = window.__SEQ.at(Math.sqrt(Math.max(0, v[i*n+j]) / max));
+    out.push({ state: meta.reliability_states[r[i*n+j]], q: q[i*n+j], pixel: [px[0], px[1], px[2]], full });
+  }
+  return { cells: out, alpha: meta.alpha };
+}"""
+
+
+def test_grid_colours_only_findings_and_its_legend_says_so(harness, web, artifacts):
+    page = harness()
+    page.wait_for_timeout(150)
+    got = page.evaluate(GRID_READ)
+    kinds = {"finding": 0, "muted": 0, "grey": 0}
+    for c in got["cells"]:
+        same = all(abs(a - b) <= 2 for a, b in zip(c["pixel"], c["full"]))
+        if c["state"] == "too_few":
+            assert c["pixel"] == [240, 239, 235], c
+            kinds["grey"] += 1
+        elif c["state"] == "ok" and c["q"] < got["alpha"]:
+            assert same, c
+            kinds["finding"] += 1
+        else:  # sparse, or not significant: never drawn in the full colour of a finding
+            assert not same or all(v > 225 for v in c["full"]), c
+            kinds["muted"] += 1
+    assert all(kinds.values()), kinds  # the demo frame has all three
+    legend = page.text_content(".isc-grid .isc-legend")
+    assert "not significant" in legend and "few rows per cell" in legend and "too few rows to tell" in legend
+    assert "136 pairs" in legend
+    # the pair view says which test gave its p-value and how far its table can be trusted
+    note = page.text_content(".isc-pair .isc-testline")
+    assert "shuffles" in note or "chi-square" in note
+    page.locator(".isc-grid").screenshot(path=str(artifacts / "grid-findings.png"))

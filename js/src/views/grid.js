@@ -1,11 +1,12 @@
 // The information grid: every pair's measure as a canvas heat map, with labels,
 // a keyboard cursor (arrow keys move, Enter opens the pair) and a legend.
 import { h, iso } from "../dom.js";
-import { asFloat32, asInt32 } from "../decode.js";
+import { asFloat32, asInt32, asUint8 } from "../decode.js";
 import { amount, count, num, pWords } from "../format.js";
 import { SEQUENTIAL, gridT, mute } from "../scales.js";
 import { cellAt as cellUnder, fitText, gridLayout, reorderSquare } from "../layout.js";
 import { HAS_UNIT, MEASURE_LABELS, MEASURE_SHORT, ORDER_LABELS } from "../vocabulary.js";
+import { cellReading } from "../gridcells.js";
 import { select } from "../controls.js";
 
 export function gridView(ctx) {
@@ -19,9 +20,13 @@ export function gridView(ctx) {
   const legendMin = h("span"), legendMax = h("span");
   const mutedSw = h("span", { class: "isc-swatch" });
   const mutedText = h("span");
+  const fewSw = h("span", { class: "isc-swatch isc-swatch-few" });
+  const fewText = h("span");
+  const countsText = h("span", { class: "isc-paircounts" });
   const legend = h("div", { class: "isc-legend" }, h("span", null, legendMin, " ", legendBar, " ", legendMax),
-    h("span", null, mutedSw, mutedText), h("span", null, h("span", { class: "isc-swatch", style: { background: "linear-gradient(135deg,#fff 45%,#c9c4b8 45% 55%,#fff 55%)" } }), "a column with itself"),
-    h("span", null, "colour ∝ √ value"));
+    h("span", null, mutedSw, mutedText), h("span", null, fewSw, fewText),
+    h("span", null, h("span", { class: "isc-swatch", style: { background: "linear-gradient(135deg,#fff 45%,#c9c4b8 45% 55%,#fff 55%)" } }), "a column with itself"),
+    h("span", null, "colour \u221d \u221a value; full colour only for findings"), countsText);
   const held = h("span", { class: "isc-held", role: "note" });
   const memory = ctx.memory || {};
   el.append(h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Information grid"), unitEl, held, order.el), wrap, legend, live);
@@ -32,21 +37,26 @@ export function gridView(ctx) {
     const meta = ctx.get("_grid_meta") || {};
     let names = meta.names || [];
     let values = asFloat32(ctx.get("_grid_values")), n = asInt32(ctx.get("_grid_n")), q = asFloat32(ctx.get("_grid_q"));
+    let rel = asUint8(ctx.get("_grid_reliability"));
+    if (rel.length !== values.length) rel = null; // a kernel without reliability codes
     // while a control is being moved the columns keep the order on screen, so cells
     // do not jump under the pointer; the new order comes when the control is let go
     held.textContent = "";
     if (ctx.hold.active() && st.names.length === names.length && st.names.join("\u0000") !== names.join("\u0000")) {
       const keep = st.names;
-      const moved = [reorderSquare(values, names, keep), reorderSquare(n, names, keep), reorderSquare(q, names, keep)];
-      if (moved.every(Boolean)) {
-        [values, n, q] = moved;
+      const moved = [reorderSquare(values, names, keep), reorderSquare(n, names, keep), reorderSquare(q, names, keep),
+        rel ? reorderSquare(rel, names, keep) : null];
+      if (moved.slice(0, 3).every(Boolean)) {
+        [values, n, q, rel] = moved;
         names = keep;
         held.textContent = "order kept while a control moves";
       }
     }
     st.names = names;
     st.size = st.names.length;
-    st.values = values; st.n = n; st.q = q;
+    st.values = values; st.n = n; st.q = q; st.rel = rel;
+    st.states = meta.reliability_states || ["ok", "sparse", "too_few"];
+    st.counts = meta.pair_counts || null;
     st.alpha = ctx.get("alpha_fdr") ?? meta.alpha ?? 0.05;
     st.measure = meta.measure || ctx.get("measure") || "mi";
     st.unit = meta.unit || ctx.unit();
@@ -75,18 +85,26 @@ export function gridView(ctx) {
     Object.assign(st, gridLayout({ avail, size: st.size, labelWidth: widest }));
   }
 
+  function reading(i, j) {
+    const k = i * st.size + j;
+    return cellReading({ value: st.values[k], q: st.q[k], alpha: st.alpha, state: st.rel ? st.states[st.rel[k]] : null });
+  }
+
   function colourAt(i, j) {
-    const k = i * st.size + j, v = st.values[k];
     if (i === j) return [255, 255, 255];
-    if (!Number.isFinite(v)) return [240, 239, 235];
-    const c = SEQUENTIAL.at(gridT(v, st.max));
-    return st.q[k] < st.alpha ? c : mute(c);
+    const r = reading(i, j);
+    if (r.kind === "unknown" || r.kind === "too_few") return [240, 239, 235];
+    const c = SEQUENTIAL.at(gridT(st.values[i * st.size + j], st.max));
+    return r.kind === "finding" ? c : mute(c);
   }
 
   function draw() {
     load();
     unitEl.textContent = st.size ? `${MEASURE_LABELS[st.measure] || st.measure}${HAS_UNIT[st.measure] ? `, ${st.unit}` : ", unit-free"}${st.measure === "vi" ? " (a distance: 0 = same information)" : ""}` : "";
-    mutedText.textContent = `not significant (BH q \u2265 ${num(st.alpha)})`;
+    mutedText.textContent = `muted: not significant (BH q \u2265 ${num(st.alpha)}) or few rows per cell (under 5 on average)`;
+    fewText.textContent = "grey with a dot: too few rows to tell anything";
+    const c = st.counts;
+    countsText.textContent = c && c.pairs ? `${count(c.pairs)} pairs: ${count(c.sparse || 0)} with few rows per cell, ${count(c.too_few || 0)} with too few rows${c.permutation ? `; ${count(c.permutation)} tested by shuffling` : ""}` : "";
     const mc = mute(SEQUENTIAL.at(0.6));
     mutedSw.style.background = `rgb(${mc.join(",")})`;
     order.sync();
@@ -108,6 +126,14 @@ export function gridView(ctx) {
       const [r, gg, b] = colourAt(i, j);
       g.fillStyle = `rgb(${r},${gg},${b})`;
       g.fillRect(st.mx + j * st.cell, st.my + i * st.cell, st.cell - gap, st.cell - gap);
+    }
+    if (st.cell >= 6 && st.rel) { // too few rows to tell: a dot in the grey cell
+      g.fillStyle = "#8c8a84";
+      const rad = Math.max(1, Math.min(2.5, st.cell / 8));
+      for (let i = 0; i < st.size; i++) for (let j = 0; j < st.size; j++) {
+        if (i === j || reading(i, j).kind !== "too_few") continue;
+        g.beginPath(); g.arc(st.mx + j * st.cell + (st.cell - gap) / 2, st.my + i * st.cell + (st.cell - gap) / 2, rad, 0, 2 * Math.PI); g.fill();
+      }
     }
     if (st.cell >= 6) { // the diagonal: a column with itself, struck through
       g.strokeStyle = "#c9c4b8"; g.lineWidth = 1;
@@ -162,11 +188,11 @@ export function gridView(ctx) {
   function describe(i, j) {
     const k = i * st.size + j, a = st.names[i], b = st.names[j];
     if (i === j) return [iso(a), "a column with itself (its own entropy)"];
-    const q = st.q[k];
+    const r = reading(i, j);
     return [`${iso(a)} \u00d7 ${iso(b)}`,
       `${MEASURE_SHORT[st.measure] || st.measure} = ${amount(st.values[k])}${HAS_UNIT[st.measure] ? ` ${st.unit}` : ""}`,
       `n = ${count(st.n[k])} rows with both present`,
-      `${pWords("q", q)} ${q < st.alpha ? "(significant after BH)" : "(not significant after BH)"}`];
+      `${pWords("q", st.q[k])}: ${r.text}`];
   }
 
   function open(i, j) {

@@ -5,7 +5,8 @@
 import { h, clear, iso, nameEl } from "../dom.js";
 import { amount, count, expectedWords, num, pShort, signed } from "../format.js";
 import { DIVERGING, PAPER, inkOn } from "../scales.js";
-import { choosePair, expectedCounts, maxAbs, residuals } from "../pairdata.js";
+import { choosePair, expectedCounts, maxAbs, residuals, testWords } from "../pairdata.js";
+import { RELIABILITY_HELP } from "../vocabulary.js";
 
 export function pairFor(ctx) { // the view to show for selected_pair, in its orientation
   return choosePair(ctx.get("selected_pair"), ctx.get("_pair"), ctx.get("_pair_cache"));
@@ -61,6 +62,9 @@ export function pairView(ctx) {
       stat("MI", `${amount(view.mi)} ${unit}`), stat("NMI", amount(view.nmi)),
       stat("G", view.g == null ? "\u2014" : `${num(view.g, 4)} (dof ${count(view.dof)})`), stat("p", pShort(view.p_value)),
       stat("n", count(view.n))));
+    const how = testWords(view);
+    const rel = RELIABILITY_HELP[view.reliability];
+    if (how || rel) holder.append(h("div", { class: "isc-note isc-testline" }, how ? `p from a ${how}.` : null, rel ? ` ${rel}` : null));
     // colour: the standardised residual where the margins are shown (an empty cell
     // where many rows were expected is the most surprising); else pointwise MI
     const resid = residuals(view);

@@ -2,6 +2,7 @@
 // pairs that are not findings (not significant, or too few rows per cell) are muted.
 import { h, clear, iso, nameEl, tipOnFocus } from "../dom.js";
 import { keepFocus } from "../memory.js";
+import { testWords } from "../pairdata.js";
 import { parseJSON, table } from "../decode.js";
 import { amount, axisPct, count, levelText, niceMax, num, pct, pWords, ticks, val } from "../format.js";
 import { RELIABILITY_HELP, RELIABILITY_WORDS, reliabilityOf } from "../vocabulary.js";
@@ -67,6 +68,7 @@ export function relevanceView(ctx) {
           ["I(", nameEl(r.column), "; ", nameEl(data.target), `) = ${amount(r.mi)} ${unit}  (${level}: ${amount(r.ci_low)} \u2013 ${amount(r.ci_high)})`],
           `share of the target's entropy ${pct(r.share_of_target)} \u00b7 NMI ${amount(r.nmi)}`,
           `${pWords("p", r.p_value)}, ${pWords("q", r.q_value)} \u00b7 n = ${count(r.n)}`,
+          testWords(r) ? `p from a ${testWords(r)}` : null,
           RELIABILITY_HELP[rel] ? `\u25b8 ${RELIABILITY_HELP[rel]}` : null,
           !sig ? "\u25b8 Not significant after Benjamini\u2013Hochberg: as much as chance alone gives." : null,
           r.leakage ? "\u25b8 May leak the target: it nearly determines the target; check it is not derived from it." : null].filter(Boolean), ev.clientX, ev.clientY),

@@ -147,6 +147,9 @@ function asInt32(x) {
   const b = bytesOf(x);
   return new Int32Array(b.buffer, 0, Math.floor(b.byteLength / 4));
 }
+function asUint8(x) {
+  return bytesOf(x);
+}
 function parseJSON(text) {
   if (text == null || text === "") return null;
   if (typeof text === "object") return text;
@@ -751,6 +754,15 @@ function reorderSquare(values, names, order) {
   return out;
 }
 
+// src/gridcells.js
+function cellReading({ value, q, alpha = 0.05, state = null }) {
+  if (value == null || !Number.isFinite(value)) return { kind: "unknown", text: "not computed" };
+  if (state === "too_few") return { kind: "too_few", text: "too few rows to tell anything: not a finding" };
+  if (state === "sparse") return { kind: "sparse", text: "few rows per cell (under 5 on average): muted, read as rough" };
+  if (!(q < alpha)) return { kind: "not_significant", text: "not significant after BH: as much as chance gives" };
+  return { kind: "finding", text: "significant after BH" };
+}
+
 // src/views/grid.js
 function gridView(ctx) {
   const el = h("section", { class: "isc-panel isc-grid", "aria-label": "information grid" });
@@ -763,13 +775,18 @@ function gridView(ctx) {
   const legendMin = h("span"), legendMax = h("span");
   const mutedSw = h("span", { class: "isc-swatch" });
   const mutedText = h("span");
+  const fewSw = h("span", { class: "isc-swatch isc-swatch-few" });
+  const fewText = h("span");
+  const countsText = h("span", { class: "isc-paircounts" });
   const legend = h(
     "div",
     { class: "isc-legend" },
     h("span", null, legendMin, " ", legendBar, " ", legendMax),
     h("span", null, mutedSw, mutedText),
+    h("span", null, fewSw, fewText),
     h("span", null, h("span", { class: "isc-swatch", style: { background: "linear-gradient(135deg,#fff 45%,#c9c4b8 45% 55%,#fff 55%)" } }), "a column with itself"),
-    h("span", null, "colour ∝ √ value")
+    h("span", null, "colour ∝ √ value; full colour only for findings"),
+    countsText
   );
   const held = h("span", { class: "isc-held", role: "note" });
   const memory = ctx.memory || {};
@@ -779,12 +796,19 @@ function gridView(ctx) {
     const meta = ctx.get("_grid_meta") || {};
     let names = meta.names || [];
     let values = asFloat32(ctx.get("_grid_values")), n = asInt32(ctx.get("_grid_n")), q = asFloat32(ctx.get("_grid_q"));
+    let rel = asUint8(ctx.get("_grid_reliability"));
+    if (rel.length !== values.length) rel = null;
     held.textContent = "";
     if (ctx.hold.active() && st.names.length === names.length && st.names.join("\0") !== names.join("\0")) {
       const keep = st.names;
-      const moved = [reorderSquare(values, names, keep), reorderSquare(n, names, keep), reorderSquare(q, names, keep)];
-      if (moved.every(Boolean)) {
-        [values, n, q] = moved;
+      const moved = [
+        reorderSquare(values, names, keep),
+        reorderSquare(n, names, keep),
+        reorderSquare(q, names, keep),
+        rel ? reorderSquare(rel, names, keep) : null
+      ];
+      if (moved.slice(0, 3).every(Boolean)) {
+        [values, n, q, rel] = moved;
         names = keep;
         held.textContent = "order kept while a control moves";
       }
@@ -794,6 +818,9 @@ function gridView(ctx) {
     st.values = values;
     st.n = n;
     st.q = q;
+    st.rel = rel;
+    st.states = meta.reliability_states || ["ok", "sparse", "too_few"];
+    st.counts = meta.pair_counts || null;
     st.alpha = ctx.get("alpha_fdr") ?? meta.alpha ?? 0.05;
     st.measure = meta.measure || ctx.get("measure") || "mi";
     st.unit = meta.unit || ctx.unit();
@@ -819,17 +846,24 @@ function gridView(ctx) {
     if (st.size && st.size <= 80) for (const n of st.names) widest = Math.max(widest, g.measureText(n).width);
     Object.assign(st, gridLayout({ avail, size: st.size, labelWidth: widest }));
   }
+  function reading(i, j) {
+    const k = i * st.size + j;
+    return cellReading({ value: st.values[k], q: st.q[k], alpha: st.alpha, state: st.rel ? st.states[st.rel[k]] : null });
+  }
   function colourAt(i, j) {
-    const k = i * st.size + j, v = st.values[k];
     if (i === j) return [255, 255, 255];
-    if (!Number.isFinite(v)) return [240, 239, 235];
-    const c = SEQUENTIAL.at(gridT(v, st.max));
-    return st.q[k] < st.alpha ? c : mute(c);
+    const r = reading(i, j);
+    if (r.kind === "unknown" || r.kind === "too_few") return [240, 239, 235];
+    const c = SEQUENTIAL.at(gridT(st.values[i * st.size + j], st.max));
+    return r.kind === "finding" ? c : mute(c);
   }
   function draw() {
     load();
     unitEl.textContent = st.size ? `${MEASURE_LABELS[st.measure] || st.measure}${HAS_UNIT[st.measure] ? `, ${st.unit}` : ", unit-free"}${st.measure === "vi" ? " (a distance: 0 = same information)" : ""}` : "";
-    mutedText.textContent = `not significant (BH q ≥ ${num(st.alpha)})`;
+    mutedText.textContent = `muted: not significant (BH q ≥ ${num(st.alpha)}) or few rows per cell (under 5 on average)`;
+    fewText.textContent = "grey with a dot: too few rows to tell anything";
+    const c = st.counts;
+    countsText.textContent = c && c.pairs ? `${count(c.pairs)} pairs: ${count(c.sparse || 0)} with few rows per cell, ${count(c.too_few || 0)} with too few rows${c.permutation ? `; ${count(c.permutation)} tested by shuffling` : ""}` : "";
     const mc = mute(SEQUENTIAL.at(0.6));
     mutedSw.style.background = `rgb(${mc.join(",")})`;
     order.sync();
@@ -857,6 +891,16 @@ function gridView(ctx) {
       const [r, gg, b] = colourAt(i, j);
       g.fillStyle = `rgb(${r},${gg},${b})`;
       g.fillRect(st.mx + j * st.cell, st.my + i * st.cell, st.cell - gap, st.cell - gap);
+    }
+    if (st.cell >= 6 && st.rel) {
+      g.fillStyle = "#8c8a84";
+      const rad = Math.max(1, Math.min(2.5, st.cell / 8));
+      for (let i = 0; i < st.size; i++) for (let j = 0; j < st.size; j++) {
+        if (i === j || reading(i, j).kind !== "too_few") continue;
+        g.beginPath();
+        g.arc(st.mx + j * st.cell + (st.cell - gap) / 2, st.my + i * st.cell + (st.cell - gap) / 2, rad, 0, 2 * Math.PI);
+        g.fill();
+      }
     }
     if (st.cell >= 6) {
       g.strokeStyle = "#c9c4b8";
@@ -918,12 +962,12 @@ function gridView(ctx) {
   function describe(i, j) {
     const k = i * st.size + j, a = st.names[i], b = st.names[j];
     if (i === j) return [iso(a), "a column with itself (its own entropy)"];
-    const q = st.q[k];
+    const r = reading(i, j);
     return [
       `${iso(a)} × ${iso(b)}`,
       `${MEASURE_SHORT[st.measure] || st.measure} = ${amount(st.values[k])}${HAS_UNIT[st.measure] ? ` ${st.unit}` : ""}`,
       `n = ${count(st.n[k])} rows with both present`,
-      `${pWords("q", q)} ${q < st.alpha ? "(significant after BH)" : "(not significant after BH)"}`
+      `${pWords("q", st.q[k])}: ${r.text}`
     ];
   }
   function open(i, j) {
@@ -1042,6 +1086,7 @@ function choosePair(selected, live, cache) {
   return { view: live.a != null ? live : null, pending: true, wanted: selected };
 }
 function expectedCounts(view) {
+  if (view && Array.isArray(view.expected) && view.expected.length) return view.expected;
   const r = view && view.row_totals, c = view && view.col_totals;
   if (!Array.isArray(r) || !Array.isArray(c)) return null;
   const n = r.reduce((s, v) => s + (v || 0), 0);
@@ -1057,6 +1102,17 @@ function maxAbs(m) {
   let top = 0;
   for (const row of m || []) for (const v of row || []) if (v != null && Number.isFinite(v)) top = Math.max(top, Math.abs(v));
   return top || 1;
+}
+function testWords(view) {
+  const m = view && view.p_method;
+  if (m === "permutation") {
+    const n = Number.isFinite(view.n_permutations) ? view.n_permutations.toLocaleString("en-US") : "?";
+    const err = Number.isFinite(view.p_error) && view.p_error > 0 ? `, Monte-Carlo error of p ±${Number(view.p_error.toPrecision(2))}` : "";
+    return `permutation test, ${n} shuffles${err}`;
+  }
+  if (m === "chi2") return "G-test against chi-square (Williams' correction)";
+  if (m === "none") return "no test: nothing to compare";
+  return "";
 }
 
 // src/views/pair.js
@@ -1112,6 +1168,9 @@ function pairView(ctx) {
       stat("p", pShort(view.p_value)),
       stat("n", count(view.n))
     ));
+    const how = testWords(view);
+    const rel = RELIABILITY_HELP[view.reliability];
+    if (how || rel) holder.append(h("div", { class: "isc-note isc-testline" }, how ? `p from a ${how}.` : null, rel ? ` ${rel}` : null));
     const resid = residuals(view);
     const E = expectedCounts(view);
     const shade = resid || view.pmi || [];
@@ -1295,6 +1354,7 @@ function relevanceView(ctx) {
           ["I(", nameEl(r.column), "; ", nameEl(data.target), `) = ${amount(r.mi)} ${unit}  (${level}: ${amount(r.ci_low)} – ${amount(r.ci_high)})`],
           `share of the target's entropy ${pct(r.share_of_target)} · NMI ${amount(r.nmi)}`,
           `${pWords("p", r.p_value)}, ${pWords("q", r.q_value)} · n = ${count(r.n)}`,
+          testWords(r) ? `p from a ${testWords(r)}` : null,
           RELIABILITY_HELP[rel] ? `▸ ${RELIABILITY_HELP[rel]}` : null,
           !sig ? "▸ Not significant after Benjamini–Hochberg: as much as chance alone gives." : null,
           r.leakage ? "▸ May leak the target: it nearly determines the target; check it is not derived from it." : null
