@@ -118,6 +118,7 @@ export function gridView(ctx) {
     canvas.width = Math.round(W * dpr); canvas.height = Math.round(H * dpr);
     canvas.style.width = `${W}px`; canvas.style.height = `${H}px`;
     canvas.dataset.cell = String(st.cell); canvas.dataset.offset = String(st.mx); // for tests and tools
+    if (st.size <= 200) canvas.dataset.order = JSON.stringify(st.names); else delete canvas.dataset.order;
     const g = canvas.getContext("2d");
     g.setTransform(dpr, 0, 0, dpr, 0, 0);
     g.clearRect(0, 0, W, H);

@@ -883,6 +883,8 @@ function gridView(ctx) {
     canvas.style.height = `${H}px`;
     canvas.dataset.cell = String(st.cell);
     canvas.dataset.offset = String(st.mx);
+    if (st.size <= 200) canvas.dataset.order = JSON.stringify(st.names);
+    else delete canvas.dataset.order;
     const g = canvas.getContext("2d");
     g.setTransform(dpr, 0, 0, dpr, 0, 0);
     g.clearRect(0, 0, W, H);
