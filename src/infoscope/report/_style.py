@@ -22,6 +22,9 @@ PALETTE = {
     "major": "#a8401a",
     "id_like": "#b9b4a8",       # drift by construction (identifiers), neutral
     "time_axis": "#cfc9bb",     # drift by construction (another period), neutral
+    "within_chance": "#c9d6de", # PSI in a band, but chance explains it
+    "type_changed": "#d5d3cc",  # not compared
+    "chance": "#e6e2d6",        # the band sampling alone reaches (drift)
 }
 
 SAMPLE_CAUTION = "Estimates from a sample; whiskers are confidence intervals."

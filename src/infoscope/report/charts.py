@@ -273,7 +273,8 @@ def drift_chart(table: pd.DataFrame, *, width: int = 360) -> alt.LayerChart:
     Returns
     -------
     altair.LayerChart
-        Bars of PSI coloured by the drift flag, with rules at 0.10 and 0.25.
+        Bars of PSI coloured by the drift flag, with rules at 0.10 and 0.25 and,
+        when the table has it, the chance band (``psi_chance_high``) behind each bar.
 
     References
     ----------
@@ -289,9 +290,19 @@ def drift_chart(table: pd.DataFrame, *, width: int = 360) -> alt.LayerChart:
     >>> drift_chart(t).to_dict()["layer"][0]["mark"]["type"]
     'bar'
     """
-    data = alt.Data(values=rec.drift_records(table))
+    from infoscope.frame.results import DRIFT_FLAGS
+
+    records = rec.drift_records(table)
+    data = alt.Data(values=records)
     base = alt.Chart(data)
-    flags = ["stable", "moderate", "major", "id_like", "time_axis"]
+    flags = list(DRIFT_FLAGS)
+    layers = []
+    if records and "psi_chance_high" in records[0]:
+        # the band sampling alone reaches at these sizes (its 95 % point), behind the bar
+        layers.append(base.mark_bar(height={"band": 0.9}, color=PALETTE["chance"]).encode(
+            y=alt.Y("column:N", sort=alt.EncodingSortField(field="psi", order="descending"), title=None),
+            x=alt.X("psi_chance_high:Q", title="PSI"),
+            tooltip=[alt.Tooltip("psi_chance_high:Q", format=".3f", title="chance (95 %)")]))
     bars = base.mark_bar(height={"band": 0.6}).encode(
         y=alt.Y("column:N", sort=alt.EncodingSortField(field="psi", order="descending"), title=None,
                 axis=alt.Axis(labelLimit=180)),
@@ -303,8 +314,11 @@ def drift_chart(table: pd.DataFrame, *, width: int = 360) -> alt.LayerChart:
                  alt.Tooltip("p_value:Q", format=".3g", title="p"), alt.Tooltip("flag:N", title="drift")])
     marks = alt.Chart(alt.Data(values=[{"psi": 0.10}, {"psi": 0.25}])).mark_rule(
         strokeDash=[4, 3], color=PALETTE["outline"]).encode(x="psi:Q")
-    return alt.layer(bars, marks).properties(
-        width=width, title=alt.Title("Drift", subtitle=["Dashed rules: PSI 0.10 and 0.25 (rules of thumb)."]))
+    subtitle = ["Dashed rules: PSI 0.10 and 0.25 (rules of thumb)."]
+    if layers:
+        subtitle.append("Grey: the PSI sampling alone reaches at these sizes (95 %).")
+    return alt.layer(*layers, bars, marks).properties(
+        width=width, title=alt.Title("Drift", subtitle=subtitle))
 
 
 def _strongest_pair(session) -> tuple[str, str] | None:

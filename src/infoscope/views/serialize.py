@@ -337,12 +337,17 @@ def relevance_records(table: pd.DataFrame) -> list[dict]:
 DRIFT_FIELDS = ("column", "kind", "k", "n", "n_reference", "psi", "kl", "js", "p_value", "flag")
 
 
+#: Chance-level fields of a drift table, carried when present (tables made before them lack them).
+DRIFT_CHANCE_FIELDS = ("psi_chance", "psi_chance_high", "q_value", "new_share")
+
+
 def drift_records(table: pd.DataFrame) -> list[dict]:
-    """One record per column of a ``drift(reference)`` table (``DRIFT_FIELDS``)."""
+    """One record per column of a ``drift(reference)`` table (``DRIFT_FIELDS``, plus ``DRIFT_CHANCE_FIELDS``)."""
     require(table, DRIFT_FIELDS, "the drift table")
+    fields = list(DRIFT_FIELDS) + [f for f in DRIFT_CHANCE_FIELDS if f in table.columns]
     out = []
-    for row in table.loc[:, list(DRIFT_FIELDS)].itertuples(index=False):
-        rec = {f: scalar(v) for f, v in zip(DRIFT_FIELDS, row)}
+    for row in table.loc[:, fields].itertuples(index=False):
+        rec = {f: scalar(v) for f, v in zip(fields, row)}
         rec["column"] = str(row.column)
         out.append(rec)
     return out
