@@ -42,7 +42,10 @@ def free_port() -> int:
 class LabServer:
     """``with LabServer(root, work) as lab: lab.url("notebook.ipynb")``."""
 
-    def __init__(self, root: Path, work: Path, *, startup_timeout: float = 120.0):
+    def __init__(self, root: Path, work: Path, *, startup_timeout: float = 120.0, app: str = "lab"):
+        if app not in ("lab", "notebook"):
+            raise ValueError(f"app must be 'lab' (JupyterLab) or 'notebook' (Notebook 7), got {app!r}")
+        self.app = app
         self.root = Path(root)
         self.work = Path(work)
         self.port = free_port()
@@ -70,13 +73,18 @@ class LabServer:
 
     def start(self) -> "LabServer":
         self.work.mkdir(parents=True, exist_ok=True)
-        cmd = [sys.executable, "-m", "jupyterlab", "--no-browser",
-               f"--ServerApp.ip=127.0.0.1", f"--ServerApp.port={self.port}",
-               "--ServerApp.port_retries=0", "--ServerApp.allow_root=True",
-               f"--IdentityProvider.token={self.token}", f"--ServerApp.root_dir={self.root}",
-               "--LabApp.expose_app_in_browser=True", "--LabApp.news_url=",
-               "--LabApp.check_for_updates_class=jupyterlab.NeverCheckForUpdate",
-               "--LabApp.extension_manager=readonly", "--ServerApp.terminals_enabled=False"]
+        common = [f"--ServerApp.ip=127.0.0.1", f"--ServerApp.port={self.port}",
+                  "--ServerApp.port_retries=0", "--ServerApp.allow_root=True",
+                  f"--IdentityProvider.token={self.token}", f"--ServerApp.root_dir={self.root}",
+                  "--ServerApp.terminals_enabled=False"]
+        if self.app == "lab":
+            cmd = [sys.executable, "-m", "jupyterlab", "--no-browser", *common,
+                   "--LabApp.expose_app_in_browser=True", "--LabApp.news_url=",
+                   "--LabApp.check_for_updates_class=jupyterlab.NeverCheckForUpdate",
+                   "--LabApp.extension_manager=readonly"]
+        else:  # Notebook 7 (the notebook package), the same page helpers work on it
+            cmd = [sys.executable, "-m", "notebook", "--no-browser", *common,
+                   "--JupyterNotebookApp.expose_app_in_browser=True"]
         log = open(self.log_path, "wb")
         self.process = subprocess.Popen(cmd, env=self._env(), stdout=log, stderr=subprocess.STDOUT,
                                         cwd=str(self.root), start_new_session=True)
@@ -127,6 +135,8 @@ class LabServer:
         return f"http://127.0.0.1:{self.port}"
 
     def url(self, notebook: str) -> str:
+        if self.app == "notebook":
+            return f"{self.base}/notebooks/{notebook}?token={self.token}"
         return f"{self.base}/lab/tree/{notebook}?token={self.token}&reset"
 
 
