@@ -62,3 +62,35 @@ def test_accessor_is_registered():
     import pandas as pd
 
     assert hasattr(pd.DataFrame({"a": [1]}), "info_profile")
+
+
+def _reference_sections():
+    """(where, body) of every References section of every docstring in the package."""
+    import ast
+
+    src = Path(infoscope.__file__).resolve().parent
+    for path in sorted(src.rglob("*.py")):
+        tree = ast.parse(path.read_text(encoding="utf-8"))
+        for node in ast.walk(tree):
+            if not isinstance(node, (ast.Module, ast.FunctionDef, ast.AsyncFunctionDef, ast.ClassDef)):
+                continue
+            doc = ast.get_docstring(node)
+            if not doc or "\nReferences\n---" not in doc:
+                continue
+            body = doc.split("\nReferences\n", 1)[1].split("\n", 1)[1]
+            body = re.split(r"\n\S[^\n]*\n-{3,}\n", body, maxsplit=1)[0].strip()  # up to the next section
+            yield f"{path.relative_to(src)}:{getattr(node, 'name', '<module>')}", body
+
+
+def test_references_are_numbered_and_name_a_source():
+    # a References section only where a published source or a standard is followed:
+    # numbered entries (``.. [1] ...``), none of which is our own documentation
+    problems = []
+    for where, body in _reference_sections():
+        entries = [line for line in body.splitlines() if line and not line.startswith(" ")]
+        if not entries or not all(re.match(r"\.\. \[\d+\] ", line) for line in entries):
+            problems.append(f"{where}: entries not numbered: {body[:60]!r}")
+        own = [e for e in entries if re.match(r"\.\. \[\d+\] (DEVELOPERS\.md|docs/|None\b|No published)", e)]
+        if own:
+            problems.append(f"{where}: cites no published source: {own[0][:60]!r}")
+    assert not problems, "\n".join(problems)

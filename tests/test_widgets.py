@@ -507,11 +507,11 @@ def test_public_widgets_have_numpydoc(name):
     import infoscope.widgets as widgets
 
     doc = inspect.getdoc(getattr(widgets, name))
-    for section in ("Parameters", "Returns", "References", "Examples"):
+    for section in ("Parameters", "Returns", "Examples"):
         assert f"\n{section}\n---" in doc, f"{name} lacks {section}"
     for method in ("payload", "wait", "cancel", "picture_svg"):
         doc = inspect.getdoc(getattr(getattr(widgets, name), method))
-        for section in ("Returns", "References", "Examples"):
+        for section in ("Returns", "Examples"):
             assert f"\n{section}\n---" in doc, f"{name}.{method} lacks {section}"
 
 

@@ -76,10 +76,6 @@ class InfoProfileAccessor:
         -------
         ProfileSession
 
-        References
-        ----------
-        .. [1] DEVELOPERS.md, "ProfileSession" (the contract).
-
         Examples
         --------
         >>> import pandas as pd

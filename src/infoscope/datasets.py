@@ -264,11 +264,6 @@ def make_deliveries(n: int = 50_000, seed=0) -> pd.DataFrame:
     lateness model is a logistic regression with the coefficients written in this
     module; the leak is exact (``compensation_eur > 0`` if and only if ``late``).
 
-    References
-    ----------
-    None: invented data for demonstrations.  The kg-to-lb factor 2.20462 is common
-    practice (1 lb = 0.45359237 kg by definition).
-
     Examples
     --------
     >>> from infoscope.datasets import make_deliveries, PLANTED
@@ -317,11 +312,6 @@ def make_deliveries_batch(n: int = 20_000, seed=1, *, drift: bool = True) -> pd.
         The same 17 columns as :func:`make_deliveries`; ``parcel_ref`` continues
         after the reference's last identifier.
 
-    References
-    ----------
-    None: invented data.  The PSI thresholds 0.10 / 0.25 quoted above are common
-    practice in credit scoring (e.g. Siddiqi 2006, *Credit Risk Scorecards*, Wiley).
-
     Examples
     --------
     >>> from infoscope.datasets import make_deliveries, make_deliveries_batch
@@ -365,10 +355,6 @@ def make_wide(n: int = 100_000, p: int = 50, seed=0, *, missing_share: float = 0
     -------
     pandas.DataFrame
         ``n`` rows and ``p`` columns (float64 and pandas Categorical).
-
-    References
-    ----------
-    None: invented data for benchmarks.
 
     Examples
     --------

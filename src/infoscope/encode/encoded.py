@@ -31,10 +31,6 @@ def codes_dtype(k: int) -> np.dtype:
         ``uint8`` when ``k + 1 <= 256``, else ``uint16`` when ``k + 1 <= 65536``,
         else ``uint32``.
 
-    References
-    ----------
-    .. [1] DEVELOPERS.md, "EncodedColumn".
-
     Examples
     --------
     >>> codes_dtype(255), codes_dtype(256)

@@ -239,10 +239,6 @@ class PairEngine:
             When the name, codes or ``k`` are unusable, or the row count differs from
             the other columns'. The message names the column.
 
-        References
-        ----------
-        .. [1] DEVELOPERS.md, "Engine" (the contract this implements).
-
         Examples
         --------
         >>> import numpy as np
@@ -296,10 +292,6 @@ class PairEngine:
         -------
         None
 
-        References
-        ----------
-        .. [1] DEVELOPERS.md, "Engine".
-
         Examples
         --------
         >>> import numpy as np
@@ -328,10 +320,6 @@ class PairEngine:
         -------
         numpy.ndarray
             int64 of shape ``(k,)`` (read-only).
-
-        References
-        ----------
-        .. [1] DEVELOPERS.md, "Engine".
 
         Examples
         --------
@@ -365,7 +353,7 @@ class PairEngine:
 
         References
         ----------
-        .. [1] DEVELOPERS.md, "Engine"; Agresti, A. (2013). *Categorical Data
+        .. [1] Agresti, A. (2013). *Categorical Data
            Analysis*, 3rd ed., Wiley, sec. 2.1.
 
         Examples
@@ -391,10 +379,6 @@ class PairEngine:
         -------
         dict
             ``{(a, b): table}``, int64 tables of shape ``(k_a, k_b)``, in the order asked.
-
-        References
-        ----------
-        .. [1] DEVELOPERS.md, "Engine".
 
         Examples
         --------

@@ -160,10 +160,6 @@ class SharedAlphabet:
         numpy.ndarray
             int64, length ``k`` (rows left out are not counted).
 
-        References
-        ----------
-        None.
-
         Examples
         --------
         >>> import pandas as pd
@@ -436,10 +432,6 @@ def check_reference_rows(reference: dict) -> int:
     ValueError
         When the reference has fewer than :data:`MIN_REFERENCE_ROWS` rows.
 
-    References
-    ----------
-    None.
-
     Examples
     --------
     >>> import pandas as pd
@@ -579,10 +571,6 @@ def counts_row(al: SharedAlphabet, ref_counts, cur_counts, *, new_share: float, 
     dict
         The keys of ``DRIFT_COLUMNS``; numbers NaN when a side has no rows.
 
-    References
-    ----------
-    None (see :func:`drift_table`).
-
     Examples
     --------
     >>> import numpy as np, pandas as pd
@@ -691,10 +679,6 @@ def axis_flag(al: SharedAlphabet, current: pd.Series, reference: pd.Series) -> s
     -------
     str
         ``"id_like"``, ``"time_axis"`` or ``""``.
-
-    References
-    ----------
-    None.
 
     Examples
     --------

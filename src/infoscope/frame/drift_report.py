@@ -197,10 +197,6 @@ class DriftReport:
         list of str
             Column keys, in table order.
 
-        References
-        ----------
-        None.
-
         Examples
         --------
         >>> r = DriftReport(pd.DataFrame({"column": ["a", "b"], "flag": ["moderate", "stable"]}))
@@ -231,10 +227,6 @@ class DriftReport:
         -------
         dict
             See ``docs/drift-json.md``; NaN is ``None``.
-
-        References
-        ----------
-        None.
 
         Examples
         --------

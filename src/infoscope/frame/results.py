@@ -186,10 +186,6 @@ def result_frame(rows: list[dict], columns: tuple[str, ...], **attrs) -> pd.Data
     -------
     pandas.DataFrame
 
-    References
-    ----------
-    .. [1] DEVELOPERS.md, "Result tables".
-
     Examples
     --------
     >>> result_frame([{"a": 1, "b": 2}], ("b", "a"), unit="bits").attrs
@@ -282,8 +278,8 @@ class PairTable:
             ``a`` and ``b``; ``kinds`` holds 0 shown, 1 small, 2 complementary),
             or ``hidden=None`` when no cell is hidden.
 
-        References
-        ----------
+        Notes
+        -----
         Threshold rules with complementary (secondary) suppression are common
         practice in official statistics for tables of counts.
 

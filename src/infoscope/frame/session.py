@@ -208,10 +208,6 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
         EncodedColumn
             Codes, alphabet size, labels, kind, flags (DEVELOPERS.md, contracts).
 
-        References
-        ----------
-        .. [1] DEVELOPERS.md, "EncodedColumn".
-
         Examples
         --------
         >>> import pandas as pd
@@ -227,10 +223,6 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
         -------
         list of str
             In frame order.
-
-        References
-        ----------
-        .. [1] DEVELOPERS.md, "EncodedColumn" (``edges``).
 
         Examples
         --------
@@ -256,10 +248,6 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
         -------
         set of str
             Keys of the columns that were re-encoded (their pairs are recounted).
-
-        References
-        ----------
-        .. [1] DEVELOPERS.md, "ProfileSession" (the incremental path).
 
         Examples
         --------
@@ -314,10 +302,6 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
         Returns
         -------
         None
-
-        References
-        ----------
-        .. [1] DEVELOPERS.md, "ProfileSession" (``set_column_bins``).
 
         Examples
         --------

@@ -57,8 +57,8 @@ def complement_label() -> str:
         A middle dot; the accompanying note and aria label say
         "hidden to protect a small cell".
 
-    References
-    ----------
+    Notes
+    -----
     Marking secondary (complementary) suppressions apart from primary ones is
     common practice in official statistics.
 
@@ -83,8 +83,8 @@ def suppressed_label(min_count: int) -> str:
     str
         ``"<"`` followed by the threshold.
 
-    References
-    ----------
+    Notes
+    -----
     Showing a symbol in place of a suppressed count is common practice in official
     statistics.
 
@@ -109,8 +109,8 @@ def check_min_count(min_count) -> int | None:
     int or None
         The threshold, or ``None`` when nothing is to be hidden.
 
-    References
-    ----------
+    Notes
+    -----
     Hiding counts below a threshold (often 5 or 10) before publishing a table is
     common practice in official statistics.
 
@@ -150,8 +150,8 @@ def suppression_mask(counts, min_count) -> np.ndarray:
     numpy.ndarray of bool, same shape as ``counts``
         ``True`` where the cell must be hidden.
 
-    References
-    ----------
+    Notes
+    -----
     Threshold rules with complementary (secondary) suppression are common practice
     in official statistics for tables of counts.
 
@@ -276,8 +276,8 @@ def suppression_kinds(counts, min_count, previous=None) -> np.ndarray:
         ``VISIBLE`` (0) for a shown cell, ``SMALL`` (1) for ``0 < count < min_count``
         and ``COMPLEMENTARY`` (2) for a cell hidden only to protect a small one.
 
-    References
-    ----------
+    Notes
+    -----
     Primary and complementary (secondary) suppression of tables of counts is
     common practice in official statistics.
 

@@ -45,8 +45,8 @@ def entropy_chart(table: pd.DataFrame, *, min_count=None, width: int = 360) -> a
 
     References
     ----------
-    Shannon, C. E. (1948). A mathematical theory of communication. *Bell System
-    Technical Journal* 27, 379-423 (entropy and its maximum, log K).
+    .. [1] Shannon, C. E. (1948). A mathematical theory of communication. *Bell System
+       Technical Journal* 27, 379-423 (entropy and its maximum, log K).
 
     Examples
     --------
@@ -110,8 +110,8 @@ def grid_chart(matrix: pd.DataFrame, *, measure: str | None = None, unit: str | 
 
     References
     ----------
-    Cover, T. M. & Thomas, J. A. (2006). *Elements of Information Theory*, 2nd ed.,
-    Wiley, ch. 2 (mutual information).
+    .. [1] Cover, T. M. & Thomas, J. A. (2006). *Elements of Information Theory*, 2nd ed.,
+       Wiley, ch. 2 (mutual information).
 
     Examples
     --------
@@ -161,8 +161,8 @@ def pair_chart(pair, *, min_count=None, unit: str = "bits", cell: int = 28) -> a
 
     References
     ----------
-    Church, K. W. & Hanks, P. (1990). Word association norms, mutual information,
-    and lexicography. *Computational Linguistics* 16(1), 22-29 (pointwise MI).
+    .. [1] Church, K. W. & Hanks, P. (1990). Word association norms, mutual information,
+       and lexicography. *Computational Linguistics* 16(1), 22-29 (pointwise MI).
 
     Examples
     --------
@@ -225,8 +225,8 @@ def relevance_chart(table: pd.DataFrame, *, target: str | None = None, width: in
 
     References
     ----------
-    Cover, T. M. & Thomas, J. A. (2006). *Elements of Information Theory*, 2nd ed.,
-    Wiley, ch. 2 (I(X;Y) <= H(Y)).
+    .. [1] Cover, T. M. & Thomas, J. A. (2006). *Elements of Information Theory*, 2nd ed.,
+       Wiley, ch. 2 (I(X;Y) <= H(Y)).
 
     Examples
     --------
@@ -278,8 +278,8 @@ def drift_chart(table: pd.DataFrame, *, width: int = 360) -> alt.LayerChart:
 
     References
     ----------
-    Siddiqi, N. (2006). *Credit Risk Scorecards*. Wiley (population stability index;
-    the 0.10 / 0.25 thresholds are practitioners' folklore, from memory).
+    .. [1] Siddiqi, N. (2006). *Credit Risk Scorecards*. Wiley (population stability index;
+       the 0.10 / 0.25 thresholds are practitioners' folklore, from memory).
 
     Examples
     --------
@@ -354,8 +354,8 @@ def profile_charts(session, *, reference=None, pair: tuple[str, str] | None = No
 
     References
     ----------
-    Satyanarayan, A., Moritz, D., Wongsuphasawat, K. & Heer, J. (2017). Vega-Lite:
-    A grammar of interactive graphics. *IEEE TVCG* 23(1), 341-350.
+    .. [1] Satyanarayan, A., Moritz, D., Wongsuphasawat, K. & Heer, J. (2017). Vega-Lite:
+       A grammar of interactive graphics. *IEEE TVCG* 23(1), 341-350.
 
     Examples
     --------
@@ -397,7 +397,7 @@ def chart_to_svg(chart) -> str:
 
     References
     ----------
-    vl-convert (the ``vl_convert`` Python package): Vega-Lite to SVG/PNG without a browser.
+    .. [1] vl-convert (the ``vl_convert`` Python package): Vega-Lite to SVG/PNG without a browser.
 
     Examples
     --------
@@ -429,7 +429,7 @@ def chart_to_png(chart, *, scale: float = 2.0) -> bytes:
 
     References
     ----------
-    vl-convert (the ``vl_convert`` Python package): Vega-Lite to SVG/PNG without a browser.
+    .. [1] vl-convert (the ``vl_convert`` Python package): Vega-Lite to SVG/PNG without a browser.
 
     Examples
     --------

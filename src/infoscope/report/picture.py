@@ -49,8 +49,8 @@ def svg_text(value, limit: int | None = None) -> str:
 
     References
     ----------
-    W3C (2008). Extensible Markup Language (XML) 1.0, 5th ed., sections 2.2
-    (allowed characters) and 2.4 (character data and markup).
+    .. [1] W3C (2008). Extensible Markup Language (XML) 1.0, 5th ed., sections 2.2
+       (allowed characters) and 2.4 (character data and markup).
 
     Examples
     --------
@@ -139,7 +139,7 @@ def profile_svg_from_tables(entropy: pd.DataFrame, matrix: pd.DataFrame | None =
 
     References
     ----------
-    W3C (2011). Scalable Vector Graphics (SVG) 1.1, 2nd ed.
+    .. [1] W3C (2011). Scalable Vector Graphics (SVG) 1.1, 2nd ed.
 
     Examples
     --------
@@ -279,7 +279,7 @@ def profile_svg(session, *, max_columns: int = 40, min_count=None) -> str:
 
     References
     ----------
-    W3C (2011). Scalable Vector Graphics (SVG) 1.1, 2nd ed.
+    .. [1] W3C (2011). Scalable Vector Graphics (SVG) 1.1, 2nd ed.
 
     Examples
     --------
@@ -317,7 +317,7 @@ def profile_svg_from_payload(data: dict, *, max_columns: int = 40) -> str:
 
     References
     ----------
-    W3C (2011). Scalable Vector Graphics (SVG) 1.1, 2nd ed.
+    .. [1] W3C (2011). Scalable Vector Graphics (SVG) 1.1, 2nd ed.
 
     Examples
     --------
@@ -370,7 +370,7 @@ def svg_data_uri(svg: str) -> str:
 
     References
     ----------
-    Masinter, L. (1998). RFC 2397: The "data" URL scheme. IETF.
+    .. [1] Masinter, L. (1998). RFC 2397: The "data" URL scheme. IETF.
 
     Examples
     --------

@@ -35,10 +35,6 @@ def control_choices() -> dict[str, list[str]]:
         ``strategy`` (the binning strategies, then the bin-count rules),
         ``estimator``, ``measure``, ``unit``, ``missing``, ``order``, ``sort_by``.
 
-    References
-    ----------
-    No published source: the lists are those of :data:`infoscope.frame.settings.CHOICES`.
-
     Examples
     --------
     >>> control_choices()["unit"]
@@ -64,10 +60,6 @@ def view_settings_from_session(settings: Mapping) -> dict:
         ``strategy`` holds a bin rule when ``bins`` is one (a rule sets the bin
         count), else ``bins`` and ``strategy``; ``estimator``, ``measure``,
         ``missing``, ``target``, ``alpha`` when set; ``unit`` from ``base``.
-
-    References
-    ----------
-    No published source (a mapping between two of our own setting names).
 
     Examples
     --------
@@ -112,10 +104,6 @@ def session_settings(view: Mapping, *, sample=None) -> dict:
     ValueError
         For a unit the views do not offer (the session takes any base; the
         controls show three).
-
-    References
-    ----------
-    No published source (a mapping between two of our own setting names).
 
     Examples
     --------
@@ -180,10 +168,6 @@ def meta(session, n_rows: int | None = None) -> dict:
     dict
         ``names``, ``n_rows``, ``sampled``, ``choices`` (:func:`control_choices`),
         ``bin_rules``, ``version``.
-
-    References
-    ----------
-    No published source.
 
     Examples
     --------

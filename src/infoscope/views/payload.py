@@ -143,10 +143,6 @@ def view_data(session, parts, *, order: str = "cluster", alpha_fdr: float = 0.05
         chosen here; ``_top_pairs`` with the grid) and the result tables used
         (``entropy``, ``pairs``, ``matrix``, ``relevance``).
 
-    References
-    ----------
-    No published source: the numbers are those of the session's result tables.
-
     Examples
     --------
     >>> from infoscope.frame.session import ProfileSession
@@ -307,11 +303,6 @@ def payload(session, settings: Mapping | None = None, *, min_count=None, top_pai
     dict
         ``{"format", "view", "state", "binary", "pair_cache"}``; ``modelFromPayload``
         of the front-end module turns it into the model ``render({model, el})`` reads.
-
-    References
-    ----------
-    No published source; small-cell suppression of the pair views is common
-    practice in official statistics.
 
     Examples
     --------

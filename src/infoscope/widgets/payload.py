@@ -29,8 +29,8 @@ class Payload:
 
         References
         ----------
-        The model interface (get/set/on/off/save_changes/send) is anywidget's
-        front-end model API (anywidget documentation, "AFM").
+        .. [1] The model interface (get/set/on/off/save_changes/send) is anywidget's
+           front-end model API (anywidget documentation, "AFM").
 
         Examples
         --------

@@ -36,7 +36,7 @@ class StaticPicture:
 
         References
         ----------
-        W3C (2011). Scalable Vector Graphics (SVG) 1.1, 2nd ed.
+        .. [1] W3C (2011). Scalable Vector Graphics (SVG) 1.1, 2nd ed.
 
         Examples
         --------

@@ -232,8 +232,8 @@ class ProfileWidget(_ProfileBase):
 
     References
     ----------
-    Benjamini, Y. & Hochberg, Y. (1995). Controlling the false discovery rate.
-    J. R. Stat. Soc. B 57(1), 289-300 (the q-values that mute grid cells).
+    .. [1] Benjamini, Y. & Hochberg, Y. (1995). Controlling the false discovery rate.
+       J. R. Stat. Soc. B 57(1), 289-300 (the q-values that mute grid cells).
 
     Examples
     --------
@@ -267,8 +267,8 @@ class ProfileWidget(_ProfileBase):
 
         References
         ----------
-        W3C (2016). Content Security Policy Level 2. Small-cell suppression:
-        common practice in official statistics.
+        .. [1] W3C (2016). Content Security Policy Level 2. Small-cell suppression:
+           common practice in official statistics.
 
         Examples
         --------
@@ -299,8 +299,8 @@ class ProfileWidget(_ProfileBase):
 
         References
         ----------
-        Satyanarayan, A., Moritz, D., Wongsuphasawat, K. & Heer, J. (2017).
-        Vega-Lite: A grammar of interactive graphics. IEEE TVCG 23(1), 341-350.
+        .. [1] Satyanarayan, A., Moritz, D., Wongsuphasawat, K. & Heer, J. (2017).
+           Vega-Lite: A grammar of interactive graphics. IEEE TVCG 23(1), 341-350.
 
         Examples
         --------
@@ -329,10 +329,6 @@ class EntropyBarsWidget(_ProfileBase):
     EntropyBarsWidget
         An anywidget; display it in a notebook.
 
-    References
-    ----------
-    Shannon, C. E. (1948). A mathematical theory of communication. Bell Syst. Tech. J. 27.
-
     Examples
     --------
     >>> EntropyBarsWidget(session, sort_by="efficiency")  # doctest: +SKIP
@@ -358,10 +354,6 @@ class InformationGridWidget(_ProfileBase):
     -------
     InformationGridWidget
         An anywidget; display it in a notebook.
-
-    References
-    ----------
-    Benjamini, Y. & Hochberg, Y. (1995). J. R. Stat. Soc. B 57(1), 289-300.
 
     Examples
     --------
@@ -389,11 +381,6 @@ class PairViewWidget(_ProfileBase):
     PairViewWidget
         An anywidget; display it in a notebook.
 
-    References
-    ----------
-    Church, K. W. & Hanks, P. (1990). Word association norms, mutual information,
-    and lexicography. Computational Linguistics 16(1), 22-29 (pointwise MI).
-
     Examples
     --------
     >>> PairViewWidget(session, selected_pair=["depot", "region"], min_count=5)  # doctest: +SKIP
@@ -419,10 +406,6 @@ class RelevanceWidget(_ProfileBase):
     -------
     RelevanceWidget
         An anywidget; display it in a notebook.
-
-    References
-    ----------
-    Shannon, C. E. (1948). Bell Syst. Tech. J. 27 (mutual information).
 
     Examples
     --------

@@ -209,7 +209,7 @@ class Scheduler:
 
         References
         ----------
-        Jupyter widget message protocol, custom messages (ipywidgets documentation).
+        .. [1] Jupyter widget message protocol, custom messages (ipywidgets documentation).
 
         Examples
         --------
@@ -235,10 +235,6 @@ class Scheduler:
         -------
         bool
             True when nothing is pending, False when ``timeout`` passed first.
-
-        References
-        ----------
-        Python documentation, ``threading.Condition.wait``.
 
         Examples
         --------

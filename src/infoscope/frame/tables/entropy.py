@@ -65,8 +65,11 @@ class EntropyTable:
             ci_high, max_entropy, efficiency, effective_categories, flags``:
             ``n`` rows profiled, ``missing`` of them missing; ``entropy`` of the
             non-missing values (missing included as a symbol under
-            ``missing="category"``) with the session's estimator, its percentile
-            bootstrap interval (seeded); ``max_entropy = log K``;
+            ``missing="category"``) with the session's estimator, its bootstrap
+            interval (seeded multinomial resampling of the counts; the centred
+            interval of :func:`infoscope.estimators.resampling.bootstrap_entropy_ci`:
+            the percentile interval shifted by the bootstrap estimate of bias, so
+            it always contains the estimate); ``max_entropy = log K``;
             ``efficiency = entropy / max_entropy``; ``effective_categories =
             base ** entropy`` (the number of equally likely symbols with the same
             entropy; the same number in every unit); ``flags`` comma-separated,
@@ -113,7 +116,8 @@ class EntropyTable:
         .. [1] Shannon, C. E. (1948). A mathematical theory of communication. Bell
            System Technical Journal, 27, 379-423, 623-656.
         .. [2] Efron, B., & Tibshirani, R. J. (1993). An Introduction to the
-           Bootstrap. Chapman & Hall (percentile intervals).
+           Bootstrap. Chapman & Hall, ch. 10 (bias correction) and ch. 13
+           (percentile intervals).
 
         Examples
         --------
