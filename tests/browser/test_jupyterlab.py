@@ -50,6 +50,9 @@ def test_bins_slider_round_trip(lab, web, artifacts):
     page.wait_for_function(f"() => {{ const c = document.querySelector('{GRID}'); return c && c.width > 1; }}")
     before = page.eval_on_selector(GRID, "c => c.toDataURL()")
     assert kernel_exec(page, "print(profile.bins)").strip() == "12"
+    # the static picture beside the live view is kept for shared copies, not shown twice
+    pictures = page.locator(".isc-static")
+    assert pictures.count() >= 1 and not any(pictures.nth(k).is_visible() for k in range(pictures.count()))
     slider = page.locator(f".isc-root {BINS}").first
     slider.scroll_into_view_if_needed()
     slider.fill("5")
