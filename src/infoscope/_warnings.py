@@ -2,13 +2,19 @@
 from __future__ import annotations
 
 import sys
+import threading
 import warnings
+from contextlib import contextmanager
 from pathlib import Path
 
 _PACKAGE = str(Path(__file__).resolve().parent)
 # frames that are never the user's code: infoscope itself, and the context managers
 # infoscope calls through
 _SKIP = (_PACKAGE, str(Path(warnings.__file__).resolve().parent / "contextlib.py"))
+
+
+# per thread: the list that collect_warnings() gathers this thread's warnings into
+_collecting = threading.local()
 
 
 class InfoscopeWarning(UserWarning):
@@ -54,6 +60,10 @@ def warn_user(message: str, category: type[Warning] = DataQualityWarning) -> Non
     >>> caught[0].filename.endswith("_warnings.py")
     False
     """
+    sink = getattr(_collecting, "sink", None)
+    if sink is not None:  # a worker thread collects its own warnings (see collect_warnings)
+        sink.append(warnings.WarningMessage(category(message), category, "", 0))
+        return
     frame = sys._getframe(1)
     level = 2
     while frame is not None and frame.f_code.co_filename.startswith(_SKIP):
@@ -62,3 +72,34 @@ def warn_user(message: str, category: type[Warning] = DataQualityWarning) -> Non
     if frame is None:  # nothing outside infoscope (a worker thread): the outermost frame
         level -= 1
     warnings.warn(message, category, stacklevel=level)
+
+
+@contextmanager
+def collect_warnings():
+    """Gather the warnings infoscope issues in this thread into a list, touching no global state.
+
+    ``warnings.catch_warnings`` swaps the process-wide filters and ``showwarning``;
+    used in a worker thread (the widget's recompute) it swallows or re-raises the
+    warnings of every other thread meanwhile.  This context sends
+    :func:`warn_user`'s warnings of the current thread to a list instead and leaves
+    the ``warnings`` module alone.
+
+    Yields
+    ------
+    list of warnings.WarningMessage
+        Filled while the context is open (``.message``, ``.category``).
+
+    Examples
+    --------
+    >>> with collect_warnings() as caught:
+    ...     warn_user("column 'a': example")
+    >>> [str(w.message) for w in caught]
+    ["column 'a': example"]
+    """
+    previous = getattr(_collecting, "sink", None)
+    sink: list = []
+    _collecting.sink = sink
+    try:
+        yield sink
+    finally:
+        _collecting.sink = previous

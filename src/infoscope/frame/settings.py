@@ -7,10 +7,9 @@ mapping; the widgets derive their controls from these lists.
 from __future__ import annotations
 
 import numbers
-import warnings
 from collections.abc import Mapping
 
-from infoscope._warnings import InfoscopeWarning
+from infoscope._warnings import InfoscopeWarning, warn_user
 from infoscope.encode.binning import BIN_RULES, STRATEGIES
 from infoscope.estimators._checks import check_choice, log_base
 from infoscope.estimators.entropy import ENTROPY_ESTIMATORS, resolve_alpha
@@ -119,9 +118,8 @@ def _check_alpha(s: Mapping, previous: Mapping | None) -> None:
         return
     if previous is not None and previous.get("alpha") == alpha and previous.get("estimator") == s["estimator"]:
         return  # said when it was set
-    warnings.warn(
-        f"alpha={alpha!r} is not used: only estimator='dirichlet' takes a pseudocount, and the "
-        f"estimator is {s['estimator']!r}", InfoscopeWarning, stacklevel=4)
+    warn_user(f"alpha={alpha!r} is not used: only estimator='dirichlet' takes a pseudocount, and the "
+              f"estimator is {s['estimator']!r}", InfoscopeWarning)
 
 
 def _check_bins(bins, parameter: str):

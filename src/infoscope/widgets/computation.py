@@ -1,9 +1,9 @@
 """What one recompute of a profile widget does: apply the settings to the session, ask for the parts."""
 from __future__ import annotations
 
-import warnings
 from typing import Any
 
+from infoscope._warnings import collect_warnings
 from infoscope.views.payload import TOP_PAIRS, view_data
 
 #: Pair views precomputed into ``payload()`` for an offline export.
@@ -21,8 +21,9 @@ class Computation:
             # NSB integrates a posterior per table: say what it will cost before it starts
             self._status = {"state": "computing", "message": nsb_cost_message(s, parts, target=snap["session"].get("target")), "generation": gen,
                             "progress": 0.0, "notes": []}
-        with self._session_lock, warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always")
+        # collect_warnings, not warnings.catch_warnings: this runs in the worker thread,
+        # and catch_warnings would swap the process-wide warning state under the user's code
+        with self._session_lock, collect_warnings() as caught:
             self._step(gen, 0.05, "Encoding columns...")
             s.update(**snap["session"])
             for name in set(self._sent_column_bins) | set(snap["column_bins"]):

@@ -6,7 +6,7 @@ import warnings
 import numpy as np
 import pandas as pd
 
-from infoscope._warnings import DataQualityWarning, warn_user
+from infoscope._warnings import DataQualityWarning, collect_warnings, warn_user
 from infoscope.estimators._checks import unit_name
 from infoscope.frame.drift import align_to_reference, axis_flag, check_reference_rows, drift_table
 from infoscope.frame.keys import as_pandas, column_keys
@@ -343,14 +343,14 @@ class DriftTable:
 
         alphabets: dict = {}
         sides: list = [[], []]
-        with warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always", DataQualityWarning)
+        # collect_warnings (per thread), not catch_warnings: a widget's worker builds this too
+        with collect_warnings() as caught:
             table = self.drift(reference, pseudocount=pseudocount, n_perm=n_perm, null=null,
                                _alphabets=alphabets, _sides=sides)
             pair_table = self.pair_drift(reference) if pairs else None
         notes = []
         for w in caught:  # given back to the caller as they came, and kept in the record
-            warnings.warn_explicit(w.message, w.category, w.filename, w.lineno)
+            warn_user(str(w.message), w.category)
             if issubclass(w.category, DataQualityWarning) and str(w.message) not in notes:
                 notes.append(str(w.message))
         bins = {key: bin_rows(al.labels, al.counts("reference"), al.counts("current"),

@@ -1,0 +1,55 @@
+"""Warnings of a worker thread stay in that thread (the widget recomputes in one)."""
+import threading
+import warnings
+
+import pytest
+
+from infoscope._warnings import DataQualityWarning, collect_warnings, warn_user
+
+
+def test_a_collecting_thread_leaves_the_main_threads_warnings_alone():
+    # warnings.catch_warnings in a worker swaps process-wide state: while it is open,
+    # a warning of the main thread can vanish into the worker's list (Python docs,
+    # "warnings.catch_warnings ... is not thread-safe"). collect_warnings must not.
+    started, stop = threading.Event(), threading.Event()
+    gathered = []
+
+    def worker():
+        with collect_warnings() as caught:
+            started.set()
+            while not stop.is_set():
+                warn_user("column 'w': worker", DataQualityWarning)
+                stop.wait(0.001)
+        gathered.extend(caught)
+
+    t = threading.Thread(target=worker)
+    t.start()
+    started.wait(5)
+    try:
+        for i in range(50):
+            with pytest.warns(DataQualityWarning, match=rf"column 'm': main {i}") as record:
+                warn_user(f"column 'm': main {i}", DataQualityWarning)
+            assert all("worker" not in str(w.message) for w in record)
+    finally:
+        stop.set()
+        t.join(5)
+    assert gathered and all(str(w.message) == "column 'w': worker" for w in gathered)
+    assert all(w.category is DataQualityWarning for w in gathered)
+
+
+def test_collecting_touches_no_global_warning_state():
+    filters, show = list(warnings.filters), warnings.showwarning
+    with collect_warnings() as caught:
+        assert warnings.filters == filters and warnings.showwarning is show
+        warn_user("column 'a': note")
+    assert [str(w.message) for w in caught] == ["column 'a': note"]
+    assert warnings.filters == filters
+
+
+def test_nested_collection_gives_back_the_outer_list():
+    with collect_warnings() as outer:
+        with collect_warnings() as inner:
+            warn_user("column 'a': inner")
+        warn_user("column 'a': outer")
+    assert [str(w.message) for w in inner] == ["column 'a': inner"]
+    assert [str(w.message) for w in outer] == ["column 'a': outer"]
