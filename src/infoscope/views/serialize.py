@@ -267,15 +267,24 @@ def b64(data: bytes) -> str:
 
 
 # ------------------------------------------------------------------ records (charts, picture)
+def _row_records(table: pd.DataFrame, fields, what: str, extra=()) -> list[dict]:
+    """One record per row of a result table: ``fields`` (and the ``extra`` ones present) as
+    JSON scalars, ``column`` as text."""
+    require(table, fields, what)
+    fields = list(fields) + [f for f in extra if f in table.columns]
+    out = []
+    for row in table.loc[:, fields].itertuples(index=False):
+        rec = {f: scalar(v) for f, v in zip(fields, row)}
+        rec["column"] = str(row.column)
+        out.append(rec)
+    return out
+
+
 def entropy_records(table: pd.DataFrame) -> list[dict]:
     """One record per column of an ``entropy()`` table (``ENTROPY_FIELDS``, ``flags`` as text)."""
-    require(table, ENTROPY_FIELDS, "the entropy table")
-    out = []
-    for row in table.loc[:, list(ENTROPY_FIELDS)].itertuples(index=False):
-        rec = {f: scalar(v) for f, v in zip(ENTROPY_FIELDS, row)}
-        rec["column"] = str(row.column)
-        rec["flags"] = str(row.flags or "")
-        out.append(rec)
+    out = _row_records(table, ENTROPY_FIELDS, "the entropy table")
+    for rec, flags in zip(out, table["flags"]):
+        rec["flags"] = str(flags or "")
     return out
 
 
@@ -325,13 +334,7 @@ def pair_records(pair, *, min_count=None) -> dict:
 
 def relevance_records(table: pd.DataFrame) -> list[dict]:
     """One record per column of a ``relevance(target)`` table (``RELEVANCE_FIELDS``)."""
-    require(table, RELEVANCE_FIELDS, "the relevance table")
-    out = []
-    for row in table.loc[:, list(RELEVANCE_FIELDS)].itertuples(index=False):
-        rec = {f: scalar(v) for f, v in zip(RELEVANCE_FIELDS, row)}
-        rec["column"] = str(row.column)
-        out.append(rec)
-    return out
+    return _row_records(table, RELEVANCE_FIELDS, "the relevance table")
 
 
 DRIFT_FIELDS = ("column", "kind", "k", "n", "n_reference", "psi", "kl", "js", "p_value", "flag")
@@ -343,14 +346,7 @@ DRIFT_CHANCE_FIELDS = ("psi_chance", "psi_chance_high", "q_value", "new_share")
 
 def drift_records(table: pd.DataFrame) -> list[dict]:
     """One record per column of a ``drift(reference)`` table (``DRIFT_FIELDS``, plus ``DRIFT_CHANCE_FIELDS``)."""
-    require(table, DRIFT_FIELDS, "the drift table")
-    fields = list(DRIFT_FIELDS) + [f for f in DRIFT_CHANCE_FIELDS if f in table.columns]
-    out = []
-    for row in table.loc[:, fields].itertuples(index=False):
-        rec = {f: scalar(v) for f, v in zip(fields, row)}
-        rec["column"] = str(row.column)
-        out.append(rec)
-    return out
+    return _row_records(table, DRIFT_FIELDS, "the drift table", extra=DRIFT_CHANCE_FIELDS)
 
 
 # ------------------------------------------------------------------ selection and surprising rows
