@@ -151,8 +151,13 @@ def divergence_rows(reference, current, *, pseudocount: float = 0.5) -> dict[str
     with np.errstate(divide="ignore", invalid="ignore"):
         e = (r + a) / (nr + k * a)
         q = (c + a) / (nc + k * a)
-        psi = np.sum(special.rel_entr(q, e) + special.rel_entr(e, q), axis=-1)
-        kl = np.sum(special.rel_entr(q, e), axis=-1)
+        if a > 0:  # every smoothed share is > 0: one log serves PSI and KL
+            log_ratio = np.log(q) - np.log(e)
+            psi = np.sum((q - e) * log_ratio, axis=-1)
+            kl = np.sum(q * log_ratio, axis=-1)
+        else:
+            psi = np.sum(special.rel_entr(q, e) + special.rel_entr(e, q), axis=-1)
+            kl = np.sum(special.rel_entr(q, e), axis=-1)
         pr, pc = r / nr, c / nc
         mid = 0.5 * (pr + pc)
         js = 0.5 * np.sum(special.rel_entr(pr, mid), axis=-1) + 0.5 * np.sum(special.rel_entr(pc, mid), axis=-1)

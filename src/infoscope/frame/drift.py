@@ -549,7 +549,7 @@ def drift_table(current: dict, reference: dict, *, encoding: dict, pseudocount: 
 
 
 def counts_row(al: SharedAlphabet, ref_counts, cur_counts, *, new_share: float, pseudocount: float,
-               ln_base: float, n_perm: int, seed, null: str = "permutation") -> dict:
+               ln_base: float, n_perm: int, seed, null: str = "permutation", refine: bool = True) -> dict:
     """One drift row from the counts of both sides on a column's shared alphabet.
 
     ``flag`` is left ``""`` for :func:`finish_drift_rows` (or ``"type_changed"``
@@ -565,6 +565,9 @@ def counts_row(al: SharedAlphabet, ref_counts, cur_counts, *, new_share: float, 
         The ``new_share`` to report.
     pseudocount, ln_base, n_perm, seed, null
         As in :func:`drift_table` (``ln_base``: natural log of the unit's base).
+    refine : bool, default=True
+        Refine a small p-value with more splits (off for columns that drift by
+        construction: their p-value is not a finding and stays out of the q-values).
 
     Returns
     -------
@@ -597,7 +600,7 @@ def counts_row(al: SharedAlphabet, ref_counts, cur_counts, *, new_share: float, 
         t = drift_chi2_test(ref_counts, cur_counts, pseudocount=pseudocount)
     else:
         t = drift_permutation_test(ref_counts, cur_counts, pseudocount=pseudocount, n_perm=n_perm,
-                                   seed=seed)
+                                   seed=seed, refine=refine)
     row.update(psi=t.psi, psi_chance=t.psi_chance, psi_chance_high=t.psi_chance_high,
                kl=t.kl / ln_base, kl_chance=t.kl_chance / ln_base,
                js=t.js / ln_base, js_chance=t.js_chance / ln_base, p_value=t.p_value)
@@ -609,14 +612,16 @@ def _drift_row(al: SharedAlphabet, current, reference, *, pseudocount, ln_base, 
     if not al.compared:
         return counts_row(al, None, None, new_share=al.new_share, pseudocount=pseudocount,
                           ln_base=ln_base, n_perm=n_perm, seed=seed, null=null)
+    axis = axis_flag(al, current, reference)
     row = counts_row(al, al.counts("reference"), al.counts("current"), new_share=al.new_share,
-                     pseudocount=pseudocount, ln_base=ln_base, n_perm=n_perm, seed=seed, null=null)
+                     pseudocount=pseudocount, ln_base=ln_base, n_perm=n_perm, seed=seed, null=null,
+                     refine=not axis)
     if row["n"] == 0 or row["n_reference"] == 0:
         side = "this frame" if row["n"] == 0 else "the reference"
         warn_user(f"column {al.name!r} has no non-missing values in {side}: its drift is "
                   "undefined (NaN)", DataQualityWarning)
         return row
-    row["flag"] = axis_flag(al, current, reference)
+    row["flag"] = axis
     return row
 
 

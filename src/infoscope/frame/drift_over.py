@@ -223,7 +223,8 @@ def drift_over_table(frame_columns: dict, time_codes: np.ndarray, labels: list, 
                 new_share = float(np.count_nonzero(new_rows[j] & (time_codes == p)) / present)
             row = counts_row(al, ref_counts, cur_counts, new_share=new_share,
                              pseudocount=pseudocount, ln_base=ln_base, n_perm=n_perm,
-                             seed=column_seed(seed, f"{al.name}@{labels[p]}"))
+                             seed=column_seed(seed, f"{al.name}@{labels[p]}"),
+                             refine="id_like" not in al.reference_flags)
             if row["p_value"] == row["p_value"]:
                 if "id_like" in al.reference_flags:
                     row["flag"] = "id_like"
