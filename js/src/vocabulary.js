@@ -22,7 +22,7 @@ export const FLAG_WORDS = {
   constant: "no information", id_like: "near log N", mostly_missing: "mostly missing",
   sparse_cells: "few rows per level", heavy_tail: "long tail", levels_folded: "levels merged",
   mixed_types: "mixed value types", infinite_values: "\u00b1\u221e as missing", rare_levels: "thin levels",
-  exceeds_log_k: "above log K",
+  exceeds_log_k: "above log K", one_bin: "one bin",
 };
 export const FLAG_HELP = {
   constant: "One value only: the column carries no information (H = 0).",
@@ -35,6 +35,7 @@ export const FLAG_HELP = {
   infinite_values: "Infinite values were treated as missing.",
   exceeds_log_k: "The estimate is above log K of the levels seen: the bias correction credits levels not seen, so K is a lower bound of the true alphabet.",
   rare_levels: "Many thin levels (fewer than 5 rows or under 1% each) hold at least 5% of the rows.",
+  one_bin: "The binning rule put every value into one bin: the entropy is 0 by the binning, not by the data, and normalised measures are undefined. Choose more bins or another rule.",
 };
 // a numeric column cut into equal-count (quantile) bins: log K by construction
 export const BY_CONSTRUCTION_WORD = "equal-count bins";

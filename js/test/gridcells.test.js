@@ -12,3 +12,9 @@ test("only significant pairs with enough rows per cell are findings", () => {
   assert.equal(cellReading({ value: 0.2, q: NaN }).kind, "not_significant");
   assert.equal(cellReading({ value: NaN, q: 0.001 }).kind, "unknown");
 });
+
+test("an undefined normalised measure reads as undefined, never as 0 or 1", () => {
+  const r = cellReading({ value: NaN, q: NaN });
+  assert.equal(r.kind, "unknown");
+  assert.match(r.text, /undefined/);
+});

@@ -42,3 +42,10 @@ test("an estimate above log K is marked even without the flag", () => {
   assert.equal(m.overLogK, true);
   assert.equal(entropyMarks({ kind: "text", k: 8, n: 100, missing: 0, entropy: 2.5, max_entropy: 3, flags: "" }).overLogK, false);
 });
+
+test("a column its rule put into one bin says so", () => {
+  const m = entropyMarks({ kind: "numeric", k: 1, n: 500, missing: 0, entropy: 0, max_entropy: 0, flags: "one_bin" }, { strategy: "knuth" });
+  assert.deepEqual(m.words, ["one bin"]);
+  assert.match(m.sentences[0], /by the binning/);
+  assert.equal(m.byConstruction, false);
+});

@@ -703,3 +703,28 @@ def test_grid_colours_only_findings_and_its_legend_says_so(harness, web, artifac
     note = page.text_content(".isc-pair .isc-testline")
     assert "shuffles" in note or "chi-square" in note
     page.locator(".isc-grid").screenshot(path=str(artifacts / "grid-findings.png"))
+
+
+def test_relevance_bars_follow_mi_above_chance_when_sent(harness, web):
+    page = harness()
+    # the relevance record as the intervals work sends it: 'mi_above_chance' after 'mi',
+    # the interval belonging to it (here half of each MI, only to see which one is drawn)
+    page.evaluate("""() => {
+      const m = window.__model, d = JSON.parse(m.get('_relevance'));
+      const at = d.fields.indexOf('mi');
+      d.fields.splice(at + 1, 0, 'mi_above_chance');
+      d.rows = d.rows.map((r) => { const c = r.slice(); c.splice(at + 1, 0, r[at] == null ? null : r[at] / 2); return c; });
+      m.set('_relevance', JSON.stringify(d));
+    }""")
+    page.wait_for_timeout(150)
+    rows = page.locator(".isc-relevance .isc-erow")
+    first = rows.first
+    col = first.get_attribute("data-keep").split(":", 1)[1]
+    data = page.evaluate("JSON.parse(window.__model.get('_relevance'))")
+    row = dict(zip(data["fields"], next(r for r in data["rows"] if r[0] == col)))
+    shown = first.locator(".isc-val").text_content()
+    assert abs(float(shown) - row["mi_above_chance"]) <= 0.01 * max(1e-3, abs(row["mi_above_chance"])) + 5e-4, (shown, row)
+    assert "above chance" in page.text_content(".isc-relevance .isc-punit")
+    first.hover()
+    assert "above chance" in page.text_content(".isc-tip")
+    assert web.page_errors == []

@@ -261,7 +261,8 @@ var FLAG_WORDS = {
   mixed_types: "mixed value types",
   infinite_values: "±∞ as missing",
   rare_levels: "thin levels",
-  exceeds_log_k: "above log K"
+  exceeds_log_k: "above log K",
+  one_bin: "one bin"
 };
 var FLAG_HELP = {
   constant: "One value only: the column carries no information (H = 0).",
@@ -273,7 +274,8 @@ var FLAG_HELP = {
   mixed_types: "The values are of mixed types (e.g. numbers and text).",
   infinite_values: "Infinite values were treated as missing.",
   exceeds_log_k: "The estimate is above log K of the levels seen: the bias correction credits levels not seen, so K is a lower bound of the true alphabet.",
-  rare_levels: "Many thin levels (fewer than 5 rows or under 1% each) hold at least 5% of the rows."
+  rare_levels: "Many thin levels (fewer than 5 rows or under 1% each) hold at least 5% of the rows.",
+  one_bin: "The binning rule put every value into one bin: the entropy is 0 by the binning, not by the data, and normalised measures are undefined. Choose more bins or another rule."
 };
 var BY_CONSTRUCTION_WORD = "equal-count bins";
 var RELIABILITY_WORDS = { ok: "", sparse: "few rows per cell", too_few: "too few rows to tell" };
@@ -756,7 +758,7 @@ function reorderSquare(values, names, order) {
 
 // src/gridcells.js
 function cellReading({ value, q, alpha = 0.05, state = null }) {
-  if (value == null || !Number.isFinite(value)) return { kind: "unknown", text: "not computed" };
+  if (value == null || !Number.isFinite(value)) return { kind: "unknown", text: "undefined or not computed (e.g. a column with no entropy on these rows)" };
   if (state === "too_few") return { kind: "too_few", text: "too few rows to tell anything: not a finding" };
   if (state === "sparse") return { kind: "sparse", text: "few rows per cell (under 5 on average): muted, read as rough" };
   if (!(q < alpha)) return { kind: "not_significant", text: "not significant after BH: as much as chance gives" };
@@ -1274,6 +1276,7 @@ function pairView(ctx) {
 }
 
 // src/views/relevance.js
+var rowsAbove = (data) => Array.isArray(data.fields) && data.fields.includes("mi_above_chance");
 function relevanceView(ctx) {
   const el = h("section", { class: "isc-panel isc-relevance", "aria-label": "relevance" });
   const sub = h("span", { class: "isc-punit" });
@@ -1295,7 +1298,7 @@ function relevanceView(ctx) {
     const unit = data.unit || ctx.unit();
     const level = levelText(data.ci);
     clear(sub);
-    sub.append("mutual information with ", nameEl(data.target), `, ${unit}`);
+    sub.append(rowsAbove(data) ? "mutual information above chance with " : "mutual information with ", nameEl(data.target), `, ${unit}`);
     const alpha = ctx.get("alpha_fdr") || 0.05;
     clear(legend);
     legend.append(
@@ -1309,9 +1312,10 @@ function relevanceView(ctx) {
       h("span", null, h("span", { class: "isc-leakword" }, "may leak the target"), ": carries ≥ 95% of the target's entropy"),
       h("span", null, `├─┤ ${level} interval`)
     );
-    const rows = table(data).sort((a, b) => (b.mi ?? -1) - (a.mi ?? -1));
+    const shown = (r) => Number.isFinite(r.mi_above_chance) ? r.mi_above_chance : r.mi;
+    const rows = table(data).sort((a, b) => (shown(b) ?? -1) - (shown(a) ?? -1));
     let top = 0;
-    for (const r of rows) for (const f of ["mi", "ci_high"]) if (Number.isFinite(r[f])) top = Math.max(top, r[f]);
+    for (const r of rows) for (const v of [shown(r), r.ci_high, r.mi]) if (Number.isFinite(v)) top = Math.max(top, v);
     const max = niceMax(top);
     const x = (v) => axisPct(v, max);
     const tickBox = h("div", { class: "isc-ticks" });
@@ -1329,7 +1333,7 @@ function relevanceView(ctx) {
       const rel = reliabilityOf(r);
       const finding = sig && rel !== "too_few" && rel !== "sparse";
       const track2 = h("span", { class: "isc-track" });
-      if (Number.isFinite(r.mi)) track2.append(h("span", { class: "isc-fill", style: { width: x(r.mi), background: finding ? "var(--isc-bar)" : "var(--isc-bar-muted)" } }));
+      if (Number.isFinite(shown(r))) track2.append(h("span", { class: "isc-fill", style: { width: x(shown(r)), background: finding ? "var(--isc-bar)" : "var(--isc-bar-muted)" } }));
       if (Number.isFinite(r.ci_low) && Number.isFinite(r.ci_high)) {
         track2.append(h("span", { class: "isc-whisk", style: { left: x(r.ci_low), width: `calc(${x(r.ci_high)} - ${x(r.ci_low)})` } }));
       }
@@ -1353,7 +1357,7 @@ function relevanceView(ctx) {
         "aria-label": `${iso(r.column)}: ${amount(r.mi)} ${unit} about ${iso(data.target)}${r.leakage ? ", may leak the target" : ""}${words.length ? `, ${words.join(", ")}` : ""}`,
         onmousemove: (ev) => ctx.tip.show([
           [nameEl(r.column)],
-          ["I(", nameEl(r.column), "; ", nameEl(data.target), `) = ${amount(r.mi)} ${unit}  (${level}: ${amount(r.ci_low)} – ${amount(r.ci_high)})`],
+          Number.isFinite(r.mi_above_chance) ? ["I(", nameEl(r.column), "; ", nameEl(data.target), `) = ${amount(r.mi)} ${unit}; above chance ${amount(r.mi_above_chance)} (${level}: ${amount(r.ci_low)} – ${amount(r.ci_high)})`] : ["I(", nameEl(r.column), "; ", nameEl(data.target), `) = ${amount(r.mi)} ${unit}  (${level}: ${amount(r.ci_low)} – ${amount(r.ci_high)})`],
           `share of the target's entropy ${pct(r.share_of_target)} · NMI ${amount(r.nmi)}`,
           `${pWords("p", r.p_value)}, ${pWords("q", r.q_value)} · n = ${count(r.n)}`,
           testWords(r) ? `p from a ${testWords(r)}` : null,
@@ -1362,7 +1366,7 @@ function relevanceView(ctx) {
           r.leakage ? "▸ May leak the target: it nearly determines the target; check it is not derived from it." : null
         ].filter(Boolean), ev.clientX, ev.clientY),
         onmouseleave: () => ctx.tip.hide()
-      }, h("span", { class: "isc-name" }, nameEl(r.column)), track2, h("span", { class: "isc-val" }, val(r.mi)), notes);
+      }, h("span", { class: "isc-name" }, nameEl(r.column)), track2, h("span", { class: "isc-val" }, val(shown(r))), notes);
       body.append(rowEl);
     }
   }
