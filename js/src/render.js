@@ -10,6 +10,7 @@ import { entropyView } from "./views/entropy.js";
 import { gridView } from "./views/grid.js";
 import { pairView } from "./views/pair.js";
 import { relevanceView } from "./views/relevance.js";
+import { driftView } from "./views/drift.js";
 import { statusView, cautionView } from "./views/status.js";
 
 export function render({ model, el }, memory = createMemory()) {
@@ -33,10 +34,11 @@ export function render({ model, el }, memory = createMemory()) {
     parts.grid = gridView(ctx);
     parts.pair = pairView(ctx);
     parts.relevance = relevanceView(ctx);
+    parts.drift = driftView(ctx); // hidden unless the profile has a reference (_drift)
     root.append(parts.controls.el, h("div", { class: "isc-row" }, parts.entropy.el, parts.grid.el),
-      h("div", { class: "isc-row" }, parts.pair.el, parts.relevance.el));
+      h("div", { class: "isc-row" }, parts.pair.el, parts.relevance.el), h("div", { class: "isc-row" }, parts.drift.el));
   } else {
-    const make = { entropy: entropyView, grid: gridView, pair: pairView, relevance: relevanceView }[view] || entropyView;
+    const make = { entropy: entropyView, grid: gridView, pair: pairView, relevance: relevanceView, drift: driftView }[view] || entropyView;
     parts[view] = make(ctx);
     if (view === "pair") { parts.grid = null; }
     root.append(h("div", { class: "isc-row" }, parts[view].el));
@@ -66,7 +68,7 @@ export function render({ model, el }, memory = createMemory()) {
   const wiring = {
     _entropy: ["entropy", "caution", "controls"], sort_by: ["entropy"], selected_column: ["entropy", "controls"],
     _grid_meta: ["grid"], _grid_values: ["grid"], _grid_n: ["grid"], _grid_q: ["grid"], order: ["grid", "controls"],
-    selected_pair: ["grid", "pair"], _pair: ["pair"], _relevance: ["relevance"], _status: ["status", "caution"],
+    selected_pair: ["grid", "pair"], _pair: ["pair"], _relevance: ["relevance"], _drift: ["drift"], _status: ["status", "caution"],
     _meta: ["caution", "sub"], alpha_fdr: ["grid", "relevance"],
   };
   for (const k of ["bins", "strategy", "estimator", "alpha", "measure", "unit", "target", "missing", "column_bins", "min_count"]) {

@@ -154,13 +154,19 @@ def payloads():
                 target="ok", selected_pair=[evil_name, "ok"])
     from _names import LONG, RTL, odd_names_frame
 
+    from infoscope.views.payload import payload as view_payload
+
+    batch = make_deliveries(800, seed=4)
+    batch["distance_km"] = batch["distance_km"] * 1.6  # a planted drift
+    drift = _quiet(view_payload, _quiet(ProfileSession, batch, n_boot=0), reference=frame)
     _quiet(setattr, w, "selected_pair", ["service", "contents"])  # a wide joint table (folded text levels)
     wide_pair = dict(w._pair)
 
     wo = _quiet(ProfileWidget, _quiet(ProfileSession, odd_names_frame(), n_boot=0), threaded=False,
                 target=RTL, selected_pair=[RTL, LONG], selected_column=LONG)
     return {"base": base, "answers": answers, "evil": _quiet(ws.payload),
-            "evil_name": evil_name, "evil_value": evil_value, "odd": _quiet(wo.payload), "wide_pair": wide_pair}
+            "evil_name": evil_name, "evil_value": evil_value, "odd": _quiet(wo.payload), "wide_pair": wide_pair,
+            "drift": drift}
 
 
 @pytest.fixture
@@ -728,3 +734,25 @@ def test_relevance_bars_follow_mi_above_chance_when_sent(harness, web):
     first.hover()
     assert "above chance" in page.text_content(".isc-tip")
     assert web.page_errors == []
+
+
+def test_drift_view_shows_a_planted_shift_beyond_chance(harness, web, payloads, artifacts):
+    page = harness()
+    assert not page.locator(".isc-drift").is_visible()  # no reference: no drift panel
+    page = harness("?payload=drift")
+    page.wait_for_timeout(150)
+    assert page.locator(".isc-drift").is_visible()
+    record = payloads["drift"]["state"]["_drift"]
+    rows = page.locator(".isc-drift .isc-erow")
+    assert rows.count() == len(record["columns"])
+    first = rows.first
+    assert first.get_attribute("data-keep") == "drift:distance_km"
+    assert first.get_attribute("data-flag") in ("major", "moderate")
+    first.hover()
+    tip = page.text_content(".isc-tip")
+    assert "sampling alone gives" in tip and "PSI" in tip
+    stable = [r["column"] for r in record["columns"] if r["flag"] in ("stable", "within_chance")]
+    assert stable, "most demo columns do not move between two seeds"
+    assert page.get_attribute(f".isc-drift .isc-erow[data-keep='drift:{stable[0]}']", "data-flag") in ("stable", "within_chance")
+    assert web.page_errors == [] and web.outside_requests == []
+    page.locator(".isc-drift").screenshot(path=str(artifacts / "drift.png"))
