@@ -264,7 +264,8 @@ def test_entropy_of_weighted_table_refuses_integer_only_estimators():
         entropy_of_weighted_table([1.5, 2.5], 3.0, estimator="grassberger")
 
 
-@pytest.mark.parametrize("module_name", ["infoscope.estimators.multivariate", "infoscope.measures"])
+@pytest.mark.parametrize("module_name", ["infoscope.estimators.multivariate", "infoscope.measures.entropies",
+                                         "infoscope.measures.information"])
 def test_docstring_examples_run(module_name):
     import doctest
     import importlib
