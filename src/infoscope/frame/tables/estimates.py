@@ -6,7 +6,6 @@ Shared by the pair tables and the relevance table of a
 from __future__ import annotations
 
 import numpy as np
-from scipy.stats import chi2
 
 from infoscope.estimators._checks import log_base
 from infoscope.estimators.entropy import entropy_of_count_rows
@@ -67,15 +66,16 @@ class TableMeasures:
     """Session part: :meth:`_table_measures` (see :mod:`infoscope.frame.tables`)."""
 
     def _table_measures(self, tabs: list[np.ndarray], *, nats: bool = False) -> dict[str, np.ndarray]:
-        """MI, NMI and the G-test of many tables at once (vectorised across tables).
+        """MI, NMI and the G statistic of many tables at once (vectorised across tables).
 
         ``mi`` / ``nmi`` follow the definitions and degenerate-case conventions of
         ``mutual_information_from_table`` and ``normalized_mutual_information_from_table``
-        with the session's estimator; the G-test those of ``g_test_from_table``:
+        with the session's estimator; ``g`` / ``dof`` those of ``g_test_from_table``:
         :math:`G = 2 N I_{plugin}` in nats (Wilks 1938; Kullback 1959), ``dof``
-        counting non-empty rows and columns, p = 1 when ``dof == 0``.  The tests
-        compare every estimator with the per-table functions and the G-test with
-        ``scipy.stats.chi2_contingency``.  Empty tables give NaN (G 0, dof 0).
+        counting non-empty rows and columns.  The tests compare every estimator with
+        the per-table functions.  Empty tables give NaN (G 0, dof 0).  p-values are
+        not made here: :mod:`infoscope.estimators.significance` is the one place for
+        them (the chi-square law only where it holds).
 
         Tables go through the entropy estimators in stacks: for estimators that
         ignore empty cells (plug-in, Miller-Madow, Chao-Shen, Grassberger) tables of
@@ -89,7 +89,7 @@ class TableMeasures:
         divisor = 1.0 if nats else log_base(s["base"])
         m = len(tabs)
         out = {"mi": np.full(m, np.nan), "nmi": np.full(m, np.nan), "g": np.zeros(m),
-               "dof": np.zeros(m, dtype=np.int64), "p_value": np.full(m, np.nan)}
+               "dof": np.zeros(m, dtype=np.int64)}
         live = [i for i, t in enumerate(tabs) if t.sum() > 0]
         for index in _stacks(tabs, live, pad=s["estimator"] in _ZERO_CELLS_IGNORED):
             r = max(tabs[i].shape[0] for i in index)
@@ -122,5 +122,4 @@ class TableMeasures:
             out["nmi"][index] = v
             out["g"][index] = g
             out["dof"][index] = dof
-            out["p_value"][index] = np.where(dof > 0, chi2.sf(g, np.maximum(dof, 1)), 1.0)
         return out
