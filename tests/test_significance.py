@@ -27,6 +27,8 @@ from infoscope.engine.permutation import score_lookup, shuffle_counts, table_sco
 from infoscope.estimators.significance import (
     CHI2_MIN_MEAN_COUNT,
     PERMUTATION_STOP_AFTER,
+    UNEVEN_PERMUTATION_ROWS,
+    WILLIAMS_MAX,
     g_statistics,
     independence_tests,
     monte_carlo_p_value,
@@ -89,6 +91,19 @@ def test_rule_and_reliability():
     assert table_reliability([80, 40, 300, 9], [4, 4, 16, 2], [4, 4, 16, 2]).tolist() == \
         ["ok", "sparse", "sparse", "too_few"]
     assert table_reliability([100], [16], [16]).tolist() == ["too_few"]  # under one row per cell
+
+
+def test_uneven_margins_go_to_the_permutation_test_where_affordable():
+    # rare levels: Williams' factor far above 1, where the corrected test is very
+    # conservative (benchmarks/calibration.py, section rule); permutation up to
+    # UNEVEN_PERMUTATION_ROWS rows, the corrected chi-square above
+    small = np.array([[960, 10, 10], [10, 5, 5], [10, 5, 5]])
+    big = np.array([[29_900, 40, 40], [5, 2, 3], [5, 3, 2]])
+    for t in (small, big):
+        assert t.sum() / t.size >= CHI2_MIN_MEAN_COUNT
+        assert float(williams_correction(t.sum(axis=1), t.sum(axis=0))) > WILLIAMS_MAX
+    assert small.sum() <= UNEVEN_PERMUTATION_ROWS < big.sum()
+    assert table_tests([small, big]).p_method.tolist() == ["permutation", "chi2"]
 
 
 def test_monte_carlo_p_values():
