@@ -105,10 +105,14 @@ def clopper_pearson(k: int, n: int, level: float = 0.95) -> tuple[float, float]:
     return float(lo), float(hi)
 
 
+#: Settings passed to every ``pairs()`` call (empty: the defaults); ``--bins`` sets one.
+SETTINGS: dict = {}
+
+
 def _pairs(frame: pd.DataFrame) -> pd.DataFrame:
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")  # small-sample warnings are the point here
-        return frame.info_profile.pairs()
+        return frame.info_profile.pairs(**SETTINGS)
 
 
 def null_rates(make, frames: int) -> dict:
@@ -147,13 +151,13 @@ def _rate(k: int, n: int) -> str:
     return f"{100 * k / n:.1f}% [{100 * lo:.1f}, {100 * hi:.1f}]"
 
 
-def section_null(frames: int) -> None:
+def section_null(frames: int, kinds=KINDS) -> None:
     print("\n## Independent columns at the defaults: share of p < 0.05 (pairs) and of frames with any q < 0.05")
     print(f"({COLUMNS} columns = {COLUMNS * (COLUMNS - 1) // 2} pairs per frame, {frames} seeded frames; "
           "95% Clopper-Pearson intervals)\n")
     print("| frame | n | pairs with p < 0.05 | frames with any q < 0.05 | tests used | mean shuffles | s / frame |")
     print("|---|---|---|---|---|---|---|")
-    for kind in KINDS:
+    for kind in kinds:
         for n in SIZES:
             r = null_rates(lambda seed, kind=kind, n=n: null_frame(kind, n, seed), frames)
             used = ", ".join(f"{k} {v}" for k, v in sorted(r["methods"].items()))
@@ -213,11 +217,16 @@ def main(argv=None) -> None:
     parser.add_argument("--frames", type=int, default=200, help="seeded frames per condition")
     parser.add_argument("--section", choices=("all", "null", "power", "wine", "rule"), default="all")
     parser.add_argument("--rule-reps", type=int, default=5_000, help="null tables per condition (rule)")
+    parser.add_argument("--kinds", default=",".join(KINDS), help="frame kinds of the null section")
+    parser.add_argument("--bins", default=None, help="a bins setting instead of the default (e.g. 16 or rows)")
     args = parser.parse_args(argv)
-    print(f"# infoscope calibration ({machine_note()}; {time.strftime('%Y-%m-%d %H:%M UTC', time.gmtime())})")
+    if args.bins is not None:
+        SETTINGS["bins"] = int(args.bins) if args.bins.isdigit() else args.bins
+    shown = ", ".join(f"{k}={v!r}" for k, v in SETTINGS.items()) or "default settings"
+    print(f"# infoscope calibration, {shown} ({machine_note()}; {time.strftime('%Y-%m-%d %H:%M UTC', time.gmtime())})")
     start = time.perf_counter()
     if args.section in ("all", "null"):
-        section_null(args.frames)
+        section_null(args.frames, tuple(k for k in args.kinds.split(",") if k))
     if args.section in ("all", "power"):
         section_power(args.frames)
     if args.section in ("all", "wine"):
