@@ -25,6 +25,7 @@ import infoscope  # noqa: F401  (registers df.info_profile)
 from infoscope.engine import PairEngine
 from infoscope.engine.permutation import score_lookup, shuffle_counts, table_score
 from infoscope.estimators.significance import (
+    CHI2_CLEAR_P,
     CHI2_MIN_MEAN_COUNT,
     PERMUTATION_STOP_AFTER,
     UNEVEN_PERMUTATION_ROWS,
@@ -97,13 +98,18 @@ def test_uneven_margins_go_to_the_permutation_test_where_affordable():
     # rare levels: Williams' factor far above 1, where the corrected test is very
     # conservative (benchmarks/calibration.py, section rule); permutation up to
     # UNEVEN_PERMUTATION_ROWS rows, the corrected chi-square above
-    small = np.array([[960, 10, 10], [10, 5, 5], [10, 5, 5]])
+    small = np.array([[942, 19, 19], [19, 1, 0], [19, 0, 1]])  # near independence
     big = np.array([[29_900, 40, 40], [5, 2, 3], [5, 3, 2]])
     for t in (small, big):
         assert t.sum() / t.size >= CHI2_MIN_MEAN_COUNT
         assert float(williams_correction(t.sum(axis=1), t.sum(axis=0))) > WILLIAMS_MAX
     assert small.sum() <= UNEVEN_PERMUTATION_ROWS < big.sum()
     assert table_tests([small, big]).p_method.tolist() == ["permutation", "chi2"]
+    # ... unless the conservative corrected test already says p < CHI2_CLEAR_P
+    strong = np.array([[960, 0, 0], [0, 20, 0], [0, 0, 20]])
+    assert float(williams_correction(strong.sum(axis=1), strong.sum(axis=0))) > WILLIAMS_MAX
+    res = table_tests([strong])
+    assert res.p_method.tolist() == ["chi2"] and res.p_value[0] < CHI2_CLEAR_P
 
 
 def test_monte_carlo_p_values():
