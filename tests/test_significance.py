@@ -284,3 +284,18 @@ def test_relevance_uses_the_same_tests():
     assert both["p_method"].iloc[0] == mine["p_method"].iloc[0]
     if both["p_method"].iloc[0] == "chi2":
         assert both["p_value"].iloc[0] == pytest.approx(mine["p_value"].iloc[0])
+
+
+def test_pair_view_shows_the_p_value_of_the_pairs_table():
+    rng = np.random.default_rng(12)
+    n = 400
+    x = rng.normal(size=n)
+    df = pd.DataFrame({"x": x, "y": x * 0.3 + rng.normal(size=n), "z": rng.normal(size=n)})
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        table = df.info_profile.pairs()
+        for a, b in (("x", "y"), ("y", "x"), ("x", "z")):
+            pt = df.info_profile.pair(a, b)
+            row = table[((table.a == a) & (table.b == b)) | ((table.a == b) & (table.b == a))].iloc[0]
+            assert pt.g_test.p_value == pytest.approx(row["p_value"])
+            assert (pt.p_method, pt.n_permutations) == (row["p_method"], row["n_permutations"])

@@ -15,22 +15,23 @@ of independent columns came out at p < 0.05.  So:
   .. math:: q = 1 + \frac{(N \sum_i 1/R_i - 1)(N \sum_j 1/C_j - 1)}{6 N (r - 1)(c - 1)}
 
   (:func:`williams_correction`), which removes most of the remaining excess of G over
-  its chi-square mean; and only where that factor is at most :data:`WILLIAMS_MAX`
-  (1.05).  With very uneven margins (rare levels) the factor grows large and the
-  corrected test becomes very conservative: at 20-40 rows per cell with margins drawn
-  from a Dirichlet(0.7) it rejected under a tenth of the nominal 5%, while the
-  uncorrected G rejected up to 1.6 times too often.  Such tables get the
-  permutation test up to :data:`UNEVEN_PERMUTATION_ROWS` rows (above, the
-  conservative corrected test: valid, with less power) -- except where that
-  conservative test already gives p below :data:`CHI2_CLEAR_P` (1e-6): the test and
-  the permutation test both order tables by G, so this only keeps a resolution
-  that a few thousand shuffles could not reach.  The threshold was chosen by simulation, not from the usual
-  "expected counts of at least 5": on null tables of 8 x 8 to 64 x 64 cells with
-  uniform, mildly and strongly uneven margins, the corrected test kept its rejection
-  rate within about 1.3 times the nominal level at 0.05, 0.01 and 0.001 from 20 rows
-  per cell on, while at 5-10 rows per cell large tables with uneven margins still
-  rejected 1.5-3 times too often (``benchmarks/calibration.py``, section
-  "approximation rule", repeats that simulation).
+  its chi-square mean.  The 20 rows per cell were chosen by simulation, not from the
+  usual "expected counts of at least 5": on null tables of 8 x 8 to 64 x 64 cells
+  with uniform and uneven margins, the corrected test kept its rejection rate within
+  about 1.3 times the nominal level at 0.05, 0.01 and 0.001 from 20 rows per cell
+  on, while at 5-10 rows per cell large tables with uneven margins still rejected
+  1.5-3 times too often (``benchmarks/calibration.py --section rule`` repeats that
+  simulation).
+
+  Also only where Williams' factor is at most :data:`WILLIAMS_MAX` (1.05).  With
+  rare levels the factor grows large and the corrected test becomes very
+  conservative: at 20-40 rows per cell with margins drawn from a Dirichlet(0.7) it
+  rejected under a tenth of the nominal 5%, while the uncorrected G rejected up to
+  1.6 times too often.  Such tables get the permutation test up to
+  :data:`UNEVEN_PERMUTATION_ROWS` rows (above, the conservative corrected test:
+  valid, with less power), except where that conservative test already gives p
+  below :data:`CHI2_CLEAR_P` (1e-6): both tests order tables by G, so keeping it only
+  keeps a resolution that a few thousand shuffles could not reach.
 * **a Monte-Carlo permutation test** (``p_method = "permutation"``) everywhere else:
   the second column is shuffled against the first on the rows where both are
   present, which is the null distribution itself (the margins are kept), counted by
