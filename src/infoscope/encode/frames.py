@@ -84,7 +84,7 @@ def encode_frame(frame, *, threads: int | None = None, **settings) -> list[Encod
             frame = frame.to_pandas()
         else:
             raise TypeError(f"frame must be a pandas or Polars DataFrame, got {type(frame).__name__}")
-    keys = column_keys(list(frame.columns), _stacklevel=3)
+    keys = column_keys(list(frame.columns))
     # columns are taken out of the frame here, in the calling thread
     jobs = [(key, frame.iloc[:, i], settings) for i, key in enumerate(keys)]
     return _run(jobs, threads, len(frame))

@@ -40,7 +40,7 @@ def key_text(label) -> str:
     return label if isinstance(label, str) else str(label)
 
 
-def column_keys(columns: Sequence, *, warn: bool = True, _stacklevel: int = 2) -> list[str]:
+def column_keys(columns: Sequence, *, warn: bool = True) -> list[str]:
     """Unique string keys for column labels (duplicates, numbers, MultiIndex tuples).
 
     Parameters

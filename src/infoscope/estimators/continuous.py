@@ -145,7 +145,7 @@ def _add_jitter(samples: np.ndarray, scales: np.ndarray, amplitude: float, rng) 
     samples += rng.standard_normal(samples.shape) * sd
 
 
-def _warn_if_discrete_looking(samples: np.ndarray, parameter: str, stacklevel: int = 3) -> None:
+def _warn_if_discrete_looking(samples: np.ndarray, parameter: str) -> None:
     n = samples.shape[0]
     for j in range(samples.shape[1]):
         n_distinct = np.unique(samples[:, j]).size

@@ -90,7 +90,7 @@ def _to_series(values, name: str):
     return series.infer_objects() if series.dtype == object else series
 
 
-def _label_codes(present_values, name: str, stacklevel: int = 5) -> tuple[np.ndarray, int]:
+def _label_codes(present_values, name: str) -> tuple[np.ndarray, int]:
     """Codes 0..k-1 of present label values (a Series without missing rows), and k.
 
     Object columns get two policies of :func:`infoscope.encode.columns.encode_column`,
@@ -164,7 +164,7 @@ def _is_binnable(series) -> bool:
     return _is_numeric(series) or pd.api.types.is_datetime64_any_dtype(dtype) or pd.api.types.is_timedelta64_dtype(dtype)
 
 
-def _missing_mask(series, name: str, stacklevel: int = 5) -> np.ndarray:
+def _missing_mask(series, name: str) -> np.ndarray:
     mask = np.array(series.isna(), dtype=bool)  # a writable copy
     if _is_numeric(series):
         with np.errstate(invalid="ignore"):

@@ -48,7 +48,7 @@ def _knn_mi(x, y, *, algorithm, k, base, missing, discrete, seed) -> float:
             "x and y are both discrete (non-numeric); a kNN estimator needs a continuous side: "
             "use a count estimator such as estimator='miller_madow'"
         )
-    present = ~_missing_mask(sx, name_x, 4) & ~_missing_mask(sy, name_y, 4)
+    present = ~_missing_mask(sx, name_x) & ~_missing_mask(sy, name_y)
     if not present.all():
         if missing == "error":
             raise ValueError(
@@ -67,7 +67,7 @@ def _knn_mi(x, y, *, algorithm, k, base, missing, discrete, seed) -> float:
         if algorithm != 1:
             raise ValueError("estimator='ksg2' has no mixed discrete/continuous form; use estimator='ksg'")
         xc, yd = (cont(sy, "y"), sx[present]) if dx else (cont(sx, "x"), sy[present])
-        labels, _ = _label_codes(yd, name_x if dx else name_y, stacklevel=4)
+        labels, _ = _label_codes(yd, name_x if dx else name_y)
         return continuous.mixed_mutual_information(xc, labels, k=k, base=base, seed=seed)
     return continuous.ksg_mutual_information(cont(sx, "x"), cont(sy, "y"), k=k, algorithm=algorithm, base=base, seed=seed)
 
