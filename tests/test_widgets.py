@@ -191,6 +191,37 @@ def test_single_views_compute_only_what_they_show(frame):
     assert r._view == "relevance" and json.loads(r._relevance)["target"] == "late" and r._entropy == ""
 
 
+def test_selection_view_recomputes_when_its_controls_change(frame):
+    from infoscope.frame.selection import select_table
+    from infoscope.widgets import SelectionWidget
+
+    w = widget(frame, cls=SelectionWidget, target="late")
+    data = json.loads(w._selection)
+    assert w._view == "selection" and data["target"] == "late" and data["method"] == "mrmr" and w._entropy == ""
+    quiet(setattr, w, "selection_method", "cmim")
+    quiet(setattr, w, "selection_k", 2)
+    data = json.loads(w._selection)
+    assert data["method"] == "cmim" and data["k"] == 2
+    steps = [r for r in data["rows"] if r[0] is not None]
+    # the kernel's answer is the select() table of the same session and settings
+    direct = quiet(select_table, w.session, "late", k=2, method="cmim", n_permutations=99)
+    assert [r[1] for r in steps] == direct.loc[direct["step"].notna(), "column"].tolist()
+
+
+def test_surprising_rows_view_hides_values_under_min_count(frame):
+    from infoscope.widgets import SurprisingRowsWidget
+
+    w = widget(frame, cls=SurprisingRowsWidget)
+    data = json.loads(w._surprising)
+    assert w._view == "surprising" and len(data["rows"]) == 20 and data["tree"]["edges"]
+    assert any(c["value"] is not None for c in data["cells"][0])
+    quiet(setattr, w, "min_count", 10)
+    data = json.loads(w._surprising)
+    assert data["hidden_values"] and all(c["value"] is None for cells in data["cells"] for c in cells)
+    quiet(setattr, w, "surprise_n", 5)
+    assert len(json.loads(w._surprising)["rows"]) == 5
+
+
 # ------------------------------------------------------------------ generations, debounce, worker
 def test_burst_of_50_changes_shows_the_final_setting(frame):
     w = quiet(ProfileWidget, session_of(frame), debounce=0.05)
@@ -506,7 +537,7 @@ def test_threaded_preview_then_full_data_and_wait_covers_both(frame):
 
 
 @pytest.mark.parametrize("name", ["ProfileWidget", "EntropyBarsWidget", "InformationGridWidget",
-                                  "PairViewWidget", "RelevanceWidget"])
+                                  "PairViewWidget", "RelevanceWidget", "SelectionWidget", "SurprisingRowsWidget"])
 def test_public_widgets_have_numpydoc(name):
     import inspect
 

@@ -11,6 +11,8 @@ import { gridView } from "./views/grid.js";
 import { pairView } from "./views/pair.js";
 import { relevanceView } from "./views/relevance.js";
 import { driftView } from "./views/drift.js";
+import { selectionView } from "./views/selection.js";
+import { surprisingView } from "./views/surprising.js";
 import { statusView, cautionView } from "./views/status.js";
 
 export function render({ model, el }, memory = createMemory()) {
@@ -37,8 +39,14 @@ export function render({ model, el }, memory = createMemory()) {
     parts.drift = driftView(ctx); // hidden unless the profile has a reference (_drift)
     root.append(parts.controls.el, h("div", { class: "isc-row" }, parts.entropy.el, parts.grid.el),
       h("div", { class: "isc-row" }, parts.pair.el, parts.relevance.el), h("div", { class: "isc-row" }, parts.drift.el));
+    // the selection and surprising rows travel in exports; the live profile has its own views for them
+    const extra = [];
+    if (model.get("_selection")) { parts.selection = selectionView(ctx); extra.push(parts.selection.el); }
+    if (model.get("_surprising")) { parts.surprising = surprisingView(ctx); extra.push(parts.surprising.el); }
+    if (extra.length) root.append(h("div", { class: "isc-row" }, ...extra));
   } else {
-    const make = { entropy: entropyView, grid: gridView, pair: pairView, relevance: relevanceView, drift: driftView }[view] || entropyView;
+    const make = { entropy: entropyView, grid: gridView, pair: pairView, relevance: relevanceView, drift: driftView,
+      selection: selectionView, surprising: surprisingView }[view] || entropyView;
     parts[view] = make(ctx);
     if (view === "pair") { parts.grid = null; }
     root.append(h("div", { class: "isc-row" }, parts[view].el));
@@ -70,9 +78,10 @@ export function render({ model, el }, memory = createMemory()) {
     _grid_meta: ["grid"], _grid_values: ["grid"], _grid_n: ["grid"], _grid_q: ["grid"], order: ["grid", "controls"],
     selected_pair: ["grid", "pair"], _pair: ["pair"], _relevance: ["relevance"], _drift: ["drift"], _status: ["status", "caution"],
     _meta: ["caution", "sub"], alpha_fdr: ["grid", "relevance"],
+    _selection: ["selection"], selection_method: ["selection"], selection_k: ["selection"], _surprising: ["surprising"],
   };
   for (const k of ["bins", "strategy", "estimator", "alpha", "measure", "unit", "target", "missing", "column_bins", "min_count"]) {
-    wiring[k] = ["controls", "sub", ...(k === "target" ? ["relevance"] : [])];
+    wiring[k] = ["controls", "sub", ...(k === "target" ? ["relevance", "selection"] : [])];
   }
   parts.status = status;
   const handlers = [];

@@ -185,3 +185,26 @@ def test_export_keeps_long_and_right_to_left_names_in_place(tmp_path, served, we
     assert LONG in page.eval_on_selector_all("bdi.isc-nm", "els => els.map(e => e.title)")
     assert web.outside_requests == [] and web.page_errors == []
     web.screenshot(artifacts / "export-odd-names.png", full_page=True)
+
+
+def test_export_draws_selection_and_surprising_rows_with_values_hidden(exported, served, web, artifacts):
+    payload = _payload(exported["path"].read_text(encoding="utf-8"))
+    surprising = json.loads(payload["state"]["_surprising"])
+    assert surprising["hidden_values"] and surprising["min_count"] == MIN_COUNT
+    assert all(c["value"] is None and c["symbol"] is None for cells in surprising["cells"] for c in cells)
+    url = served.put("/export/beyond.html", exported["path"].read_bytes())
+    web.goto(url)
+    web.page.wait_for_selector("body[data-rendered]", timeout=20_000)
+    sel = web.page.inner_text(".isc-selection")
+    assert "Selection" in sel and "late" in sel
+    steps = json.loads(payload["state"]["_selection"])
+    chosen = [r[1] for r in steps["rows"] if r[0] is not None]
+    assert chosen and all(name in sel for name in chosen)
+    assert "left out: may leak the target" in sel        # the planted leak is listed, not chosen
+    sur = web.page.inner_text(".isc-surprising")
+    assert "Surprising rows" in sur and "(hidden)" in sur and "values hidden" in sur
+    assert web.page.locator(".isc-surtable tbody tr").count() == len(surprising["rows"])
+    assert web.page.locator(".isc-treelist li").count() == len(surprising["tree"]["edges"])
+    web.page.locator(".isc-selection").screenshot(path=str(artifacts / "export-selection.png"))
+    web.page.locator(".isc-surprising").screenshot(path=str(artifacts / "export-surprising.png"))
+    assert web.page_errors == [] and web.console_errors == []

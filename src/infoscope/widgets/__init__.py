@@ -1,8 +1,8 @@
 """infoscope.widgets: the live profile (anywidget views over a ``ProfileSession``).
 
 ``ProfileWidget`` arranges every view on one page; ``EntropyBarsWidget``,
-``InformationGridWidget``, ``PairViewWidget`` and ``RelevanceWidget`` show one view
-each. The front end is one plain ESM file, ``static/profile.js`` (no build step).
+``InformationGridWidget``, ``PairViewWidget``, ``RelevanceWidget``, ``SelectionWidget``
+and ``SurprisingRowsWidget`` show one view each. The front end is one plain ESM file, ``static/profile.js`` (no build step).
 """
 from infoscope.widgets.profile import (
     EntropyBarsWidget,
@@ -10,7 +10,9 @@ from infoscope.widgets.profile import (
     PairViewWidget,
     ProfileWidget,
     RelevanceWidget,
+    SelectionWidget,
+    SurprisingRowsWidget,
 )
 
 __all__ = ["ProfileWidget", "EntropyBarsWidget", "InformationGridWidget", "PairViewWidget",
-           "RelevanceWidget"]
+           "RelevanceWidget", "SelectionWidget", "SurprisingRowsWidget"]

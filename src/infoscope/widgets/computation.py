@@ -38,9 +38,10 @@ class Computation:
             out, _ = view_data(s, parts, order=snap["order"], alpha_fdr=snap["alpha_fdr"],
                                selected_pair=snap["selected_pair"], min_count=snap["min_count"] or None,
                                generation=gen, step=lambda progress, message: self._step(gen, progress, message),
-                               selection_method=snap.get("selection_method", "mrmr"),
-                               selection_k=snap.get("selection_k"), surprise_model=snap.get("surprise_model", "tree"),
-                               surprise_n=snap.get("surprise_n", 20))
+                               selection_method=snap["traits"]["selection_method"],
+                               selection_k=snap["traits"]["selection_k"],
+                               surprise_model=snap["traits"]["surprise_model"],
+                               surprise_n=snap["traits"]["surprise_n"])
         notes = sorted({f"{w.category.__name__}: {w.message}" for w in caught})
         return out, notes
 

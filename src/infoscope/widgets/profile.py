@@ -416,5 +416,65 @@ class RelevanceWidget(_ProfileBase):
     _parts = ("relevance",)
 
 
+class SelectionWidget(_ProfileBase):
+    """The selection view alone: columns chosen for ``target`` step by step (``select()``).
+
+    Parameters
+    ----------
+    session : infoscope.frame.session.ProfileSession
+        The state the view shows; settings start from ``session.settings``.
+    **options
+        As :class:`ProfileWidget`; ``selection_method`` ("mrmr", "jmi", "cmim") and
+        ``selection_k`` (None: stop when the next gain is not significant) are set
+        from the view's controls or from Python, and recompute in the kernel.
+
+    Returns
+    -------
+    SelectionWidget
+        An anywidget; display it in a notebook.
+
+    References
+    ----------
+    Peng, Long & Ding (2005), IEEE TPAMI 27(8); Yang & Moody (1999), NIPS 12;
+    Fleuret (2004), JMLR 5.
+
+    Examples
+    --------
+    >>> SelectionWidget(session, target="late", selection_method="jmi")  # doctest: +SKIP
+    """
+
+    _view = t.Unicode("selection").tag(sync=True)
+    _parts = ("selection",)
+
+
+class SurprisingRowsWidget(_ProfileBase):
+    """The surprising-rows view alone: the rows least likely under the Chow-Liu tree.
+
+    Parameters
+    ----------
+    session : infoscope.frame.session.ProfileSession
+        The state the view shows.
+    **options
+        As :class:`ProfileWidget`; ``surprise_model`` ("tree", "independent") and
+        ``surprise_n`` (rows listed); ``min_count`` hides the listed values.
+
+    Returns
+    -------
+    SurprisingRowsWidget
+        An anywidget; display it in a notebook.
+
+    References
+    ----------
+    Chow, C. K., & Liu, C. N. (1968). IEEE Transactions on Information Theory, 14(3).
+
+    Examples
+    --------
+    >>> SurprisingRowsWidget(session)  # doctest: +SKIP
+    """
+
+    _view = t.Unicode("surprising").tag(sync=True)
+    _parts = ("surprising",)
+
+
 __all__ = ["ProfileWidget", "EntropyBarsWidget", "InformationGridWidget", "PairViewWidget",
-           "RelevanceWidget", "Cancelled"]
+           "RelevanceWidget", "SelectionWidget", "SurprisingRowsWidget", "Cancelled"]

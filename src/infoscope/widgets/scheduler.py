@@ -33,11 +33,15 @@ class Scheduler:
             return  # the pseudocount only matters to the Dirichlet estimator
         parts = set(self._parts)
         if name == "min_count":
-            parts = {"pair"} & parts
+            parts = {"pair", "surprising"} & parts
         elif name == "order":
             parts = {"grid"} & parts
         elif name == "target":
-            parts = {"relevance"} & parts
+            parts = {"relevance", "selection"} & parts
+        elif name in ("selection_method", "selection_k"):
+            parts = {"selection"} & parts
+        elif name in ("surprise_model", "surprise_n"):
+            parts = {"surprising"} & parts
         elif name == "measure":
             parts = {"grid"} & parts
         self._request(parts)

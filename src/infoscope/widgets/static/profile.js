@@ -1466,6 +1466,216 @@ function driftView(ctx) {
   return { el, draw };
 }
 
+// src/selection.js
+function splitSelection(rows) {
+  const steps = rows.filter((r) => r.step != null).sort((a, b) => a.step - b.step);
+  const leftOut = rows.filter((r) => r.step == null);
+  return { steps, leftOut };
+}
+function selectionMax(steps) {
+  let top = 0;
+  for (const r of steps) for (const f of ["relevance", "gain"]) if (Number.isFinite(r[f])) top = Math.max(top, r[f]);
+  return top;
+}
+var STATUS_WORDS = {
+  selected: "chosen",
+  stop: "stop: gain not significant",
+  past_stop: "chosen after the stop (k asked for it)",
+  leakage: "left out: may leak the target",
+  constant: "left out: one value",
+  id_like: "left out: an identifier"
+};
+function cellWords(cell, hidden) {
+  const v = (x, sym) => hidden ? "(hidden)" : x != null ? String(x) : sym != null ? String(sym) : "missing";
+  const own = `${cell.column} = ${v(cell.value, cell.symbol)}`;
+  return cell.parent != null ? `${own} given ${cell.parent} = ${v(cell.parent_value, cell.parent_symbol)}` : own;
+}
+
+// src/views/selection.js
+var METHOD_WORDS = { mrmr: "mRMR (Peng, Long & Ding 2005)", jmi: "JMI (Yang & Moody 1999)", cmim: "CMIM (Fleuret 2004)" };
+function selectionView(ctx) {
+  const el = h("section", { class: "isc-panel isc-selection", "aria-label": "selection" });
+  const sub = h("span", { class: "isc-punit" });
+  const tools = h("div", { class: "isc-seltools" });
+  const body = h("div", { class: "isc-bars" });
+  const legend = h("div", { class: "isc-legend" });
+  el.append(h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Selection"), sub), tools, body, legend);
+  const method = h(
+    "select",
+    { "aria-label": "selection method", onchange: () => ctx.set("selection_method", method.value) },
+    ...Object.entries(METHOD_WORDS).map(([k, text]) => h("option", { value: k }, text))
+  );
+  const kBox = h("input", {
+    type: "number",
+    min: 1,
+    step: 1,
+    placeholder: "until not significant",
+    "aria-label": "number of steps",
+    onchange: () => {
+      const v = parseInt(kBox.value, 10);
+      ctx.set("selection_k", Number.isFinite(v) && v >= 1 ? v : null);
+    }
+  });
+  if (!ctx.offline) tools.append(h("label", null, "method ", method), h("label", null, " steps ", kBox));
+  function draw() {
+    clear(body);
+    clear(legend);
+    clear(sub);
+    method.value = ctx.get("selection_method") || "mrmr";
+    const k = ctx.get("selection_k");
+    kBox.value = k == null ? "" : String(k);
+    const data = parseJSON(ctx.get("_selection"));
+    if (!data || data.target == null) {
+      body.append(h("div", { class: "isc-empty" }, ctx.get("target") != null ? "Computing…" : "Pick a target in the controls to choose columns for it."));
+      return;
+    }
+    const unit = data.unit || ctx.unit();
+    sub.append("columns for ", nameEl(data.target), ` by ${METHOD_WORDS[data.method] || data.method}, ${unit}`);
+    const { steps, leftOut } = splitSelection(table(data));
+    const max = niceMax(selectionMax(steps));
+    const x = (v) => axisPct(v, max);
+    const tickBox = h("div", { class: "isc-ticks" });
+    for (const t of ticks(max)) tickBox.append(h("span", { class: "isc-tick", style: { left: x(t) } }, num(t)));
+    body.append(h(
+      "div",
+      { class: "isc-axis", "aria-hidden": "true" },
+      h("span", { class: "isc-name isc-axislab" }, "step · column"),
+      tickBox,
+      h("span", { class: "isc-val isc-axislab" }, "gain"),
+      h("span", { class: "isc-axislab" }, "notes")
+    ));
+    for (const r of steps) {
+      const chosen = r.status === "selected" || r.status === "past_stop";
+      const track2 = h("span", { class: "isc-track" });
+      if (Number.isFinite(r.relevance)) track2.append(h("span", { class: "isc-fill isc-relfill", style: { width: x(Math.max(0, r.relevance)) } }));
+      if (Number.isFinite(r.gain)) track2.append(h("span", { class: "isc-fill isc-gainfill", style: { width: x(Math.max(0, r.gain)), background: r.significant ? "var(--isc-bar)" : "var(--isc-bar-muted)" } }));
+      const words = [STATUS_WORDS[r.status] || r.status, r.gain_supported ? "" : "gain not estimated: too few rows per cell"].filter(Boolean);
+      const rowEl = h(
+        "div",
+        {
+          class: `isc-erow isc-selrow${r.status === "stop" ? " isc-stop" : ""}`,
+          tabindex: 0,
+          style: { cursor: "default" },
+          "data-status": r.status,
+          "data-step": String(r.step),
+          onfocus: () => tipOnFocus(rowEl),
+          onblur: () => ctx.tip.hide(),
+          "aria-label": `step ${r.step}: ${iso(r.column)}, gain ${amount(r.gain)} ${unit}, ${words.join(", ")}`,
+          onmousemove: (ev) => ctx.tip.show([
+            [`step ${r.step}: `, nameEl(r.column)],
+            ["relevance I(", nameEl(r.column), "; ", nameEl(data.target), `) = ${amount(r.relevance)} ${unit}`],
+            `gain given the columns chosen before: ${r.gain_supported ? `${amount(r.gain)} ${unit}` : "not estimated"}`,
+            `criterion ${amount(r.criterion)} · redundancy with the chosen ${amount(r.redundancy)} ${unit}`,
+            `${pWords("p", r.p_value)}, ${pWords("q", r.q_value)} (shuffles of the target within the chosen columns' strata)`,
+            r.note ? `▸ ${r.note}` : null
+          ].filter(Boolean), ev.clientX, ev.clientY),
+          onmouseleave: () => ctx.tip.hide()
+        },
+        h("span", { class: "isc-name" }, `${r.step}. `, nameEl(r.column)),
+        track2,
+        h("span", { class: "isc-val" }, r.gain_supported ? val(r.gain) : "—"),
+        h("span", { class: `isc-relmarks${chosen ? "" : " isc-stopword"}` }, words.join(", "))
+      );
+      body.append(rowEl);
+    }
+    if (!steps.length) body.append(h("div", { class: "isc-empty" }, "No column was chosen."));
+    for (const r of leftOut) {
+      body.append(h(
+        "div",
+        { class: "isc-erow isc-leftout", "data-status": r.status },
+        h("span", { class: "isc-name" }, nameEl(r.column)),
+        h("span", { class: "isc-track" }),
+        h("span", { class: "isc-val" }, val(r.relevance)),
+        h("span", { class: "isc-relmarks" }, r.status === "leakage" ? h("span", { class: "isc-leakword" }, STATUS_WORDS[r.status]) : STATUS_WORDS[r.status] || r.status)
+      ));
+    }
+    legend.append(
+      h("span", null, h("span", { class: "isc-swatch", style: { background: "var(--isc-bar-muted)" } }), "relevance I(X;Y)"),
+      h("span", null, h("span", { class: "isc-swatch", style: { background: "var(--isc-bar)" } }), `gain I(X;Y | chosen before), significant (BH q ≤ ${num(data.fdr)})`),
+      h("span", null, "the stop row is the best next column: its gain is not significant"),
+      h("span", null, "a chosen column tells about the target; it need not cause it")
+    );
+  }
+  draw();
+  return { el, draw };
+}
+
+// src/views/surprising.js
+function surprisingView(ctx) {
+  const el = h("section", { class: "isc-panel isc-surprising", "aria-label": "surprising rows" });
+  const sub = h("span", { class: "isc-punit" });
+  const body = h("div", { class: "isc-tablewrap" });
+  const treeBox = h("div", { class: "isc-tree" });
+  const legend = h("div", { class: "isc-legend" });
+  el.append(h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Surprising rows"), sub), body, treeBox, legend);
+  function draw() {
+    clear(body);
+    clear(treeBox);
+    clear(legend);
+    clear(sub);
+    const data = parseJSON(ctx.get("_surprising"));
+    if (!data || !Array.isArray(data.rows)) {
+      body.append(h("div", { class: "isc-empty" }, "Computing…"));
+      return;
+    }
+    const hidden = !!data.hidden_values;
+    sub.append(`surprisal in bits under the ${data.model === "independent" ? "product of the margins" : "tree of the columns"}; mean row ${amount(data.mean_surprisal)} bits`);
+    const rows = table(data);
+    const tbl = h("table", { class: "isc-surtable" });
+    tbl.append(h("thead", null, h(
+      "tr",
+      null,
+      h("th", null, "#"),
+      h("th", null, "row"),
+      h("th", null, "bits"),
+      h("th", null, "above mean"),
+      h("th", null, "cells that make it surprising")
+    )));
+    const tb = h("tbody");
+    rows.forEach((r, i) => {
+      const cells = data.cells && data.cells[i] || [];
+      const list = h("span", { class: "isc-surcells" });
+      cells.forEach((c, j) => {
+        if (j) list.append(" · ");
+        list.append(h(
+          "span",
+          { class: "isc-surcell", title: cellWords(c, hidden), "data-bits": String(c.bits) },
+          nameEl(c.column),
+          hidden ? " (hidden)" : ` = ${c.value != null ? c.value : c.symbol != null ? c.symbol : "missing"}`,
+          c.parent != null ? [" given ", nameEl(c.parent)] : null,
+          h("b", null, ` ${num(c.bits, 3)} bits`)
+        ));
+      });
+      tb.append(h(
+        "tr",
+        { "data-rank": String(r.rank) },
+        h("td", null, count(r.rank)),
+        h("td", null, h("bdi", null, String(r.row))),
+        h("td", null, amount(r.surprisal)),
+        h("td", null, signed(r.excess, 3)),
+        h("td", null, list)
+      ));
+    });
+    tbl.append(tb);
+    body.append(tbl);
+    const tree = data.tree || {};
+    if (Array.isArray(tree.edges) && tree.edges.length) {
+      const ul = h("ul", { class: "isc-treelist", "aria-label": "tree of the columns" });
+      for (const [parent, child, mi, depth] of tree.edges) {
+        ul.append(h("li", { style: { paddingLeft: `${Math.min(depth || 0, 8) * 10}px` } }, nameEl(parent), " → ", nameEl(child), ` ${amount(mi)} ${tree.unit || "bits"}`));
+      }
+      treeBox.append(h("div", { class: "isc-ptitle" }, "tree (strongest links, from ", nameEl(tree.root), ")"), ul);
+    }
+    legend.append(
+      h("span", null, "bits: −log₂ of the row's probability under the model (Dirichlet-smoothed)"),
+      h("span", null, "a surprising row is an error or a rare real case: look before removing it"),
+      hidden ? h("span", null, `values hidden (small-cell suppression, min_count = ${count(data.min_count)}); the scores are kept`) : null
+    );
+  }
+  draw();
+  return { el, draw };
+}
+
 // src/views/status.js
 function statusView(ctx, onCancel) {
   const el = h("div", { class: "isc-status", role: "status", "aria-live": "polite" });
@@ -1544,8 +1754,26 @@ function render({ model, el }, memory = createMemory()) {
       h("div", { class: "isc-row" }, parts.pair.el, parts.relevance.el),
       h("div", { class: "isc-row" }, parts.drift.el)
     );
+    const extra = [];
+    if (model.get("_selection")) {
+      parts.selection = selectionView(ctx);
+      extra.push(parts.selection.el);
+    }
+    if (model.get("_surprising")) {
+      parts.surprising = surprisingView(ctx);
+      extra.push(parts.surprising.el);
+    }
+    if (extra.length) root.append(h("div", { class: "isc-row" }, ...extra));
   } else {
-    const make = { entropy: entropyView, grid: gridView, pair: pairView, relevance: relevanceView, drift: driftView }[view] || entropyView;
+    const make = {
+      entropy: entropyView,
+      grid: gridView,
+      pair: pairView,
+      relevance: relevanceView,
+      drift: driftView,
+      selection: selectionView,
+      surprising: surprisingView
+    }[view] || entropyView;
     parts[view] = make(ctx);
     if (view === "pair") {
       parts.grid = null;
@@ -1588,10 +1816,14 @@ function render({ model, el }, memory = createMemory()) {
     _drift: ["drift"],
     _status: ["status", "caution"],
     _meta: ["caution", "sub"],
-    alpha_fdr: ["grid", "relevance"]
+    alpha_fdr: ["grid", "relevance"],
+    _selection: ["selection"],
+    selection_method: ["selection"],
+    selection_k: ["selection"],
+    _surprising: ["surprising"]
   };
   for (const k of ["bins", "strategy", "estimator", "alpha", "measure", "unit", "target", "missing", "column_bins", "min_count"]) {
-    wiring[k] = ["controls", "sub", ...k === "target" ? ["relevance"] : []];
+    wiring[k] = ["controls", "sub", ...k === "target" ? ["relevance", "selection"] : []];
   }
   parts.status = status;
   const handlers = [];
