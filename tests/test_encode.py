@@ -845,19 +845,10 @@ def test_docstring_examples_run():
         assert result.failed == 0, module.__name__
 
 
-def test_an_id_column_encodes_in_a_few_factorize_times():
-    # speed guard: the levels are converted as arrays, not one Python call per level
-    # (converting 1M Arrow-backed levels one by one took about 4 s).  The floor is
-    # pandas.factorize on the same column; a per-level Python loop costs several times it.
-    import time
-
+def test_an_id_column_of_arrow_strings_keeps_every_level_count():
+    # the levels are converted as arrays, not one Python call per level; how fast that
+    # is against pandas.factorize is measured in benchmarks/speed_guards.py (5.)
     ids = pd.Series([f"row-{i}" for i in range(300_000)], dtype="string[pyarrow]")
-    start = time.perf_counter()
-    pd.factorize(ids)
-    floor = time.perf_counter() - start
-    start = time.perf_counter()
     with pytest.warns(DataQualityWarning, match="folded"):
         col = enc(ids)
-    elapsed = time.perf_counter() - start
     assert col.k == 64 and len(col.level_counts) == 300_000
-    assert elapsed < max(12 * floor, 0.5), (elapsed, floor)

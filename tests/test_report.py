@@ -10,7 +10,6 @@ from __future__ import annotations
 
 import json
 import re
-import time
 import xml.etree.ElementTree as ET
 
 import numpy as np
@@ -385,15 +384,13 @@ def demo_session():
     return session
 
 
-def test_picture_of_the_demo_is_fast_and_shows_every_view(demo_session):
+def test_picture_of_the_demo_shows_every_view(demo_session):
+    # (its speed against the session's own tables: benchmarks/speed_guards.py, 6.)
     import warnings
 
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
-        start = time.perf_counter()
         svg = picture.profile_svg(demo_session)
-        elapsed = time.perf_counter() - start
-    assert elapsed < 1.5, f"the picture took {elapsed:.2f} s"
     texts = _svg_texts(svg)
     assert "Entropy bars" in texts and any(t.startswith("Information grid") for t in texts)
     assert "Relevance to late" in texts
