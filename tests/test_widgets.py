@@ -607,3 +607,46 @@ def test_nsb_says_what_it_costs_before_it_starts(frame):
     integrals = p + p * (p - 1) // 2 + p  # entropy bars + grid (no target here)
     assert f"{integrals:,} posterior integrals" in said[0]
     assert w._status["state"] == "idle" and json.loads(w._entropy)["estimator"] == "nsb"
+
+
+# ---------------------------------------------------------------- drift view (reference=)
+def test_a_reference_adds_the_drift_record_and_follows_the_controls():
+    # the widget's _drift is the same record as df.info_profile.drift_report(ref).to_dict():
+    # the demo batch is flagged exactly on its planted columns (infoscope.datasets.PLANTED)
+    from infoscope.datasets import PLANTED, make_deliveries, make_deliveries_batch
+
+    ref = make_deliveries(n=3000, seed=0)
+    cur = make_deliveries_batch(n=2000, seed=1)
+    w = quiet(ProfileWidget, quiet(ProfileSession, cur, n_boot=0), reference=ref, threaded=False)
+    record = json.loads(w._drift)
+    direct = quiet(quiet(ProfileSession, cur, n_boot=0).drift_report, ref, pairs=True).to_dict()
+    assert record["schema"] == "infoscope-drift"
+    assert {c["column"]: c["flag"] for c in record["columns"]} == {c["column"]: c["flag"] for c in direct["columns"]}
+    shifted = {c["column"] for c in record["columns"] if c["flag"] in ("moderate", "major")}
+    assert shifted and shifted <= set(PLANTED["drift"])
+    first = record["generation"]
+    # a pair click or a new grid order does not redo the drift splits ...
+    quiet(setattr, w, "selected_pair", [cur.columns[2], cur.columns[3]])
+    quiet(setattr, w, "order", "name")
+    assert json.loads(w._drift)["generation"] == first
+    # ... a new binning does, and the export carries the record
+    quiet(setattr, w, "bins", 8)
+    assert json.loads(w._drift)["generation"] > first
+    assert quiet(w.payload)["state"]["_drift"]["schema"] == "infoscope-drift"
+    w.close()
+
+
+def test_without_a_reference_there_is_no_drift_record(frame):
+    w = quiet(ProfileWidget, quiet(ProfileSession, frame.head(500), n_boot=0), threaded=False)
+    assert w._drift == "" and quiet(w.payload)["state"]["_drift"] is None
+    w.close()
+
+
+def test_the_accessor_and_the_export_take_a_reference():
+    from infoscope.datasets import make_deliveries, make_deliveries_batch
+
+    ref, cur = make_deliveries(n=1500, seed=0), make_deliveries_batch(n=800, seed=1)
+    page = quiet(cur.info_profile.to_html, reference=ref, n_boot=0)
+    assert '"infoscope-drift"' in page
+    with pytest.raises(TypeError, match="reference"):
+        quiet(ProfileWidget, quiet(ProfileSession, cur, n_boot=0), reference=[1, 2, 3], threaded=False)

@@ -426,7 +426,7 @@ class InfoProfileAccessor:
         options = {k: settings.pop(k) for k in ("pseudocount", "n_perm", "null") if k in settings}
         return self._session(settings).drift(reference, **options)
 
-    def to_html(self, path=None, *, min_count=None, title: str | None = None, **settings):
+    def to_html(self, path=None, *, min_count=None, title: str | None = None, reference=None, **settings):
         """The profile as one self-contained HTML file that works offline.
 
         The file holds the live view's front end and every view's data
@@ -444,6 +444,8 @@ class InfoProfileAccessor:
             personal data can identify people).
         title : str, optional
             Title of the page.
+        reference : pandas.DataFrame or polars.DataFrame, optional
+            A reference frame: the page adds the drift view (this frame against it).
         **settings
             Settings of the session (``bins``, ``estimator``, ``target`` ...) and
             view settings (``order``, ``alpha_fdr``, ``selected_pair``, ``sort_by``).
@@ -468,7 +470,8 @@ class InfoProfileAccessor:
         from infoscope.report.html import to_html
 
         view = {k: settings.pop(k) for k in list(settings) if k in _VIEW_SETTINGS}
-        return to_html(self._session(settings), path, min_count=min_count, title=title, settings=view)
+        return to_html(self._session(settings), path, min_count=min_count, title=title, settings=view,
+                       reference=reference)
 
     def pair_drift(self, reference, **settings) -> pd.DataFrame:
         """Pairs whose dependence changed from a reference frame: see :meth:`ProfileSession.pair_drift`.
@@ -566,11 +569,15 @@ class InfoProfileAccessor:
         options = {k: settings.pop(k) for k in names if k in settings}
         return self._session(settings).drift_report(reference, pairs=pairs, **options)
 
-    def __call__(self, **settings):
+    def __call__(self, *, reference=None, **settings):
         """The live profile widget of this frame (needs the widget extra).
 
         Parameters
         ----------
+        reference : pandas.DataFrame or polars.DataFrame, optional
+            A reference frame (e.g. the training data): the profile adds the drift
+            view, each column's drift of this frame from it against the drift that
+            sampling alone gives (:meth:`drift_report`), recomputed with the controls.
         **settings
             Initial settings of the profile.
 
@@ -595,4 +602,4 @@ class InfoProfileAccessor:
                 "(infoscope.widgets.profile.ProfileWidget), which could not be imported: "
                 f"{error}. The tables work without it: df.info_profile.entropy(), .pairs(), ..."
             ) from error
-        return ProfileWidget(self.session(**settings))
+        return ProfileWidget(self.session(**settings), reference=reference)

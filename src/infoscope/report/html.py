@@ -149,19 +149,20 @@ def _pairs_note(meta: dict) -> str | None:
     return text
 
 
-def _payload_of(source, *, settings=None, min_count=None) -> dict:
+def _payload_of(source, *, settings=None, min_count=None, reference=None) -> dict:
     """The payload of a live view (its own ``payload``) or of a session (:func:`infoscope.views.payload`)."""
     if callable(getattr(source, "payload", None)) and hasattr(source, "session"):
-        if settings:
-            raise TypeError("settings= applies to a session; a live view exports its own control values")
+        if settings or reference is not None:
+            raise TypeError("settings= and reference= apply to a session; a live view exports its own "
+                            "control values and reference")
         return source.payload(min_count=min_count)
     if not all(hasattr(source, m) for m in ("entropy", "pairs", "pair", "names", "settings")):
         raise TypeError("to_html needs an infoscope ProfileSession (or a live profile view), "
                         f"got {type(source).__name__}")
-    return build_payload(source, settings, min_count=min_count)
+    return build_payload(source, settings, min_count=min_count, reference=reference)
 
 
-def profile_html(source, *, min_count=None, title: str | None = None, settings=None) -> str:
+def profile_html(source, *, min_count=None, title: str | None = None, settings=None, reference=None) -> str:
     """The text of a self-contained offline HTML page of a profile.
 
     Parameters
@@ -178,6 +179,9 @@ def profile_html(source, *, min_count=None, title: str | None = None, settings=N
     settings : mapping, optional
         View settings of a session's export (``order``, ``alpha_fdr``,
         ``selected_pair``, ``sort_by``, ...; see :func:`infoscope.views.payload`).
+    reference : DataFrame, optional
+        A reference frame for a session's export: adds the drift view (drift of the
+        session's frame from it; a live view exports its own reference).
 
     Returns
     -------
@@ -198,7 +202,7 @@ def profile_html(source, *, min_count=None, title: str | None = None, settings=N
     True
     """
     check_min_count(min_count)
-    data = _payload_of(source, settings=settings, min_count=min_count)
+    data = _payload_of(source, settings=settings, min_count=min_count, reference=reference)
     effective = data["state"].get("min_count") or None
     svg = profile_svg_from_payload(data)
     picture = f'<img alt="infoscope profile (static picture)" src="{svg_data_uri(svg)}">'
@@ -233,7 +237,7 @@ def profile_html(source, *, min_count=None, title: str | None = None, settings=N
     )
 
 
-def to_html(source, path=None, *, min_count=None, title: str | None = None, settings=None):
+def to_html(source, path=None, *, min_count=None, title: str | None = None, settings=None, reference=None):
     """Write one self-contained HTML file of a profile that works offline.
 
     Parameters
@@ -249,6 +253,8 @@ def to_html(source, path=None, *, min_count=None, title: str | None = None, sett
         Title of the page.
     settings : mapping, optional
         View settings of a session's export (see :func:`profile_html`).
+    reference : DataFrame, optional
+        A reference frame: adds the drift view (see :func:`profile_html`).
 
     Returns
     -------
@@ -265,7 +271,7 @@ def to_html(source, path=None, *, min_count=None, title: str | None = None, sett
     >>> report.to_html(session, "profile.html", min_count=10)  # doctest: +SKIP
     PosixPath('profile.html')
     """
-    text = profile_html(source, min_count=min_count, title=title, settings=settings)
+    text = profile_html(source, min_count=min_count, title=title, settings=settings, reference=reference)
     if path is None:
         return text
     target = Path(os.fspath(path))

@@ -1,10 +1,11 @@
 """What one recompute of a profile widget does: apply the settings to the session, ask for the parts."""
 from __future__ import annotations
 
+import json
 from typing import Any
 
 from infoscope._warnings import collect_warnings
-from infoscope.views.payload import TOP_PAIRS, view_data
+from infoscope.views.payload import TOP_PAIRS, drift_data, view_data
 
 #: Pair views precomputed into ``payload()`` for an offline export.
 PAYLOAD_TOP_PAIRS = TOP_PAIRS
@@ -42,6 +43,17 @@ class Computation:
                                selection_k=snap["traits"]["selection_k"],
                                surprise_model=snap["traits"]["surprise_model"],
                                surprise_n=snap["traits"]["surprise_n"])
+            if self._reference is not None:
+                # the drift record depends on the session settings and the small-cell
+                # threshold only: a pair click or a new order does not redo its splits
+                key = (repr(sorted(snap["session"].items())), repr(sorted(snap["column_bins"].items())),
+                       snap["min_count"] or None)
+                if key != self._drift_key:
+                    self._step(gen, 0.95, "Drift from the reference...")
+                    record = drift_data(s, self._reference, min_count=snap["min_count"] or None,
+                                        generation=gen)
+                    out["_drift"] = json.dumps(record, allow_nan=False)
+                    self._drift_key = key
         notes = sorted({f"{w.category.__name__}: {w.message}" for w in caught})
         return out, notes
 

@@ -40,4 +40,5 @@ class Payload:
         self.wait()
         with self._session_lock:
             return payload(self._session, self._view_values(), min_count=min_count, top_pairs=top_pairs,
-                           view=self._view, generation=self._applied, status=self._status)
+                           view=self._view, generation=self._applied, status=self._status,
+                           reference=self._reference)

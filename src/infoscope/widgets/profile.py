@@ -36,6 +36,7 @@ from pathlib import Path
 
 import traitlets as t
 
+from infoscope.frame.keys import as_pandas
 from infoscope.widgets.computation import Computation
 from infoscope.widgets.payload import Payload
 from infoscope.widgets.picture import StaticPicture
@@ -63,7 +64,7 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
 
     def __init__(self, session, *, debounce: float = 0.15, threaded: bool = True,
                  live_picture: bool = True, preview_rows: int | None = PREVIEW_ROWS,
-                 picture_delay: float = 1.0, first_view: str = "auto", **kwargs):
+                 picture_delay: float = 1.0, first_view: str = "auto", reference=None, **kwargs):
         if not all(hasattr(session, m) for m in ("update", "entropy", "pairs", "names", "settings")):
             raise TypeError("the profile widgets need an infoscope ProfileSession "
                             f"(infoscope.frame.session), got {type(session).__name__}")
@@ -83,6 +84,10 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
                          and n_rows is not None and n_rows > preview_rows)
         self._sample = preview_rows if self._preview else self._user_sample
         self._session = session
+        # a reference frame adds the drift view (drift of this frame from it), recomputed
+        # when a setting that changes the encoding or the estimates changes
+        self._reference = None if reference is None else as_pandas(reference, "reference")
+        self._drift_key = None
         self._debounce = float(debounce)
         self._threaded = bool(threaded)
         self._live_picture = bool(live_picture)

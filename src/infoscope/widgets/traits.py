@@ -99,6 +99,9 @@ class ProfileTraits(anywidget.AnyWidget):
     _selection = t.Unicode("").tag(sync=True)
     #: str (JSON): the surprising rows and the tree, see ``views.serialize.surprising_json``.
     _surprising = t.Unicode("").tag(sync=True)
+    #: JSON text: the drift record (``infoscope-drift``, docs/drift-json.md) of this frame against
+    #: the widget's ``reference`` frame; "" without a reference (the drift view then stays hidden)
+    _drift = t.Unicode("").tag(sync=True)
     #: dict: names, kinds, n_rows, sampled, choices of every control, version.
     _meta = t.Dict({}).tag(sync=True)
     #: dict: {state: "idle"|"computing"|"error", message, generation, progress, notes}.
