@@ -440,8 +440,12 @@ class SelectionWidget(_ProfileBase):
 
     References
     ----------
-    Peng, Long & Ding (2005), IEEE TPAMI 27(8); Yang & Moody (1999), NIPS 12;
-    Fleuret (2004), JMLR 5.
+    .. [1] Peng, H., Long, F. & Ding, C. (2005). Feature selection based on mutual
+       information. IEEE TPAMI 27(8), 1226-1238 (mRMR).
+    .. [2] Yang, H. H. & Moody, J. (1999). Data visualization and feature selection.
+       NIPS 12 (JMI).
+    .. [3] Fleuret, F. (2004). Fast binary feature selection with conditional mutual
+       information. JMLR 5, 1531-1555 (CMIM).
 
     Examples
     --------
@@ -470,7 +474,9 @@ class SurprisingRowsWidget(_ProfileBase):
 
     References
     ----------
-    Chow, C. K., & Liu, C. N. (1968). IEEE Transactions on Information Theory, 14(3).
+    .. [1] Chow, C. K., & Liu, C. N. (1968). Approximating discrete probability
+       distributions with dependence trees. IEEE Transactions on Information
+       Theory, 14(3), 462-467.
 
     Examples
     --------
