@@ -50,7 +50,7 @@ def test_not_a_frame_is_a_clear_error():
 
 def test_one_row(unchanged):
     df = unchanged(pd.DataFrame({"x": [2.5], "c": ["k"]}))
-    e = df.info_profile.entropy(n_boot=10)
+    e = df.info_profile.entropy(n_boot=40)
     # one observation: entropy 0, a single symbol (closed form)
     assert (e["entropy"] == 0).all() and (e["k"] == 1).all()
     assert all("constant" in f for f in e["flags"])
@@ -61,7 +61,7 @@ def test_one_row(unchanged):
 def test_all_missing_column(unchanged):
     df = unchanged(pd.DataFrame({"gone": [np.nan] * 30, "c": list("xy") * 15}))
     with pytest.warns(DataQualityWarning, match="'gone'.*no non-missing values"):
-        e = df.info_profile.entropy(n_boot=10).set_index("column")
+        e = df.info_profile.entropy(n_boot=40).set_index("column")
     assert np.isnan(e.loc["gone", "entropy"]) and e.loc["gone", "missing_share"] == 1.0
     assert "mostly_missing" in e.loc["gone", "flags"]
     assert e.loc["c", "entropy"] == pytest.approx(1.0, abs=0.05)  # two equal halves: 1 bit
@@ -69,16 +69,16 @@ def test_all_missing_column(unchanged):
     assert pairs.loc[0, "n"] == 0 and np.isnan(pairs.loc[0, "mi"]) and np.isnan(pairs.loc[0, "p_value"])
     with pytest.warns(DataQualityWarning, match="'gone' and 'c' are never present"):
         assert df.info_profile.pair("gone", "c").n == 0
-    rel = df.info_profile.relevance("c", n_boot=10)
+    rel = df.info_profile.relevance("c", n_boot=40)
     assert rel.loc[0, "n"] == 0 and not rel.loc[0, "leakage"]
 
 
 def test_constant_column(unchanged):
     df = unchanged(pd.DataFrame({"k": [7] * 40, "y": [0, 1] * 20}))
-    e = df.info_profile.entropy(n_boot=20).set_index("column")
+    e = df.info_profile.entropy(n_boot=40).set_index("column")
     assert e.loc["k", "entropy"] == 0 and e.loc["k", "max_entropy"] == 0
     assert "constant" in e.loc["k", "flags"] and np.isnan(e.loc["k", "efficiency"])
-    rel = df.info_profile.relevance("y", n_boot=20)
+    rel = df.info_profile.relevance("y", n_boot=40)
     assert rel.loc[0, "mi"] == 0 and rel.loc[0, "p_value"] == 1.0
     with pytest.warns(DataQualityWarning, match="target 'k' has at most one value"):
         df.info_profile.relevance("k", n_boot=0)
@@ -189,6 +189,9 @@ def test_unknown_target_and_columns():
     ({"n_boot": -1}, "n_boot=-1"),
     ({"sample": 0}, "sample=0"),
     ({"max_categories": 1}, "max_categories=1"),
+    ({"categorical_threshold": -1}, "categorical_threshold=-1"),
+    ({"n_boot": 1}, r"n_boot=1 is too few .* at least 40"),
+    ({"n_boot": 100, "ci": 0.99}, r"n_boot=100 is too few .*99% interval.* at least 200"),
 ])
 def test_bad_settings_are_named(settings, match):
     df = pd.DataFrame({"a": [1.0, 2.0, 3.0] * 10})
@@ -197,19 +200,21 @@ def test_bad_settings_are_named(settings, match):
     s = ProfileSession(df)
     with pytest.raises((TypeError, ValueError), match=match):
         s.update(**settings)
-    assert s.settings["bins"] == 16  # a refused update leaves the settings as they were
+    assert s.settings["bins"] == "rows"  # a refused update leaves the settings as they were
 
 
 def test_sparse_pair_warns(unchanged):
     df = unchanged(pd.DataFrame({"a": np.arange(40.0), "b": np.arange(40.0)[::-1]}))
     with pytest.warns(SmallSampleWarning, match="'a' and 'b'.*fewer than 5 per cell"):
-        pt = df.info_profile.pair("a", "b")
+        pt = df.info_profile.pair("a", "b", bins=16)
     assert pt.sparse and pt.reliability == "too_few"  # 40 rows in 256 cells: under one per cell
-    table = df.info_profile.pairs()
+    table = df.info_profile.pairs(bins=16)
     assert table.loc[0, "reliability"] == "too_few"
     assert "sparse" not in table.columns  # the old name collided with pandas' .sparse accessor
-    e = df.info_profile.entropy(n_boot=0)
+    e = df.info_profile.entropy(n_boot=0, bins=16)
     assert all("sparse_cells" in f for f in e["flags"])  # 40 rows in 16 bins
+    # the default bins follow the rows (floor(sqrt(40 / 10)) = 2): 10 rows per cell
+    assert df.info_profile.pair("a", "b").counts.shape == (2, 2)
 
 
 def test_session_does_not_see_later_edits():

@@ -96,11 +96,26 @@ def test_zero_one_column_is_two_categories_not_sixteen_bins():
     np.testing.assert_array_equal(col.counts(), np.unique([0, 1, 1, 0, 1] * 20, return_counts=True)[1])
 
 
-def test_few_distinct_floats_are_categories_in_numeric_order():
-    col = enc([2.5, 0.5, 1.5, 0.5, np.nan])
+def test_whole_valued_floats_with_few_values_are_integer_categories_in_numeric_order():
+    # integers stored as float (the NaN made them float) are whole numbers: levels
+    col = enc([2.0, 0.0, 1.0, 0.0, np.nan])
     assert col.kind == "integer_categories"
-    assert col.labels == ("0.5", "1.5", "2.5")
+    assert col.labels == ("0", "1", "2")
     np.testing.assert_array_equal(col.codes, [2, 0, 1, 0, 3])
+
+
+def test_fractional_floats_are_numeric_however_few_their_values():
+    # issue 10: a 32-row grade average (29 distinct values) was "integer_categories";
+    # floats with fractional values are measurements and are binned
+    rng = np.random.default_rng(3)
+    gpa = np.round(rng.uniform(2.0, 4.0, 32), 2)
+    col = enc(gpa, bins=4, strategy="uniform")
+    assert col.kind == "numeric" and col.k == 4 and col.edges is not None
+    # reference: numpy.histogram with the same 4 equal-width bins
+    np.testing.assert_array_equal(col.counts(), np.histogram(gpa, bins=4)[0])
+    # the threshold still keeps whole numbers as levels, and 0 bins them
+    assert enc(np.arange(10.0).repeat(3)).kind == "integer_categories"
+    assert enc(np.arange(10.0).repeat(3), categorical_threshold=0, bins=2).kind == "numeric"
 
 
 def test_threshold_zero_forces_binning_and_explicit_edges_always_bin():

@@ -57,7 +57,7 @@ def test_random_changes_give_the_tables_of_a_fresh_session(wide, seed):
         "alpha": [None, 0.5, 1.0], "base": [2, "nats", 10], "measure": ["mi", "nmi", "vi"],
         "normalization": ["arithmetic", "max"], "missing": ["drop", "category"],
         "max_categories": [8, 64], "strategy": ["quantile", "uniform"],
-        "n_boot": [0, 10], "ci": [0.9, 0.95], "seed": [0, 5],
+        "n_boot": [0, 40], "ci": [0.9, 0.95], "seed": [0, 5],
     }
     for _ in range(12):
         if rng.random() < 0.35:
@@ -150,7 +150,7 @@ def test_entropy_rows_are_cached_per_column_and_still_warn(wide):
 
     frame = wide.iloc[:, :4].copy()
     frame["gone"] = np.nan
-    s = ProfileSession(frame, n_boot=10)
+    s = ProfileSession(frame, n_boot=40)
     with pytest.warns(DataQualityWarning, match="'gone' has no non-missing values"):
         first = s.entropy()
     with pytest.warns(DataQualityWarning, match="'gone' has no non-missing values"):

@@ -39,6 +39,9 @@ def frame():
 
 
 def session_of(frame, **settings):
+    # 16 bins, not the row-dependent default: these tests are about the widget's
+    # mechanics on 16 x 16 pair tables (the default is tested on its own below)
+    settings.setdefault("bins", 16)
     return quiet(ProfileSession, frame, n_boot=0, **settings)
 
 
@@ -339,7 +342,7 @@ def test_progress_lines_only_for_slow_recomputes(frame, monkeypatch):
 
 
 def test_cancel_message_stops_and_restores_controls(frame):
-    s = quiet(SlowSession, frame, n_boot=0)
+    s = quiet(SlowSession, frame, n_boot=0, bins=16)
     w = quiet(ProfileWidget, s, debounce=0.0)
     assert w.wait(30)
     before = w._entropy
@@ -650,3 +653,13 @@ def test_the_accessor_and_the_export_take_a_reference():
     assert '"infoscope-drift"' in page
     with pytest.raises(TypeError, match="reference"):
         quiet(ProfileWidget, quiet(ProfileSession, cur, n_boot=0), reference=[1, 2, 3], threaded=False)
+
+
+def test_the_slider_starts_at_the_row_dependent_default(frame):
+    # the session's default bins="rows" (floor(sqrt(n / 10)) within [2, 16],
+    # infoscope.encode.binning.rows_bin_count) reaches the slider as its number
+    from infoscope.encode.binning import rows_bin_count
+
+    w = quiet(ProfileWidget, quiet(ProfileSession, frame, n_boot=0), threaded=False)
+    assert w.bins == rows_bin_count(len(frame)) == 7 and w.strategy == "quantile"
+    w.close()

@@ -181,7 +181,9 @@ def add_demo_parser(subparsers) -> argparse.ArgumentParser:
     p.add_argument("--batch-rows", type=int, default=20_000,
                    help="rows of the second, drifted batch (default 20000)")
     p.add_argument("--seed", type=int, default=0, help="seed of the generator (default 0)")
-    p.add_argument("--bins", type=int, default=16, help="bins for numeric columns (default 16)")
+    p.add_argument("--bins", type=_bins_option, default="rows",
+                   help="bins for numeric columns: a number or a rule name (default 'rows': "
+                        "floor(sqrt(n/10)) within 2..16)")
     p.add_argument("--top", type=int, default=10, help="pairs to show (default 10)")
     _add_export_options(p)
     p.set_defaults(handler=cmd_demo)
@@ -224,7 +226,7 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
     out = sys.stdout if out is None else out
     _check_out(args)
     for name in ("rows", "batch_rows", "top", "bins"):
-        if getattr(args, name) < 1:
+        if isinstance(getattr(args, name), int) and getattr(args, name) < 1:
             raise CommandError(f"--{name.replace('_', '-')} must be >= 1, got {getattr(args, name)}")
     if args.seed < 0:
         raise CommandError(f"--seed must be >= 0, got {args.seed}")
@@ -444,9 +446,11 @@ def add_profile_parser(subparsers) -> argparse.ArgumentParser:
                     "self-contained HTML page that works offline.")
     p.add_argument("data", metavar="DATA", help="a .csv (or .csv.gz, .tsv) or .parquet file")
     p.add_argument("--target", default=None, help="column to measure every other column against")
-    p.add_argument("--bins", type=_bins_option, default=16,
-                   help="bins for numeric columns: a number (default 16) or a rule name "
-                        "(fd, scott, sturges, doane, rice, sqrt, stone, auto, knuth)")
+    p.add_argument("--bins", type=_bins_option, default="rows",
+                   help="bins for numeric columns: a number or a rule name (fd, scott, sturges, "
+                        "doane, rice, sqrt, stone, auto, knuth, rows); default 'rows': "
+                        "floor(sqrt(n/10)) bins within 2..16 for n values, about 10 rows per "
+                        "cell of a pair")
     p.add_argument("--strategy", default="quantile",
                    help="where a fixed number of bins go: quantile (default) or uniform")
     p.add_argument("--estimator", default="miller_madow", help="entropy estimator (default miller_madow)")

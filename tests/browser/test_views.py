@@ -131,7 +131,7 @@ def payloads():
     from infoscope.widgets import ProfileWidget
 
     frame = make_deliveries(800, seed=3)
-    session = _quiet(ProfileSession, frame, n_boot=30)
+    session = _quiet(ProfileSession, frame, n_boot=40)
     w = _quiet(ProfileWidget, session, threaded=False, target="late", min_count=5)
     base = _quiet(w.payload)
     answers = [base]

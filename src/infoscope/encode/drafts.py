@@ -20,8 +20,13 @@ __all__ = [
 ]
 
 
-#: Numeric (and datetime / duration) columns with at most this many distinct values
-#: are kept as categories rather than binned.  32 keeps the usual small codes whole:
+#: Whole-number columns (integers, or floats whose values are all whole, such as
+#: integers stored as float because of missing values) and datetime / duration
+#: columns with at most this many distinct values are kept as categories rather
+#: than binned; floats with fractional values are always binned (a measurement
+#: with few distinct values is still a measurement: convert it to a pandas
+#: Categorical to keep its values as levels).  The profile's setting
+#: ``categorical_threshold`` changes it.  32 keeps the usual small codes whole:
 #: flags (0/1), rating scales (5, 7, 10 or 11 points), months (12), hours (24) and
 #: days of the month (31); binning such a column into 16 bins would split or merge
 #: values arbitrarily (16 bins on a 0/1 column), while with more than 32 distinct

@@ -84,6 +84,33 @@ def _heavy_tail(s: np.ndarray) -> bool:
     return s.size >= HEAVY_TAIL_MIN_ROWS and tail_index(s) > HEAVY_TAIL_INDEX
 
 
+def _value_edges(distinct: np.ndarray, n_values: int, bins, strategy: str):
+    """One bin per value when a measurement has no more distinct values than quantile bins.
+
+    Quantile edges of a column with few distinct values (a voucher of 0, 2.5, 5 or
+    15) coincide at the tied values and the bins merge unpredictably; when the
+    column has at most as many values as bins were asked for, each value gets a
+    bin of its own, cut halfway between neighbours, and nothing is merged.  None
+    when the rule does not apply (more values, equal-width bins, a width rule).
+    """
+    if strategy != "quantile" or distinct.size < 2:
+        return None
+    if isinstance(bins, str):
+        if bins != "rows":
+            return None
+        bins = binning.rows_bin_count(n_values)
+    if not isinstance(bins, (int, np.integer)) or distinct.size > bins:
+        return None
+    return _midpoint_edges(distinct)
+
+
+def _midpoint_edges(distinct: np.ndarray):
+    d = distinct.astype(np.float64)
+    edges = np.concatenate(([d[0]], (d[:-1] + d[1:]) / 2.0, [d[-1]]))
+    # neighbouring floats can have no float between them: then the usual rule
+    return edges if np.all(np.diff(edges) > 0) else None
+
+
 def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy, threshold) -> _Levels | _Bins:
     """Float or integer values (``na``: mask of missing rows of a nullable dtype)."""
     n = x.size
@@ -133,7 +160,11 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
     integral = x.dtype.kind in "iu" or (s.size > 0 and bool(np.all(np.floor(distinct) == distinct)))
     if integral and n_distinct and _integer_id_like(v, n_distinct, distinct[0], distinct[-1], notes.name):
         notes.flags.add("id_like")
-    if n_distinct == 0 or (not explicit and n_distinct <= threshold):
+    # Only whole numbers become levels: a float column with fractional values (a
+    # grade average, a share) is a measurement however few values it shows, and
+    # calling it "integer_categories" would be untrue.  Floats that are all whole
+    # (integers stored as float, e.g. because of missing values) count as integers.
+    if n_distinct == 0 or (not explicit and integral and n_distinct <= threshold):
         raw = np.full(n, -1, dtype=np.int64)
         if n_distinct:
             raw[~missing] = np.searchsorted(distinct, v)
@@ -141,9 +172,11 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
         return _Levels(raw, _format_numbers(distinct), True, kind, n_distinct)
     if x.dtype.kind in "iu" and (binning.beyond_float(s[0], s[-1]) or (explicit and bins.dtype.kind in "iu")):
         return _integer_bins(v, s, n, missing, notes, bins, strategy, n_distinct)
-    edges, note = binning._edges(s, bins, strategy, is_sorted=True)
-    if note is not None:
-        notes.warn(note)
+    edges = _value_edges(distinct, int(s.size), bins, strategy) if not explicit else None
+    if edges is None:
+        edges, note = binning._edges(s, bins, strategy, is_sorted=True)
+        if note is not None:
+            notes.warn(note)
     if explicit:
         outside = int(np.count_nonzero(s < edges[0]) + np.count_nonzero(s > edges[-1]))
         if outside:

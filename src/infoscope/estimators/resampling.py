@@ -325,7 +325,7 @@ def _resampling_inputs(counts, parameter, ndim, estimator, alpha, base, level, n
     a = resolve_alpha(estimator, alpha)
     divisor = log_base(base)
     level = _check_level(level)
-    n_boot = _check_positive_int(n_boot, "n_boot")  # FLOOR: _check_n_boot after the session split
+    n_boot = _check_n_boot(n_boot, level)
     rng = _rng(seed)
     n = check_counts(counts, parameter, ndim=ndim)
     if n.size == 0:

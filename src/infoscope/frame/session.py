@@ -56,10 +56,16 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
     frame : pandas.DataFrame or polars.DataFrame
         The data.  It is never modified; a later change of the user's frame does
         not reach the session (pandas copy-on-write).
-    bins : int or str, default=16
+    bins : int or str, default="rows"
         Number of bins for numeric, datetime and timedelta columns, or a binning
         rule name (``"fd"``, ``"scott"``, ``"sturges"``, ``"doane"``, ``"rice"``,
-        ``"sqrt"``, ``"stone"``, ``"auto"``, ``"knuth"``).
+        ``"sqrt"``, ``"stone"``, ``"auto"``, ``"knuth"``, ``"rows"``).  The default
+        ``"rows"`` gives each column floor(sqrt(n / 10)) bins
+        within [2, 16] for its n non-missing values, so that a pair of numeric
+        columns has about 10 rows per cell (3 bins at 100 rows, 5 at 300, 10 at
+        1,000, 16 from 2,560; :func:`infoscope.encode.binning.rows_bin_count`
+        gives the reasoning).  A number (``bins=16``) or another rule overrides
+        it, and :meth:`set_column_bins` overrides both for one column.
     strategy : str, default="quantile"
         ``"quantile"`` (equal frequency) or ``"uniform"`` (equal width) when ``bins``
         is a number.
@@ -77,6 +83,12 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
         Categorical columns keep at most this many symbols in the pair tables;
         rarer levels are folded into one (flag ``levels_folded``).  The entropy
         table still counts every level (see :meth:`entropy`).
+    categorical_threshold : int, default=32
+        Whole-number columns (and datetimes, durations) with at most this many
+        distinct values are kept as levels (kind ``integer_categories``), not
+        binned; 0 bins every number.  Floats with fractional values are always
+        binned, however few their values (a column with no more distinct values
+        than bins gets one bin per value).
     target : str, optional
         Column key used by :meth:`relevance` when no target is passed.
     measure : {"mi", "nmi", "adjusted_mi", "vi"}, default="mi"
@@ -89,9 +101,11 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
     seed : int, default=0
         Seed of the row sample and of the bootstrap.
     ci : float, default=0.95
-        Level of the bootstrap confidence intervals.
+        Level of the two-sided intervals (entropy and mutual information).
     n_boot : int, default=200
-        Bootstrap replicates (0 skips the intervals: they are NaN).
+        Bootstrap replicates of the entropy intervals: 0 skips them (NaN), else at
+        least ``2 / (1 - ci)`` (40 at 95%).  The mutual information intervals need
+        no bootstrap (:mod:`infoscope.estimators.intervals`).
 
     Attributes
     ----------
@@ -120,7 +134,7 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
     >>> from infoscope.datasets import make_deliveries
     >>> from infoscope.frame.session import ProfileSession
     >>> s = ProfileSession(make_deliveries(2_000)[["depot", "weight_kg", "late"]], target="late",
-    ...                    n_boot=20)
+    ...                    n_boot=40)
     >>> s.entropy().columns[:4].tolist()
     ['column', 'kind', 'k', 'n']
     >>> sorted(s.update(bins=8)) == sorted(s.numeric_keys())
@@ -279,12 +293,14 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
         at all depends on its distinct values, not on ``bins``); ``max_categories``
         only to columns kept as levels; ``missing`` only to columns with missing rows.
         """
-        names = ("bins", "strategy", "missing", "max_categories")
-        before = dict(zip(names, self._encoding_settings(key, old)))
-        after = dict(zip(names, self._encoding_settings(key, new)))
+        names = ("bins", "strategy", "missing", "max_categories", "categorical_threshold")
+        before = dict(zip(names, (*self._encoding_settings(key, old), old["categorical_threshold"])))
+        after = dict(zip(names, (*self._encoding_settings(key, new), new["categorical_threshold"])))
         changed = {name for name in names if before[name] != after[name]}
         col = self._encoded[key]
         relevant = {"bins", "strategy"} if col.edges is not None else {"max_categories"}
+        if col.kind in ("numeric", "integer_categories", "datetime", "timedelta"):
+            relevant.add("categorical_threshold")  # may turn levels into bins or back
         if col.n_missing:
             relevant.add("missing")
         return bool(changed & relevant)
@@ -351,8 +367,10 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
                 if bins[1] is not None:
                     supervised.append(key)
                 bins = FALLBACK_BINS
+            threshold = self._settings["categorical_threshold"]
             jobs.append((key, self._values(key), {"bins": bins, "strategy": strategy,
-                                                  "missing": missing, "max_categories": max_categories}))
+                                                  "missing": missing, "max_categories": max_categories,
+                                                  "categorical_threshold": threshold}))
         done: set[str] = set()
         # columns are encoded side by side in worker threads (numpy's sort and search
         # release the GIL); warnings still come from here, in column order

@@ -28,13 +28,14 @@ ORDERS = ("name", "cluster")
 MISSING_POLICIES = ("drop", "category")
 
 _DEFAULTS = {
-    "bins": 16,
+    "bins": "rows",
     "strategy": "quantile",
     "estimator": "miller_madow",
     "alpha": None,
     "base": 2,
     "missing": "drop",
     "max_categories": 64,
+    "categorical_threshold": 32,
     "target": None,
     "measure": "mi",
     "normalization": "arithmetic",
@@ -44,7 +45,7 @@ _DEFAULTS = {
     "n_boot": 200,
 }
 # the settings that change how a column is encoded (the rest only change numbers)
-_ENCODING_SETTINGS = ("bins", "strategy", "missing", "max_categories")
+_ENCODING_SETTINGS = ("bins", "strategy", "missing", "max_categories", "categorical_threshold")
 
 #: The named choices of each setting, in one place: the session validates against
 #: these, and the views' controls list them (``infoscope.views.choices``).
@@ -89,9 +90,22 @@ def _check_settings(settings: Mapping, previous: Mapping | None = None) -> dict:
     ci = s["ci"]
     if isinstance(ci, bool) or not isinstance(ci, numbers.Real) or not 0.0 < float(ci) < 1.0:
         raise ValueError(f"ci={ci!r} must be a confidence level strictly between 0 and 1")
+    ct = s["categorical_threshold"]
+    if isinstance(ct, bool) or not isinstance(ct, numbers.Integral) or ct < 0:
+        raise ValueError(f"categorical_threshold={ct!r} must be an integer >= 0 (0 bins every number)")
     nb = s["n_boot"]
     if isinstance(nb, bool) or not isinstance(nb, numbers.Integral) or nb < 0:
-        raise ValueError(f"n_boot={nb!r} must be an integer >= 0 (0 skips the intervals)")
+        raise ValueError(f"n_boot={nb!r} must be an integer >= 0 (0 skips the bootstrap intervals)")
+    if nb:
+        from infoscope.estimators.resampling import min_replicates
+
+        need = min_replicates(float(ci))
+        if nb < need:
+            raise ValueError(
+                f"n_boot={nb} is too few bootstrap replicates for a {float(ci):.0%} interval: use at "
+                f"least {need} (2 / (1 - ci), so that a replicate lies beyond each end; about 1,000 "
+                "make the ends stable), or 0 to skip the bootstrap intervals"
+            )
     sample = s["sample"]
     if sample is not None and (isinstance(sample, bool) or not isinstance(sample, numbers.Integral)
                                or sample < 1):

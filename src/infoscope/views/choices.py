@@ -40,19 +40,26 @@ def control_choices() -> dict[str, list[str]]:
     >>> control_choices()["unit"]
     ['bits', 'nats', 'hartleys']
     """
-    return {"strategy": list(CHOICES["strategy"] + CHOICES["bin_rule"]),
+    # "rows" (the session's default) is what the bins slider starts at, not a rule
+    # to pick: a view shows its number (view_settings_from_session)
+    rules = tuple(rule for rule in CHOICES["bin_rule"] if rule != "rows")
+    return {"strategy": list(CHOICES["strategy"] + rules),
             "estimator": list(CHOICES["estimator"]), "measure": list(CHOICES["measure"]),
             "unit": list(UNITS), "missing": list(CHOICES["missing"]), "order": list(CHOICES["order"]),
             "sort_by": list(SORTS)}
 
 
-def view_settings_from_session(settings: Mapping) -> dict:
+def view_settings_from_session(settings: Mapping, rows: int | None = None) -> dict:
     """The view settings (control values) that show a session's settings.
 
     Parameters
     ----------
     settings : mapping
         ``ProfileSession.settings``.
+    rows : int, optional
+        Rows profiled; with the default ``bins="rows"`` the bins slider shows the
+        number that rule gives for them
+        (:func:`infoscope.encode.binning.rows_bin_count`).
 
     Returns
     -------
@@ -69,6 +76,10 @@ def view_settings_from_session(settings: Mapping) -> dict:
     s = dict(settings)
     out: dict[str, Any] = {}
     bins, strategy = s.get("bins", 16), s.get("strategy", "quantile")
+    if bins == "rows":
+        from infoscope.encode.binning import rows_bin_count
+
+        bins = rows_bin_count(int(rows)) if rows else 16
     if isinstance(bins, str):
         out["strategy"] = bins
     else:

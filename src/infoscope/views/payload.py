@@ -319,7 +319,7 @@ def payload(session, settings: Mapping | None = None, *, min_count=None, top_pai
     if unknown:
         raise TypeError(f"unknown view setting(s) {sorted(unknown)}; the view settings are "
                         f"{', '.join(SETTINGS_TRAITS + VIEW_TRAITS)}")
-    shown = view_settings_from_session(session.settings)
+    shown = view_settings_from_session(session.settings, _profiled_rows(session))
     given = dict(settings or {})
     differ = sorted(k for k in given if k in shown and given[k] != shown[k])
     if differ:
@@ -359,3 +359,8 @@ def payload(session, settings: Mapping | None = None, *, min_count=None, top_pai
     for name in binary:
         state[name] = ser.b64(state[name])
     return {"format": FORMAT, "view": view, "state": state, "binary": binary, "pair_cache": cache}
+
+
+def _profiled_rows(session) -> int:
+    """Rows a session profiles (its sample when it has one)."""
+    return int(session.sampled or session.n_rows)

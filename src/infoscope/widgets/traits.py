@@ -114,7 +114,7 @@ class ProfileTraits(anywidget.AnyWidget):
     # ------------------------------------------------------------------ settings mapping
     @staticmethod
     def _settings_from_session(session) -> dict:
-        return view_settings_from_session(session.settings)
+        return view_settings_from_session(session.settings, int(session.sampled or session.n_rows))
 
     def _view_values(self) -> dict:
         """The control values (settings and view traits) as a plain dict."""
