@@ -256,7 +256,7 @@ def test_matrix_is_symmetric_and_clusters_duplicates(session):
     # (the entropy table clips a binned / declared alphabet at log K, the grid's
     # diagonal is the estimator's raw value: compare after the same clip)
     t = table.set_index("column")
-    kept = t["flags"].str.contains("exceeds_log_k")  # observed alphabets keep the raw value
+    kept = t["kind"].isin(["integer_categories", "text"])  # observed alphabets keep the raw value
     expect_diag = np.where(kept[plain], diag[plain], np.minimum(diag[plain], t["max_entropy"][plain]))
     np.testing.assert_allclose(expect_diag, e[plain].to_numpy())
     for key in folded:
@@ -631,6 +631,8 @@ def test_matrix_plugin_float_noise_becomes_exact_zero(monkeypatch):
     m = s.matrix("nmi")
     off = m.to_numpy()[~np.eye(3, dtype=bool)]
     # x and y are exactly independent (each x level meets each y level equally):
-    # plug-in MI = 0 in closed form; every off-diagonal cell is then exactly 0
-    assert np.all(off == 0.0)
-    assert np.all(np.signbit(off) == False)  # noqa: E712  (no -0.0 either)
+    # plug-in MI = 0 in closed form; every off-diagonal cell is then exactly 0,
+    # except those of the constant column: its NMI is undefined (NaN, issue 10)
+    assert np.all((off == 0.0) | np.isnan(off))
+    assert np.count_nonzero(off == 0.0) == 2 and np.count_nonzero(np.isnan(off)) == 4
+    assert np.all(np.signbit(off[~np.isnan(off)]) == False)  # noqa: E712  (no -0.0 either)

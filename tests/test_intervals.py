@@ -224,3 +224,79 @@ def test_interval_from_the_shown_p_value_agrees_with_it_exactly(rng):
     assert capped.low[0] == pytest.approx(free.low[0], rel=1e-9)
     with pytest.raises(ValueError, match="p_values has 2 entries for 1 tables"):
         mi_intervals_from_tables([t], p_values=[0.1, 0.2])
+
+
+# ------------------------------------------------------------------ the profile's entropy table
+
+def _profile(frame, **settings):
+    import warnings
+
+    from infoscope.frame.session import ProfileSession
+
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        return ProfileSession(frame, **settings)
+
+
+def test_entropy_rows_of_even_columns_at_500_rows():
+    # issue 10: at 500 rows every quantile-binned column got the point interval
+    # [4.0, 4.0] (default estimator) and ci_high 4.0108 > max_entropy (plugin); a
+    # balanced 0/1 integer column was flagged exceeds_log_k at 1.0005 bits, and the
+    # boolean interval was not clipped at log 2
+    import pandas as pd
+
+    rng = np.random.default_rng(0)
+    df = pd.DataFrame({"x": rng.normal(size=500), "b01": np.tile([0, 1], 250),
+                       "flag": np.tile([True, False], 250)})
+    for estimator in ("miller_madow", "plugin"):
+        e = _profile(df, estimator=estimator, bins=16).entropy().set_index("column")
+        assert e.loc["x", "ci_low"] < e.loc["x", "ci_high"] <= e.loc["x", "max_entropy"] == 4.0
+        assert e.loc["x", "ci_low"] <= e.loc["x", "entropy"] <= e.loc["x", "ci_high"]
+        assert e.loc["flag", "ci_high"] <= e.loc["flag", "max_entropy"] == 1.0
+        assert "exceeds_log_k" not in e.loc["b01", "flags"]
+    # Miller-Madow of a balanced 0/1 column: log 2 + 1 / (2N) nats (Miller 1955),
+    # inside its standard error sqrt(1 / (2 N^2)) times 1.96: not a finding
+    e = _profile(df[["b01"]], n_boot=0).entropy()
+    assert e.loc[0, "entropy"] == pytest.approx(1 + 1 / (2 * 500 * math.log(2)), rel=1e-12)
+
+
+def test_an_excess_beyond_the_standard_error_is_flagged():
+    # 60 rows over 40 levels, most seen once: Miller-Madow adds (m - 1) / (2N) =
+    # 0.325 nats to a plug-in of about log 40, far beyond its standard error
+    import pandas as pd
+
+    values = [f"v{i}" for i in range(40)] + [f"v{i}" for i in range(20)]
+    e = _profile(pd.DataFrame({"c": values}), n_boot=0).entropy()
+    assert "exceeds_log_k" in e.loc[0, "flags"]
+
+
+def test_one_bin_is_flagged_and_nmi_of_it_is_undefined():
+    # issue 10 / 13: Knuth's rule can give a uniform sample one bin; two such
+    # independent columns read NMI 1.0 before.  A column without entropy has no
+    # share to normalise: NaN, and the entropy table says why (flag one_bin)
+    import pandas as pd
+
+    rng = np.random.default_rng(1)
+    df = pd.DataFrame({"u1": rng.uniform(size=200), "u2": rng.uniform(size=200)})
+    s = _profile(df, bins="knuth", n_boot=0)
+    e = s.entropy()
+    if (e["k"] == 1).all():  # Knuth's posterior (Knuth 2006) chose one bin here
+        assert all("one_bin" in f for f in e["flags"])
+        assert s.pairs("nmi")["value"].isna().all() and s.pairs("adjusted_mi")["value"].isna().all()
+    e = _profile(df, bins=1, n_boot=0).entropy()   # a one-bin request is flagged the same way
+    assert all("one_bin" in f for f in e["flags"])
+
+
+def test_fractional_floats_are_binned_and_the_threshold_is_a_setting():
+    # issue 10: a 32-row grade average became integer_categories (k = 29)
+    import pandas as pd
+
+    rng = np.random.default_rng(2)
+    df = pd.DataFrame({"gpa": np.round(rng.uniform(2.0, 4.0, 32), 2), "grade": rng.integers(1, 6, 32)})
+    e = _profile(df, n_boot=0).entropy().set_index("column")
+    assert e.loc["gpa", "kind"] == "numeric" and e.loc["gpa", "k"] == 2   # floor(sqrt(32 / 10)) = 1 -> 2
+    assert e.loc["grade", "kind"] == "integer_categories"
+    s = _profile(df, n_boot=0, categorical_threshold=0, bins=3)
+    assert s.entropy().set_index("column").loc["grade", "kind"] == "numeric"
+    assert "grade" in s.update(categorical_threshold=32)
+    assert s.entropy().set_index("column").loc["grade", "kind"] == "integer_categories"

@@ -11,7 +11,7 @@ __all__ = ["EncodedColumn", "codes_dtype", "KINDS", "FLAGS", "MISSING_LABEL", "O
 KINDS = ("numeric", "integer_categories", "categorical", "boolean", "datetime", "timedelta", "text")
 FLAGS = (
     "constant", "id_like", "mostly_missing", "sparse_cells", "heavy_tail",
-    "levels_folded", "mixed_types", "infinite_values", "rare_levels", "exceeds_log_k",
+    "levels_folded", "mixed_types", "infinite_values", "rare_levels", "exceeds_log_k", "one_bin",
 )
 MISSING_LABEL = "(missing)"
 OTHER_LABEL = "(other)"

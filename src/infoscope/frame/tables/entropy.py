@@ -9,6 +9,7 @@ import pandas as pd
 from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.encode.columns import MISSING_LABEL
 from infoscope.estimators._checks import log_base
+from infoscope.estimators.intervals import entropy_standard_error
 from infoscope.estimators.resampling import bootstrap_entropy_ci
 from infoscope.frame.results import (
     ENTROPY_COLUMNS,
@@ -19,6 +20,13 @@ from infoscope.frame.results import (
     result_frame,
 )
 from infoscope.frame.tables.estimates import _child_seed
+
+
+def _z(level: float) -> float:
+    """The two-sided normal quantile of a confidence level (1.96 at 95%)."""
+    from scipy.stats import norm
+
+    return float(norm.ppf((1.0 + float(level)) / 2.0))
 
 
 def _alphabet_is_fixed(col) -> bool:
@@ -66,7 +74,7 @@ class EntropyTable:
             ``n`` rows profiled, ``missing`` of them missing; ``entropy`` of the
             non-missing values (missing included as a symbol under
             ``missing="category"``) with the session's estimator, its bootstrap
-            interval (seeded multinomial resampling of the counts; the centred
+            interval at level ``ci`` (seeded multinomial resampling of the counts; the centred
             interval of :func:`infoscope.estimators.resampling.bootstrap_entropy_ci`:
             the percentile interval shifted by the bootstrap estimate of bias, so
             it always contains the estimate); ``max_entropy = log K``;
@@ -74,8 +82,11 @@ class EntropyTable:
             base ** entropy`` (the number of equally likely symbols with the same
             entropy; the same number in every unit); ``flags`` comma-separated,
             from the encoder plus ``sparse_cells`` (fewer than 5 observations per
-            symbol on average), ``rare_levels`` (see below) and ``exceeds_log_k``
-            (see below).  ``attrs``: unit,
+            symbol on average), ``rare_levels`` (see below), ``exceeds_log_k``
+            (see below) and ``one_bin`` (a binned column with more than one
+            value that its bin rule put into a single bin: entropy 0 by the
+            binning, and every normalised measure of its pairs undefined).
+            ``attrs``: unit,
             estimator, sampled, and ``folded_in_pairs``: ``{column: k}`` for the
             columns whose levels were folded.
 
@@ -101,12 +112,20 @@ class EntropyTable:
             **Above log K.**  A bias correction can carry an estimate past log K.
             Where the encoding fixes the alphabet (binned numeric, datetime and
             duration columns, booleans, pandas Categoricals with their declared
-            categories) the entropy cannot exceed log K, and the estimate and its
-            interval are clipped to log K.  Where K is only the number of levels
-            seen (text, integer levels), flag ``exceeds_log_k``: the estimate is
-            above log K of the observed levels because the bias correction
-            credits levels the sample has not seen; K is a lower bound of the
-            true alphabet.  Those numbers are kept as computed, so ``efficiency``
+            categories) the entropy cannot exceed log K: the estimate is clipped
+            to log K, and so is every bootstrap replicate, so the interval is that
+            of the clipped estimator and keeps its spread below log K (a column
+            in equal quantile bins reads log K with an interval just below it,
+            not the point [log K, log K]).  Where K is only the number of levels
+            seen (text, integer levels), flag ``exceeds_log_k`` when the estimate
+            is above log K of the observed levels by more than ``z`` of its
+            standard errors (``z`` = 1.96 at ``ci=0.95``; second-order standard
+            error, :func:`infoscope.estimators.intervals.entropy_standard_error`):
+            the bias correction credits levels the sample has not seen, and K is
+            a lower bound of the true alphabet.  A smaller excess is sampling
+            noise of a near-even column (a balanced 0/1 column reads
+            log 2 + 1 / (2N) nats under Miller-Madow) and is not flagged.  Those
+            numbers are kept as computed, so ``efficiency``
             is then above 1 and ``effective_categories`` above ``k`` (an
             all-distinct identifier under Miller-Madow reads
             log K + (K - 1) / (2 n) nats).
@@ -157,8 +176,11 @@ class EntropyTable:
                 warn_user(f"column {key!r} has no non-missing values: its entropy is undefined (NaN)",
                               DataQualityWarning)
             elif s["n_boot"] > 0 and np.count_nonzero(counts) > 1:
+                # clipped to [0, log K] replicate by replicate where the encoding
+                # fixes the alphabet (resampling module notes, "Bounds")
                 low, high = bootstrap_entropy_ci(counts, level=s["ci"], n_boot=s["n_boot"],
-                                                 seed=_child_seed(s["seed"], i), **self._kw())
+                                                 seed=_child_seed(s["seed"], i),
+                                                 fixed_alphabet=_alphabet_is_fixed(col), **self._kw())
             elif s["n_boot"] > 0:
                 low = high = h  # one symbol: every resample is the same
             if observed and observed / k < SPARSE_CELL_COUNT and "sparse_cells" not in flags:
@@ -177,9 +199,18 @@ class EntropyTable:
                     and h > max_h + 1e-12 * max(1.0, abs(max_h))):
                 if _alphabet_is_fixed(col):
                     h = max_h
-                    low, high = min(low, max_h), min(high, max_h)
-                else:
+                elif h - max_h > _z(s["ci"]) * entropy_standard_error(counts, base=s["base"]):
+                    # only an excess beyond the estimate's own sampling noise is a
+                    # finding: a balanced 0/1 column reads log 2 + 1 / (2 N) under
+                    # Miller-Madow, inside its standard error
                     flags.append("exceeds_log_k")
+            if _alphabet_is_fixed(col) and not math.isnan(max_h):
+                low, high = min(low, max_h), min(high, max_h)
+            if col.edges is not None and k == 1 and col.n_distinct > 1:
+                # the binning, not the data, left no entropy (a rule such as
+                # "knuth" can give a uniform sample one bin): say so; the pair
+                # views then have nothing to normalise by (NMI is NaN)
+                flags.append("one_bin")
             rows.append({
                 "column": key, "kind": col.kind, "k": int(k), "n": int(col.n),
                 "missing": int(col.n_missing),

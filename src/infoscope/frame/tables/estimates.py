@@ -111,7 +111,9 @@ class TableMeasures:
             with np.errstate(divide="ignore", invalid="ignore"):
                 v = np.where(norm > 0, mi / np.where(norm > 0, norm, 1.0), 0.0)
             v = np.where(mi == 0.0, 0.0, v)
-            v = np.where((r_used == 1) & (c_used == 1), 1.0, v)  # both constant: a perfect match
+            # a constant side has no entropy to share: undefined, never 1 or 0
+            # (normalized_mutual_information_from_table, issue 10)
+            v = np.where((r_used <= 1) | (c_used <= 1), np.nan, v)
             plugin = (entropy_of_count_rows(rows, estimator="plugin", base="nats")
                       + entropy_of_count_rows(cols, estimator="plugin", base="nats")
                       - entropy_of_count_rows(flat, estimator="plugin", base="nats"))
