@@ -150,6 +150,8 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
                 if _integer_id_like(v, n_distinct, distinct[0], distinct[-1], notes.name):
                     notes.flags.add("id_like")
                 return _Levels(raw, _format_numbers(distinct), True, "integer_categories", n_distinct)
+    if isinstance(bins, str) and bins == "rows":
+        bins = binning.rows_bin_count(int(v.size))  # the default rule is a count: resolve it here
     if x.dtype.kind == "f" and not explicit and not isinstance(bins, str) and v.size >= order_stats.MIN_ROWS:
         fast = _float_bins(v, n, missing, any_missing, notes, bins, strategy, threshold)
         if fast is not None:
@@ -217,7 +219,8 @@ def _float_bins(v, n, missing, any_missing, notes, bins, strategy, threshold) ->
     v = np.ascontiguousarray(v, dtype=np.float64)
     summary = order_stats.float_summary(k, v)
     n_distinct, whole, lo, hi = summary.n_distinct, summary.whole, summary.lo, summary.hi
-    if n_distinct <= threshold:
+    if n_distinct <= threshold or (strategy == "quantile" and n_distinct <= bins):
+        # levels, or one quantile bin per value (_value_edges): the sorting path
         return None
     if whole and _integer_id_like(v, n_distinct, lo, hi, notes.name):
         notes.flags.add("id_like")
