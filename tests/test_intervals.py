@@ -300,3 +300,26 @@ def test_fractional_floats_are_binned_and_the_threshold_is_a_setting():
     assert s.entropy().set_index("column").loc["grade", "kind"] == "numeric"
     assert "grade" in s.update(categorical_threshold=32)
     assert s.entropy().set_index("column").loc["grade", "kind"] == "integer_categories"
+
+
+def test_pairs_and_relevance_intervals_agree_with_their_p_values_exactly():
+    # the duality on every row of both tables, on simulated frames with sparse
+    # (permutation-tested) and well-filled (chi-square) pairs: ci_low > 0 exactly
+    # when p_value < (1 - ci) / 2, and each interval holds its own estimate
+    import pandas as pd
+
+    rng = np.random.default_rng(7)
+    for n in (120, 3000):
+        x = rng.normal(size=n)
+        df = pd.DataFrame({"x": x, "y": x + rng.normal(size=n), "z": rng.normal(size=n),
+                           "c": rng.choice(list("abcdefghij"), n), "t": rng.integers(0, 3, n)})
+        for ci in (0.9, 0.95):
+            s = _profile(df, n_boot=0, ci=ci, target="t")
+            for table in (s.pairs(), s.relevance()):
+                tested = table["p_value"].notna()
+                assert ((table["ci_low"] > 0) == (table["p_value"] < (1 - ci) / 2))[tested].all()
+                assert (table["ci_low"] <= table["mi_above_chance"] + 1e-15)[tested].all()
+                assert (table["mi_above_chance"] <= table["ci_high"] + 1e-15)[tested].all()
+                assert table.attrs["ci"] == ci
+        methods = set(s.pairs()["p_method"])
+        assert methods <= {"chi2", "permutation", "none"}

@@ -52,7 +52,7 @@ import numbers
 from typing import NamedTuple
 
 import numpy as np
-from scipy import special, stats
+from scipy import stats
 
 from infoscope.estimators._checks import check_counts, log_base
 
@@ -70,9 +70,9 @@ __all__ = [
 #: :func:`chance_mi_nats`).
 MIN_EXPECTED_EXACT = 50.0
 
-# bisection steps of the noncentrality search: 2**-80 of the bracket is far below
-# the double precision of any MI
-_BISECTION_STEPS = 80
+# bisection steps of the noncentrality search: 2**-40 of a bracket of 20 standard
+# deviations is far below what any displayed MI resolves
+_BISECTION_STEPS = 40
 
 
 class MIInterval(NamedTuple):
@@ -139,9 +139,12 @@ def chance_mi_nats(table) -> float:
     >>> round(chance_mi_nats([[1, 1], [1, 1]]), 6)   # exact: every cell is small
     0.231049
     """
+    return _chance_mi_nats(check_counts(table, "table", ndim=2))
+
+
+def _chance_mi_nats(t: np.ndarray) -> float:
     from infoscope.estimators.information import _emi_terms_nats
 
-    t = check_counts(table, "table", ndim=2)
     n = float(t.sum())
     if n <= 1:
         return 0.0
@@ -162,8 +165,8 @@ def chance_mi_nats(table) -> float:
 
 
 def _ncx2_cdf(x: np.ndarray, dof: np.ndarray, nc: np.ndarray) -> np.ndarray:
-    # scipy's noncentral chi-square (Boost); nc = 0 is the central distribution
-    return np.where(nc > 0, stats.ncx2.cdf(x, dof, np.maximum(nc, 1e-300)), stats.chi2.cdf(x, dof))
+    # scipy's noncentral chi-square (Boost); the bisection never asks at nc = 0
+    return stats.ncx2.cdf(x, dof, np.maximum(nc, 1e-300))
 
 
 def _solve_noncentrality(g: np.ndarray, dof: np.ndarray, target: float, positive=None) -> np.ndarray:
@@ -175,8 +178,11 @@ def _solve_noncentrality(g: np.ndarray, dof: np.ndarray, target: float, positive
     roots are above 0: the decision of the test the caller shows, so that a
     p-value on the boundary cannot fall on the other side by rounding.
     """
-    lo = np.zeros_like(g)
-    hi = g + 20.0 * np.sqrt(g + dof) + 100.0
+    # bracket from the normal approximation of the noncentral chi-square (mean
+    # dof + lambda, variance 2 (dof + 2 lambda)): 10 standard deviations either side
+    spread = 10.0 * np.sqrt(2.0 * (dof + 2.0 * g)) + 10.0
+    lo = np.maximum(g - dof - spread, 0.0)
+    hi = np.maximum(g - dof, 0.0) + spread
     if positive is None:
         positive = stats.chi2.cdf(g, dof) > target
     for _ in range(_BISECTION_STEPS):
@@ -187,7 +193,8 @@ def _solve_noncentrality(g: np.ndarray, dof: np.ndarray, target: float, positive
     return np.where(positive, np.maximum(0.5 * (lo + hi), np.finfo(np.float64).tiny), 0.0)
 
 
-def mi_intervals_from_tables(tables, *, level=0.95, base=2, p_values=None, n_permutations=None) -> MIInterval:
+def mi_intervals_from_tables(tables, *, level=0.95, base=2, p_values=None, n_permutations=None,
+                             williams=None) -> MIInterval:
     r"""Chance-corrected mutual information and its interval for many tables at once.
 
     See the module notes for the method: the G statistic is scaled to its exact chance
@@ -214,6 +221,12 @@ def mi_intervals_from_tables(tables, *, level=0.95, base=2, p_values=None, n_per
         Monte-Carlo p-value at its floor :math:`1 / (m + 1)` only says the statistic
         is beyond every permuted one; there :math:`G / q` is used when it is larger,
         so that a strong dependence is not capped at the floor's quantile.
+    williams : array_like of bool, shape (T,), optional
+        True for the rows whose p-value comes from the chi-square law with
+        Williams' (1976) correction: their reference distribution is
+        :math:`q\,\chi^2_{\mathrm{dof}}` with Williams' q, so their chance mean of
+        G is ``q dof`` (and the exact sum, which would cost seconds on large
+        categorical tables, is not needed).  Other rows use the exact chance MI.
 
     Returns
     -------
@@ -228,9 +241,10 @@ def mi_intervals_from_tables(tables, *, level=0.95, base=2, p_values=None, n_per
     The lower end is 0 exactly when the scaled G statistic is below the
     ``(1 + level) / 2`` quantile of the central chi-square, i.e. when the
     mean-scaled G-test does not reject independence at ``(1 - level) / 2``.  When
-    G' is below the ``(1 - level) / 2`` quantile (a table more even than chance
-    usually makes), the upper end is 0 too: the data are then as independent as
-    chance allows, and the interval is the point 0.
+    G' is below the median of the central chi-square (a table more even than
+    chance usually makes), the upper end is the one the median would give: the
+    plain inversion would shrink it to the point 0 for very even tables, a
+    certainty the data do not carry.
 
     References
     ----------
@@ -250,25 +264,23 @@ def mi_intervals_from_tables(tables, *, level=0.95, base=2, p_values=None, n_per
     >>> bool(0 < res.low[0] < res.estimate[0] < res.high[0]), float(res.low[1]), float(res.estimate[1])
     (True, 0.0, 0.0)
     """
+    from infoscope.estimators.significance import g_statistics
+
     level = _check_level(level)
     divisor = log_base(base)
-    items = [check_counts(t, f"tables[{i}]", ndim=2) for i, t in enumerate(tables)]
+    items = [_counts_table(t, f"tables[{i}]") for i, t in enumerate(tables)]
     m = len(items)
-    n = np.array([t.sum() for t in items], dtype=np.float64)
-    g = np.zeros(m)
-    dof = np.zeros(m)
+    g, dof, n, _, _, q_williams = g_statistics(items) if m else (np.zeros(0),) * 6
+    dof = dof.astype(np.float64)
+    use_williams = _per_table(williams, m, "williams")
     chance = np.zeros(m)
     for i, t in enumerate(items):
-        if n[i] == 0:
+        if n[i] == 0 or dof[i] == 0:
             continue
-        rows, cols = t.sum(axis=1), t.sum(axis=0)
-        dof[i] = max(np.count_nonzero(rows) - 1, 0) * max(np.count_nonzero(cols) - 1, 0)
-        if dof[i] == 0:
-            continue
-        expected = np.outer(rows, cols) / n[i]
-        ratio = np.divide(t, expected, out=np.ones_like(t), where=t > 0)
-        g[i] = max(2.0 * float(np.sum(special.xlogy(t, ratio))), 0.0)
-        chance[i] = chance_mi_nats(t)
+        if use_williams is not None and use_williams[i]:
+            chance[i] = q_williams[i] * dof[i] / (2.0 * n[i])
+        else:
+            chance[i] = _chance_mi_nats(t)
     pv = _per_table(p_values, m, "p_values")
     perms = _per_table(n_permutations, m, "n_permutations")
     live = (n > 0) & (dof > 0)
@@ -292,7 +304,10 @@ def mi_intervals_from_tables(tables, *, level=0.95, base=2, p_values=None, n_per
         # with the shown p-values, the test decides whether the lower end is above 0
         rejects = None if pv is None else np.clip(pv[live], 0.0, 1.0) < (1.0 - level) / 2.0
         lam_lo = _solve_noncentrality(scaled, dl, (1.0 + level) / 2.0, rejects)
-        lam_hi = _solve_noncentrality(scaled, dl, (1.0 - level) / 2.0)
+        # a table more even than chance usually makes (G' below the chance median)
+        # says no more than an average chance table: its upper end is that of the
+        # median, not the point 0 the inversion would give
+        lam_hi = _solve_noncentrality(np.maximum(scaled, stats.chi2.median(dl)), dl, (1.0 - level) / 2.0)
         estimate[live] = np.maximum(gl / (2.0 * nl) - chance[live], 0.0)
         low[live] = lam_lo * q / (2.0 * nl)
         high[live] = np.maximum(lam_hi * q / (2.0 * nl), estimate[live])
@@ -303,6 +318,13 @@ def mi_intervals_from_tables(tables, *, level=0.95, base=2, p_values=None, n_per
         low[live] = np.where(low[live] > 0, np.maximum(held, np.finfo(np.float64).tiny), held)
     chance = np.where(n > 0, chance, np.nan)
     return MIInterval(estimate / divisor, low / divisor, high / divisor, chance / divisor, dof.astype(np.int64))
+
+
+def _counts_table(table, parameter: str) -> np.ndarray:
+    arr = np.asarray(table)
+    if arr.ndim == 2 and arr.dtype.kind in "iu" and (arr.size == 0 or arr.min() >= 0):
+        return arr.astype(np.float64)  # integer counts (the engine's): nothing else to check
+    return check_counts(arr, parameter, ndim=2)
 
 
 def _per_table(values, m: int, parameter: str):

@@ -35,11 +35,11 @@ ENTROPY_COLUMNS = (
     "max_entropy", "efficiency", "effective_categories", "flags",
 )
 PAIRS_COLUMNS = (
-    "a", "b", "k_a", "k_b", "n", "mi", "nmi", "value", "g", "dof", "p_value", "q_value",
-    "p_method", "n_permutations", "p_error", "reliability",
+    "a", "b", "k_a", "k_b", "n", "mi", "mi_above_chance", "ci_low", "ci_high", "nmi", "value",
+    "g", "dof", "p_value", "q_value", "p_method", "n_permutations", "p_error", "reliability",
 )
 RELEVANCE_COLUMNS = (
-    "column", "k", "n", "mi", "ci_low", "ci_high", "nmi", "p_value", "q_value",
+    "column", "k", "n", "mi", "mi_above_chance", "ci_low", "ci_high", "nmi", "p_value", "q_value",
     "share_of_target", "leakage", "p_method", "n_permutations", "p_error", "reliability",
 )
 DRIFT_COLUMNS = (

@@ -162,6 +162,8 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
         self._measure_cache: dict = {}
         self._entropy_cache: dict = {}  # column key -> (column, settings, row): see entropy()
         self._relevance_cache: dict = {}  # (column, target) -> (columns, settings, row)
+        # (a, b) -> (columns, test and level, MI interval in nats): tables/intervals.py
+        self._interval_cache: dict = {}
         # measure -> (memo key, the last full pairs() table): matrix() reuses it
         self._pairs_memo: dict = {}
         self._pairs_estimated: list[tuple[str, str]] = []
@@ -406,7 +408,8 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
         """Drop cached numbers of replaced encodings (they would keep old codes alive)."""
         enc = self._encoded
         for cache, width in ((self._pair_cache, 2), (self._measure_cache, 2),
-                             (self._relevance_cache, 2), (self._entropy_cache, 1)):
+                             (self._relevance_cache, 2), (self._interval_cache, 2),
+                             (self._entropy_cache, 1)):
             stale = []
             for key, entry in cache.items():
                 names = key[-2:] if width == 2 else (key,)
@@ -432,7 +435,8 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Table
 
     def _attrs(self, **extra) -> dict:
         s = self._settings
-        attrs = {"unit": unit_name(s["base"]), "estimator": s["estimator"], "sampled": self.sampled}
+        attrs = {"unit": unit_name(s["base"]), "estimator": s["estimator"], "sampled": self.sampled,
+                 "ci": float(s["ci"])}
         attrs.update(extra)
         return attrs
 

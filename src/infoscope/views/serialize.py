@@ -57,7 +57,7 @@ UNITS = tuple(UNIT_OF_BASE.values())
 ENTROPY_FIELDS = ("column", "kind", "k", "n", "missing", "missing_share", "entropy", "ci_low",
                   "ci_high", "max_entropy", "efficiency", "effective_categories", "flags")
 PAIR_FIELDS = ("a", "b", "n", "value", "q_value")
-RELEVANCE_FIELDS = ("column", "k", "n", "mi", "ci_low", "ci_high", "nmi", "p_value", "q_value",
+RELEVANCE_FIELDS = ("column", "k", "n", "mi", "mi_above_chance", "ci_low", "ci_high", "nmi", "p_value", "q_value",
                     "share_of_target", "leakage", "p_method", "n_permutations", "p_error", "reliability")
 #: The relevance rows also carry ``sparse`` (reliability is not "ok"), last, for views
 #: written before ``reliability`` existed.
@@ -99,7 +99,8 @@ def attrs_of(table: pd.DataFrame) -> dict:
     """The unit / estimator / sampled / measure attributes a result table carries."""
     attrs = getattr(table, "attrs", None) or {}
     return {"unit": str(attrs.get("unit", "bits")), "estimator": scalar(attrs.get("estimator")),
-            "sampled": scalar(attrs.get("sampled")), "measure": scalar(attrs.get("measure"))}
+            "sampled": scalar(attrs.get("sampled")), "measure": scalar(attrs.get("measure")),
+            "ci": scalar(attrs.get("ci"))}
 
 
 def entropy_json(table: pd.DataFrame, *, generation: int = 0) -> str:
@@ -111,7 +112,8 @@ def entropy_json(table: pd.DataFrame, *, generation: int = 0) -> str:
             row[-1] = ""
     a = attrs_of(table)
     return dumps({"fields": list(ENTROPY_FIELDS), "rows": rows, "unit": a["unit"],
-                  "estimator": a["estimator"], "sampled": a["sampled"], "generation": int(generation)})
+                  "estimator": a["estimator"], "sampled": a["sampled"], "ci": a["ci"],
+                  "generation": int(generation)})
 
 
 def grid_buffers(pairs: pd.DataFrame, order: list[str], *, alpha: float = 0.05,
@@ -257,8 +259,9 @@ def relevance_json(table: pd.DataFrame | None, target: str | None, *, generation
     require(table, RELEVANCE_FIELDS, "the relevance table")
     rows = [[scalar(v) for v in row] + [str(row[-1]) != "ok"]
             for row in table.loc[:, list(RELEVANCE_FIELDS)].itertuples(index=False)]
+    a = attrs_of(table)
     return dumps({"target": str(target), "fields": list(RELEVANCE_JSON_FIELDS), "rows": rows,
-                  "unit": attrs_of(table)["unit"], "generation": int(generation)})
+                  "unit": a["unit"], "ci": a["ci"], "generation": int(generation)})
 
 
 def b64(data: bytes) -> str:

@@ -24,6 +24,7 @@ from infoscope.estimators.significance import (
 from infoscope.frame.inference import FINDING_Q, pair_shuffler, pair_tests
 from infoscope.frame.ordering import _cluster_order
 from infoscope.frame.results import PAIRS_COLUMNS, PairTable, result_frame
+from infoscope.frame.tables.intervals import interval_columns
 from infoscope.frame.settings import MEASURES, ORDERS
 
 _NORMALIZED = frozenset({"nmi", "adjusted_mi"})
@@ -139,6 +140,7 @@ class PairTables:
             "n": n, "mi": mi, "nmi": nmi, "value": np.asarray(value, dtype=float),
             "g": stats[:, 3], "dof": stats[:, 4].astype(np.int64), "p_value": p_value,
             "q_value": np.asarray(q, dtype=float), **_test_columns(tests),
+            **interval_columns(self, pair_list, p_value, tests["p_method"], tests["n_permutations"]),
         }, columns=list(PAIRS_COLUMNS))
         if not m:
             out = result_frame([], PAIRS_COLUMNS)

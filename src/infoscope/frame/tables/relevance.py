@@ -8,12 +8,11 @@ import pandas as pd
 
 from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.estimators.information import benjamini_hochberg
-from infoscope.estimators.resampling import bootstrap_mi_ci
 from infoscope.estimators.significance import permutation_p_values, table_tests
 from infoscope.frame.inference import FINDING_Q, pair_shuffler
 from infoscope.frame.results import LEAKAGE_SHARE, RELEVANCE_COLUMNS, result_frame
 from infoscope.frame.supervised import supervised_attrs
-from infoscope.frame.tables.estimates import _child_seed
+from infoscope.frame.tables.intervals import interval_columns
 
 
 class RelevanceTable:
@@ -119,14 +118,10 @@ class RelevanceTable:
             t = tabs[j]
             n = int(t.sum())
             h_target = self._entropy(t.sum(axis=0)) if n else math.nan
-            low = high = math.nan
-            if n and s["n_boot"] > 0:
-                low, high = bootstrap_mi_ci(t, level=s["ci"], n_boot=s["n_boot"],
-                                            seed=_child_seed(s["seed"], i), **self._kw())
             share = mi[j] / h_target if h_target and h_target > 0 else math.nan
             rows[i] = {
                 "column": key, "k": int(enc[key].k), "n": n, "mi": mi[j],
-                "ci_low": float(low), "ci_high": float(high), "nmi": nmi[j],
+                "mi_above_chance": math.nan, "ci_low": math.nan, "ci_high": math.nan, "nmi": nmi[j],
                 "p_value": float(tt.p_value[j]), "q_value": math.nan,
                 "share_of_target": share, "leakage": bool(share >= LEAKAGE_SHARE),
                 "p_method": tt.p_method[j], "n_permutations": 0, "p_error": 0.0,
@@ -135,6 +130,14 @@ class RelevanceTable:
             self._relevance_cache[(key, target)] = (enc[key], enc[target], (i, settings_key),
                                                     dict(rows[i]))
         self._relevance_p_values(others, target, rows)
+        # the intervals follow the final p-values (tables/intervals.py: one rule
+        # for the pair and relevance tables)
+        ivals = interval_columns(self, [(key, target) for key in others],
+                                 [r["p_value"] for r in rows], [r["p_method"] for r in rows],
+                                 [r["n_permutations"] for r in rows])
+        for i, r in enumerate(rows):
+            for name, column in ivals.items():
+                r[name] = float(column[i])
         q = benjamini_hochberg(np.array([r["p_value"] for r in rows], dtype=float))
         for r, qv in zip(rows, q):
             r["q_value"] = float(qv)
