@@ -2,7 +2,7 @@
 
 Run ``python benchmarks/calibration.py`` (every section, a few minutes on two cores)
 or ``python benchmarks/calibration.py --frames 40`` for a quicker, noisier look;
-``--section null`` (or ``power``, ``wine``, ``rule``) runs one section.
+``--section null`` (or ``power``, ``wine``, ``coverage``, ``rule``) runs one section.
 
 Sections
 --------
@@ -18,6 +18,17 @@ Sections
 * ``wine`` — scikit-learn's bundled wine data (178 rows, 14 columns with the class),
   every column shuffled independently (so that nothing is related): the same two
   rates as ``null``.
+* ``coverage`` — the 95% intervals of the pair table (``ci_low``, ``ci_high`` of
+  ``pairs()``, :mod:`infoscope.estimators.intervals`) on tables of known mutual
+  information: a bivariate normal with correlation rho cut at its own quantiles
+  into b x b cells (the cell probabilities from ``scipy.stats.multivariate_normal``,
+  so the MI of the table is known exactly), b = the default rule's bins at each n
+  (3, 5, 10, 16) and also 16 x 16 at n = 100 and 300 (what ``bins=16`` gives);
+  each frame holds four such pairs as integer columns, profiled at the defaults, so
+  the intervals are exactly the profile's (chi-square or permutation reference,
+  whichever the row's test used).  Printed: the share of intervals that hold the
+  true MI with its Clopper-Pearson interval, the mean width, and how often the
+  lower end was above 0 (the test's rejections at 2.5%).
 * ``rule`` — the simulation behind the chi-square rule of
   :mod:`infoscope.estimators.significance`: null tables with fixed margins
   (``scipy.stats.random_table``) of several shapes, margins and rows per cell; the
@@ -212,10 +223,79 @@ def section_rule(reps: int) -> None:
                 print(f"| {r} x {c} | {margins} | {mean} | {ratios} |", flush=True)
 
 
+def gaussian_cells(rho: float, bins: int) -> np.ndarray:
+    """Cell probabilities of a bivariate normal (correlation rho) cut at its own quantiles."""
+    q = stats.norm.ppf(np.linspace(0, 1, bins + 1))
+    q[0], q[-1] = -9.0, 9.0
+    mvn = stats.multivariate_normal([0.0, 0.0], [[1.0, rho], [rho, 1.0]])
+    f = np.array([[mvn.cdf([a, b]) for b in q] for a in q])
+    p = np.clip(f[1:, 1:] - f[:-1, 1:] - f[1:, :-1] + f[:-1, :-1], 0.0, None)
+    return p / p.sum()
+
+
+def cells_mi_bits(p: np.ndarray) -> float:
+    """Mutual information (bits) of a table of cell probabilities (closed form)."""
+    px, py = p.sum(axis=1, keepdims=True), p.sum(axis=0, keepdims=True)
+    m = p > 0
+    return max(float(np.sum(p[m] * np.log2(p[m] / (px @ py)[m]))), 0.0)
+
+
+COVERAGE_PAIRS = 4  # planted pairs per frame
+
+
+def coverage_table(n: int, bins: int, rho: float, frames: int, seed: int = 0) -> dict:
+    """Coverage of the profile's 95% MI intervals on tables of known MI.
+
+    Each frame holds ``COVERAGE_PAIRS`` independent pairs (x_j, y_j) of integer codes
+    drawn from :func:`gaussian_cells`; ``pairs()`` at the default settings gives
+    their intervals.  Returns the true MI (bits), the share covered, its
+    Clopper-Pearson interval, the mean width, the share with ``ci_low > 0`` and the
+    share of rows tested by permutation.
+    """
+    p = gaussian_cells(rho, bins)
+    truth = cells_mi_bits(p)
+    rng = np.random.default_rng(seed)
+    covered = above = permuted = total = 0
+    width = 0.0
+    for _ in range(frames):
+        cols = {}
+        for j in range(COVERAGE_PAIRS):
+            cell = rng.choice(p.size, size=n, p=p.ravel())
+            cols[f"x{j}"], cols[f"y{j}"] = cell // bins, cell % bins
+        table = _pairs(pd.DataFrame(cols)).set_index(["a", "b"])
+        for j in range(COVERAGE_PAIRS):
+            row = table.loc[(f"x{j}", f"y{j}")]
+            if not np.isfinite(row["ci_low"]):
+                continue
+            total += 1
+            covered += bool(row["ci_low"] - 1e-12 <= truth <= row["ci_high"] + 1e-12)
+            above += bool(row["ci_low"] > 0)
+            permuted += row["p_method"] == "permutation"
+            width += float(row["ci_high"] - row["ci_low"])
+    lo, hi = clopper_pearson(covered, total)
+    return {"mi": truth, "coverage": covered / total, "low": lo, "high": hi, "width": width / total,
+            "above_zero": above / total, "permuted": permuted / total, "n_intervals": total}
+
+
+def section_coverage(frames: int) -> None:
+    from infoscope.encode.binning import rows_bin_count
+
+    print("\n## Coverage of the 95% MI intervals (pairs() at the defaults) on tables of known MI\n")
+    print("| n | table | true MI (bits) | coverage (95% CI) | mean width (bits) | lower end > 0 | permutation |")
+    print("|---|---|---|---|---|---|---|")
+    conditions = [(n, rows_bin_count(n)) for n in SIZES] + [(100, 16), (300, 16)]
+    for n, bins in conditions:
+        for rho in (0.0, 0.2, 0.35, 0.6):
+            r = coverage_table(n, bins, rho, frames, seed=int(n + 10 * bins + 100 * rho))
+            print(f"| {n:,} | {bins} x {bins} | {r['mi']:.4f} | {r['coverage']:.1%} "
+                  f"({r['low']:.1%}-{r['high']:.1%}) | {r['width']:.4f} | {r['above_zero']:.0%} | "
+                  f"{r['permuted']:.0%} |", flush=True)
+
+
 def main(argv=None) -> None:
     parser = argparse.ArgumentParser(description=__doc__.split("\n")[0])
     parser.add_argument("--frames", type=int, default=200, help="seeded frames per condition")
-    parser.add_argument("--section", choices=("all", "null", "power", "wine", "rule"), default="all")
+    parser.add_argument("--section", choices=("all", "null", "power", "wine", "coverage", "rule"), default="all")
     parser.add_argument("--rule-reps", type=int, default=5_000, help="null tables per condition (rule)")
     parser.add_argument("--kinds", default=",".join(KINDS), help="frame kinds of the null section")
     parser.add_argument("--bins", default=None, help="a bins setting instead of the default (e.g. 16 or rows)")
@@ -231,6 +311,8 @@ def main(argv=None) -> None:
         section_power(args.frames)
     if args.section in ("all", "wine"):
         section_wine(args.frames)
+    if args.section in ("all", "coverage"):
+        section_coverage(args.frames)
     if args.section in ("all", "rule"):
         section_rule(args.rule_reps)
     print(f"\n({time.perf_counter() - start:.0f} s in all)")

@@ -27,7 +27,7 @@ def test_demo_prints_every_table(demo_output):
     for heading in ("== entropy per column", "== top 10 pairs", "== relevance to 'late'",
                     "== drift of a later batch"):
         assert heading in demo_output
-    assert demo_output.count(CAUTION) == 2  # at the top and at the end
+    assert demo_output.count(CAUTION) == 1  # once, at the top (issue 10: it was printed twice)
 
 
 def test_demo_shows_what_was_planted(demo_output):
@@ -40,7 +40,23 @@ def test_demo_shows_what_was_planted(demo_output):
     drift = demo_output.split("== drift")[1].splitlines()
     for column, flag in PLANTED["drift"].items():
         assert next(x for x in drift if x.strip().startswith(column + " ")).rstrip().endswith(flag)
-    assert "- column 'parcel_ref'" in demo_output  # the notes list the data warnings
+    # the notes list the data warnings and say which frame each is about
+    assert "- log (" in demo_output and "rows): column 'parcel_ref'" in demo_output
+    assert "- later batch (" in demo_output
+
+
+def test_numbers_read_at_the_display_precision():
+    # issue 10: "q = 0", "MI = 6.4e-16 bits", "NMI -1.9e-5" -> "below 0.001" and "0"
+    import pandas as pd
+
+    from infoscope.cli import format_table
+
+    text = format_table(pd.DataFrame({"column": ["a", "b", "c"], "mi": [6.4e-16, -1.9e-5, 0.01234],
+                                      "q_value": [0.0, 4e-250, 0.0123]}))
+    rows = [line.split() for line in text.splitlines()[1:]]
+    assert rows[0] == ["a", "0", "below", "0.001"]
+    assert rows[1] == ["b", "0", "below", "0.001"]
+    assert rows[2] == ["c", "0.0123", "0.0123"]
 
 
 def test_main_without_command_prints_help(capsys):

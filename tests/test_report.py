@@ -512,3 +512,12 @@ def test_picture_is_wide_enough_for_every_caption(wine_tables):
                 continue
             size = float(re.search(r'font-size="([\d.]+)"', m.group(2)).group(1))
             assert float(m.group(1)) + 0.55 * size * len(m.group(3)) <= width, m.group(3)
+
+
+def test_export_says_the_negative_estimates_caution_once():
+    # issue 10: the footer repeated the views' own caution line
+    from infoscope.frame.session import ProfileSession
+    from infoscope.report.html import profile_html
+
+    s = ProfileSession(pd.DataFrame({"a": list("xyxy") * 10, "b": list("xxyy") * 10}), n_boot=0)
+    assert profile_html(s).count("slightly negative") == 1

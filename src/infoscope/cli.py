@@ -39,6 +39,10 @@ CAUTION = (
 )
 
 
+#: Columns holding probabilities: below 0.001 they read "below 0.001".
+_PROBABILITY_COLUMNS = ("p_value", "q_value")
+
+
 def format_table(table: pd.DataFrame, *, digits: int = 3, max_rows: int | None = None,
                  max_width: int = 28) -> str:
     """Plain-text rendering of a result table for a terminal.
@@ -48,7 +52,8 @@ def format_table(table: pd.DataFrame, *, digits: int = 3, max_rows: int | None =
     table : pandas.DataFrame
         A result table.
     digits : int, default=3
-        Significant digits of floats.
+        Significant digits of floats, no finer than 0.0001 (smaller values read
+        "0"); p- and q-values below 0.001 read "below 0.001".
     max_rows : int, optional
         Show at most this many rows (a note says how many were left out).
     max_width : int, default=28
@@ -72,14 +77,21 @@ def format_table(table: pd.DataFrame, *, digits: int = 3, max_rows: int | None =
     """
     shown = table if max_rows is None else table.head(max_rows)
 
-    def cell(value) -> str:
+    def cell(value, column: str = "") -> str:
         if isinstance(value, (float, np.floating)):
-            return "" if np.isnan(value) else f"{value:.{digits}g}"
+            if np.isnan(value):
+                return ""
+            if column in _PROBABILITY_COLUMNS and value < 0.001:
+                return "below 0.001"  # a tail probability is never exactly 0
+            # the display's precision: 3 significant digits, no finer than 1e-4; a
+            # rounding residue (6.4e-16 bits) or a tiny negative estimate reads "0"
+            value = round(float(value), 4)
+            return "0" if value == 0 else f"{value:.{digits}g}"
         text = str(value)
         return text if len(text) <= max_width else text[: max_width - 3] + "..."
 
     columns = [str(c) for c in shown.columns]
-    cells = [[cell(v) for v in shown[c]] for c in shown.columns]
+    cells = [[cell(v, str(c)) for v in shown[c]] for c in shown.columns]
     # numbers right-aligned, text (names, labels, flags) left-aligned
     numeric = [pd.api.types.is_numeric_dtype(shown[c]) and not pd.api.types.is_bool_dtype(shown[c])
                for c in shown.columns]
@@ -247,19 +259,23 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
         _top_pairs_section(session, args.top, out)
         relevance = session.relevance(target)
         _section(_relevance_title(target, unit),
-                 format_table(relevance[["column", "mi", "ci_low", "ci_high", "share_of_target",
+                 format_table(relevance[["column", "mi", "mi_above_chance", "ci_low", "ci_high", "share_of_target",
                                          "reliability", "q_value", "leakage"]])
                  + "\n" + _reliability_note(relevance, "columns"), out)
+    log_notes = sorted({str(w.message) for w in caught})
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", InfoscopeWarning)
         drift = ProfileSession(batch, bins=args.bins).drift(frame)
         _section(f"drift of a later batch ({len(batch)} rows) from the log "
                  "(PSI: < 0.10 stable, 0.10-0.25 moderate, >= 0.25 major; id_like / time_axis: "
                  "drift by construction (identifiers; another period), not a change of distribution; "
                  f"PSI in {drift.attrs['units']['psi']}; KL and JS in {drift.attrs['units']['kl']})",
                  format_table(drift[["column", "kind", "k", "psi", "kl", "js", "p_value", "flag"]]), out)
-    notes = sorted({str(w.message) for w in caught})
+    batch_notes = sorted({str(w.message) for w in caught} - set(log_notes))
+    notes = [f"- log ({len(frame)} rows): {m}" for m in log_notes]
+    notes += [f"- later batch ({len(batch)} rows): {m}" for m in batch_notes]
     if notes:
-        _section("notes on the data", "\n".join(f"- {m}" for m in notes), out)
-    print(f"\n{CAUTION}", file=out)
+        _section("notes on the data", "\n".join(notes), out)
     if getattr(args, "out", None):
         return _write_page(session, args, out, command="demo")
     return 0
@@ -545,7 +561,7 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
         if args.target is not None:
             relevance = session.relevance(args.target)
             _section(_relevance_title(args.target, unit),
-                     format_table(relevance[["column", "mi", "ci_low", "ci_high", "share_of_target",
+                     format_table(relevance[["column", "mi", "mi_above_chance", "ci_low", "ci_high", "share_of_target",
                                              "reliability", "q_value", "leakage"]])
                      + "\n" + _reliability_note(relevance, "columns"), out)
         bar.update()
@@ -558,7 +574,6 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
     notes = sorted({str(w.message) for w in caught})
     if notes:
         _section("notes on the data", "\n".join(f"- {m}" for m in notes), out)
-    print(f"\n{CAUTION}", file=out)
     return status
 
 

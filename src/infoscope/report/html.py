@@ -211,9 +211,9 @@ def profile_html(source, *, min_count=None, title: str | None = None, settings=N
         raise FileNotFoundError(f"the front-end module {STATIC / 'profile.js'} is missing from the package")
 
     notes = ["Saved copy: the numbers are those of the notebook at export time; controls that need "
-             "the kernel are off, the pair views saved with the export still open.",
-             "Bias-corrected estimates near 0 can be slightly negative: read them as no "
-             "detectable information, not as an error."]
+             "the kernel are off, the pair views saved with the export still open."]
+    # (the caution about slightly negative estimates is the views' own caution
+    # line, shown once on the page)
     pairs_note = _pairs_note(data["state"].get("_grid_meta"))
     if pairs_note:
         notes.append(pairs_note)
