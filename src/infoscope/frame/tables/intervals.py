@@ -1,8 +1,9 @@
 """The mutual information intervals of the pair and relevance tables (one rule for both).
 
-Every row's interval is inverted from the p-value the row shows
-(:func:`infoscope.estimators.intervals.mi_intervals_from_tables`), so that on every
-row ``ci_low > 0`` exactly when ``p_value < (1 - ci) / 2``: the two-sided interval at
+Every row's interval is the noncentral chi-square interval of its mean-scaled G
+(:func:`infoscope.estimators.intervals.mi_intervals_from_tables`), with the sign of
+its lower end decided by the p-value the row shows, so that on every row
+``ci_low > 0`` exactly when ``p_value < (1 - ci) / 2``: the two-sided interval at
 level ``ci`` and the one-sided test of independence read the same reference
 distribution.  Rows tested against the chi-square law (with Williams' correction)
 take Williams' q as the chance scale; rows tested by permutation take the exact
@@ -42,7 +43,7 @@ def interval_columns(session, pairs, p_values, p_methods, n_permutations) -> dic
     cache = session._interval_cache
     m = len(pairs)
     out = np.full((m, 3), np.nan)
-    todo, tabs, ps, perms, chi2_rows = [], [], [], [], []
+    todo, tabs, ps, chi2_rows = [], [], [], []
     last_counted = session._engine.last_counted
     for i, (a, b) in enumerate(pairs):
         p = float(p_values[i])
@@ -55,21 +56,19 @@ def interval_columns(session, pairs, p_values, p_methods, n_permutations) -> dic
         todo.append(i)
         tabs.append(t)
         ps.append(p)
-        perms.append(int(n_permutations[i]))
         # chi-square rows: the reference is q chi2(dof) with Williams' q
         chi2_rows.append(p_methods[i] == "chi2")
     if todo:
         # the tables above were counted by the pass that made the p-values (cache
         # hits): leave the engine's record of its last count as that pass left it
-        res = mi_intervals_from_tables(tabs, level=level, base="nats", p_values=ps,
-                                       n_permutations=perms, williams=chi2_rows)
+        res = mi_intervals_from_tables(tabs, level=level, base="nats", p_values=ps, williams=chi2_rows)
         for j, i in enumerate(todo):
             a, b = pairs[i]
             row = np.array([res.estimate[j], res.low[j], res.high[j]])
             if not np.isfinite(ps[j]):
                 row[:] = np.nan
             out[i] = row
-            key = (ps[j], perms[j], str(p_methods[i]), level)
+            key = (ps[j], int(n_permutations[i]), str(p_methods[i]), level)
             cache[(a, b)] = (enc[a], enc[b], key, row.copy())
     session._engine.last_counted = last_counted
     out = out / log_base(s["base"])
