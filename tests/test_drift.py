@@ -355,7 +355,7 @@ def test_pair_mi_equals_sklearn_mutual_info_score_on_the_engine_tables():
     cur = _gaussian_pair(np.random.default_rng(24), 700, 0.3)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", DataQualityWarning)
-        pairs = ProfileSession(cur, estimator="plugin", n_boot=0).pair_drift(ref).set_index(["a", "b"])
+        pairs = ProfileSession(cur, estimator="plugin", n_boot=0, bins=16).pair_drift(ref).set_index(["a", "b"])
     ax = align_to_reference(cur["x"], ref["x"], "x", SETTINGS)
     ay = align_to_reference(cur["y"], ref["y"], "y", SETTINGS)
     ln2 = np.log(2)

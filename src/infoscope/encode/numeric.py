@@ -111,7 +111,8 @@ def _midpoint_edges(distinct: np.ndarray):
     return edges if np.all(np.diff(edges) > 0) else None
 
 
-def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy, threshold) -> _Levels | _Bins:
+def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy, threshold,
+             fractions_as_levels: bool = False) -> _Levels | _Bins:
     """Float or integer values (``na``: mask of missing rows of a nullable dtype)."""
     n = x.size
     missing = np.zeros(n, dtype=bool) if na is None else na.copy()
@@ -166,7 +167,9 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
     # grade average, a share) is a measurement however few values it shows, and
     # calling it "integer_categories" would be untrue.  Floats that are all whole
     # (integers stored as float, e.g. because of missing values) count as integers.
-    if n_distinct == 0 or (not explicit and integral and n_distinct <= threshold):
+    # (the midpoints of Interval columns are labels of their intervals: they pass
+    # fractions_as_levels, encode/ordered.py)
+    if n_distinct == 0 or (not explicit and (integral or fractions_as_levels) and n_distinct <= threshold):
         raw = np.full(n, -1, dtype=np.int64)
         if n_distinct:
             raw[~missing] = np.searchsorted(distinct, v)

@@ -60,7 +60,8 @@ def _interval(series: pd.Series, notes: _Notes, bins, strategy, threshold) -> _L
     if mid.dtype.kind in "mM":
         draft = _temporal(mid, notes, bins, strategy, threshold)
     else:
-        draft = _numeric(mid.to_numpy(dtype=np.float64, na_value=np.nan), None, notes, bins, strategy, threshold)
+        draft = _numeric(mid.to_numpy(dtype=np.float64, na_value=np.nan), None, notes, bins, strategy, threshold,
+                         fractions_as_levels=True)
     if isinstance(draft, _Levels) and n_mid == len(distinct) == len(draft.labels):
         order = np.argsort(np.asarray(distinct.mid), kind="stable")
         draft.labels = [str(distinct[i]) for i in order]
