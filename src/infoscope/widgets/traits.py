@@ -39,8 +39,8 @@ class ProfileTraits(anywidget.AnyWidget):
     # ---- settings (public: the front end and the user set these) -------------------------
     #: int, 16: number of bins of a numeric column (quantile / uniform strategy).
     bins = t.Int(16).tag(sync=True)
-    #: str, "quantile": binning strategy; "quantile", "uniform" or a rule name
-    #: (fd, scott, sturges, doane, rice, sqrt, stone, auto, knuth) that sets the bin count.
+    #: str, "quantile": binning strategy; "quantile", "uniform" or a bin-count rule name
+    #: (the one list: ``infoscope.frame.settings.CHOICES["bin_rule"]``).
     strategy = t.Unicode("quantile").tag(sync=True)
     #: str, "miller_madow": entropy / MI estimator (see infoscope.ENTROPY_ESTIMATORS).
     estimator = t.Unicode("miller_madow").tag(sync=True)
