@@ -53,3 +53,20 @@ def test_nested_collection_gives_back_the_outer_list():
         warn_user("column 'a': outer")
     assert [str(w.message) for w in inner] == ["column 'a': inner"]
     assert [str(w.message) for w in outer] == ["column 'a': outer"]
+
+
+def test_only_the_main_thread_entry_points_swap_the_warnings_module_state():
+    # Code that can run in the widget's worker or in the encoder's threads must not use
+    # warnings.catch_warnings (process-wide filters: a test's pytest.warns lost its
+    # "always" filter when a worker's context closed, and the warning raised instead).
+    # Only the command line and its CSV reader, which run in the main thread, may.
+    import pathlib
+
+    import infoscope
+
+    root = pathlib.Path(infoscope.__file__).parent
+    allowed = {"cli.py", "reading.py", "frame/drift_over.py", "_warnings.py"}
+    found = sorted(str(p.relative_to(root)) for p in root.rglob("*.py")
+                   if "catch_warnings(" in p.read_text(encoding="utf-8")
+                   and str(p.relative_to(root)) not in allowed)
+    assert found == []

@@ -1,7 +1,6 @@
 """Text and object columns: stable texts of cells, mixed types, routing to the typed encoders."""
 from __future__ import annotations
 
-import warnings
 
 import numpy as np
 import pandas as pd
@@ -113,9 +112,9 @@ def _objects(series: pd.Series, notes: _Notes, bins, strategy, threshold):
         notes.warn("complex numbers have no order to bin on: each distinct value is read as a label")
     if inferred in ("datetime", "datetime64", "date", "timedelta", "timedelta64"):
         try:
-            with warnings.catch_warnings():
-                warnings.simplefilter("ignore")
-                conv = pd.to_timedelta(series) if inferred.startswith("timedelta") else pd.to_datetime(series)
+            # no warnings.catch_warnings here: encoding runs in threads, and that context
+            # swaps process-wide state (other threads' warnings would vanish or raise)
+            conv = pd.to_timedelta(series) if inferred.startswith("timedelta") else pd.to_datetime(series)
         except (TypeError, ValueError):
             conv = None
         if conv is not None and conv.dtype.kind in "mM":

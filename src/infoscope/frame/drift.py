@@ -50,14 +50,13 @@ out of both sides; under ``"category"`` they are a symbol like any other.
 from __future__ import annotations
 
 import math
-import warnings
 import zlib
 from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
 
-from infoscope._warnings import DataQualityWarning, warn_user
+from infoscope._warnings import DataQualityWarning, collect_warnings, warn_user
 from infoscope.frame.results import TEST_LEVEL, drift_verdict
 
 __all__ = [
@@ -186,8 +185,9 @@ def _encode(values: pd.Series, name: str, settings: tuple, **override):
 def _quiet_encode(values: pd.Series, name: str, settings: tuple, **override):
     # The alphabet helpers re-encode columns the user already heard about; the
     # data-quality warnings of the first encoding are enough.
-    with warnings.catch_warnings():
-        warnings.simplefilter("ignore", DataQualityWarning)
+    # the warnings of this thread are gathered and dropped (collect_warnings touches
+    # no process-wide state, unlike warnings.catch_warnings; this runs in the widget's worker)
+    with collect_warnings():
         return _encode(values, name, settings, **override)
 
 

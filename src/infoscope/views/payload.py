@@ -22,13 +22,13 @@ The shapes of the parts are those of :mod:`infoscope.views.serialize`.
 """
 from __future__ import annotations
 
-import warnings
 from collections.abc import Callable, Mapping
 from typing import Any
 
 import numpy as np
 import pandas as pd
 
+from infoscope._warnings import collect_warnings
 from infoscope.frame.suppression import check_min_count
 from infoscope.views import serialize as ser
 from infoscope.views.choices import check_view_settings, meta, view_settings_from_session
@@ -329,8 +329,9 @@ def payload(session, settings: Mapping | None = None, *, min_count=None, top_pai
     check_view_settings(state, session.names)
     threshold = max(check_min_count(min_count) or 0, check_min_count(state["min_count"] or None) or 0)
     state["min_count"] = threshold
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always")  # a sparse pair still exports; its note is in the status
+    # a sparse pair still exports; its note is in the status.  collect_warnings, not
+    # warnings.catch_warnings: an export can run beside the widget's worker thread
+    with collect_warnings() as caught:
         data, _ = view_data(session, parts, order=state["order"], alpha_fdr=float(state["alpha_fdr"]),
                             selected_pair=state["selected_pair"], min_count=threshold or None,
                             generation=generation, selection_method=state["selection_method"],
