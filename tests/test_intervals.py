@@ -11,6 +11,7 @@ import math
 
 import numpy as np
 import pytest
+import scipy.optimize
 import scipy.stats
 from sklearn.metrics.cluster._expected_mutual_info_fast import expected_mutual_information
 
@@ -323,3 +324,38 @@ def test_pairs_and_relevance_intervals_agree_with_their_p_values_exactly():
                 assert table.attrs["ci"] == ci
         methods = set(s.pairs()["p_method"])
         assert methods <= {"chi2", "permutation", "none"}
+
+
+def _forty_bisection_steps(g, dof, target):
+    """The noncentrality search written out as plain bisection (the definition the solver must keep)."""
+    spread = 10.0 * np.sqrt(2.0 * (dof + 2.0 * g)) + 10.0
+    lo = np.maximum(g - dof - spread, 0.0)
+    hi = np.maximum(g - dof, 0.0) + spread
+    for _ in range(40):
+        mid = 0.5 * (lo + hi)
+        above = scipy.stats.ncx2.cdf(g, dof, np.maximum(mid, 1e-300)) > target
+        lo = np.where(above, mid, lo)
+        hi = np.where(above, hi, mid)
+    return 0.5 * (lo + hi)
+
+
+@pytest.mark.parametrize("shape", ["near_chance", "far_from_chance", "chi2_draws"])
+def test_fast_noncentrality_search_equals_plain_bisection_bit_for_bit(rng, shape):
+    # the solver answers each bisection step from points where F is known and
+    # evaluates scipy.stats.ncx2.cdf (Boost) only between them: the result must be
+    # the plain bisection's exactly, and F at it must be the target (scipy.optimize.brentq)
+    from infoscope.estimators.intervals import _solve_noncentrality
+
+    m = 300
+    dof = rng.integers(1, 2000, m).astype(float)
+    g = {"near_chance": dof * rng.uniform(0.2, 3.0, m),
+         "far_from_chance": dof + rng.exponential(1.0, m) * 10 ** rng.uniform(0, 6, m),
+         "chi2_draws": rng.chisquare(dof)}[shape]
+    for target in (0.975, 0.025, 0.995):
+        got = _solve_noncentrality(g, dof, target, np.ones(m, dtype=bool))
+        want = np.maximum(_forty_bisection_steps(g, dof, target), np.finfo(np.float64).tiny)
+        np.testing.assert_array_equal(got, want)
+        for i in np.flatnonzero(scipy.stats.chi2.cdf(g, dof) > target)[:5]:
+            root = scipy.optimize.brentq(lambda lam: scipy.stats.ncx2.cdf(g[i], dof[i], lam) - target,
+                                         1e-12, g[i] + 100 * np.sqrt(g[i] + dof[i]) + 100, xtol=1e-12, rtol=1e-14)
+            assert got[i] == pytest.approx(root, rel=1e-9, abs=1e-6)

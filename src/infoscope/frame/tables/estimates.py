@@ -114,9 +114,12 @@ class TableMeasures:
             # a constant side has no entropy to share: undefined, never 1 or 0
             # (normalized_mutual_information_from_table, issue 10)
             v = np.where((r_used <= 1) | (c_used <= 1), np.nan, v)
-            plugin = (entropy_of_count_rows(rows, estimator="plugin", base="nats")
-                      + entropy_of_count_rows(cols, estimator="plugin", base="nats")
-                      - entropy_of_count_rows(flat, estimator="plugin", base="nats"))
+            if kw["estimator"] == "plugin":
+                plugin = hx + hy - hxy  # the same three calls as just made
+            else:
+                plugin = (entropy_of_count_rows(rows, estimator="plugin", base="nats")
+                          + entropy_of_count_rows(cols, estimator="plugin", base="nats")
+                          - entropy_of_count_rows(flat, estimator="plugin", base="nats"))
             n = flat.sum(axis=1)
             dof = np.maximum((r_used - 1) * (c_used - 1), 0)
             g = np.where(dof > 0, 2.0 * n * np.maximum(plugin, 0.0), 0.0)
