@@ -79,6 +79,19 @@ def _draft(series: pd.Series, notes: _Notes, bins, strategy, threshold):
     return _objects(pd.Series(series.to_numpy(dtype=object), dtype=object), notes, bins, strategy, threshold)
 
 
+def _column_flags(note_flags, kind: str, n: int, n_missing: int, n_distinct: int) -> tuple:
+    """The flags of a finished column, in :data:`FLAGS` order (the rules of encode_column, Notes)."""
+    flags = set(note_flags)
+    if n_distinct <= 1:
+        flags.add("constant")
+    if n and n_missing / n >= MOSTLY_MISSING_SHARE:
+        flags.add("mostly_missing")
+    n_valid = n - n_missing
+    if kind in ("text", "categorical") and n_valid >= ID_LIKE_MIN_ROWS and n_distinct >= ID_LIKE_SHARE * n_valid:
+        flags.add("id_like")
+    return tuple(f for f in FLAGS if f in flags)
+
+
 def _build(series: pd.Series, name: str, bins, strategy, missing, max_categories, threshold, settings):
     notes = _Notes(name)
     d = _draft(series, notes, bins, strategy, threshold)
@@ -93,15 +106,7 @@ def _build(series: pd.Series, name: str, bins, strategy, missing, max_categories
     n = int(series.size)
     codes = np.ascontiguousarray(codes, dtype=codes_dtype(k))
     codes.setflags(write=False)
-    flags = set(notes.flags)
-    if d.n_distinct <= 1:
-        flags.add("constant")
-    if n and n_missing / n >= MOSTLY_MISSING_SHARE:
-        flags.add("mostly_missing")
-    n_valid = n - n_missing
-    if d.kind in ("text", "categorical") and n_valid >= ID_LIKE_MIN_ROWS and d.n_distinct >= ID_LIKE_SHARE * n_valid:
-        flags.add("id_like")
-    ordered_flags = tuple(f for f in FLAGS if f in flags)
+    ordered_flags = _column_flags(notes.flags, d.kind, n, n_missing, int(d.n_distinct))
     col = EncodedColumn(
         name=name, codes=codes, k=int(k), labels=labels, kind=d.kind, n=n, n_missing=n_missing,
         edges=edges, flags=ordered_flags, settings=settings, n_distinct=int(d.n_distinct),

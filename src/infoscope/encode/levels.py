@@ -64,13 +64,46 @@ def _finish_levels(d: _Levels, notes: _Notes, missing: str, max_categories):
     else:
         counts = _level_counts(raw, n_levels) if n_levels else np.zeros(0, np.int64)
     n_missing = int(raw.size - counts.sum())
+    new_index, k, labels, level_counts = _level_alphabet(d.labels, counts, d.natural, n_missing, notes,
+                                                         missing, max_categories)
+    # every entry of new_index is set by now; gathered straight into the codes' dtype
+    codes = new_index.astype(codes_dtype(k))[raw] if raw.size else raw.astype(np.int64)
+    return codes, k, labels, n_missing, level_counts
+
+
+def _fold_message(n_folded: int, n_levels: int, rows_folded: int, max_categories: int) -> str:
+    return (f"{n_folded} of {n_levels} levels ({rows_folded} row(s)) are folded into {OTHER_LABEL!r} "
+            f"to keep at most max_categories={max_categories} symbols")
+
+
+def _fold_room(name: str, max_categories: int, with_missing_symbol: bool) -> int:
+    """Levels kept beside ``"(other)"`` (and ``"(missing)"``) when a column is folded."""
+    room = max_categories - 1 - with_missing_symbol
+    if room < 1:
+        raise ValueError(
+            f"column {name!r}: max_categories={max_categories} leaves no room for a level "
+            "beside '(other)' and '(missing)'; use max_categories >= 3 or missing='drop'"
+        )
+    return room
+
+
+def _level_alphabet(level_labels, counts: np.ndarray, natural: bool, n_missing: int, notes: _Notes,
+                    missing: str, max_categories):
+    """The alphabet of a column of levels, decided from the levels and their counts only.
+
+    The one rule of level order, folding and the missing symbol (the in-memory
+    encoder and the out-of-core summaries of :mod:`infoscope.encode.summaries` both
+    call it).  Returns ``(new_index, k, labels, level_counts)``: ``new_index[i]`` is
+    the code of level ``i`` and ``new_index[n_levels]`` the code of a missing row.
+    """
+    n_levels = len(level_labels)
     with_missing_symbol = missing == "category" and n_missing > 0
     labels = np.empty(n_levels, dtype=object)  # a data label, or an array of them (vectorised)
-    labels[:] = list(d.labels) if not isinstance(d.labels, np.ndarray) else d.labels
+    labels[:] = list(level_labels) if not isinstance(level_labels, np.ndarray) else level_labels
     if n_levels:
         reserved = np.flatnonzero((labels == MISSING_LABEL) | (labels == OTHER_LABEL))
         labels[reserved] = [_reserve(labels[i]) for i in reserved]
-    if d.natural:
+    if natural:
         order = np.arange(n_levels)
     else:
         # most frequent first; ties in label order so the result does not depend on row order
@@ -78,24 +111,14 @@ def _finish_levels(d: _Levels, notes: _Notes, missing: str, max_categories):
     kept = order
     folded = False
     if max_categories is not None and n_levels + with_missing_symbol > max_categories:
-        room = max_categories - 1 - with_missing_symbol
-        if room < 1:
-            raise ValueError(
-                f"column {notes.name!r}: max_categories={max_categories} leaves no room for a level "
-                "beside '(other)' and '(missing)'; use max_categories >= 3 or missing='drop'"
-            )
+        room = _fold_room(notes.name, max_categories, with_missing_symbol)
         by_count = order[np.argsort(-counts[order], kind="stable")]
         keep_set = np.zeros(n_levels, dtype=bool)
         keep_set[by_count[:room]] = True
         kept = order[keep_set[order]]
         folded = True
-        n_folded = n_levels - room
-        rows_folded = int(counts[~keep_set].sum())
         notes.flags.add("levels_folded")
-        notes.warn(
-            f"{n_folded} of {n_levels} levels ({rows_folded} row(s)) are folded into {OTHER_LABEL!r} "
-            f"to keep at most max_categories={max_categories} symbols"
-        )
+        notes.warn(_fold_message(n_levels - room, n_levels, int(counts[~keep_set].sum()), max_categories))
     new_index = np.full(n_levels + 1, -1, dtype=np.int64)
     new_index[kept] = np.arange(kept.size)
     out_labels = labels[kept].tolist()
@@ -105,17 +128,15 @@ def _finish_levels(d: _Levels, notes: _Notes, missing: str, max_categories):
     if with_missing_symbol:
         out_labels.append(MISSING_LABEL)
     k = len(out_labels)
-    # raw == -1 picks the last entry: the missing code
+    # level -1 (a missing row) reads the last entry: the missing code
     new_index[n_levels] = k - 1 if with_missing_symbol else k
-    # every entry of new_index is set by now; gathered straight into the codes' dtype
-    codes = new_index.astype(codes_dtype(k))[raw] if raw.size else raw.astype(np.int64)
     level_counts = None
     if folded:
         # every present level, most frequent first (ties in label order, as `order`)
         present = order[counts[order] > 0]
         level_counts = np.array(counts[present[np.argsort(-counts[present], kind="stable")]], dtype=np.int64)
         level_counts.setflags(write=False)
-    return codes, k, _distinct_labels(out_labels), n_missing, level_counts
+    return new_index, k, _distinct_labels(out_labels), level_counts
 
 
 def _finish_bins(d: _Bins, missing: str):

@@ -27,14 +27,25 @@ def _integer_id_like(values: np.ndarray, n_distinct: int, lo, hi, name: str) -> 
 
     ``n_distinct``, ``lo`` and ``hi``: the distinct count, minimum and maximum of ``values``.
     """
-    n_valid = values.size
+    return _id_like_rule(values.size, n_distinct, lo, hi,
+                         lambda: bool(np.all(values[1:] > values[:-1]) or np.all(values[1:] < values[:-1])),
+                         name)
+
+
+def _id_like_rule(n_valid: int, n_distinct: int, lo, hi, monotone, name: str) -> bool:
+    """The ID-like rule of whole numbers from counts (``monotone``: a bool, or a callable giving it).
+
+    Strictly monotone in row order, dense (range <= 2 x distinct count) or named
+    like a key, with at least :data:`ID_LIKE_MIN_ROWS` values of which at least
+    :data:`ID_LIKE_SHARE` are distinct.
+    """
     if n_valid < ID_LIKE_MIN_ROWS or n_distinct < ID_LIKE_SHARE * n_valid:
         return False
     # exact for integers beyond 2**53 (Python ints), floats otherwise
     span = (int(hi) - int(lo) + 1) if isinstance(lo, (int, np.integer)) else float(hi) - float(lo) + 1
-    dense = span <= 2 * n_distinct
-    monotone = bool(np.all(values[1:] > values[:-1]) or np.all(values[1:] < values[:-1]))
-    return dense or monotone or _is_id_name(name)
+    if span <= 2 * n_distinct:
+        return True
+    return bool(monotone() if callable(monotone) else monotone) or _is_id_name(name)
 
 
 def tail_index(sorted_values: np.ndarray) -> float:
@@ -111,6 +122,17 @@ def _midpoint_edges(distinct: np.ndarray):
     return edges if np.all(np.diff(edges) > 0) else None
 
 
+def _infinite_note(notes: _Notes, n_inf: int, n_pos: int) -> None:
+    notes.flags.add("infinite_values")
+    notes.warn(f"{n_inf} infinite value(s) ({n_pos} +inf, {n_inf - n_pos} -inf) are treated as missing")
+
+
+def _outside_note(notes: _Notes, outside: int, first: str, last: str) -> None:
+    if outside:
+        notes.warn(f"{outside} value(s) lie outside the given bin edges "
+                   f"[{first}, {last}] and are counted in the end bins")
+
+
 def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy, threshold,
              fractions_as_levels: bool = False) -> _Levels | _Bins:
     """Float or integer values (``na``: mask of missing rows of a nullable dtype)."""
@@ -121,11 +143,7 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
         inf = np.isinf(x)
         n_inf = int(np.count_nonzero(inf))
         if n_inf:
-            n_pos = int(np.count_nonzero(inf & (x > 0)))
-            notes.flags.add("infinite_values")
-            notes.warn(
-                f"{n_inf} infinite value(s) ({n_pos} +inf, {n_inf - n_pos} -inf) are treated as missing"
-            )
+            _infinite_note(notes, n_inf, int(np.count_nonzero(inf & (x > 0))))
             missing |= inf
     any_missing = bool(missing.any())
     v = x[~missing] if any_missing else x
@@ -184,11 +202,7 @@ def _numeric(x: np.ndarray, na: np.ndarray | None, notes: _Notes, bins, strategy
             notes.warn(note)
     if explicit:
         outside = int(np.count_nonzero(s < edges[0]) + np.count_nonzero(s > edges[-1]))
-        if outside:
-            notes.warn(
-                f"{outside} value(s) lie outside the given bin edges "
-                f"[{edges[0]:g}, {edges[-1]:g}] and are counted in the end bins"
-            )
+        _outside_note(notes, outside, f"{edges[0]:g}", f"{edges[-1]:g}")
     if _heavy_tail(s):
         notes.flags.add("heavy_tail")
     return _binned(v, n, missing, any_missing, edges, n_distinct)
@@ -260,48 +274,61 @@ def _integer_bins(v: np.ndarray, s: np.ndarray, n: int, missing: np.ndarray, not
     ``[e_i, e_i+1)`` are those from ``ceil(e_i)`` on, so integer edges lose nothing.
     Codes come from integer comparisons; labels and edges are the exact integers.
     """
-    explicit = isinstance(bins, np.ndarray)
-    origin = int(s[0]) if not explicit else min(int(s[0]), int(bins[0]))
+    origin, edges_off = _integer_edges(s.size, int(s[0]), int(s[-1]), lambda i: int(s[i]), bins, strategy, notes,
+                                       int(np.count_nonzero(s < bins[0]) + np.count_nonzero(s > bins[-1]))
+                                       if isinstance(bins, np.ndarray) else 0,
+                                       float_offsets=lambda o: (s.astype(np.uint64) - np.uint64(o % 2**64)).astype(np.float64))
     shift = np.uint64(origin % 2**64)
-
-    def offsets(a: np.ndarray) -> np.ndarray:
-        # a - origin, exact: two's-complement wrap-around gives the true difference (< 2**64)
-        return a.astype(np.uint64) - shift
-
-    s_off = offsets(s)
-    span = int(s_off[-1])
-    if explicit:
-        edges_off = offsets(bins)
-        outside = int(np.count_nonzero(s < bins[0]) + np.count_nonzero(s > bins[-1]))
-        if outside:
-            notes.warn(f"{outside} value(s) lie outside the given bin edges [{int(bins[0])}, "
-                       f"{int(bins[-1])}] and are counted in the end bins")
-    elif span == 0:
-        edges_off = np.array([0, 1], dtype=np.uint64)
-    else:
-        if strategy == "quantile" and not isinstance(bins, str):
-            wanted = _integer_quantile_edges(s_off, bins)  # exact: floats of the offsets may merge
-        else:  # widths: the float's relative error (2**-53 of the span) moves no edge by a bin
-            wanted = [int(math.ceil(e)) for e in binning._edges(s_off.astype(np.float64), bins, strategy,
-                                                                 is_sorted=True)[0][1:-1]]
-        inner = sorted({min(max(e, 1), span) for e in wanted} - {span})
-        edges_off = np.array([0, *inner, span], dtype=np.uint64)
-        if edges_off.size < len(wanted) + 2:
-            notes.warn(f"{len(wanted) + 1} bins were asked for but tied values make "
-                       f"{len(wanted) + 2 - edges_off.size} edge(s) coincide; {edges_off.size - 1} bin(s) remain")
-    codes = np.searchsorted(edges_off[1:-1], offsets(v), side="right")
+    # v - origin, exact: two's-complement wrap-around gives the true difference (< 2**64)
+    codes = np.searchsorted(edges_off[1:-1], v.astype(np.uint64) - shift, side="right")
     codes = codes.astype(np.uint8 if edges_off.size <= 256 else np.int64)
     if missing.any():
         raw = np.full(n, -1, dtype=np.int16 if edges_off.size <= 32_000 else np.int64)
         raw[~missing] = codes
     else:
         raw = codes
-    if _heavy_tail(s_off.astype(np.float64)):
+    if _heavy_tail((s.astype(np.uint64) - shift).astype(np.float64)):
         notes.flags.add("heavy_tail")
-    values = [origin + int(e) for e in edges_off]
-    edges = np.array(values, dtype=bins.dtype if explicit else s.dtype)
-    labels = list(binning.interval_labels([str(e) for e in values]))
+    edges, labels = _integer_bin_labels(origin, edges_off, bins, s.dtype)
     return _Bins(raw, labels, edges, "numeric", n_distinct)
+
+
+def _integer_edges(n: int, lo: int, hi: int, at, bins, strategy, notes: _Notes, outside: int,
+                   float_offsets=None):
+    """``(origin, edge offsets)`` of :func:`_integer_bins` from ``n`` sorted values given by rank.
+
+    ``lo``, ``hi``: the smallest and largest value; ``at(i)``: the value of rank
+    ``i`` (a Python int); ``outside``: values outside explicit ``bins``;
+    ``float_offsets(origin)``: all sorted offsets as floats, for a width rule (None:
+    only equal widths, which need the two ends alone).
+    """
+    explicit = isinstance(bins, np.ndarray)
+    origin = lo if not explicit else min(lo, int(bins[0]))
+    span = hi - origin
+    if explicit:
+        edges_off = bins.astype(np.uint64) - np.uint64(origin % 2**64)
+        _outside_note(notes, outside, str(int(bins[0])), str(int(bins[-1])))
+    elif span == 0:
+        edges_off = np.array([0, 1], dtype=np.uint64)
+    else:
+        if strategy == "quantile" and not isinstance(bins, str):
+            # exact: floats of the offsets may merge
+            wanted = _integer_quantile_edges_at(n, bins, lambda i: at(i) - origin)
+        else:  # widths: the float's relative error (2**-53 of the span) moves no edge by a bin
+            x = float_offsets(origin) if float_offsets is not None else np.array([0.0, float(span)])
+            wanted = [int(math.ceil(e)) for e in binning._edges(x, bins, strategy, is_sorted=True)[0][1:-1]]
+        inner = sorted({min(max(e, 1), span) for e in wanted} - {span})
+        edges_off = np.array([0, *inner, span], dtype=np.uint64)
+        if edges_off.size < len(wanted) + 2:
+            notes.warn(f"{len(wanted) + 1} bins were asked for but tied values make "
+                       f"{len(wanted) + 2 - edges_off.size} edge(s) coincide; {edges_off.size - 1} bin(s) remain")
+    return origin, edges_off
+
+
+def _integer_bin_labels(origin: int, edges_off: np.ndarray, bins, dtype):
+    values = [origin + int(e) for e in edges_off]
+    edges = np.array(values, dtype=bins.dtype if isinstance(bins, np.ndarray) else dtype)
+    return edges, list(binning.interval_labels([str(e) for e in values]))
 
 
 def _integer_quantile_edges(s_off: np.ndarray, bins: int) -> list[int]:
@@ -312,11 +339,24 @@ def _integer_quantile_edges(s_off: np.ndarray, bins: int) -> list[int]:
     ``s[i] + ceil(g (s[i + 1] - s[i]))`` with ``g = h - floor h``, computed here in
     Python integers (only the fraction ``g`` is a float).
     """
-    n = s_off.size
+    return _integer_quantile_edges_at(s_off.size, bins, lambda i: int(s_off[i]))
+
+
+def _integer_quantile_ranks(n: int, bins: int) -> list[int]:
+    """The ranks :func:`_integer_quantile_edges_at` reads."""
+    out = []
+    for p in np.linspace(0.0, 1.0, int(bins) + 1)[1:-1]:
+        i = min(int(math.floor((n - 1) * float(p))), n - 1)
+        out += [i, min(i + 1, n - 1)]
+    return out
+
+
+def _integer_quantile_edges_at(n: int, bins: int, at) -> list[int]:
+    """:func:`_integer_quantile_edges` of ``n`` sorted offsets, ``at(i)`` giving the one of rank ``i``."""
     out = []
     for p in np.linspace(0.0, 1.0, int(bins) + 1)[1:-1]:
         h = (n - 1) * float(p)
         i = min(int(math.floor(h)), n - 1)
-        a, b = int(s_off[i]), int(s_off[min(i + 1, n - 1)])
+        a, b = at(i), at(min(i + 1, n - 1))
         out.append(a + int(math.ceil((h - i) * (b - a))))
     return out

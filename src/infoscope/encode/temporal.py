@@ -63,6 +63,50 @@ def _time_texts(ints: np.ndarray, unit: str, kind: str, tz, step_ns: int | None 
     return [str(t) for t in idx]
 
 
+def edges_of(bins: np.ndarray, unit: str) -> np.ndarray:
+    """Explicit datetime / duration edges as int64 in the column's unit."""
+    return bins.astype(f"{bins.dtype.kind}8[{unit}]").view(np.int64)
+
+
+def _time_bins(lo: int, hi: int, s, bins, strategy, notes: _Notes, unit: str, kind: str, tz, outside: int,
+               quantile=None):
+    """Edges (int64 in ``unit``), labels and datetime64 / timedelta64 edges of a binned time column.
+
+    ``s``: the sorted int64 instants, or (out of core, with ``quantile``) the two
+    ends only; ``quantile(probs)`` then gives numpy's quantiles from exact order
+    statistics.  ``outside``: values outside explicit ``bins``.
+    """
+    explicit = isinstance(bins, np.ndarray)
+    if explicit:
+        if bins.dtype.kind != ("m" if kind == "timedelta" else "M"):
+            raise TypeError(
+                f"column {notes.name!r}: bin edges for a {kind} column must be "
+                f"{'timedelta64' if kind == 'timedelta' else 'datetime64'} values, got {bins.dtype}"
+            )
+        edges = edges_of(bins, unit)
+        if np.any(np.diff(edges) <= 0):
+            raise ValueError(f"column {notes.name!r}: bin edges must increase strictly")
+        if outside:
+            notes.warn(f"{outside} value(s) lie outside the given bin edges and are counted in the end bins")
+    else:
+        if quantile is None:
+            edges_f, note = binning._edges(s, bins, strategy, is_sorted=True)
+        else:
+            edges_f, note = binning._edges(s, bins, strategy, quantile=quantile, lo_hi=(s[0], s[-1]))
+        if note is not None:
+            notes.warn(note)
+        edges = np.unique(np.round(edges_f).astype(np.int64))
+        # float64 cannot hold nanosecond instants exactly: the ends are the data's own
+        edges[0], edges[-1] = lo, hi
+        edges = np.unique(edges)
+    step_ns = None
+    if not explicit:
+        edges, step_ns = _round_time_edges(edges, unit)
+    labels = list(binning.interval_labels(_time_texts(edges, unit, kind, tz, step_ns)))
+    edge_arr = edges.view(f"{'m' if kind == 'timedelta' else 'M'}8[{unit}]").copy()
+    return edges, labels, edge_arr
+
+
 def _temporal(series: pd.Series, notes: _Notes, bins, strategy, threshold) -> _Levels | _Bins:
     """datetime64 (naive or zoned: binned on UTC instants) and timedelta64 columns."""
     dtype = series.dtype
@@ -82,31 +126,9 @@ def _temporal(series: pd.Series, notes: _Notes, bins, strategy, threshold) -> _L
         raw = np.full(ints.size, -1, dtype=np.int64)
         raw[~missing] = np.searchsorted(distinct, v)
         return _Levels(raw, _time_texts(distinct, unit, kind, tz), True, kind, n_distinct)
-    if explicit:
-        if bins.dtype.kind != ("m" if kind == "timedelta" else "M"):
-            raise TypeError(
-                f"column {notes.name!r}: bin edges for a {kind} column must be "
-                f"{'timedelta64' if kind == 'timedelta' else 'datetime64'} values, got {bins.dtype}"
-            )
-        edges = bins.astype(f"{bins.dtype.kind}8[{unit}]").view(np.int64)
-        if np.any(np.diff(edges) <= 0):
-            raise ValueError(f"column {notes.name!r}: bin edges must increase strictly")
-        outside = int(np.count_nonzero(s < edges[0]) + np.count_nonzero(s > edges[-1]))
-        if outside:
-            notes.warn(f"{outside} value(s) lie outside the given bin edges and are counted in the end bins")
-    else:
-        edges_f, note = binning._edges(s, bins, strategy, is_sorted=True)
-        if note is not None:
-            notes.warn(note)
-        edges = np.unique(np.round(edges_f).astype(np.int64))
-        # float64 cannot hold nanosecond instants exactly: the ends are the data's own
-        edges[0], edges[-1] = s[0], s[-1]
-        edges = np.unique(edges)
-    step_ns = None
-    if not explicit:
-        edges, step_ns = _round_time_edges(edges, unit)
+    outside = int(np.count_nonzero(s < edges_of(bins, unit)[0]) + np.count_nonzero(s > edges_of(bins, unit)[-1])) \
+        if explicit and bins.dtype.kind == ("m" if kind == "timedelta" else "M") else 0
+    edges, labels, edge_arr = _time_bins(int(s[0]), int(s[-1]), s, bins, strategy, notes, unit, kind, tz, outside)
     raw = np.full(ints.size, -1, dtype=np.int64)
     raw[~missing] = binning.assign_bins(v, edges)
-    labels = list(binning.interval_labels(_time_texts(edges, unit, kind, tz, step_ns)))
-    edge_arr = edges.view(f"{'m' if kind == 'timedelta' else 'M'}8[{unit}]").copy()
     return _Bins(raw, labels, edge_arr, kind, n_distinct)
