@@ -77,6 +77,9 @@ _PUBLIC = {
     # frame level
     "InfoProfileAccessor": "infoscope.accessor",
     "ProfileSession": "infoscope.frame.session",
+    # sources that are not an in-memory frame (out of core)
+    "profile": "infoscope.sources",
+    "TableSession": "infoscope.sources.session",
     "PairTable": "infoscope.frame.results",
     # live views (anywidget; imported only when asked for)
     "ProfileWidget": "infoscope.widgets.profile",

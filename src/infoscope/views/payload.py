@@ -155,6 +155,8 @@ def view_data(session, parts, *, order: str = "cluster", alpha_fdr: float = 0.05
     unknown = parts - set(PARTS)
     if unknown:
         raise ValueError(f"unknown view part(s) {sorted(unknown)}; the parts are {', '.join(PARTS)}")
+    # a session of count tables only (out of core) cannot build the parts that read rows
+    parts &= set(getattr(session, "view_parts", PARTS))
     settings = session.settings
     unit = view_settings_from_session(settings)["unit"]
     out: dict[str, Any] = {}

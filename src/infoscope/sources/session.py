@@ -1,0 +1,254 @@
+"""A profile session built from count tables: :class:`TableSession` and :func:`session_from_tables`.
+
+The result tables of :mod:`infoscope.frame.tables` read an engine's pair tables and
+symbol counts and each column's encoding metadata, never the rows; a
+:class:`TableSession` gives them exactly that (a
+:class:`~infoscope.engine.tables.TableEngine`), so ``entropy``, ``pairs``,
+``matrix``, ``pair``, ``relevance``, the HTML export and the widget work on a
+source that was only ever read in batches.  Estimator, unit, measure, interval and
+significance settings can change (``update``); an encoding setting (bins,
+strategy, missing, folding) needs another pass over the source, and so do the
+views that read rows (conditional tables, feature selection, surprising rows,
+drift): they raise :class:`NeedsRows`, which says to profile a sample (``sample=``).
+"""
+from __future__ import annotations
+
+from collections.abc import Mapping, Sequence
+
+from infoscope._warnings import DataQualityWarning, warn_user
+from infoscope.engine.tables import TableEngine
+from infoscope.frame.session import ProfileSession
+from infoscope.frame.settings import _DEFAULTS, _ENCODING_SETTINGS, _check_settings
+
+__all__ = ["TableSession", "session_from_tables", "NeedsRows"]
+
+
+class NeedsRows(ValueError):
+    """A view or setting of an out-of-core profile that needs the rows (another pass, or a sample)."""
+
+
+class TableSession(ProfileSession):
+    """A :class:`~infoscope.frame.session.ProfileSession` whose engine holds count tables, not codes.
+
+    Parameters
+    ----------
+    alphabets : sequence of Alphabet
+        Each column's alphabet (:class:`infoscope.encode.summaries.Alphabet`), in column order.
+    tables : mapping
+        ``{(a, b): table}``: the pairwise-complete table of every pair of column keys.
+    marginals : mapping
+        ``{name: counts}``: rows per symbol of every column.
+    n_rows : int
+        Rows of the source.
+    source : str, default=""
+        What was profiled (a path, a glob, ``"DuckDB relation"``), in ``attrs["source"]``.
+    **settings
+        Settings of :class:`~infoscope.frame.session.ProfileSession`; the encoding
+        ones must be those the alphabets were made with.
+
+    Attributes
+    ----------
+    source : str
+        What was profiled.
+
+    Examples
+    --------
+    >>> import pandas as pd
+    >>> from infoscope.sources import profile
+    >>> s = profile(pd.DataFrame({"a": list("xyxy") * 10, "b": list("xxyy") * 10}).to_records(index=False))
+    Traceback (most recent call last):
+    ...
+    TypeError: profile: cannot read a numpy.recarray; give a path, glob or folder of Parquet or CSV files, a pyarrow Dataset, a DuckDB relation, a Polars LazyFrame or DataFrame, a Dask DataFrame or a pandas DataFrame
+    """
+
+    #: The view parts (:data:`infoscope.views.payload.PARTS`) a session of tables can build.
+    view_parts = ("entropy", "grid", "pair", "relevance")
+
+    def __init__(self, alphabets: Sequence, tables: Mapping, marginals: Mapping, *, n_rows: int,
+                 source: str = "", **settings):
+        merged = {**_DEFAULTS, **settings}
+        self._settings = _check_settings(merged)
+        alphabets = list(alphabets)
+        if not alphabets:
+            raise ValueError("the source has no columns: there is nothing to profile")
+        if n_rows == 0:
+            raise ValueError(f"the source {source or ''} has no rows: there is nothing to profile".replace("  ", " "))
+        self._names = [a.name for a in alphabets]
+        self._n_rows = int(n_rows)
+        self._rows = None
+        self._series = dict.fromkeys(self._names)
+        self._bins_override: dict = {}
+        self._encoded = {a.name: a.column() for a in alphabets}
+        self._alphabets = {a.name: a for a in alphabets}
+        self._pair_cache: dict = {}
+        self._measure_cache: dict = {}
+        self._entropy_cache: dict = {}
+        self._relevance_cache: dict = {}
+        self._interval_cache: dict = {}
+        self._pairs_memo: dict = {}
+        self._pairs_estimated: list = []
+        self.source = str(source)
+        self._engine = TableEngine(list(self._encoded.values()), tables, marginals, n=n_rows)
+        self._settings["target"] = self._check_target(self._settings["target"], "target")
+
+    def __repr__(self) -> str:
+        return f"TableSession({self._n_rows} rows x {len(self._names)} columns, source={self.source!r})"
+
+    def _attrs(self, **extra) -> dict:
+        attrs = super()._attrs(**extra)
+        attrs["source"] = self.source
+        return attrs
+
+    # ------------------------------------------------------------ what needs rows
+    def _needs_rows(self, what: str):
+        raise NeedsRows(
+            f"{what} reads the rows, and this profile of {self.source or 'the source'} holds count tables "
+            "only; profile a seeded sample with infoscope.profile(source, sample=100_000) for it")
+
+    def _encode(self, keys) -> set:
+        keys = list(keys)
+        if keys:
+            changed = ", ".join(repr(k) for k in keys[:5]) + (" ..." if len(keys) > 5 else "")
+            raise NeedsRows(
+                f"re-encoding column(s) {changed} (a change of {', '.join(_ENCODING_SETTINGS)}) needs another "
+                f"pass over {self.source or 'the source'}: call infoscope.profile(source, ...) with the new "
+                "settings")
+        return set()
+
+    def update(self, **settings) -> set:
+        """Change settings that need no new encoding (estimator, unit, measure, intervals, target).
+
+        Parameters
+        ----------
+        **settings
+            Settings of :class:`~infoscope.frame.session.ProfileSession`.
+
+        Returns
+        -------
+        set
+            Always empty (nothing is re-encoded).
+
+        Raises
+        ------
+        NeedsRows
+            An encoding setting or ``sample`` changed: that needs another pass over the source.
+        """
+        if "sample" in settings and settings["sample"] != self._settings["sample"]:
+            self._needs_rows("sample=")
+        return super().update(**settings)
+
+    def set_column_bins(self, name: str, bins) -> None:
+        """Not available: new bins need another pass over the source (raises :class:`NeedsRows`)."""
+        self._needs_rows("set_column_bins")
+
+    def _values(self, key: str):
+        self._needs_rows("this view")
+
+    def drift(self, reference, **settings):
+        """Not available out of core yet: drift reads the rows (raises :class:`NeedsRows`)."""
+        self._needs_rows("drift()")
+
+    def pair_drift(self, reference, **settings):
+        """Not available out of core: reads the rows (raises :class:`NeedsRows`)."""
+        self._needs_rows("pair_drift()")
+
+    def drift_over(self, time_column, **settings):
+        """Not available out of core: reads the rows (raises :class:`NeedsRows`)."""
+        self._needs_rows("drift_over()")
+
+    def drift_report(self, reference, **settings):
+        """Not available out of core: reads the rows (raises :class:`NeedsRows`)."""
+        self._needs_rows("drift_report()")
+
+    def conditional(self, *args, **kwargs):
+        """Not available out of core: conditional tables read the rows (raises :class:`NeedsRows`)."""
+        self._needs_rows("conditional()")
+
+    def select(self, *args, **kwargs):
+        """Not available out of core: the selection's permutation tests read the rows (raises :class:`NeedsRows`)."""
+        self._needs_rows("select()")
+
+    def surprising_rows(self, *args, **kwargs):
+        """Not available out of core: surprising rows are rows (raises :class:`NeedsRows`)."""
+        self._needs_rows("surprising_rows()")
+
+    def tree(self, *args, **kwargs):
+        """Not available out of core: reads the rows (raises :class:`NeedsRows`)."""
+        self._needs_rows("tree()")
+
+    # ------------------------------------------------------------ outputs
+    def to_html(self, path=None, *, min_count=None, title: str | None = None):
+        """The profile as one self-contained HTML file (see :func:`infoscope.report.html.to_html`).
+
+        Parameters
+        ----------
+        path : str or os.PathLike, optional
+            Where to write it; without it the HTML text is returned.
+        min_count : int, optional
+            Small-cell threshold of the pair views.
+        title : str, optional
+            Page title.
+
+        Returns
+        -------
+        str or None
+        """
+        from infoscope.report.html import to_html
+
+        return to_html(self, path, min_count=min_count, title=title)
+
+    def widget(self):
+        """The live profile view of this session (:class:`infoscope.widgets.profile.ProfileWidget`)."""
+        from infoscope.widgets.profile import ProfileWidget
+
+        return ProfileWidget(self)
+
+
+def session_from_tables(alphabets: Sequence, tables: Mapping, marginals: Mapping, *, n_rows: int,
+                        source: str = "", warn: bool = True, **settings) -> TableSession:
+    """A :class:`TableSession` from pass 1's alphabets and pass 2's merged tables.
+
+    Parameters
+    ----------
+    alphabets : sequence of Alphabet
+        From :meth:`infoscope.encode.summaries.Pass1.alphabets`, in column order.
+    tables : mapping
+        ``{(a, b): table}`` of every pair of column keys, finalised
+        (:func:`infoscope.engine.counting.finalize`: no missing row / column).
+    marginals : mapping
+        ``{name: counts}`` of every column (rows per symbol ``0 .. k-1``).
+    n_rows : int
+        Rows of the source.
+    source : str, default=""
+        What was profiled (shown in ``attrs["source"]``).
+    warn : bool, default=True
+        Give each column's encoding warnings (as the in-memory encoder does), in column order.
+    **settings
+        Session settings; the encoding ones are those of the alphabets.
+
+    Returns
+    -------
+    TableSession
+
+    Examples
+    --------
+    >>> import numpy as np, pandas as pd
+    >>> from infoscope.encode.summaries import Pass1, column_specs, encode_batch, summarize
+    >>> from infoscope.engine.counting import count_chunk, finalize
+    >>> frame = pd.DataFrame({"a": list("xyxy") * 10, "b": list("xxyy") * 10})
+    >>> p = Pass1(column_specs(frame.dtypes)); p.absorb(summarize(frame, p.request()))
+    >>> al = list(p.alphabets().values())
+    >>> codes = encode_batch(frame, al)
+    >>> t = finalize(count_chunk(codes, [a.k for a in al], [(0, 1)]))
+    >>> s = session_from_tables(al, {("a", "b"): t[(0, 1)]},
+    ...                         {a.name: np.bincount(c, minlength=a.k + 1)[:a.k] for a, c in zip(al, codes)},
+    ...                         n_rows=40, n_boot=0)
+    >>> s.pairs()[["a", "b", "n"]].values.tolist()
+    [['a', 'b', 40]]
+    """
+    alphabets = list(alphabets)
+    if warn:
+        for a in alphabets:
+            for message in a.messages:
+                warn_user(message, DataQualityWarning)
+    return TableSession(alphabets, tables, marginals, n_rows=n_rows, source=source, **settings)
