@@ -1,8 +1,8 @@
 """The layer order as code: every import of every module, deferred ones included.
 
 Data flow one way (docs/design.md, "Layers"): estimators -> encode -> engine ->
-frame -> sources -> views -> report -> widgets -> the entry points (accessor, Polars
-namespace, command line and its file reader, the package itself).  A module may import its own layer
+frame -> views -> report -> widgets -> the entry points (accessor, Polars
+namespace, command line and its file reader, the out-of-core sources, the package itself).  A module may import its own layer
 and the layers below it, never one above; the module graph has no cycle; the
 estimators import numpy, scipy and the standard library only.
 
@@ -27,11 +27,10 @@ LAYERS = {
     "encode": 2,
     "engine": 3,
     "frame": 4, "measures": 4, "datasets": 4,
-    "sources": 4.5,
     "views": 5,
     "report": 6,
     "widgets": 7,
-    "accessor": 8, "polars": 8, "cli": 8, "reading": 8, "__main__": 8, "": 8,
+    "accessor": 8, "polars": 8, "cli": 8, "reading": 8, "sources": 8, "__main__": 8, "": 8,
 }
 ESTIMATOR_THIRD_PARTY = {"numpy", "scipy"}
 
