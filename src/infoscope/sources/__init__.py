@@ -19,7 +19,7 @@ from infoscope.sources.readers import SourceError, arrow_to_pandas, open_source,
 from infoscope.sources.session import NeedsRows, TableSession, session_from_tables
 
 __all__ = ["profile", "TableSession", "session_from_tables", "SourceError", "NeedsRows", "open_source",
-           "arrow_to_pandas"]
+           "arrow_to_pandas", "SampledSession"]
 
 def profile(source, *, memory_limit=DEFAULT_MEMORY_LIMIT, columns=None, progress="auto", sep=None,
             encoding=None, **settings):
@@ -87,8 +87,9 @@ def profile(source, *, memory_limit=DEFAULT_MEMORY_LIMIT, columns=None, progress
     if kind == "dask":
         from infoscope.sources import dask as dask_source  # the Dask adapter (issue 7, Dask part)
 
-        return dask_source.profile_dask(source, memory_limit=memory_limit, columns=columns, progress=progress,
-                                        **settings)
+        if columns is not None:
+            source = source[list(columns)]
+        return dask_source.profile_dask(source, progress=progress, **settings)
     merged = _check_settings({**_DEFAULTS, **settings})  # a bad setting fails before any file is read
     src = open_source(source, columns=columns, sep=sep, encoding=encoding)
     if merged["sample"] is not None:
@@ -128,10 +129,10 @@ def _sampled(src, merged, settings):
             parts.append(batch[mask])
     frame = pd.concat(parts, ignore_index=True)
     rest = {k: v for k, v in settings.items() if k not in ("sample",)}
-    return _SampledSession(frame, of_rows=n, **rest)
+    return SampledSession(frame, of_rows=n, **rest)
 
 
-class _SampledSession(ProfileSession):
+class SampledSession(ProfileSession):
     """A ProfileSession of a sample read from a source: ``sampled`` and ``n_rows`` speak of the source."""
 
     def __init__(self, frame, *, of_rows: int, **settings):
