@@ -409,3 +409,25 @@ def test_ami_of_an_id_like_side_is_zero_not_rounding_noise(rng, method, n):
     # identical partitions (both sides all distinct): 1, scikit-learn's value
     assert adjusted_mutual_information_from_table(np.eye(n, dtype=int), normalization=method) == 1.0
     assert metrics.adjusted_mutual_info_score(x, x, average_method=method) == 1.0
+
+
+def test_margin_pairs_sum_equals_the_sum_over_cells():
+    # Definition: grouping the cells by their (row total, column total) leaves any sum
+    # of a margin-only term unchanged; checked with the term a*b (sum = N^2 exactly)
+    # and with scikit-learn's expected_mutual_information through both callers.
+    from infoscope.estimators.information import margin_pairs
+    from infoscope.estimators.intervals import chance_mi_nats
+
+    rng = np.random.default_rng(3)
+    t = rng.integers(0, 4, (7, 6)).astype(float)
+    t[2] = 0.0  # an empty row is left out
+    a, b, w = margin_pairs(t)
+    rows, cols = t.sum(axis=1), t.sum(axis=0)
+    cells = [(r, c) for r in rows if r > 0 for c in cols if c > 0]
+    assert float(np.sum(w)) == len(cells)
+    assert float(np.sum(w * a * b)) == pytest.approx(sum(r * c for r, c in cells), rel=1e-12)
+    assert float(np.sum(w * np.log(a) * b**2)) == pytest.approx(sum(np.log(r) * c**2 for r, c in cells), rel=1e-12)
+    with np.errstate(divide="ignore"):  # sklearn takes the log of the empty row's total
+        ref = expected_mutual_information(t.astype(np.int64), int(t.sum()))  # every cell small: exact in both
+    assert expected_mutual_information_from_table(t, base="nats") == pytest.approx(ref, rel=1e-9)
+    assert chance_mi_nats(t) == pytest.approx(ref, rel=1e-9)

@@ -9,6 +9,7 @@ import pytest
 import scipy.stats
 from sklearn.metrics import mutual_info_score
 
+from infoscope.estimators import conditional, continuous, divergence, intervals, two_sample
 from infoscope.estimators.entropy import ENTROPY_ESTIMATORS
 from infoscope.estimators.resampling import (
     _mi_of_tables_nats,
@@ -471,3 +472,110 @@ def test_fifty_thousand_singletons_interval_contains_the_closed_form():
     estimate = entropy_from_counts(n)
     assert estimate == pytest.approx(math.log2(50_000) + 49_999 / (2 * 50_000 * math.log(2)), rel=1e-12)
     assert low <= estimate <= high and high - low < 0.1
+
+
+# --------------------------------------------------------------------------- shared machinery
+# The bootstrap of a table, the shuffle loop and the p-value rule live once in
+# estimators/resampling.py and serve both the MI and the conditional-MI functions.
+
+def test_shared_shuffle_loop_gives_the_plus_one_p_value_of_sklearn_statistics():
+    # Reference: sklearn.metrics.mutual_info_score (nats) on every shuffled pairing,
+    # p = (b + 1)/(m + 1) (Phipson & Smyth 2010).  The shuffles are the ones the test
+    # draws: one generator, a single block of m rows of rng.permuted(tile(y)).
+    rng = np.random.default_rng(11)
+    x = rng.integers(0, 3, 120)
+    y = (x + rng.integers(0, 4, 120)) % 4
+    m = 199
+    res = permutation_test_mi(x, y, n_permutations=m, seed=7, base="nats")
+    shuffled = np.random.default_rng(7).permuted(np.tile(y, (m, 1)), axis=1)
+    null = np.array([mutual_info_score(x, row) for row in shuffled])
+    observed = mutual_info_score(x, y)
+    exceed = int(np.count_nonzero(null >= observed - 1e-12 * (1 + observed)))
+    assert res.statistic == pytest.approx(observed, rel=1e-12)
+    assert res.p_value == (exceed + 1) / (m + 1)
+    assert res.null_mean == pytest.approx(null.mean(), rel=1e-10)
+
+
+def test_shared_shuffle_loop_serves_the_conditional_test_the_same_way():
+    # Reference: I(X;Y|Z) = sum_z P(z) I(X;Y | Z=z) with sklearn.metrics.mutual_info_score
+    # per stratum (Cover & Thomas 2006, eq. 2.60), on the within-stratum shuffles drawn
+    # from the test's own generator; p = (b + 1)/(m + 1).
+    cond = conditional
+    rng = np.random.default_rng(12)
+    z = rng.integers(0, 3, 150)
+    x = (z + rng.integers(0, 2, 150)) % 3
+    y = (z + rng.integers(0, 2, 150)) % 3
+    m = 99
+
+    def cmi(xv, yv, zv):
+        return sum((zv == s).mean() * mutual_info_score(xv[zv == s], yv[zv == s]) for s in np.unique(zv))
+
+    res = cond.conditional_permutation_test(x, y, z, n_permutations=m, seed=3, base="nats")
+    order = np.argsort(z, kind="stable")
+    xs, ys, zs = x[order], y[order], z[order]
+    cuts = np.flatnonzero(np.diff(zs)) + 1
+    shuffled = cond._shuffle_within(np.random.default_rng(3), xs, zs, np.r_[0, cuts], np.r_[cuts, zs.size], m)
+    null = np.array([cmi(row, ys, zs) for row in shuffled])
+    observed = cmi(x, y, z)
+    exceed = int(np.count_nonzero(null >= observed - 1e-12 * (1 + observed)))
+    assert res.statistic == pytest.approx(observed, rel=1e-10, abs=1e-14)
+    assert res.p_value == (exceed + 1) / (m + 1)
+    assert res.null_mean == pytest.approx(null.mean(), rel=1e-9, abs=1e-14)
+
+
+def test_shared_table_bootstrap_draws_the_same_replicates_for_mi_and_cmi():
+    # A conditional MI with a single stratum is the MI of the table (Cover & Thomas
+    # 2006, eq. 2.60 with one value of Z); both functions draw their replicates through
+    # the one table bootstrap, so with the same seed their intervals coincide.
+    t = np.array([[30, 10, 5], [8, 25, 12]])
+    for method in ("centred", "percentile"):
+        two = bootstrap_mi_ci(t, estimator="plugin", seed=4, n_boot=120, method=method)
+        three = conditional.bootstrap_cmi_ci(t[:, :, None], estimator="plugin", seed=4, n_boot=120, method=method)
+        assert three.low == pytest.approx(two.low, rel=1e-12)
+        assert three.high == pytest.approx(two.high, rel=1e-12)
+
+
+@pytest.mark.parametrize(
+    "call",
+    [
+        lambda: permutation_test_mi([0], [1]),
+        lambda: conditional.conditional_permutation_test([0], [1], [0]),
+    ],
+)
+def test_shared_permutation_inputs_name_every_column_when_too_short(call):
+    with pytest.raises(ValueError, match=r"have 1 rows; a permutation test needs at least 2"):
+        call()
+
+
+@pytest.mark.parametrize(
+    "call,match",
+    [
+        (lambda level: bootstrap_mi_ci([[5, 5], [5, 5]], level=level), "level"),
+        (lambda level: bootstrap_entropy_ci([5, 5], level=level), "level"),
+        (lambda level: intervals.mi_intervals_from_tables([[[5, 5], [5, 5]]], level=level), "level"),
+        (lambda level: conditional.bootstrap_cmi_ci([[[5, 5], [5, 5]]], level=level), "level"),
+    ],
+)
+def test_every_interval_checks_its_level_by_the_one_rule(call, match):
+    # One rule (estimators/_checks.check_level) for every function that takes a level.
+    for bad, error in ((1.0, ValueError), (0.0, ValueError), (True, TypeError), ("0.9", TypeError)):
+        with pytest.raises(error, match=match):
+            call(bad)
+
+
+def test_every_pseudocount_and_jitter_is_checked_by_the_one_rule():
+    # One rule (estimators/_checks.check_nonnegative): a finite number >= 0, not a bool.
+    calls = {
+        "pseudocount": [
+            lambda v: divergence.as_distribution([1, 2], pseudocount=v),
+            lambda v: divergence.psi([1, 2], [2, 1], pseudocount=v),
+            lambda v: two_sample.divergence_rows([1, 2], [2, 1], pseudocount=v),
+        ],
+        "jitter": [lambda v: continuous._check_jitter(v)],
+    }
+    for name, fns in calls.items():
+        for fn in fns:
+            for bad, error in ((-1.0, ValueError), (math.inf, ValueError), (math.nan, ValueError),
+                               (True, TypeError), ("1", TypeError)):
+                with pytest.raises(error, match=name):
+                    fn(bad)

@@ -6,6 +6,7 @@ the same everywhere and name the parameter at fault.
 from __future__ import annotations
 
 import math
+import numbers
 from collections.abc import Iterable
 
 import numpy as np
@@ -115,3 +116,32 @@ def check_same_length(**arrays) -> int:
         detail = ", ".join(f"{k} has {v}" for k, v in lengths.items())
         raise ValueError(f"inputs must have the same length: {detail}")
     return next(iter(lengths.values())) if lengths else 0
+
+
+def check_level(level) -> float:
+    """Return ``level`` as a float if it is a confidence level in (0, 1); otherwise raise."""
+    if isinstance(level, bool) or not isinstance(level, numbers.Real):
+        raise TypeError(f"level must be a number in (0, 1), got {type(level).__name__}")
+    value = float(level)
+    if not 0.0 < value < 1.0:
+        raise ValueError(f"level={level!r} is invalid: the confidence level must be in (0, 1), e.g. 0.95")
+    return value
+
+
+def check_positive_int(value, parameter: str) -> int:
+    """Return ``value`` as an int if it is a whole number >= 1 (not a bool); otherwise raise."""
+    if isinstance(value, bool) or not isinstance(value, numbers.Integral):
+        raise TypeError(f"{parameter} must be a whole number >= 1, got {type(value).__name__}")
+    if value < 1:
+        raise ValueError(f"{parameter}={value!r} is invalid: it must be >= 1")
+    return int(value)
+
+
+def check_nonnegative(value, parameter: str) -> float:
+    """Return ``value`` as a float if it is a finite real number >= 0 (not a bool); otherwise raise."""
+    if isinstance(value, bool) or not isinstance(value, numbers.Real):
+        raise TypeError(f"{parameter} must be a number >= 0, got {type(value).__name__}")
+    number = float(value)
+    if not math.isfinite(number) or number < 0:
+        raise ValueError(f"{parameter}={value!r} is invalid: it must be a finite number >= 0")
+    return number

@@ -30,7 +30,7 @@ from scipy.spatial import cKDTree
 from scipy.special import digamma, gammaln
 
 from infoscope._warnings import DataQualityWarning, SmallSampleWarning, warn_user
-from infoscope.estimators._checks import check_choice, check_same_length, log_base
+from infoscope.estimators._checks import check_choice, check_nonnegative, check_same_length, log_base
 
 __all__ = [
     "differential_entropy",
@@ -110,12 +110,7 @@ def _check_k(k, n: int, what: str = "the number of samples") -> int:
 def _check_jitter(jitter, *, allow_none: bool = True):
     if jitter is None and allow_none:
         return None
-    if isinstance(jitter, bool) or not isinstance(jitter, numbers.Real):
-        raise TypeError(f"jitter must be a non-negative number or None, got {jitter!r}")
-    j = float(jitter)
-    if not math.isfinite(j) or j < 0:
-        raise ValueError(f"jitter={jitter!r} is invalid: it must be a finite number >= 0")
-    return j
+    return check_nonnegative(jitter, "jitter")
 
 
 def _rng(seed) -> np.random.Generator:

@@ -20,25 +20,15 @@ a divergence that is infinite (mass where the other side has none) is returned a
 from __future__ import annotations
 
 import math
-import numbers
 
 import numpy as np
 from scipy import special
 
-from infoscope.estimators._checks import log_base, numeric_array
+from infoscope.estimators._checks import check_nonnegative, log_base, numeric_array
 
 __all__ = ["as_distribution", "cross_entropy", "js_divergence", "kl_divergence", "psi"]
 
 _SUM_TOL = 1e-9
-
-
-def _check_pseudocount(pseudocount, parameter: str = "pseudocount") -> float:
-    if isinstance(pseudocount, bool) or not isinstance(pseudocount, numbers.Real):
-        raise TypeError(f"{parameter} must be a number >= 0, got {type(pseudocount).__name__}")
-    value = float(pseudocount)
-    if not math.isfinite(value) or value < 0:
-        raise ValueError(f"{parameter}={pseudocount!r} is invalid: it must be a finite number >= 0")
-    return value
 
 
 def as_distribution(v, *, parameter: str = "p", counts=None, pseudocount=0.0) -> np.ndarray:
@@ -78,7 +68,7 @@ def as_distribution(v, *, parameter: str = "p", counts=None, pseudocount=0.0) ->
     >>> as_distribution([0, 2], pseudocount=1).tolist()
     [0.25, 0.75]
     """
-    a = _check_pseudocount(pseudocount)
+    a = check_nonnegative(pseudocount, "pseudocount")
     raw = numeric_array(v, parameter, shape_words="a flat vector of numbers", dtype_words="a numeric vector")
     if raw.ndim != 1:
         raise ValueError(f"{parameter} must be a 1-D vector, got shape {raw.shape}")
@@ -299,7 +289,7 @@ def psi(expected, actual, *, pseudocount=None, counts=None) -> float:
     inf
     """
     if pseudocount is not None:
-        _check_pseudocount(pseudocount)
+        check_nonnegative(pseudocount, "pseudocount")
     def prepare(v, name):
         # A side with no observations has no distribution to compare: smoothing it
         # (the default pseudocount) would make it uniform and give a made-up index.

@@ -506,15 +506,39 @@ def expected_mutual_information_from_table(table, *, base=2) -> float:
     return _emi_nats(t) / log_base(base)
 
 
-def _emi_nats(t: np.ndarray) -> float:
-    n = float(t.sum())
+def margin_pairs(t: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Every pair of a non-empty row total and a column total of ``t``, grouped.
+
+    Parameters
+    ----------
+    t : numpy.ndarray of shape (r, c)
+        A checked count table.
+
+    Returns
+    -------
+    a, b, weight : numpy.ndarray
+        For each pair of distinct non-zero values ``(a, b)`` of the row and column
+        totals, how many (row, column) cells have those totals (``weight``).  A sum
+        over the cells of a term that depends on the margins only is
+        ``sum(weight * term(a, b))``: margins that repeat are computed once.
+
+    Examples
+    --------
+    >>> a, b, w = margin_pairs(np.array([[1.0, 1.0], [1.0, 1.0]]))
+    >>> a.tolist(), b.tolist(), w.tolist()
+    ([2.0], [2.0], [4.0])
+    """
     rows, cols = t.sum(axis=1), t.sum(axis=0)
     ra, rw = np.unique(rows[rows > 0], return_counts=True)
     ca, cw = np.unique(cols[cols > 0], return_counts=True)
     a = np.repeat(ra, ca.size)
     b = np.tile(ca, ra.size)
-    w = np.repeat(rw, ca.size).astype(np.float64) * np.tile(cw, ra.size)
-    return _emi_terms_nats(a, b, w, n)
+    weight = np.repeat(rw, ca.size).astype(np.float64) * np.tile(cw, ra.size)
+    return a, b, weight
+
+
+def _emi_nats(t: np.ndarray) -> float:
+    return _emi_terms_nats(*margin_pairs(t), float(t.sum()))
 
 
 _AMI_NORMALIZATIONS = ("min", "geometric", "arithmetic", "max")

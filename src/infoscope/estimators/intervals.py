@@ -51,13 +51,13 @@ DEVELOPERS.md ("Intervals").
 from __future__ import annotations
 
 import math
-import numbers
 from typing import NamedTuple
 
 import numpy as np
 from scipy import special, stats
 
-from infoscope.estimators._checks import check_counts, log_base
+from infoscope.estimators._checks import check_counts, check_level, log_base
+from infoscope.estimators.information import _emi_terms_nats, margin_pairs
 
 __all__ = [
     "MIInterval",
@@ -92,15 +92,6 @@ class MIInterval(NamedTuple):
     high: object
     chance: object
     dof: object
-
-
-def _check_level(level) -> float:
-    if isinstance(level, bool) or not isinstance(level, numbers.Real):
-        raise TypeError(f"level must be a number in (0, 1), got {type(level).__name__}")
-    value = float(level)
-    if not 0.0 < value < 1.0:
-        raise ValueError(f"level={level!r} is invalid: the confidence level must be in (0, 1), e.g. 0.95")
-    return value
 
 
 def chance_mi_nats(table) -> float:
@@ -146,17 +137,10 @@ def chance_mi_nats(table) -> float:
 
 
 def _chance_mi_nats(t: np.ndarray) -> float:
-    from infoscope.estimators.information import _emi_terms_nats
-
     n = float(t.sum())
     if n <= 1:
         return 0.0
-    rows, cols = t.sum(axis=1), t.sum(axis=0)
-    ra, rw = np.unique(rows[rows > 0], return_counts=True)
-    ca, cw = np.unique(cols[cols > 0], return_counts=True)
-    a = np.repeat(ra, ca.size)
-    b = np.tile(ca, ra.size)
-    w = np.repeat(rw, ca.size).astype(np.float64) * np.tile(cw, ra.size)
+    a, b, w = margin_pairs(t)
     small = a * b / n < MIN_EXPECTED_EXACT
     total = 0.0
     if small.any():
@@ -355,7 +339,7 @@ def mi_intervals_from_tables(tables, *, level=0.95, base=2, p_values=None, willi
     """
     from infoscope.estimators.significance import g_statistics
 
-    level = _check_level(level)
+    level = check_level(level)
     divisor = log_base(base)
     items = [_counts_table(t, f"tables[{i}]") for i, t in enumerate(tables)]
     m = len(items)

@@ -61,7 +61,14 @@ from typing import NamedTuple
 
 import numpy as np
 
-from infoscope.estimators._checks import check_choice, check_counts, check_same_length, log_base
+from infoscope.estimators._checks import (
+    check_choice,
+    check_counts,
+    check_level,
+    check_positive_int,
+    check_same_length,
+    log_base,
+)
 from infoscope.estimators.entropy import (
     ENTROPY_ESTIMATORS,
     entropy_nats,
@@ -107,23 +114,6 @@ class PermutationTestResult(NamedTuple):
 
 # --------------------------------------------------------------------------- checks
 
-def _check_level(level) -> float:
-    if isinstance(level, bool) or not isinstance(level, numbers.Real):
-        raise TypeError(f"level must be a number in (0, 1), got {type(level).__name__}")
-    value = float(level)
-    if not 0.0 < value < 1.0:
-        raise ValueError(f"level={level!r} is invalid: the confidence level must be in (0, 1), e.g. 0.95")
-    return value
-
-
-def _check_positive_int(value, parameter: str) -> int:
-    if isinstance(value, bool) or not isinstance(value, numbers.Integral):
-        raise TypeError(f"{parameter} must be a whole number >= 1, got {type(value).__name__}")
-    if value < 1:
-        raise ValueError(f"{parameter}={value!r} is invalid: it must be >= 1")
-    return int(value)
-
-
 def min_replicates(level: float) -> int:
     """The fewest bootstrap replicates for a two-sided interval at ``level``.
 
@@ -149,12 +139,12 @@ def min_replicates(level: float) -> int:
     >>> min_replicates(0.95), min_replicates(0.99), min_replicates(0.9)
     (40, 200, 20)
     """
-    level = _check_level(level)
+    level = check_level(level)
     return int(math.ceil(2.0 / (1.0 - level) - 1e-9))
 
 
 def _check_n_boot(n_boot, level: float) -> int:
-    n_boot = _check_positive_int(n_boot, "n_boot")
+    n_boot = check_positive_int(n_boot, "n_boot")
     need = min_replicates(level)
     if n_boot < need:
         raise ValueError(
@@ -220,6 +210,22 @@ def _multinomial_blocks(rng, n_total: int, p: np.ndarray, n_boot: int):
         b = min(per_block, n_boot - done)
         yield rng.multinomial(n_total, p, size=b).astype(np.float64)
         done += b
+
+
+def _table_interval(t: np.ndarray, total: float, score, divisor: float, level: float, method: str,
+                    n_boot: int, rng) -> ConfidenceInterval:
+    """The bootstrap interval of a statistic of the count table ``t`` (N = ``total``).
+
+    ``score`` maps a (B, cells) block of flattened tables to B values in nats.  Each
+    replicate draws every cell jointly from Multinomial(N, t / N); the interval is
+    :func:`_interval` of the replicates around the score of ``t`` itself, in the unit
+    of ``divisor`` (ln of the base).
+    """
+    method = check_choice(method, INTERVAL_METHODS, "method")
+    p = (t / total).ravel()
+    values = np.concatenate([score(block) for block in _multinomial_blocks(rng, total, p, n_boot)])
+    estimate = float(score(t.ravel()[None, :])[0]) / divisor
+    return _interval(values / divisor, level, method, estimate)
 
 
 # A count vector with at least this many non-empty cells, and no more than
@@ -324,7 +330,7 @@ def _resampling_inputs(counts, parameter, ndim, estimator, alpha, base, level, n
     estimator = check_choice(estimator, ENTROPY_ESTIMATORS, "estimator")
     a = resolve_alpha(estimator, alpha)
     divisor = log_base(base)
-    level = _check_level(level)
+    level = check_level(level)
     n_boot = _check_n_boot(n_boot, level)
     rng = _rng(seed)
     n = check_counts(counts, parameter, ndim=ndim)
@@ -529,14 +535,9 @@ def bootstrap_mi_ci(
     t, total, estimator, a, divisor, level, n_boot, rng = _resampling_inputs(
         table, "table", 2, estimator, alpha, base, level, n_boot, seed
     )
-    method = check_choice(method, INTERVAL_METHODS, "method")
     shape = t.shape
-    p = (t / total).ravel()
-    values = np.concatenate(
-        [_mi_of_tables_nats(block, shape, estimator, a) for block in _multinomial_blocks(rng, total, p, n_boot)]
-    )
-    estimate = float(_mi_of_tables_nats(t.ravel()[None, :], shape, estimator, a)[0]) / divisor
-    return _interval(values / divisor, level, method, estimate)
+    return _table_interval(t, total, lambda flat: _mi_of_tables_nats(flat, shape, estimator, a),
+                           divisor, level, method, n_boot, rng)
 
 
 def _plugin_entropy_of_rows_nats(counts: np.ndarray, total: float) -> np.ndarray:
@@ -605,14 +606,7 @@ def permutation_test_mi(x_codes, y_codes, *, n_permutations=999, seed=None, base
     >>> round(res.statistic, 3), res.p_value
     (1.0, 0.005)
     """
-    divisor = log_base(base)
-    m = _check_positive_int(n_permutations, "n_permutations")
-    rng = _rng(seed)
-    x = _check_codes(x_codes, "x_codes")
-    y = _check_codes(y_codes, "y_codes")
-    n = check_same_length(x_codes=x, y_codes=y)
-    if n < 2:
-        raise ValueError(f"x_codes and y_codes have {n} rows; a permutation test needs at least 2")
+    divisor, m, rng, (x, y), n = _permutation_inputs(n_permutations, seed, base, x_codes=x_codes, y_codes=y_codes)
     # compact codes 0..k-1 so that the joint table is only as large as what occurs
     _, x = np.unique(x, return_inverse=True)
     _, y = np.unique(y, return_inverse=True)
@@ -627,18 +621,49 @@ def permutation_test_mi(x_codes, y_codes, *, n_permutations=999, seed=None, base
         return np.maximum(mi, 0.0)  # a KL divergence: a tiny negative is rounding
 
     observed = float(mi_of(np.bincount(base_index + y, minlength=cells).astype(float)))
+    null = _shuffled_statistics(
+        m, n, cells, lambda b: base_index[None, :] + rng.permuted(np.tile(y, (b, 1)), axis=1), mi_of
+    )
+    return _permutation_result(observed, null, divisor)
+
+
+def _permutation_inputs(n_permutations, seed, base, **codes):
+    """Checked inputs of a permutation test: ln(base), m, the generator, the code arrays, their length."""
+    divisor = log_base(base)
+    m = check_positive_int(n_permutations, "n_permutations")
+    rng = _rng(seed)
+    arrays = {name: _check_codes(values, name) for name, values in codes.items()}
+    n = check_same_length(**arrays)
+    if n < 2:
+        names = list(codes)
+        listed = f"{', '.join(names[:-1])} and {names[-1]}"
+        raise ValueError(f"{listed} have {n} rows; a permutation test needs at least 2")
+    return divisor, m, rng, tuple(arrays.values()), n
+
+
+def _shuffled_statistics(m: int, n: int, cells: int, cell_codes, statistic) -> np.ndarray:
+    """The statistic of m shuffled joint tables, drawn in blocks of bounded size.
+
+    ``cell_codes(b)`` gives the (b, n) cell index in ``range(cells)`` of every row
+    in b fresh shuffles; ``statistic`` maps a (b, cells) block of counts to b values.
+    """
     null = np.empty(m)
     per_block = max(1, _BLOCK_CELLS // max(n, cells))
     done = 0
     while done < m:
         b = min(per_block, m - done)
-        shuffled = rng.permuted(np.tile(y, (b, 1)), axis=1)
-        index = (base_index[None, :] + shuffled) + (np.arange(b, dtype=np.int64) * cells)[:, None]
+        index = cell_codes(b) + (np.arange(b, dtype=np.int64) * cells)[:, None]
         joint = np.bincount(index.ravel(), minlength=b * cells).reshape(b, cells).astype(float)
-        null[done:done + b] = mi_of(joint)
+        null[done:done + b] = statistic(joint)
         done += b
+    return null
+
+
+def _permutation_result(observed: float, null: np.ndarray, divisor: float) -> PermutationTestResult:
+    """p = (b + 1) / (m + 1) over the m shuffled statistics ``null`` (nats), in the unit of ``divisor``."""
     # Equal tables give bit-identical statistics; tables that are rearrangements of
     # each other can differ by rounding, so "at least as large" allows 1e-12 nats.
     tolerance = 1e-12 * (1.0 + observed)
     exceed = int(np.count_nonzero(null >= observed - tolerance))
+    m = null.size
     return PermutationTestResult(observed / divisor, (exceed + 1) / (m + 1), float(null.mean()) / divisor)

@@ -35,6 +35,8 @@ from typing import NamedTuple
 import numpy as np
 from scipy import special, stats
 
+from infoscope.estimators._checks import check_nonnegative
+
 __all__ = [
     "DriftTest",
     "MIChangeTest",
@@ -97,15 +99,6 @@ def _check_counts_vector(v, parameter: str) -> np.ndarray:
     return f.astype(np.int64)
 
 
-def _check_pseudocount(pseudocount) -> float:
-    if isinstance(pseudocount, bool) or not isinstance(pseudocount, numbers.Real):
-        raise TypeError(f"pseudocount must be a number >= 0, got {type(pseudocount).__name__}")
-    a = float(pseudocount)
-    if not math.isfinite(a) or a < 0:
-        raise ValueError(f"pseudocount={pseudocount!r} is invalid: it must be a finite number >= 0")
-    return a
-
-
 def divergence_rows(reference, current, *, pseudocount: float = 0.5) -> dict[str, np.ndarray]:
     """PSI, KL(current || reference) and JS of many pairs of count vectors at once (nats).
 
@@ -140,7 +133,7 @@ def divergence_rows(reference, current, *, pseudocount: float = 0.5) -> dict[str
     >>> [round(float(v), 4) for v in out["psi"]]
     [0.0, 0.4063]
     """
-    a = _check_pseudocount(pseudocount)
+    a = check_nonnegative(pseudocount, "pseudocount")
     r = np.asarray(reference, dtype=np.float64)
     c = np.asarray(current, dtype=np.float64)
     if r.shape != c.shape or r.ndim == 0:
