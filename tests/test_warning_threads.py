@@ -1,4 +1,9 @@
-"""Warnings of a worker thread stay in that thread (the widget recomputes in one)."""
+"""Background threads leave process-wide state alone: warnings of a worker thread stay in
+that thread (the widget recomputes in one), and compiling kernels on a loader thread does
+not swap the standard streams."""
+import os
+import subprocess
+import sys
 import threading
 import warnings
 
@@ -70,3 +75,37 @@ def test_only_the_main_thread_entry_points_swap_the_warnings_module_state():
                    if "catch_warnings(" in p.read_text(encoding="utf-8")
                    and str(p.relative_to(root)) not in allowed)
     assert found == []
+
+
+def test_compiling_kernels_on_a_thread_leaves_the_standard_streams_alone():
+    # numba formats its typing messages with colorama while it compiles; colorama's
+    # init()/deinit() replace sys.stdout/sys.stderr process-wide (colorama
+    # initialise.py), so a stream the main thread put in place (a doctest's, a
+    # notebook cell's capture) was swapped back under it.  infoscope._numba turns the
+    # colouring off before numba's first import (NUMBA_DISABLE_ERROR_MESSAGE_HIGHLIGHTING,
+    # numba's environment variable).  A fresh interpreter, so numba is imported here first.
+    code = """
+import io, sys, threading
+out, err = io.StringIO(), io.StringIO()
+sys.stdout, sys.stderr = out, err
+from infoscope.encode import order_stats
+from infoscope.engine import counting
+def load():
+    counting._load_numba_kernels()
+    order_stats.kernels(wait=True)
+t = threading.Thread(target=load)
+t.start()
+changed = False
+while t.is_alive():
+    changed = changed or sys.stdout is not out or sys.stderr is not err
+    t.join(0.0005)
+changed = changed or sys.stdout is not out or sys.stderr is not err
+from numba.core import errors
+scheme = type(errors.termcolor()).__name__
+sys.stdout, sys.stderr = sys.__stdout__, sys.__stderr__
+print(changed, scheme)
+"""
+    env = {k: v for k, v in os.environ.items() if k != "NUMBA_DISABLE_ERROR_MESSAGE_HIGHLIGHTING"}
+    done = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, env=env, timeout=600)
+    assert done.returncode == 0, done.stderr
+    assert done.stdout.split() == ["False", "NOPColorScheme"]

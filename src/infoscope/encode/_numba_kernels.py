@@ -17,7 +17,7 @@ encoder's worker threads run them side by side.
 from __future__ import annotations
 
 import numpy as np
-from numba import njit
+from infoscope._numba import njit
 
 _SIGN = np.uint64(1) << np.uint64(63)
 _NEG_ZERO = np.uint64(1) << np.uint64(63)

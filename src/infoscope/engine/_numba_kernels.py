@@ -7,7 +7,7 @@ threads run meanwhile.
 from __future__ import annotations
 
 import numpy as np
-from numba import njit, prange
+from infoscope._numba import njit, prange
 
 
 @njit(nogil=True, cache=True, boundscheck=False)

@@ -18,7 +18,7 @@ generation in an interval", ACM TOMACS 29(1)), which is exactly uniform.
 from __future__ import annotations
 
 import numpy as np
-from numba import njit, prange, uint64
+from infoscope._numba import njit, prange, uint64
 
 _GOLDEN = uint64(0x9E3779B97F4A7C15)
 _MIX1 = uint64(0xBF58476D1CE4E5B9)

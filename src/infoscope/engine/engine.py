@@ -49,7 +49,7 @@ def _numba_threads(threads: int):
     thread keeps a thread that the operating system has paused (a shared machine)
     from holding up the whole chunk.
     """
-    import numba
+    from infoscope._numba import numba
 
     previous = numba.get_num_threads()
     previous_chunk = numba.get_parallel_chunksize()
