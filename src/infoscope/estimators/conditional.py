@@ -25,20 +25,24 @@ from __future__ import annotations
 
 import numpy as np
 
+from infoscope.estimators._checks import check_choice, check_same_length, log_base
 from infoscope.estimators.entropy import entropy_nats
 from infoscope.estimators.resampling import (
+    INTERVAL_METHODS,
     ConfidenceInterval,
     PermutationTestResult,
-    _permutation_inputs,
-    _permutation_result,
-    _plugin_entropy_of_rows_nats,
+    _check_codes,
+    _check_positive_int,
+    _interval,
+    _multinomial_blocks,
     _resampling_inputs,
-    _shuffled_statistics,
-    _table_interval,
+    _rng,
 )
 
 __all__ = ["bootstrap_cmi_ci", "conditional_permutation_test", "cmi_of_tables_nats"]
 
+# Work in blocks of about this many cells (replicates x rows or x table cells).
+_BLOCK_CELLS = 4_000_000
 # Up to this many strata are shuffled one stratum at a time (all replicates at once);
 # beyond it one sort per replicate shuffles every stratum together.
 _LOOP_STRATA = 256
@@ -115,14 +119,24 @@ def bootstrap_cmi_ci(
     t, total, estimator, a, divisor, level, n_boot, rng = _resampling_inputs(
         table3d, "table3d", 3, estimator, alpha, base, level, n_boot, seed
     )
+    method = check_choice(method, INTERVAL_METHODS, "method")
     shape = t.shape
-    return _table_interval(t, total, lambda flat: cmi_of_tables_nats(flat, shape, estimator, a),
-                           divisor, level, method, n_boot, rng)
+    p = (t / total).ravel()
+    values = np.concatenate(
+        [cmi_of_tables_nats(block, shape, estimator, a) for block in _multinomial_blocks(rng, total, p, n_boot)]
+    )
+    estimate = float(cmi_of_tables_nats(t.ravel()[None, :], shape, estimator, a)[0]) / divisor
+    return _interval(values / divisor, level, method, estimate)
 
 
 def _compact(codes: np.ndarray) -> tuple[np.ndarray, int]:
     uniques, inverse = np.unique(codes, return_inverse=True)
     return inverse.astype(np.int64).reshape(-1), int(uniques.size)
+
+
+def _sum_nlogn(counts: np.ndarray) -> np.ndarray:
+    with np.errstate(divide="ignore", invalid="ignore"):
+        return np.where(counts > 0, counts * np.log(np.where(counts > 0, counts, 1.0)), 0.0).sum(axis=-1)
 
 
 def _shuffle_within(rng, xs: np.ndarray, zs: np.ndarray, starts: np.ndarray, ends: np.ndarray, b: int) -> np.ndarray:
@@ -189,9 +203,15 @@ def conditional_permutation_test(x_codes, y_codes, z_codes, *, n_permutations=99
     >>> round(res.statistic, 3), res.p_value
     (1.0, 0.005)
     """
-    divisor, m, rng, (x, y, z), n = _permutation_inputs(
-        n_permutations, seed, base, x_codes=x_codes, y_codes=y_codes, z_codes=z_codes
-    )
+    divisor = log_base(base)
+    m = _check_positive_int(n_permutations, "n_permutations")
+    rng = _rng(seed)
+    x = _check_codes(x_codes, "x_codes")
+    y = _check_codes(y_codes, "y_codes")
+    z = _check_codes(z_codes, "z_codes")
+    n = check_same_length(x_codes=x, y_codes=y, z_codes=z)
+    if n < 2:
+        raise ValueError(f"x_codes, y_codes and z_codes have {n} rows; a permutation test needs at least 2")
     x, kx = _compact(x)
     z, kz = _compact(z)
     yz, kyz = _compact(y.astype(np.int64) * kz + z)  # the observed (y, z) combinations
@@ -201,16 +221,25 @@ def conditional_permutation_test(x_codes, y_codes, z_codes, *, n_permutations=99
     starts, ends = np.r_[0, cuts], np.r_[cuts, n]
     cells = kx * kyz
     xz, _ = _compact(x * kz + z)
-    h_xz = _plugin_entropy_of_rows_nats(np.bincount(xz).astype(float), float(n))
-    h_yz = _plugin_entropy_of_rows_nats(np.bincount(yz).astype(float), float(n))
-    h_z = _plugin_entropy_of_rows_nats(np.bincount(z).astype(float), float(n))
+    h_xz = np.log(n) - _sum_nlogn(np.bincount(xz).astype(float)) / n
+    h_yz = np.log(n) - _sum_nlogn(np.bincount(yz).astype(float)) / n
+    h_z = np.log(n) - _sum_nlogn(np.bincount(z).astype(float)) / n
 
     def cmi_of(joint: np.ndarray) -> np.ndarray:
-        h_xyz = _plugin_entropy_of_rows_nats(joint, float(n))
+        h_xyz = np.log(n) - _sum_nlogn(joint) / n
         return np.maximum(h_xz + h_yz - h_xyz - h_z, 0.0)
 
     observed = float(cmi_of(np.bincount(xs * kyz + yzs, minlength=cells).astype(float)))
-    null = _shuffled_statistics(
-        m, n, cells, lambda b: _shuffle_within(rng, xs, zs, starts, ends, b) * kyz + yzs[None, :], cmi_of
-    )
-    return _permutation_result(observed, null, divisor)
+    null = np.empty(m)
+    per_block = max(1, _BLOCK_CELLS // max(n, cells))
+    done = 0
+    while done < m:
+        b = min(per_block, m - done)
+        shuffled = _shuffle_within(rng, xs, zs, starts, ends, b)
+        index = shuffled * kyz + yzs[None, :] + (np.arange(b, dtype=np.int64) * cells)[:, None]
+        joint = np.bincount(index.ravel(), minlength=b * cells).reshape(b, cells).astype(float)
+        null[done:done + b] = cmi_of(joint)
+        done += b
+    tolerance = 1e-12 * (1.0 + observed)  # rearranged tables can differ by rounding
+    exceed = int(np.count_nonzero(null >= observed - tolerance))
+    return PermutationTestResult(observed / divisor, (exceed + 1) / (m + 1), float(null.mean()) / divisor)

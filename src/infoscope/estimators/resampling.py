@@ -114,6 +114,11 @@ class PermutationTestResult(NamedTuple):
 
 # --------------------------------------------------------------------------- checks
 
+# conditional.py still imports the old name (it moves to _checks.check_positive_int
+# once that module's current rewrite has landed).
+_check_positive_int = check_positive_int
+
+
 def min_replicates(level: float) -> int:
     """The fewest bootstrap replicates for a two-sided interval at ``level``.
 

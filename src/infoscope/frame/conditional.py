@@ -143,7 +143,7 @@ def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> 
         conditional_mutual_information_from_table,
         mutual_information_from_table,
     )
-    from infoscope.estimators._checks import check_positive_int
+    from infoscope.estimators.resampling import _check_positive_int
     from infoscope.estimators.significance import table_reliability
 
     given = _given_list(given)
@@ -178,7 +178,7 @@ def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> 
     mi = mutual_information_from_table(table.sum(axis=2), **kw)
     low = high = math.nan
     if s["n_boot"] > 0:
-        low, high = bootstrap_cmi_ci(table, level=s["ci"], n_boot=check_positive_int(s["n_boot"], "n_boot"),
+        low, high = bootstrap_cmi_ci(table, level=s["ci"], n_boot=_check_positive_int(s["n_boot"], "n_boot"),
                                      seed=s["seed"], **kw)
     p_value = null_mean = math.nan
     if n_permutations > 0:
