@@ -170,6 +170,7 @@ def test_export_keeps_long_and_right_to_left_names_in_place(tmp_path, served, we
 
     sys.path.insert(0, str(Path(__file__).parent))
     from _names import CONTAINED, IN_ORDER, LONG, RTL, odd_names_frame
+    from _waits import eventually
 
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
@@ -180,8 +181,7 @@ def test_export_keeps_long_and_right_to_left_names_in_place(tmp_path, served, we
     web.goto(served.put("/export/odd.html", path.read_bytes()))
     page = web.page
     page.wait_for_selector("body[data-rendered='yes']", timeout=20_000)
-    page.wait_for_timeout(150)
-    assert page.evaluate(CONTAINED) == [], "a name ran out of its panel in the export"
+    eventually(page, f"({CONTAINED})()", [], message="a name ran out of its panel in the export")
     for sel, word in ((".isc-pair .isc-punit", "(columns)"), (".isc-relevance .isc-punit", "bits")):
         assert page.evaluate(IN_ORDER, [sel, word]) == "ok", (sel, word)
     assert LONG in page.eval_on_selector_all("bdi.isc-nm", "els => els.map(e => e.title)")

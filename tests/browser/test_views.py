@@ -21,6 +21,7 @@ import pytest
 
 sys.path.insert(0, str(Path(__file__).parent))
 from _names import CONTAINED, IN_ORDER, LONG, RTL  # noqa: E402
+from _waits import eventually  # noqa: E402
 
 STATIC = Path(__file__).resolve().parents[2] / "src" / "infoscope" / "widgets" / "static"
 ESM = STATIC / "profile.js"
@@ -390,8 +391,7 @@ def test_sort_select_column_and_override_its_bins(harness, web):
     assert "log K =" in page.locator(".isc-tip").text_content()  # focus shows the details too
     page.keyboard.press("Enter")  # keyboard selects the column
     page.wait_for_function("window.__model.get('selected_column') === 'distance_km'")
-    page.wait_for_timeout(80)
-    assert row.get_attribute("aria-pressed") == "true"
+    eventually(page, "document.querySelector(\".isc-erow[data-column='distance_km']\").getAttribute('aria-pressed')", "true")
     label = page.text_content(".isc-controls .isc-ctl:last-child label")
     assert "distance_km" in label
     override = page.locator(".isc-controls .isc-ctl:last-child input[type=range]")
@@ -400,8 +400,7 @@ def test_sort_select_column_and_override_its_bins(harness, web):
     page.wait_for_function("JSON.stringify(window.__model.get('column_bins')) === '{\"distance_km\":5}'")
     # a categorical column has no bins to override
     page.locator(".isc-erow[data-column='depot']").click()
-    page.wait_for_timeout(80)
-    assert override.is_disabled()
+    eventually(page, "document.querySelector('.isc-controls .isc-ctl:last-child input[type=range]').disabled", True)
 
 
 def test_cancel_button_sends_cancel(harness, web, artifacts):
@@ -495,13 +494,13 @@ def test_wide_joint_table_shows_a_scroll_cue(harness, web, payloads):
     assert more.is_visible() and "more columns" in more.text_content()
     assert page.locator(".isc-pair .isc-tablebox.isc-overflow").count() == 1
     page.eval_on_selector(".isc-pair .isc-tablewrap", "w => { w.scrollLeft = w.scrollWidth; }")
-    page.wait_for_timeout(100)
-    assert page.locator(".isc-pair .isc-tablebox.isc-overflow").count() == 0  # the fade goes at the end
+    # the fade goes at the end
+    eventually(page, "document.querySelectorAll('.isc-pair .isc-tablebox.isc-overflow').length", 0)
     # a narrow table has no cue
     page.evaluate(show, narrow)
     page.wait_for_function("(a) => document.querySelector('.isc-pair .isc-punit').textContent.includes(a)", arg=narrow[0])
-    page.wait_for_timeout(150)
-    assert not page.locator(".isc-pair .isc-more").is_visible()
+    eventually(page, "(e => !e || !(e.offsetWidth || e.offsetHeight || e.getClientRects().length))(document.querySelector('.isc-pair .isc-more'))", True,
+               message="a narrow table shows no 'more columns' cue")
 
 
 # colours as the page paints them: a 1 x 1 canvas turns any CSS colour (rgb, rgba,
@@ -570,8 +569,7 @@ def test_pair_view_lets_go_of_its_resize_observers(harness, web):
 
 def test_long_and_right_to_left_names_stay_in_their_place(harness, web, artifacts):
     page = harness("?payload=odd")
-    page.wait_for_timeout(150)
-    assert page.evaluate(CONTAINED) == [], "a name ran out of its panel"
+    eventually(page, f"({CONTAINED})()", [], message="a name ran out of its panel")
     # the full name is on hover (title) wherever a name is cut short
     titles = page.eval_on_selector_all(".isc-root bdi.isc-nm", "els => els.map(e => e.title)")
     assert LONG in titles and RTL in titles
@@ -611,16 +609,14 @@ def test_focus_scroll_and_grid_cursor_survive_updates_and_redraws(harness, web):
     page.wait_for_function("(window.__model.get('_status')||{}).state === 'idle' && window.__model.get('_grid_meta').names[0] !== %s" % json.dumps(names[0]))
     page.wait_for_timeout(1200)  # past the hold time of the programmatic change
     page.evaluate("window.__model.set('_status', {...window.__model.get('_status')})")  # any redraw
-    page.wait_for_timeout(100)
-    assert page.evaluate("document.activeElement && document.activeElement.dataset.keep") == "grid"
+    eventually(page, "document.activeElement && document.activeElement.dataset.keep", "grid", message="focus fell to the page")
     assert _grid_cursor(page) == cursor
     # the whole view taken down and drawn again (as a notebook re-renders an output)
     page.mouse.wheel(0, 400)
     page.evaluate("document.querySelector('.isc-pair .isc-tablewrap').scrollLeft = 120")
     page.wait_for_timeout(80)
     page.evaluate("window.__rerender()")
-    page.wait_for_timeout(200)
-    assert page.evaluate("document.activeElement && document.activeElement.dataset.keep") == "grid", "focus fell to the page"
+    eventually(page, "document.activeElement && document.activeElement.dataset.keep", "grid", message="focus fell to the page")
     assert _grid_cursor(page) is None or _grid_cursor(page) == cursor
     page.keyboard.press("ArrowRight")  # the cursor goes on from where it was
     moved = _grid_cursor(page)
@@ -632,8 +628,7 @@ def test_focus_scroll_and_grid_cursor_survive_updates_and_redraws(harness, web):
     row.focus()
     page.evaluate("window.__reverseOrder = false; window.__model.set('bins', 8); window.__model.save_changes()")
     page.wait_for_function("window.__model.get('bins') === 8 && (window.__model.get('_status')||{}).state === 'idle'")
-    page.wait_for_timeout(120)
-    assert page.evaluate("document.activeElement.dataset.column") == "depot"
+    eventually(page, "document.activeElement && document.activeElement.dataset.column", "depot", message="the row lost focus")
     assert web.page_errors == []
 
 
@@ -742,8 +737,7 @@ def test_drift_view_shows_a_planted_shift_beyond_chance(harness, web, payloads, 
     page = harness()
     assert not page.locator(".isc-drift").is_visible()  # no reference: no drift panel
     page = harness("?payload=drift")
-    page.wait_for_timeout(150)
-    assert page.locator(".isc-drift").is_visible()
+    page.locator(".isc-drift").wait_for(state="visible", timeout=20_000)
     record = payloads["drift"]["state"]["_drift"]
     rows = page.locator(".isc-drift .isc-erow")
     assert rows.count() == len(record["columns"])
