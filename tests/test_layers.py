@@ -22,7 +22,7 @@ SRC = Path(__file__).resolve().parents[1] / "src"
 
 #: rank of each layer: a module may import ranks <= its own
 LAYERS = {
-    "_version": 0, "_warnings": 0, "_numba": 0,
+    "_version": 0, "_warnings": 0, "_numba": 0, "_docs": 0,
     "estimators": 1,
     "encode": 2,
     "engine": 3,

@@ -94,3 +94,61 @@ def test_references_are_numbered_and_name_a_source():
         if own:
             problems.append(f"{where}: cites no published source: {own[0][:60]!r}")
     assert not problems, "\n".join(problems)
+
+
+def test_every_docstring_placeholder_is_filled_at_import():
+    # Shared docstring blocks (infoscope/_docs.py) are written as a line "{name}" or
+    # ".. [1] {name}": every docstring in the source that has one must reach Python
+    # filled (the object is decorated with fill_doc), so help() never shows a
+    # placeholder.  Read from the source (ast) and from the imported object.
+    import ast
+    import importlib
+
+    from infoscope._docs import _PLACEHOLDER
+
+    src = Path(infoscope.__file__).resolve().parent
+    found, unfilled = 0, []
+    for path in sorted(src.rglob("*.py")):
+        module_name = ".".join(("infoscope", *path.relative_to(src).with_suffix("").parts)).removesuffix(".__init__")
+        tree = ast.parse(path.read_text(encoding="utf-8"))
+        for node in tree.body:
+            members = [node] + [m for m in getattr(node, "body", []) if isinstance(node, ast.ClassDef)]
+            for item in members:
+                if not isinstance(item, (ast.FunctionDef, ast.ClassDef)):
+                    continue
+                doc = ast.get_docstring(item, clean=False)
+                if not doc or not _PLACEHOLDER.search(doc):
+                    continue
+                found += 1
+                owner = importlib.import_module(module_name)
+                obj = getattr(owner, item.name) if item is node else getattr(getattr(owner, node.name), item.name)
+                if obj.__doc__ is None or _PLACEHOLDER.search(obj.__doc__):
+                    unfilled.append(f"{module_name}.{item.name}")
+    assert found > 0 and unfilled == []
+
+
+def test_fill_doc_places_blocks_and_refuses_an_unknown_name():
+    from infoscope._docs import CITATIONS, fill_doc, filled
+
+    def f():
+        """Title.
+
+        Parameters
+        ----------
+        {unit}
+        choices : {"a", "b"}
+            Braces inside a line are text, not placeholders.
+
+        References
+        ----------
+        .. [1] {wilks_1938}
+        """
+
+    fill_doc(unit="base : float\n    Logarithm base.")(f)
+    assert "\n        base : float\n            Logarithm base.\n" in f.__doc__
+    assert 'choices : {"a", "b"}' in f.__doc__
+    first, *rest = CITATIONS["wilks_1938"].split("\n")
+    assert f"\n        .. [1] {first}\n" + "".join(f"           {line}\n" for line in rest) in f.__doc__
+    with pytest.raises(KeyError, match="names no block"):
+        filled("Title.\n\n    {nowhere}\n", {})
+    assert filled(None, {}) is None  # python -OO strips docstrings

@@ -32,6 +32,7 @@ import math
 import numpy as np
 import pandas as pd
 
+from infoscope._docs import fill_doc
 from infoscope.encode.arrays import _numeric_array
 
 __all__ = ["mdlp_accepts", "mdlp_cut_points", "mdlp_edges"]
@@ -50,6 +51,7 @@ def _log2_3k_minus_2(k: int) -> float:
     return k * math.log2(3.0) + math.log2(1.0 - 2.0 * 3.0 ** (-k))
 
 
+@fill_doc()
 def mdlp_accepts(whole: np.ndarray, left: np.ndarray, right: np.ndarray) -> tuple[bool, float, float]:
     """The MDL test of one cut: (accepted, gain, threshold), from the class counts of S, S1, S2.
 
@@ -65,9 +67,7 @@ def mdlp_accepts(whole: np.ndarray, left: np.ndarray, right: np.ndarray) -> tupl
 
     References
     ----------
-    .. [1] Fayyad, U. M., & Irani, K. B. (1993). Multi-interval discretization of
-       continuous-valued attributes for classification learning. Proceedings of the
-       13th International Joint Conference on Artificial Intelligence, 1022-1027.
+    .. [1] {fayyad_irani_1993}
 
     Examples
     --------
@@ -84,6 +84,7 @@ def mdlp_accepts(whole: np.ndarray, left: np.ndarray, right: np.ndarray) -> tupl
     return bool(gain > threshold), gain, threshold
 
 
+@fill_doc()
 def mdlp_cut_points(values: np.ndarray, classes: np.ndarray) -> np.ndarray:
     """Cut points of Fayyad & Irani's MDLP on finite ``values`` with integer ``classes``.
 
@@ -102,9 +103,7 @@ def mdlp_cut_points(values: np.ndarray, classes: np.ndarray) -> np.ndarray:
 
     References
     ----------
-    .. [1] Fayyad, U. M., & Irani, K. B. (1993). Multi-interval discretization of
-       continuous-valued attributes for classification learning. Proceedings of the
-       13th International Joint Conference on Artificial Intelligence, 1022-1027.
+    .. [1] {fayyad_irani_1993}
 
     Examples
     --------
@@ -139,6 +138,7 @@ def mdlp_cut_points(values: np.ndarray, classes: np.ndarray) -> np.ndarray:
     return np.array(sorted(cuts), dtype=np.float64)
 
 
+@fill_doc()
 def mdlp_edges(values, target) -> np.ndarray:
     """Bin edges of ``values`` chosen by MDLP against the class labels ``target``.
 
@@ -164,9 +164,7 @@ def mdlp_edges(values, target) -> np.ndarray:
 
     References
     ----------
-    .. [1] Fayyad, U. M., & Irani, K. B. (1993). Multi-interval discretization of
-       continuous-valued attributes for classification learning. Proceedings of the
-       13th International Joint Conference on Artificial Intelligence, 1022-1027.
+    .. [1] {fayyad_irani_1993}
 
     Examples
     --------

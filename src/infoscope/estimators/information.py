@@ -24,6 +24,7 @@ from typing import NamedTuple
 import numpy as np
 from scipy import special, stats
 
+from infoscope._docs import fill_doc
 from infoscope.estimators._checks import check_choice, check_counts, log_base
 
 __all__ = [
@@ -348,6 +349,7 @@ def _normaliser(hx: float, hy: float, hxy: float, normalization: str) -> float:
     return hxy  # "joint"
 
 
+@fill_doc()
 def normalized_mutual_information_from_table(
     table, *, normalization: str = "arithmetic", estimator: str = "plugin", alpha=None
 ) -> float:
@@ -382,11 +384,8 @@ def normalized_mutual_information_from_table(
 
     References
     ----------
-    .. [1] Kvålseth, T. O. (1987). Entropy and correlation: some comments. IEEE
-       Transactions on Systems, Man, and Cybernetics, 17(3), 517-519.
-    .. [2] Strehl, A., & Ghosh, J. (2002). Cluster ensembles - a knowledge reuse
-       framework for combining multiple partitions. Journal of Machine Learning
-       Research, 3, 583-617.
+    .. [1] {kvalseth_1987}
+    .. [2] {strehl_ghosh_2002}
     .. [3] Vinh, N. X., Epps, J., & Bailey, J. (2010). Information theoretic measures
        for clusterings comparison. Journal of Machine Learning Research, 11,
        2837-2854 (the normalisations compared).
@@ -463,6 +462,7 @@ def _emi_terms_nats(a: np.ndarray, b: np.ndarray, weight: np.ndarray, n: float) 
     return total
 
 
+@fill_doc()
 def expected_mutual_information_from_table(table, *, base=2) -> float:
     """Expected plug-in MI under random relabelling with the table's margins fixed.
 
@@ -491,9 +491,7 @@ def expected_mutual_information_from_table(table, *, base=2) -> float:
 
     References
     ----------
-    .. [1] Vinh, N. X., Epps, J., & Bailey, J. (2010). Information theoretic measures
-       for clusterings comparison: variants, properties, normalization and
-       correction for chance. Journal of Machine Learning Research, 11, 2837-2854.
+    .. [1] {vinh_2010}
     .. [2] Hoeffding, W. (1963). Probability inequalities for sums of bounded random
        variables. Journal of the American Statistical Association, 58(301), 13-30.
 
@@ -544,6 +542,7 @@ def _emi_nats(t: np.ndarray) -> float:
 _AMI_NORMALIZATIONS = ("min", "geometric", "arithmetic", "max")
 
 
+@fill_doc()
 def adjusted_mutual_information_from_table(table, *, normalization: str = "arithmetic") -> float:
     """Mutual information adjusted for chance (AMI) of a count table.
 
@@ -576,9 +575,7 @@ def adjusted_mutual_information_from_table(table, *, normalization: str = "arith
 
     References
     ----------
-    .. [1] Vinh, N. X., Epps, J., & Bailey, J. (2010). Information theoretic measures
-       for clusterings comparison: variants, properties, normalization and
-       correction for chance. Journal of Machine Learning Research, 11, 2837-2854.
+    .. [1] {vinh_2010}
 
     Examples
     --------
@@ -670,6 +667,7 @@ class GTestResult(NamedTuple):
     p_value: float
 
 
+@fill_doc()
 def g_test_from_table(table) -> GTestResult:
     """G-test (likelihood-ratio test) of independence of a count table.
 
@@ -690,9 +688,7 @@ def g_test_from_table(table) -> GTestResult:
 
     References
     ----------
-    .. [1] Wilks, S. S. (1938). The large-sample distribution of the likelihood
-       ratio for testing composite hypotheses. Annals of Mathematical Statistics,
-       9(1), 60-62.
+    .. [1] {wilks_1938}
     .. [2] Kullback, S. (1959). Information Theory and Statistics. Wiley (the
        statistic 2 N I).
     .. [3] Sokal, R. R., & Rohlf, F. J. (1995). Biometry, 3rd ed., Freeman
@@ -708,6 +704,7 @@ def g_test_from_table(table) -> GTestResult:
     return GTestResult(float(res.statistic[0]), int(res.dof[0]), float(res.p_value[0]))
 
 
+@fill_doc()
 def g_test_from_tables(tables) -> GTestResult:
     """G-tests of independence for many count tables at once.
 
@@ -728,9 +725,7 @@ def g_test_from_tables(tables) -> GTestResult:
 
     References
     ----------
-    .. [1] Wilks, S. S. (1938). The large-sample distribution of the likelihood
-       ratio for testing composite hypotheses. Annals of Mathematical Statistics,
-       9(1), 60-62.
+    .. [1] {wilks_1938}
 
     Examples
     --------

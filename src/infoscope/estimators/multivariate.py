@@ -38,6 +38,7 @@ import math
 
 import numpy as np
 
+from infoscope._docs import fill_doc
 from infoscope.estimators._checks import check_choice, log_base, numeric_array
 
 __all__ = [
@@ -214,6 +215,7 @@ def co_information_from_table(table, *, estimator: str = "miller_madow", base=2,
     return float(value) / log_base(base)
 
 
+@fill_doc()
 def total_correlation_from_table(table, *, estimator: str = "miller_madow", base=2, alpha=None) -> float:
     r"""Total correlation (multi-information) of the variables of a count table.
 
@@ -239,8 +241,7 @@ def total_correlation_from_table(table, *, estimator: str = "miller_madow", base
 
     References
     ----------
-    .. [1] Watanabe, S. (1960). Information theoretical analysis of multivariate
-       correlation. IBM Journal of Research and Development, 4(1), 66-82.
+    .. [1] {watanabe_1960}
 
     Examples
     --------

@@ -64,6 +64,8 @@ from typing import NamedTuple
 import numpy as np
 from scipy import special, stats
 
+from infoscope._docs import fill_doc
+
 __all__ = [
     "CHI2_CLEAR_P",
     "CHI2_MIN_MEAN_COUNT",
@@ -190,6 +192,7 @@ def williams_correction(rows, cols) -> np.ndarray:
     return np.where(dof > 0, q, 1.0)
 
 
+@fill_doc()
 def g_statistics(tables) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray, np.ndarray]:
     """G, degrees of freedom, N, non-empty rows and columns, and Williams' q of each table.
 
@@ -207,9 +210,7 @@ def g_statistics(tables) -> tuple[np.ndarray, np.ndarray, np.ndarray, np.ndarray
 
     References
     ----------
-    .. [1] Wilks, S. S. (1938). The large-sample distribution of the likelihood
-       ratio for testing composite hypotheses. Annals of Mathematical Statistics,
-       9(1), 60-62.
+    .. [1] {wilks_1938}
 
     Examples
     --------

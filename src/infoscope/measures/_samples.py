@@ -7,6 +7,7 @@ from collections.abc import Mapping
 
 import numpy as np
 
+from infoscope._docs import CITATIONS
 from infoscope._warnings import DataQualityWarning, SmallSampleWarning, warn_user
 from infoscope.estimators import information as _info
 from infoscope.estimators._checks import check_choice, check_same_length, log_base
@@ -29,6 +30,36 @@ _SPARSE_CELL_COUNT = 5.0
 # rows) looks continuous when read as labels.
 _CONTINUOUS_SHARE = 0.5
 _CONTINUOUS_MIN_ROWS = 20
+# What the sparse-table warning says of an estimate (the G-test says its own).
+_UNRELIABLE_ESTIMATE = "the estimate is unreliable (use fewer bins or levels)"
+
+#: Parameter descriptions shared by the column functions of :mod:`infoscope.measures`
+#: (their docstrings name them as ``{base}``, ``{bins}`` ...; see :mod:`infoscope._docs`).
+PARAMETER_DOCS = {
+    **CITATIONS,
+    "estimator_count": """estimator : str, default="miller_madow"
+    ``"plugin"`` or any name in ``infoscope.ENTROPY_ESTIMATORS``.""",
+    "base": """base : float or str, default=2
+    Logarithm base or unit name ("bits", "nats", "hartleys").""",
+    "bins": """bins : int, str or sequence of float, optional
+    Binning of numeric columns; ``None``: labels.""",
+    "missing_pairwise": """missing : {"drop", "category", "error"}, default="drop"
+    Missing-value policy (pairwise-complete under ``"drop"``).""",
+    "missing_every": """missing : {"drop", "category", "error"}, default="drop"
+    Missing-value policy (rows where every column is present under ``"drop"``).""",
+    "strategy": """strategy : {"quantile", "uniform"}, default="quantile"
+    Equal-frequency or equal-width bins for an integer ``bins``.""",
+    "alpha": """alpha : float or str, optional
+    Pseudocount of the ``"dirichlet"`` estimator.""",
+}
+PARAMETER_DOCS["warns_sparse"] = """Warns
+-----
+SmallSampleWarning
+    When the joint table has fewer than 5 rows per cell on average."""
+# The option sets that most column functions share, in their order of the signature.
+PARAMETER_DOCS["binning_pairwise"] = "\n".join(PARAMETER_DOCS[k] for k in ("bins", "missing_pairwise", "strategy"))
+PARAMETER_DOCS["options_pairwise"] = "\n".join(PARAMETER_DOCS[k] for k in ("base", "binning_pairwise", "alpha"))
+PARAMETER_DOCS["options_every"] = "\n".join(PARAMETER_DOCS[k] for k in ("base", "bins", "missing_every", "strategy", "alpha"))
 
 
 class _Coded:
@@ -269,6 +300,14 @@ def _table(cols: list[_Coded]) -> np.ndarray:
         raise ValueError(f"no rows left: there is no row where {names} {verb}")
     flat = np.ravel_multi_index(tuple(c.codes[keep] for c in cols), shape)
     return np.bincount(flat, minlength=cells).reshape(shape)
+
+
+def _sparse_checked_table(named, *, bins, strategy, missing, what: str = _UNRELIABLE_ESTIMATE):
+    """The coded columns and their joint count table, with a warning when the table is sparse."""
+    cols = _coded_columns(named, bins=bins, strategy=strategy, missing=missing)
+    table = _table(cols)
+    _warn_if_sparse(table, cols, what)
+    return cols, table
 
 
 def _join(cols: list[_Coded]) -> str:

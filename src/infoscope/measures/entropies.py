@@ -1,9 +1,11 @@
 """Entropy of sample columns: ``entropy``, ``joint_entropy``, ``conditional_entropy``."""
 from __future__ import annotations
 
+from infoscope._docs import fill_doc
 from infoscope.estimators import information as _info
 
 from infoscope.measures._samples import (
+    PARAMETER_DOCS,
     _check_count_estimator,
     _coded_columns,
     _table,
@@ -14,6 +16,7 @@ from infoscope.measures._samples import (
 __all__ = ["entropy", "joint_entropy", "conditional_entropy"]
 
 
+@fill_doc(PARAMETER_DOCS)
 def entropy(values, *, estimator="miller_madow", base=2, bins=None, missing="drop", strategy="quantile", alpha=None,
             weights=None) -> float:
     """Entropy of a sample of a discrete (or binned) variable.
@@ -22,19 +25,15 @@ def entropy(values, *, estimator="miller_madow", base=2, bins=None, missing="dro
     ----------
     values : array_like of shape (n,)
         The sample: labels of any hashable type, or numbers to bin with ``bins=``.
-    estimator : str, default="miller_madow"
-        ``"plugin"`` or any name in ``infoscope.ENTROPY_ESTIMATORS``.
-    base : float or str, default=2
-        Logarithm base or unit name ("bits", "nats", "hartleys").
+    {estimator_count}
+    {base}
     bins : int, str or sequence of float, optional
         Bin numeric values: a number of bins, a rule name (``"fd"``, ``"knuth"``, ...)
         or edges (see :func:`infoscope.bin_edges`).  ``None``: values are labels.
     missing : {"drop", "category", "error"}, default="drop"
         What to do with missing values (see the module notes).
-    strategy : {"quantile", "uniform"}, default="quantile"
-        Equal-frequency or equal-width bins for an integer ``bins``.
-    alpha : float or str, optional
-        Pseudocount of the ``"dirichlet"`` estimator.
+    {strategy}
+    {alpha}
     weights : array_like of float, shape (n,), optional
         Observation weights (survey or sampling weights), one per row, >= 0.  The
         cell probabilities are the weighted shares; the bias correction uses Kish's
@@ -73,6 +72,7 @@ def entropy(values, *, estimator="miller_madow", base=2, bins=None, missing="dro
     return _info.joint_entropy_from_counts(_table([col]), estimator=estimator, base=base, alpha=alpha)
 
 
+@fill_doc(PARAMETER_DOCS)
 def joint_entropy(*columns, estimator="miller_madow", base=2, bins=None, missing="drop", strategy="quantile", alpha=None) -> float:
     """Joint entropy of several columns of the same rows.
 
@@ -83,16 +83,12 @@ def joint_entropy(*columns, estimator="miller_madow", base=2, bins=None, missing
     estimator : str, default="miller_madow"
         ``"plugin"`` or any name in ``infoscope.ENTROPY_ESTIMATORS``; estimators that
         use the alphabet size see the product of the columns' alphabet sizes.
-    base : float or str, default=2
-        Logarithm base or unit name.
+    {base}
     bins : int, str or sequence of float, optional
         Binning of numeric columns (the same for each); ``None``: labels.
-    missing : {"drop", "category", "error"}, default="drop"
-        Missing-value policy; ``"drop"`` keeps rows where every column is present.
-    strategy : {"quantile", "uniform"}, default="quantile"
-        Equal-frequency or equal-width bins for an integer ``bins``.
-    alpha : float or str, optional
-        Pseudocount of the ``"dirichlet"`` estimator.
+    {missing_every}
+    {strategy}
+    {alpha}
 
     Returns
     -------
@@ -117,6 +113,7 @@ def joint_entropy(*columns, estimator="miller_madow", base=2, bins=None, missing
     return _info.joint_entropy_from_counts(_table(cols), estimator=estimator, base=base, alpha=alpha)
 
 
+@fill_doc(PARAMETER_DOCS)
 def conditional_entropy(y, given, *, estimator="miller_madow", base=2, bins=None, missing="drop", strategy="quantile", alpha=None) -> float:
     """Conditional entropy H(y | given): what is left to know about ``y`` once ``given`` is known.
 
@@ -126,18 +123,8 @@ def conditional_entropy(y, given, *, estimator="miller_madow", base=2, bins=None
         The variable whose remaining uncertainty is measured.
     given : array_like of shape (n,)
         The conditioning variable, same rows as ``y``.
-    estimator : str, default="miller_madow"
-        ``"plugin"`` or any name in ``infoscope.ENTROPY_ESTIMATORS``.
-    base : float or str, default=2
-        Logarithm base or unit name.
-    bins : int, str or sequence of float, optional
-        Binning of numeric columns; ``None``: labels.
-    missing : {"drop", "category", "error"}, default="drop"
-        Missing-value policy (pairwise-complete under ``"drop"``).
-    strategy : {"quantile", "uniform"}, default="quantile"
-        Equal-frequency or equal-width bins for an integer ``bins``.
-    alpha : float or str, optional
-        Pseudocount of the ``"dirichlet"`` estimator.
+    {estimator_count}
+    {options_pairwise}
 
     Returns
     -------

@@ -3,12 +3,15 @@ from __future__ import annotations
 
 import numpy as np
 
+from infoscope._docs import fill_doc
 from infoscope.estimators import information as _info
 from infoscope.estimators._checks import check_choice, check_same_length, log_base
 
 from infoscope.measures._samples import (
     KNN_ESTIMATORS,
     MISSING_POLICIES,
+    PARAMETER_DOCS,
+    _UNRELIABLE_ESTIMATE,
     _check_count_estimator,
     _coded_columns,
     _describe,
@@ -16,6 +19,7 @@ from infoscope.measures._samples import (
     _label_codes,
     _missing_mask,
     _table,
+    _sparse_checked_table,
     _to_series,
     _warn_if_sparse,
     _weighted_estimate,
@@ -72,6 +76,7 @@ def _knn_mi(x, y, *, algorithm, k, base, missing, discrete, seed) -> float:
     return continuous.ksg_mutual_information(cont(sx, "x"), cont(sy, "y"), k=k, algorithm=algorithm, base=base, seed=seed)
 
 
+@fill_doc(PARAMETER_DOCS)
 def mutual_information(
     x,
     y,
@@ -99,19 +104,15 @@ def mutual_information(
         (Kraskov et al. 2004, algorithm 1 / 2).  With ``"ksg"`` and one discrete side
         (non-numeric values, or as told by ``discrete``), Ross's (2014) mixed
         estimator is used instead.
-    base : float or str, default=2
-        Logarithm base or unit name.
+    {base}
     bins : int, str or sequence of float, optional
         Binning of numeric columns for the count estimators; ``None``: labels.
         Not used by the kNN estimators.
     k : int, default=3
         Number of neighbours of the kNN estimators.
-    missing : {"drop", "category", "error"}, default="drop"
-        Missing-value policy (pairwise-complete under ``"drop"``).
-    strategy : {"quantile", "uniform"}, default="quantile"
-        Equal-frequency or equal-width bins for an integer ``bins``.
-    alpha : float or str, optional
-        Pseudocount of the ``"dirichlet"`` estimator.
+    {missing_pairwise}
+    {strategy}
+    {alpha}
     discrete : {None, "x", "y", "neither"}, optional
         For ``"ksg"``: which side holds labels.  ``None`` decides by dtype
         (numbers are continuous; strings, booleans and categoricals discrete), so
@@ -176,10 +177,11 @@ def mutual_information(
         w = _weights_for(weights, len(cols[0].codes))
         return _weighted_estimate(cols, w, estimator, alpha, base, [(1, (0,)), (1, (1,)), (-1, (0, 1))], clip=True)
     table = _table(cols)
-    _warn_if_sparse(table, cols, "the estimate is unreliable (use fewer bins or levels)")
+    _warn_if_sparse(table, cols, _UNRELIABLE_ESTIMATE)
     return _info.mutual_information_from_table(table, estimator=estimator, base=base, alpha=alpha)
 
 
+@fill_doc(PARAMETER_DOCS)
 def conditional_mutual_information(
     x, y, given, *, estimator="miller_madow", base=2, bins=None, missing="drop", strategy="quantile", alpha=None
 ) -> float:
@@ -191,18 +193,8 @@ def conditional_mutual_information(
         The two variables.
     given : array_like of shape (n,)
         The conditioning variable.
-    estimator : str, default="miller_madow"
-        ``"plugin"`` or any name in ``infoscope.ENTROPY_ESTIMATORS``.
-    base : float or str, default=2
-        Logarithm base or unit name.
-    bins : int, str or sequence of float, optional
-        Binning of numeric columns; ``None``: labels.
-    missing : {"drop", "category", "error"}, default="drop"
-        Missing-value policy (rows with all three present under ``"drop"``).
-    strategy : {"quantile", "uniform"}, default="quantile"
-        Equal-frequency or equal-width bins for an integer ``bins``.
-    alpha : float or str, optional
-        Pseudocount of the ``"dirichlet"`` estimator.
+    {estimator_count}
+    {options_every}
 
     Returns
     -------
@@ -221,12 +213,12 @@ def conditional_mutual_information(
     1.0
     """
     estimator = _check_count_estimator(estimator)
-    cols = _coded_columns([("x", x), ("y", y), ("given", given)], bins=bins, strategy=strategy, missing=missing)
-    table = _table(cols)
-    _warn_if_sparse(table, cols, "the estimate is unreliable (use fewer bins or levels)")
+    named = [("x", x), ("y", y), ("given", given)]
+    _, table = _sparse_checked_table(named, bins=bins, strategy=strategy, missing=missing)
     return _info.conditional_mutual_information_from_table(table, estimator=estimator, base=base, alpha=alpha)
 
 
+@fill_doc(PARAMETER_DOCS)
 def co_information(x, y, z, *more, estimator="miller_madow", base=2, bins=None, missing="drop", strategy="quantile",
                    alpha=None) -> float:
     """Co-information of three (or more) columns: for three, I(x; y) - I(x; y | z).
@@ -240,16 +232,7 @@ def co_information(x, y, z, *more, estimator="miller_madow", base=2, bins=None, 
     estimator : str, default="miller_madow"
         ``"plugin"`` or any name in ``infoscope.ENTROPY_ESTIMATORS``, applied to every
         marginal table.
-    base : float or str, default=2
-        Logarithm base or unit name.
-    bins : int, str or sequence of float, optional
-        Binning of numeric columns; ``None``: labels.
-    missing : {"drop", "category", "error"}, default="drop"
-        Missing-value policy (rows where every column is present under ``"drop"``).
-    strategy : {"quantile", "uniform"}, default="quantile"
-        Equal-frequency or equal-width bins for an integer ``bins``.
-    alpha : float or str, optional
-        Pseudocount of the ``"dirichlet"`` estimator.
+    {options_every}
 
     Returns
     -------
@@ -258,10 +241,7 @@ def co_information(x, y, z, *more, estimator="miller_madow", base=2, bins=None, 
         inform each other only jointly (synergy: ``z = x xor y`` gives -1 bit); see
         :func:`infoscope.estimators.multivariate.co_information_from_table`.
 
-    Warns
-    -----
-    SmallSampleWarning
-        When the joint table has fewer than 5 rows per cell on average.
+    {warns_sparse}
 
     References
     ----------
@@ -280,12 +260,11 @@ def co_information(x, y, z, *more, estimator="miller_madow", base=2, bins=None, 
 
     estimator = _check_count_estimator(estimator)
     named = [("x", x), ("y", y), ("z", z)] + [(f"more[{i}]", c) for i, c in enumerate(more)]
-    cols = _coded_columns(named, bins=bins, strategy=strategy, missing=missing)
-    table = _table(cols)
-    _warn_if_sparse(table, cols, "the estimate is unreliable (use fewer bins or levels)")
+    _, table = _sparse_checked_table(named, bins=bins, strategy=strategy, missing=missing)
     return co_information_from_table(table, estimator=estimator, base=base, alpha=alpha)
 
 
+@fill_doc(PARAMETER_DOCS)
 def total_correlation(*columns, estimator="miller_madow", base=2, bins=None, missing="drop", strategy="quantile",
                       alpha=None) -> float:
     """Total correlation of two or more columns: sum of their entropies minus their joint entropy.
@@ -294,18 +273,8 @@ def total_correlation(*columns, estimator="miller_madow", base=2, bins=None, mis
     ----------
     *columns : array_like of shape (n,)
         Two or more columns of the same rows.
-    estimator : str, default="miller_madow"
-        ``"plugin"`` or any name in ``infoscope.ENTROPY_ESTIMATORS``.
-    base : float or str, default=2
-        Logarithm base or unit name.
-    bins : int, str or sequence of float, optional
-        Binning of numeric columns; ``None``: labels.
-    missing : {"drop", "category", "error"}, default="drop"
-        Missing-value policy (rows where every column is present under ``"drop"``).
-    strategy : {"quantile", "uniform"}, default="quantile"
-        Equal-frequency or equal-width bins for an integer ``bins``.
-    alpha : float or str, optional
-        Pseudocount of the ``"dirichlet"`` estimator.
+    {estimator_count}
+    {options_every}
 
     Returns
     -------
@@ -313,15 +282,11 @@ def total_correlation(*columns, estimator="miller_madow", base=2, bins=None, mis
         :math:`\\sum_i H(X_i) - H(X_1, \\dots, X_d)` in the unit of ``base``: 0 for
         independent columns; for two columns their mutual information.
 
-    Warns
-    -----
-    SmallSampleWarning
-        When the joint table has fewer than 5 rows per cell on average.
+    {warns_sparse}
 
     References
     ----------
-    .. [1] Watanabe, S. (1960). Information theoretical analysis of multivariate
-       correlation. IBM Journal of Research and Development, 4(1), 66-82.
+    .. [1] {watanabe_1960}
 
     Examples
     --------
@@ -335,12 +300,11 @@ def total_correlation(*columns, estimator="miller_madow", base=2, bins=None, mis
         raise ValueError(f"total_correlation needs at least two columns, got {len(columns)}")
     estimator = _check_count_estimator(estimator)
     named = [(f"columns[{i}]", c) for i, c in enumerate(columns)]
-    cols = _coded_columns(named, bins=bins, strategy=strategy, missing=missing)
-    table = _table(cols)
-    _warn_if_sparse(table, cols, "the estimate is unreliable (use fewer bins or levels)")
+    _, table = _sparse_checked_table(named, bins=bins, strategy=strategy, missing=missing)
     return total_correlation_from_table(table, estimator=estimator, base=base, alpha=alpha)
 
 
+@fill_doc(PARAMETER_DOCS)
 def normalized_mutual_information(
     x, y, *, normalization="arithmetic", estimator="plugin", bins=None, missing="drop", strategy="quantile", alpha=None
 ) -> float:
@@ -355,14 +319,8 @@ def normalized_mutual_information(
         ``max(H(X), H(Y))`` or ``H(X, Y)``.
     estimator : str, default="plugin"
         Entropy estimator for the MI and the normalising entropies.
-    bins : int, str or sequence of float, optional
-        Binning of numeric columns; ``None``: labels.
-    missing : {"drop", "category", "error"}, default="drop"
-        Missing-value policy (pairwise-complete under ``"drop"``).
-    strategy : {"quantile", "uniform"}, default="quantile"
-        Equal-frequency or equal-width bins for an integer ``bins``.
-    alpha : float or str, optional
-        Pseudocount of the ``"dirichlet"`` estimator.
+    {binning_pairwise}
+    {alpha}
 
     Returns
     -------
@@ -373,11 +331,8 @@ def normalized_mutual_information(
 
     References
     ----------
-    .. [1] Kvålseth, T. O. (1987). Entropy and correlation: some comments. IEEE
-       Transactions on Systems, Man, and Cybernetics, 17(3), 517-519.
-    .. [2] Strehl, A., & Ghosh, J. (2002). Cluster ensembles - a knowledge reuse
-       framework for combining multiple partitions. Journal of Machine Learning
-       Research, 3, 583-617.
+    .. [1] {kvalseth_1987}
+    .. [2] {strehl_ghosh_2002}
 
     Examples
     --------
@@ -392,6 +347,7 @@ def normalized_mutual_information(
     )
 
 
+@fill_doc(PARAMETER_DOCS)
 def adjusted_mutual_information(x, y, *, normalization="arithmetic", bins=None, missing="drop", strategy="quantile") -> float:
     """Mutual information adjusted for chance (AMI) of two columns.
 
@@ -401,12 +357,7 @@ def adjusted_mutual_information(x, y, *, normalization="arithmetic", bins=None, 
         Paired samples.
     normalization : {"min", "geometric", "arithmetic", "max"}, default="arithmetic"
         How the two entropies are averaged in the denominator.
-    bins : int, str or sequence of float, optional
-        Binning of numeric columns; ``None``: labels.
-    missing : {"drop", "category", "error"}, default="drop"
-        Missing-value policy (pairwise-complete under ``"drop"``).
-    strategy : {"quantile", "uniform"}, default="quantile"
-        Equal-frequency or equal-width bins for an integer ``bins``.
+    {binning_pairwise}
 
     Returns
     -------
@@ -416,9 +367,7 @@ def adjusted_mutual_information(x, y, *, normalization="arithmetic", bins=None, 
 
     References
     ----------
-    .. [1] Vinh, N. X., Epps, J., & Bailey, J. (2010). Information theoretic measures
-       for clusterings comparison: variants, properties, normalization and
-       correction for chance. Journal of Machine Learning Research, 11, 2837-2854.
+    .. [1] {vinh_2010}
 
     Examples
     --------
@@ -429,6 +378,7 @@ def adjusted_mutual_information(x, y, *, normalization="arithmetic", bins=None, 
     return _info.adjusted_mutual_information_from_table(_table(cols), normalization=normalization)
 
 
+@fill_doc(PARAMETER_DOCS)
 def variation_of_information(x, y, *, estimator="plugin", base=2, bins=None, missing="drop", strategy="quantile", alpha=None) -> float:
     """Variation of information H(x | y) + H(y | x), a distance between partitions.
 
@@ -438,16 +388,7 @@ def variation_of_information(x, y, *, estimator="plugin", base=2, bins=None, mis
         Paired samples.
     estimator : str, default="plugin"
         Entropy estimator (the metric properties hold for ``"plugin"``).
-    base : float or str, default=2
-        Logarithm base or unit name.
-    bins : int, str or sequence of float, optional
-        Binning of numeric columns; ``None``: labels.
-    missing : {"drop", "category", "error"}, default="drop"
-        Missing-value policy (pairwise-complete under ``"drop"``).
-    strategy : {"quantile", "uniform"}, default="quantile"
-        Equal-frequency or equal-width bins for an integer ``bins``.
-    alpha : float or str, optional
-        Pseudocount of the ``"dirichlet"`` estimator.
+    {options_pairwise}
 
     Returns
     -------
@@ -470,6 +411,7 @@ def variation_of_information(x, y, *, estimator="plugin", base=2, bins=None, mis
     return _info.variation_of_information_from_table(_table(cols), estimator=estimator, base=base, alpha=alpha)
 
 
+@fill_doc(PARAMETER_DOCS)
 def g_test(x, y, *, bins=None, missing="drop", strategy="quantile") -> _info.GTestResult:
     """G-test (likelihood-ratio test) of independence of two columns.
 
@@ -477,12 +419,7 @@ def g_test(x, y, *, bins=None, missing="drop", strategy="quantile") -> _info.GTe
     ----------
     x, y : array_like of shape (n,)
         Paired samples.
-    bins : int, str or sequence of float, optional
-        Binning of numeric columns; ``None``: labels.
-    missing : {"drop", "category", "error"}, default="drop"
-        Missing-value policy (pairwise-complete under ``"drop"``).
-    strategy : {"quantile", "uniform"}, default="quantile"
-        Equal-frequency or equal-width bins for an integer ``bins``.
+    {binning_pairwise}
 
     Returns
     -------
@@ -499,9 +436,7 @@ def g_test(x, y, *, bins=None, missing="drop", strategy="quantile") -> _info.GTe
 
     References
     ----------
-    .. [1] Wilks, S. S. (1938). The large-sample distribution of the likelihood
-       ratio for testing composite hypotheses. Annals of Mathematical Statistics,
-       9(1), 60-62.
+    .. [1] {wilks_1938}
 
     Examples
     --------
@@ -509,7 +444,8 @@ def g_test(x, y, *, bins=None, missing="drop", strategy="quantile") -> _info.GTe
     >>> res.dof, round(res.statistic, 4)
     (1, 27.7259)
     """
-    cols = _coded_columns([("x", x), ("y", y)], bins=bins, strategy=strategy, missing=missing)
-    table = _table(cols)
-    _warn_if_sparse(table, cols, "the chi-square p-value is unreliable (use fewer bins or levels, or a permutation test)")
+    _, table = _sparse_checked_table(
+        [("x", x), ("y", y)], bins=bins, strategy=strategy, missing=missing,
+        what="the chi-square p-value is unreliable (use fewer bins or levels, or a permutation test)",
+    )
     return _info.g_test_from_table(table)
