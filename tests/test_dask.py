@@ -25,6 +25,7 @@ import os
 import signal
 import sys
 import time
+import warnings
 from pathlib import Path
 
 import cloudpickle
@@ -198,10 +199,222 @@ def test_split_every_is_checked(bad):
         reduce_partitions(ddf, _rows_of, _concat, split_every=bad, progress=False)
 
 
-def test_worker_loss_mid_reduction_gives_the_same_result(client, tmp_path):
-    pdf = pd.DataFrame({"i": np.arange(4000)})
-    ddf = watched_frame(pdf, 8, tmp_path, watched=3, block_at=1)
-    out = run_killing_one_worker(
-        client, tmp_path, lambda: reduce_partitions(ddf, _rows_of, _concat, split_every=2, progress=False))
-    assert out == list(range(4000))
-    assert calls(tmp_path) == 2  # the killed load and its rerun on a live worker
+# ------------------------------------------------------------ profiles equal in memory
+from dask.dataframe.utils import UNKNOWN_CATEGORIES  # noqa: E402
+
+from infoscope import DataQualityWarning, SmallSampleWarning  # noqa: E402
+from infoscope.datasets import make_deliveries  # noqa: E402
+from infoscope.encode import encode_frame  # noqa: E402
+from infoscope.engine.counting import count_chunk, finalize  # noqa: E402
+from infoscope.frame.session import ProfileSession  # noqa: E402
+from infoscope.sources.dask import dask_alphabets, dask_tables, profile_dask  # noqa: E402
+
+#: pairs() columns that come from Monte-Carlo shuffles: drawn from the same null
+#: (random tables with the observed margins) but with another random stream than
+#: the in-memory shuffle of the codes, so equal in distribution, not digit for digit
+MONTE_CARLO = ["p_value", "q_value", "n_permutations", "p_error"]
+
+
+def mixed_parts(seed: int = 7) -> list[pd.DataFrame]:
+    """Uneven row batches with missing values in every kind and levels seen in some batches only."""
+    rng = np.random.default_rng(seed)
+    parts = []
+    for i, n in enumerate([400, 37, 0, 900, 250, 1]):
+        x = rng.normal(size=n)
+        x[rng.random(n) < 0.1] = np.nan
+        grade = rng.choice(["low", "mid", "high"] if i != 3 else ["low", "mid", "high", "rare"], n)
+        text = np.where(rng.random(n) < 0.05, None, grade).astype(object)
+        parts.append(pd.DataFrame({
+            "x": x + (grade == "high"),
+            "count": pd.array(np.where(rng.random(n) < 0.08, None, rng.poisson(3, n)), dtype="Int64"),
+            "grade": pd.Categorical(grade, categories=["low", "mid", "high", "rare", "unused"]),
+            "text": pd.array(text, dtype="string"),
+            "ok": pd.array(np.where(rng.random(n) < 0.1, None, rng.random(n) < 0.3), dtype="boolean"),
+            "when": pd.Timestamp("2026-03-01") + pd.to_timedelta(rng.integers(0, 86_400 * 30, n), unit="s"),
+        }))
+    return parts
+
+
+def from_parts(parts, *, unknown_categories=()):
+    """A Dask frame with one partition per part (sizes as given)."""
+    meta = parts[0].iloc[:0].copy()
+    for c in unknown_categories:
+        meta[c] = pd.Categorical([], categories=[UNKNOWN_CATEGORIES])
+    return dd.from_delayed([dask.delayed(p) for p in parts], meta=meta, verify_meta=False)
+
+
+def assert_same_alphabets(alphabets: dict, encoded) -> None:
+    # the in-memory encoder (infoscope.encode.encode_frame on the gathered rows) is
+    # the reference; its quantile edges are checked against numpy.quantile in
+    # tests/test_binning.py
+    assert list(alphabets) == [e.name for e in encoded]
+    for e in encoded:
+        a = alphabets[e.name]
+        assert (a.kind, a.k, a.labels, a.flags, a.n, a.n_missing) == \
+            (e.kind, e.k, e.labels, e.flags, e.n, e.n_missing), e.name
+        assert (a.edges is None) == (e.edges is None), e.name
+        if e.edges is not None:
+            np.testing.assert_array_equal(a.edges, e.edges, err_msg=e.name)
+        if a.n_distinct_exact:
+            assert a.n_distinct == e.n_distinct, e.name
+        if e.level_counts is not None:
+            np.testing.assert_array_equal(a.level_counts, e.level_counts, err_msg=e.name)
+
+
+def assert_same_profile(dask_session, memory_session) -> None:
+    names = memory_session.names
+    assert dask_session.names == names
+    with warnings.catch_warnings():  # pair() cautions about sparse tables; both sides alike
+        warnings.simplefilter("ignore", SmallSampleWarning)
+        for i, a in enumerate(names):
+            for b in names[i + 1:]:
+                np.testing.assert_array_equal(dask_session.pair(a, b).counts, memory_session.pair(a, b).counts,
+                                              err_msg=f"{a} x {b}")
+    entropy = dask_session.entropy()
+    assert entropy.attrs.pop("source").startswith("Dask DataFrame")
+    pd.testing.assert_frame_equal(entropy, memory_session.entropy())
+    pairs, expected = dask_session.pairs(), memory_session.pairs()
+    pd.testing.assert_frame_equal(pairs.drop(columns=MONTE_CARLO), expected.drop(columns=MONTE_CARLO),
+                                  check_like=False, obj="pairs() without the Monte-Carlo columns")
+    chi2 = (expected["p_method"] != "permutation").to_numpy()
+    np.testing.assert_array_equal(pairs["p_value"].to_numpy()[chi2], expected["p_value"].to_numpy()[chi2])
+
+
+def gathered_codes(frame: pd.DataFrame, **settings):
+    """The in-memory encoder's columns and tables of the same rows (the reference)."""
+    with warnings.catch_warnings():  # its data-quality warnings are checked elsewhere
+        warnings.simplefilter("ignore")
+        encoded = encode_frame(frame, cache=False, **{"bins": "rows", **settings})
+    ks = [e.k for e in encoded]
+    pairs = [(i, j) for i in range(len(ks)) for j in range(i + 1, len(ks))]
+    tables = finalize(count_chunk([e.codes for e in encoded], ks, pairs))
+    names = [e.name for e in encoded]
+    return encoded, {(names[i], names[j]): t for (i, j), t in tables.items()}
+
+
+def dask_codes(ddf, **settings):
+    """Alphabets, tables and marginals of the two Dask passes."""
+    from infoscope.encode.summaries import column_specs
+    from infoscope.sources.dask import _known_categories, _prepared
+
+    keys = [str(c) for c in ddf.columns]
+    categories = _known_categories(ddf, progress=False)
+    specs = column_specs(_prepared(ddf._meta, keys, categories).dtypes, **{"bins": "rows", **settings})
+    _, alphabets = dask_alphabets(ddf, keys, specs, categories=categories, split_every=settings.get("split", 3),
+                                  progress=False)
+    tables, marginals = dask_tables(ddf, keys, list(alphabets.values()), categories=categories, split_every=3,
+                                    progress=False)
+    return alphabets, tables, marginals
+
+
+def assert_same_codes(ddf, **settings):
+    encoded, expected = gathered_codes(ddf.compute(), **settings)
+    alphabets, tables, marginals = dask_codes(ddf, **settings)
+    assert_same_alphabets(alphabets, encoded)
+    assert list(tables) == list(expected)
+    for pair, table in expected.items():
+        np.testing.assert_array_equal(tables[pair], table, err_msg=str(pair))
+    for e in encoded:
+        np.testing.assert_array_equal(marginals[e.name], np.bincount(e.codes, minlength=e.k + 1)[:e.k])
+    return encoded, tables
+
+
+DELIVERIES = make_deliveries(2_500, seed=3)
+
+
+@pytest.mark.parametrize("npartitions", [1, 4, 9])
+def test_alphabets_and_tables_equal_the_in_memory_ones(client, npartitions):
+    ddf = dd.from_pandas(DELIVERIES, npartitions=npartitions, sort=False)
+    encoded, tables = assert_same_codes(ddf)
+    # and one table against an outside count: pandas.crosstab of the gathered codes
+    depot = next(e for e in encoded if e.name == "depot")
+    late = next(e for e in encoded if e.name == "late")
+    both = (depot.codes < depot.k) & (late.codes < late.k)
+    crosstab = pd.crosstab(depot.codes[both], late.codes[both]).reindex(
+        index=range(depot.k), columns=range(late.k), fill_value=0)
+    np.testing.assert_array_equal(tables[("depot", "late")], crosstab.to_numpy())
+
+
+@pytest.mark.parametrize("unknown", [(), ("grade",)])
+@pytest.mark.parametrize("settings", [{}, {"missing": "category", "bins": 5, "strategy": "uniform"}])
+def test_missing_values_and_levels_seen_in_some_partitions_only(client, unknown, settings):
+    # uneven partitions (one empty, one of a single row); 'rare' only in the
+    # fourth, 'unused' in none; with unknown categories every partition has its
+    # own (ddf.compute() then holds their union, in order of first appearance)
+    parts = mixed_parts()
+    if unknown:
+        for i, part in enumerate(parts):
+            present = [c for c in part["grade"].cat.categories if (part["grade"] == c).any()]
+            parts[i] = part.assign(grade=part["grade"].cat.set_categories(present[::-1] if i % 2 else present))
+    ddf = from_parts(parts, unknown_categories=unknown)
+    assert ddf["grade"].cat.known is (not unknown)
+    assert_same_codes(ddf, **settings)
+
+
+def test_levels_beyond_the_cap_come_from_daskss_own_counts(client):
+    # more distinct texts than pass 1 keeps per batch (LEVEL_CAP) and a shuffled
+    # whole-number code: the levels and the exact distinct count are then asked of
+    # the source (Series.value_counts / nunique on the cluster)
+    from infoscope.encode.summaries import LEVEL_CAP
+
+    rng = np.random.default_rng(11)
+    n = 2 * LEVEL_CAP + 5_000
+    popular = rng.choice([f"p{i:02d}" for i in range(30)], n)
+    text = np.where(rng.random(n) < 0.3, popular, np.array([f"r{i}" for i in range(n)]))
+    code = rng.permutation(n)
+    code[:500] = code[500:1000]
+    frame = pd.DataFrame({"text": pd.array(text, dtype="string"), "code": code, "y": rng.integers(0, 3, n)})
+    assert_same_codes(dd.from_pandas(frame, npartitions=5, sort=False))
+
+
+def test_dask_profile_equals_the_in_memory_profile(client):
+    ddf = dd.from_pandas(DELIVERIES, npartitions=4, sort=False)
+    with pytest.warns(Warning) as from_dask:  # the encoder's warnings come here too, in column order
+        session = profile_dask(ddf, split_every=2, progress=False, n_boot=40, target="late")
+    with pytest.warns(Warning) as in_memory:
+        reference = ProfileSession(ddf.compute(), n_boot=40, target="late")
+    assert [str(w.message) for w in from_dask] == [str(w.message) for w in in_memory]
+    assert_same_profile(session, reference)
+    pd.testing.assert_frame_equal(session.relevance().drop(columns=MONTE_CARLO, errors="ignore"),
+                                  reference.relevance().drop(columns=MONTE_CARLO, errors="ignore"))
+
+
+# ------------------------------------------------------------ worker loss in a profile
+def _watched_profile(flag_dir: Path, block_at: int):
+    ddf = watched_frame(DELIVERIES, 6, flag_dir, watched=2, block_at=block_at)
+    return profile_dask(ddf, split_every=2, progress=False, n_boot=0)
+
+
+@pytest.fixture(scope="module")
+def undisturbed(client, tmp_path_factory):
+    """A profile without worker loss, and how often it loaded the watched partition.
+
+    Every round of pass 1 loads it once, then pass 2 (its last load).
+    """
+    counted = tmp_path_factory.mktemp("counted")
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        reference = _watched_profile(counted, block_at=0)
+    return reference, calls(counted)
+
+
+@pytest.mark.filterwarnings("ignore::infoscope.DataQualityWarning")
+@pytest.mark.parametrize("when", ["pass 1", "pass 2"])
+def test_a_worker_killed_mid_profile_leaves_the_same_tables(client, undisturbed, tmp_path, when):
+    # the watched partition's first load (pass 1) or its last (pass 2) waits until
+    # the worker process running it has been killed
+    reference, loads = undisturbed
+    assert loads >= 2
+    killed = tmp_path / "killed"
+    killed.mkdir()
+    block_at = 1 if when == "pass 1" else loads
+    session = run_killing_one_worker(client, killed, lambda: _watched_profile(killed, block_at))
+    assert calls(killed) == loads + 1  # the killed load, rerun once on a live worker
+    names = reference.names
+    assert session.names == names
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", SmallSampleWarning)
+        for i, a in enumerate(names):
+            for b in names[i + 1:]:
+                np.testing.assert_array_equal(session.pair(a, b).counts, reference.pair(a, b).counts)
+    pd.testing.assert_frame_equal(session.entropy(), reference.entropy())

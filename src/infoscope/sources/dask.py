@@ -8,8 +8,9 @@ local scheduler), with Dask's own progress display and its own task retries.
   :class:`infoscope.encode.summaries.Pass1` requests is one reduction over the
   partitions: :func:`~infoscope.encode.summaries.summarize` on each partition,
   the summaries combined by :func:`~infoscope.encode.summaries.merge` in a tree
-  of ``split_every`` inputs per node (``dask.bag.Bag.reduction``, which keeps the
-  partitions in row order: the merge is associative but not commutative).  The
+  of ``split_every`` inputs per node (``dask.delayed`` nodes, laid out as
+  ``dask.bag.Bag.reduction`` lays them out), which keeps the partitions in row
+  order (the merge is associative but not commutative).  The
   rare source queries of pass 1 (exact distinct counts, level counts of columns
   beyond the cap) are answered with Dask's own ``nunique`` / ``value_counts``.
 * **Pass 2** (the tables): each partition is encoded with the fixed alphabets
@@ -178,7 +179,8 @@ def _empty_safe(combine):
     return aggregate
 
 
-def reduce_partitions(ddf, per_partition, combine, *, split_every=None, progress="auto", name=None):
+def reduce_partitions(ddf, per_partition, combine, *, split_every=None, progress="auto", name=None,
+                      skip_empty=True):
     """``per_partition`` on every partition, the results combined in a tree, in row order.
 
     Parameters
@@ -187,7 +189,7 @@ def reduce_partitions(ddf, per_partition, combine, *, split_every=None, progress
         The source.
     per_partition : callable
         ``per_partition(pandas_partition) -> value`` (run on the workers; must
-        pickle).  An empty partition may be skipped.
+        pickle).
     combine : callable
         ``combine(left, right) -> value``, associative; ``left`` always holds
         earlier rows than ``right``.
@@ -198,6 +200,8 @@ def reduce_partitions(ddf, per_partition, combine, *, split_every=None, progress
         See :func:`compute`.
     name : str, optional
         Prefix of the task names (what Dask's dashboard and progress bar show).
+    skip_empty : bool, default=True
+        Leave partitions without rows out (``per_partition`` never sees them).
 
     Returns
     -------
@@ -206,8 +210,8 @@ def reduce_partitions(ddf, per_partition, combine, *, split_every=None, progress
 
     References
     ----------
-    .. [1] Dask documentation, ``dask.bag.Bag.reduction`` (tree reduction with
-       ``split_every``).
+    .. [1] Dask documentation, ``dask.delayed`` and ``dask.bag.Bag.reduction``
+       (the tree reduction with ``split_every`` that this one follows).
 
     Examples
     --------
@@ -216,74 +220,245 @@ def reduce_partitions(ddf, per_partition, combine, *, split_every=None, progress
     >>> reduce_partitions(ddf, lambda p: int(p["a"].sum()), lambda x, y: x + y, progress=False)
     45
     """
-    import dask.bag as db
+    import dask
 
     split_every = _check_split_every(split_every)
-    bag = db.from_delayed(ddf.to_delayed())
-    item = bag.reduction(per_partition, _empty_safe(combine), split_every=split_every, name=name)
-    return compute(item, progress=progress)
+    prefix = name or getattr(per_partition, "__name__", "partition")
+    apply = dask.delayed(functools.partial(_apply, per_partition, skip_empty), pure=True)
+    aggregate = dask.delayed(_empty_safe(combine), pure=True)
+    # the tree of dask.bag.Bag.reduction, on delayed partitions: consecutive groups
+    # of split_every, level by level, so that row order is kept at every node
+    level = [apply(part, dask_key_name=(f"{prefix}-partition-{token}", i))
+             for token in [dask.base.tokenize(ddf, per_partition, skip_empty)]
+             for i, part in enumerate(ddf.to_delayed())]
+    depth = 0
+    while len(level) > 1:
+        token = dask.base.tokenize([node.key for node in level], combine, split_every)
+        level = [aggregate(level[i:i + split_every], dask_key_name=(f"{prefix}-combine-{depth}-{token}", i // split_every))
+                 for i in range(0, len(level), split_every)]
+        depth += 1
+    if not level:
+        return None
+    return compute(level[0], progress=progress)
+
+
+def _apply(per_partition, skip_empty, part):
+    if skip_empty and len(part) == 0:
+        return None
+    return per_partition(part)
 
 
 # ------------------------------------------------------------------ the two passes
-def _keyed(part, keys):
-    """The partition with the profile's column keys as labels (positional: repeated labels stay apart)."""
-    return part.set_axis(list(keys), axis=1)
+def _known_categories(ddf, *, split_every=None, progress="auto") -> dict:
+    """The categories of each categorical column whose Dask dtype does not know them.
+
+    A partition of such a column (e.g. read from Parquet dictionaries) carries its
+    own categories; the frame's rows (``ddf.compute()``) carry their union in order
+    of first appearance, partition by partition (``pandas.api.types.union_categoricals``).
+    That union is collected here in one reduction, so that every partition is then
+    read with the same categories, in the same order as the gathered frame.
+    """
+    import pandas as pd
+
+    unknown = [i for i, dtype in enumerate(ddf.dtypes)
+               if isinstance(dtype, pd.CategoricalDtype) and not ddf.iloc[:, i].cat.known]
+    if not unknown:
+        return {}
+    per_partition = functools.partial(_categories_of, positions=unknown)
+    union = reduce_partitions(ddf, per_partition, _union_categories, split_every=split_every, progress=progress,
+                              name="infoscope-categories", skip_empty=False)
+    return dict(zip(unknown, union))
 
 
-def _summarize_partition(part, keys, request):
+def _categories_of(part, positions):
+    return [list(part.iloc[:, i].cat.categories) for i in positions]
+
+
+def _union_categories(left, right):
+    out = []
+    for a, b in zip(left, right):
+        seen = set(a)
+        out.append(a + [c for c in b if c not in seen])
+    return out
+
+
+def _prepared(part, keys, categories):
+    """The partition with the profile's column keys as labels and the union categories.
+
+    Keys are set by position, so repeated labels stay apart.
+    """
+    part = part.set_axis(list(keys), axis=1)
+    if categories:
+        import pandas as pd
+
+        part = part.copy(deep=False)
+        for i, cats in categories.items():
+            column = part.iloc[:, i]
+            dtype = pd.CategoricalDtype(pd.Index(cats, dtype=column.cat.categories.dtype) if len(cats) else cats,
+                                        ordered=column.cat.ordered)
+            part.isetitem(i, column.cat.set_categories(dtype.categories, ordered=dtype.ordered))
+    return part
+
+
+def _summarize_partition(part, keys, categories, request):
     from infoscope.encode.summaries import summarize
 
-    if len(part) == 0:
-        return None
-    return summarize(_keyed(part, keys), request)
+    return summarize(_prepared(part, keys, categories), request)
 
 
-def _merge_summaries(left, right):
+def _merge_summaries(left, right, specs):
     from infoscope.encode.summaries import merge
 
-    return merge(left, right)
+    return merge(left, right, specs)
 
 
-def _pack(tables: dict, pairs, shapes) -> np.ndarray:
-    """The sentinel tables of ``pairs`` as one flat vector, in the smallest unsigned dtype."""
-    flat = np.concatenate([np.asarray(tables[p]).ravel() for p in pairs]) if pairs else np.zeros(0, np.int64)
+def _pack(codes, ks, tables: dict, pairs) -> np.ndarray:
+    """One partition's counts as one flat vector, in the smallest unsigned dtype that holds them.
+
+    First every column's symbol counts (``k + 1`` each, the last one missing rows),
+    then the sentinel table of each pair in ``pairs`` order, row-major.
+    """
+    parts = [np.bincount(c, minlength=k + 1) for c, k in zip(codes, ks)]
+    parts += [np.asarray(tables[p]).ravel() for p in pairs]
+    flat = np.concatenate(parts) if parts else np.zeros(0, np.int64)
     top = int(flat.max()) if flat.size else 0
     return flat.astype(np.min_scalar_type(top), copy=False)
 
 
-def _count_partition(part, keys, alphabets, pairs, backend):
+def _count_partition(part, keys, categories, alphabets, pairs, backend):
     from infoscope.encode.summaries import encode_batch
     from infoscope.engine.counting import count_chunk
 
-    if len(part) == 0:
-        return None
-    codes = encode_batch(_keyed(part, keys), alphabets)
-    tables = count_chunk(codes, [a.k for a in alphabets], pairs, backend=backend)
-    return _pack(tables, pairs, None)
+    codes = encode_batch(_prepared(part, keys, categories), alphabets)
+    ks = [a.k for a in alphabets]
+    tables = count_chunk(codes, ks, pairs, backend=backend) if pairs else {}
+    return _pack(codes, ks, tables, pairs)
 
 
 def _add_counts(left: np.ndarray, right: np.ndarray) -> np.ndarray:
     return np.add(left, right, dtype=np.int64)
 
 
-def _unpack(flat, pairs, ks) -> dict:
-    out, at = {}, 0
+def _packed_size(ks, pairs) -> int:
+    return sum(k + 1 for k in ks) + sum((ks[a] + 1) * (ks[b] + 1) for a, b in pairs)
+
+
+def _unpack(flat, ks, pairs) -> tuple[list, dict]:
+    """(symbol counts with the missing count last, per column; sentinel tables) of a packed vector."""
+    flat = np.asarray(flat, dtype=np.int64)
+    at = 0
+    marginals = []
+    for k in ks:
+        marginals.append(flat[at:at + k + 1])
+        at += k + 1
+    tables = {}
     for a, b in pairs:
         shape = (int(ks[a]) + 1, int(ks[b]) + 1)
         size = shape[0] * shape[1]
-        out[(a, b)] = flat[at:at + size].astype(np.int64).reshape(shape)
+        tables[(a, b)] = flat[at:at + size].reshape(shape)
         at += size
-    return out
+    return marginals, tables
 
 
 def table_pairs(n_columns: int) -> list[tuple[int, int]]:
-    """Every unordered pair ``(i, j)``, ``i < j``, of ``n_columns`` columns, in row-major order."""
+    """Every unordered pair ``(i, j)``, ``i < j``, of ``n_columns`` columns, in row-major order.
+
+    Parameters
+    ----------
+    n_columns : int
+
+    Returns
+    -------
+    list of (int, int)
+
+    Examples
+    --------
+    >>> table_pairs(3)
+    [(0, 1), (0, 2), (1, 2)]
+    """
     return [(i, j) for i in range(n_columns) for j in range(i + 1, n_columns)]
 
 
-def dask_tables(ddf, keys: Sequence[str], alphabets: Sequence, *, pairs=None, split_every=None,
-                progress="auto", backend: str = "auto") -> dict:
-    """Pass 2 on a Dask frame: the finalized count table of every pair of columns.
+def _answer(ddf, position: int, query, *, progress):
+    """Dask's answer to one pass-1 :class:`~infoscope.encode.summaries.SourceQuery`."""
+    import dask
+
+    column = ddf.iloc[:, position]
+    if query.kind == "distinct":
+        return int(compute(column.nunique(dropna=True), progress=progress))
+    if query.kind == "levels":
+        counts = column.value_counts(dropna=True)
+        n_distinct, of_counts, largest = dask.compute(
+            counts.size, counts.value_counts(), counts.nlargest(max(int(query.limit), 1)))
+        floor = int(largest.min()) if len(largest) else 0
+        top = compute(counts[counts >= floor], progress=progress) if len(largest) else counts.head(0)
+        return {
+            "n_distinct": int(n_distinct),
+            "counts_of_counts": sorted((int(c), int(m)) for c, m in of_counts.items()),
+            "top": [(label, int(c)) for label, c in top.items()],
+        }
+    raise ValueError(f"unknown source query kind {query.kind!r}")  # pragma: no cover - Pass1 asks only these
+
+
+def dask_alphabets(ddf, keys: Sequence[str], specs, *, categories=None, split_every=None, progress="auto") -> dict:
+    """Pass 1 on a Dask frame: every column's alphabet, decided as the in-memory encoder decides it.
+
+    Parameters
+    ----------
+    ddf : dask.dataframe.DataFrame
+        The source, columns in the order of ``keys``.
+    keys : sequence of str
+        The profile's column keys, one per column of ``ddf``.
+    specs : mapping of str to ColumnSpec
+        From :func:`infoscope.encode.summaries.column_specs`, keyed by ``keys``.
+    categories : dict, optional
+        Position -> union categories of categorical columns the Dask dtype does not know.
+    split_every : int, optional
+        Inputs per node of the reduction trees.
+    progress : {"auto", True, False}, default="auto"
+        Dask's progress display, one bar per round (see :func:`compute`).
+
+    Returns
+    -------
+    (Pass1, dict of str to Alphabet)
+        The finished pass (its ``rows``) and the alphabets in column order.
+
+    References
+    ----------
+    .. [1] Dask documentation, ``dask.delayed``, ``Series.nunique``,
+       ``Series.value_counts``.
+
+    Examples
+    --------
+    >>> import pandas as pd, dask.dataframe as dd
+    >>> from infoscope.encode.summaries import column_specs
+    >>> ddf = dd.from_pandas(pd.DataFrame({"c": list("abca")}), npartitions=2)
+    >>> _, alphabets = dask_alphabets(ddf, ["c"], column_specs(ddf.dtypes), progress=False)
+    >>> alphabets["c"].labels
+    ('a', 'b', 'c')
+    """
+    from infoscope.encode.summaries import Pass1
+
+    keys = list(keys)
+    p = Pass1(specs)
+    combine = functools.partial(_merge_summaries, specs=p.specs)
+    while (request := p.request()) is not None:
+        per_partition = functools.partial(_summarize_partition, keys=keys, categories=categories or {},
+                                          request=request)
+        total = reduce_partitions(ddf, per_partition, combine, split_every=split_every, progress=progress,
+                                  name=f"infoscope-summary-{request.round}")
+        if total is None:  # every partition was empty
+            total = _summarize_partition(ddf._meta, keys, categories or {}, request)
+        p.absorb(total)
+    position = {key: i for i, key in enumerate(keys)}
+    for query in p.queries():
+        p.answer(query, _answer(ddf, position[query.column], query, progress=progress))
+    return p, p.alphabets()
+
+
+def dask_tables(ddf, keys: Sequence[str], alphabets: Sequence, *, categories=None, split_every=None,
+                progress="auto", backend: str = "auto") -> tuple[dict, dict]:
+    """Pass 2 on a Dask frame: every pair's count table and every column's symbol counts.
 
     Parameters
     ----------
@@ -292,9 +467,9 @@ def dask_tables(ddf, keys: Sequence[str], alphabets: Sequence, *, pairs=None, sp
     keys : sequence of str
         The profile's column keys, one per column of ``ddf``.
     alphabets : sequence of Alphabet
-        The fixed alphabets of pass 1, one per column.
-    pairs : sequence of (int, int), optional
-        Column index pairs to count (default every unordered pair).
+        The fixed alphabets of pass 1, one per column, in column order.
+    categories : dict, optional
+        As for :func:`dask_alphabets`.
     split_every : int, optional
         Inputs per node of the reduction tree.
     progress : {"auto", True, False}, default="auto"
@@ -304,9 +479,17 @@ def dask_tables(ddf, keys: Sequence[str], alphabets: Sequence, *, pairs=None, sp
 
     Returns
     -------
-    dict
-        ``{(key_a, key_b): table}``: pairwise-complete int64 tables of shape
-        ``(k_a, k_b)`` (:func:`infoscope.engine.counting.finalize`).
+    tables : dict
+        ``{(key_a, key_b): table}`` for every pair in column order: pairwise-complete
+        int64 tables of shape ``(k_a, k_b)`` (:func:`infoscope.engine.counting.finalize`).
+    marginals : dict
+        ``{key: counts}``: rows per symbol ``0 .. k-1`` of every column.
+
+    Notes
+    -----
+    Each partition ships one vector of ``sum(k + 1) + sum((k_a + 1) * (k_b + 1))``
+    counts (symbol counts, then the sentinel tables), in the smallest unsigned
+    dtype that holds its largest count; the tree adds them in int64.
 
     References
     ----------
@@ -315,20 +498,104 @@ def dask_tables(ddf, keys: Sequence[str], alphabets: Sequence, *, pairs=None, sp
 
     Examples
     --------
-    >>> # see profile_dask
+    >>> import pandas as pd, dask.dataframe as dd
+    >>> from infoscope.encode.summaries import column_specs
+    >>> ddf = dd.from_pandas(pd.DataFrame({"a": list("xyxy"), "b": list("ppqq")}), npartitions=2)
+    >>> _, alphabets = dask_alphabets(ddf, ["a", "b"], column_specs(ddf.dtypes), progress=False)
+    >>> tables, marginals = dask_tables(ddf, ["a", "b"], list(alphabets.values()), progress=False)
+    >>> tables[("a", "b")].tolist(), marginals["a"].tolist()
+    ([[1, 1], [1, 1]], [2, 2])
     """
     from infoscope.engine.counting import finalize, resolve_backend
 
     keys = list(keys)
     alphabets = list(alphabets)
     backend = resolve_backend(backend)
-    pairs = table_pairs(len(keys)) if pairs is None else [(int(a), int(b)) for a, b in pairs]
+    pairs = table_pairs(len(keys))
     ks = [int(a.k) for a in alphabets]
-    per_partition = functools.partial(_count_partition, keys=keys, alphabets=alphabets, pairs=pairs,
-                                      backend=backend)
+    per_partition = functools.partial(_count_partition, keys=keys, categories=categories or {},
+                                      alphabets=alphabets, pairs=pairs, backend=backend)
     flat = reduce_partitions(ddf, per_partition, _add_counts, split_every=split_every, progress=progress,
                              name="infoscope-count")
     if flat is None:
-        flat = np.zeros(sum((ks[a] + 1) * (ks[b] + 1) for a, b in pairs), dtype=np.int64)
-    tables = finalize(_unpack(flat, pairs, ks))
-    return {(keys[a], keys[b]): t for (a, b), t in tables.items()}
+        flat = np.zeros(_packed_size(ks, pairs), dtype=np.int64)
+    marginals, sentinel = _unpack(flat, ks, pairs)
+    tables = {(keys[a], keys[b]): t for (a, b), t in finalize(sentinel).items()}
+    return tables, {key: m[:k].copy() for key, m, k in zip(keys, marginals, ks)}
+
+
+# ------------------------------------------------------------------ the profile
+def _check_frame(ddf) -> list[str]:
+    """The profile's column keys of a Dask frame, or a clear error."""
+    from infoscope.frame.keys import column_keys
+
+    if not is_dask_frame(ddf):
+        raise TypeError(f"expected a dask.dataframe.DataFrame, got {type(ddf).__name__}")
+    if len(ddf.columns) == 0:
+        raise ValueError("the Dask DataFrame has no columns: there is nothing to profile")
+    return column_keys(ddf.columns)
+
+
+def profile_dask(ddf, *, split_every=None, progress="auto", backend: str = "auto", **settings):
+    """The information profile of a Dask DataFrame, computed on the active Dask scheduler.
+
+    Parameters
+    ----------
+    ddf : dask.dataframe.DataFrame
+        The source; it is read (twice, or a few more times for exact quantile
+        edges of columns with very many distinct values) and never gathered.
+    split_every : int, optional
+        Inputs per node of the reduction trees (default 8).
+    progress : {"auto", True, False}, default="auto"
+        Dask's progress display for each computation (see :func:`compute`).
+    backend : {"auto", "numba", "numpy"}, default="auto"
+        Counting kernel on the workers.
+    **settings
+        Settings of :class:`~infoscope.frame.session.ProfileSession` (``bins``,
+        ``estimator``, ``target``, ...).
+
+    Returns
+    -------
+    TableSession
+        The session built from the alphabets and count tables
+        (:func:`infoscope.sources.session.session_from_tables`): its tables equal
+        those of ``ProfileSession(ddf.compute(), **settings)``.
+
+    Raises
+    ------
+    ValueError
+        The frame has no columns or no rows; a setting that needs every value
+        in memory (a width rule such as ``bins="fd"``), naming the column.
+
+    References
+    ----------
+    .. [1] Dask documentation, "Dask DataFrame" and "Dask Delayed".
+
+    Examples
+    --------
+    >>> import pandas as pd, dask.dataframe as dd
+    >>> ddf = dd.from_pandas(pd.DataFrame({"a": [1, 2] * 50, "b": list("xy") * 50}), npartitions=4)
+    >>> s = profile_dask(ddf, progress=False, n_boot=0)
+    >>> s.pair("a", "b").n
+    100
+    """
+    from infoscope.encode.summaries import column_specs
+    from infoscope.frame.settings import _ENCODING_SETTINGS
+    from infoscope.sources.session import session_from_tables
+
+    keys = _check_frame(ddf)
+    split_every = _check_split_every(split_every)
+    progress = _check_progress(progress)
+    encoding = {k: settings[k] for k in _ENCODING_SETTINGS if k in settings}
+    categories = _known_categories(ddf, split_every=split_every, progress=progress)
+    meta = _prepared(ddf._meta, keys, categories)
+    specs = column_specs(meta.dtypes, **encoding)
+    p, alphabets = dask_alphabets(ddf, keys, specs, categories=categories, split_every=split_every,
+                                  progress=progress)
+    if p.rows == 0:
+        raise ValueError("the Dask DataFrame has no rows: there is nothing to profile")
+    ordered = [alphabets[key] for key in keys]
+    tables, marginals = dask_tables(ddf, keys, ordered, categories=categories, split_every=split_every,
+                                    progress=progress, backend=backend)
+    return session_from_tables(ordered, tables, marginals, n_rows=p.rows,
+                               source=f"Dask DataFrame ({ddf.npartitions} partitions)", **settings)
