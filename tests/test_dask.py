@@ -202,11 +202,13 @@ def test_split_every_is_checked(bad):
 # ------------------------------------------------------------ profiles equal in memory
 from dask.dataframe.utils import UNKNOWN_CATEGORIES  # noqa: E402
 
+import infoscope  # noqa: E402
 from infoscope import DataQualityWarning, SmallSampleWarning  # noqa: E402
 from infoscope.datasets import make_deliveries  # noqa: E402
 from infoscope.encode import encode_frame  # noqa: E402
 from infoscope.engine.counting import count_chunk, finalize  # noqa: E402
 from infoscope.frame.session import ProfileSession  # noqa: E402
+from infoscope.sources import SampledSession, TableSession  # noqa: E402
 from infoscope.sources.dask import dask_alphabets, dask_tables, profile_dask  # noqa: E402
 
 #: pairs() columns that come from Monte-Carlo shuffles: drawn from the same null
@@ -370,13 +372,30 @@ def test_levels_beyond_the_cap_come_from_daskss_own_counts(client):
 def test_dask_profile_equals_the_in_memory_profile(client):
     ddf = dd.from_pandas(DELIVERIES, npartitions=4, sort=False)
     with pytest.warns(Warning) as from_dask:  # the encoder's warnings come here too, in column order
-        session = profile_dask(ddf, split_every=2, progress=False, n_boot=40, target="late")
+        session = infoscope.profile(ddf, split_every=2, progress=False, n_boot=40, target="late")
+    assert isinstance(session, TableSession)
     with pytest.warns(Warning) as in_memory:
         reference = ProfileSession(ddf.compute(), n_boot=40, target="late")
     assert [str(w.message) for w in from_dask] == [str(w.message) for w in in_memory]
     assert_same_profile(session, reference)
     pd.testing.assert_frame_equal(session.relevance().drop(columns=MONTE_CARLO, errors="ignore"),
                                   reference.relevance().drop(columns=MONTE_CARLO, errors="ignore"))
+
+
+@pytest.mark.filterwarnings("ignore::infoscope.DataQualityWarning")
+def test_a_sample_holds_the_rows_the_in_memory_sample_holds(client):
+    # engine.sampling.sample_rows picks positions among all rows in order; only the
+    # partitions holding them send rows, and the sample is profiled in memory
+    parts = mixed_parts(seed=5)
+    ddf = from_parts(parts, unknown_categories=("grade",))
+    session = infoscope.profile(ddf, sample=300, seed=9, n_boot=0, progress=False)
+    reference = ProfileSession(ddf.compute(), sample=300, seed=9, n_boot=0)
+    assert isinstance(session, SampledSession)
+    assert (session.n_rows, session.sampled) == (sum(map(len, parts)), 300)
+    pd.testing.assert_frame_equal(session.entropy(), reference.entropy())
+    pd.testing.assert_frame_equal(session.pairs(), reference.pairs())
+    whole = infoscope.profile(ddf, sample=10_000, n_boot=0, progress=False)  # more than there are rows
+    assert whole.sampled is None and whole.n_rows == sum(map(len, parts))
 
 
 # ------------------------------------------------------------ worker loss in a profile
@@ -418,3 +437,104 @@ def test_a_worker_killed_mid_profile_leaves_the_same_tables(client, undisturbed,
             for b in names[i + 1:]:
                 np.testing.assert_array_equal(session.pair(a, b).counts, reference.pair(a, b).counts)
     pd.testing.assert_frame_equal(session.entropy(), reference.entropy())
+
+
+# ------------------------------------------------------------------ the accessor
+import subprocess  # noqa: E402
+
+import infoscope.dask  # noqa: E402,F401  (registers ddf.info_profile)
+from infoscope.sources.session import NeedsRows  # noqa: E402
+
+
+def test_import_infoscope_never_imports_dask_and_registers_when_present():
+    code = ("import sys, infoscope; "
+            "assert not [m for m in sys.modules if m.split('.')[0] in ('dask', 'distributed')], 'dask imported'; "
+            "import dask.dataframe as dd; assert not hasattr(dd.DataFrame, 'info_profile'); "
+            "import infoscope.dask; assert hasattr(dd.DataFrame, 'info_profile')")
+    subprocess.run([sys.executable, "-c", code], check=True, timeout=WAIT_SECONDS)
+    code = ("import dask.dataframe as dd, pandas as pd, infoscope; "
+            "from infoscope.dask import DaskInfoProfile; "
+            "assert isinstance(dd.from_pandas(pd.DataFrame({'a': [1]}), npartitions=1).info_profile, DaskInfoProfile)")
+    subprocess.run([sys.executable, "-c", code], check=True, timeout=WAIT_SECONDS)
+
+
+@pytest.mark.filterwarnings("ignore::infoscope.DataQualityWarning", "ignore::infoscope.SmallSampleWarning")
+def test_accessor_gives_the_pandas_accessors_tables(client):
+    frame = DELIVERIES[["depot", "service", "weight_kg", "distance_km", "fragile", "late"]]
+    ddf = dd.from_pandas(frame, npartitions=5, sort=False)
+    gathered = ddf.compute()
+    settings = {"n_boot": 40, "target": "late", "progress": False}
+    entropy = ddf.info_profile.entropy(**settings)
+    assert entropy.attrs.pop("source") == "Dask DataFrame (5 partitions)"
+    pd.testing.assert_frame_equal(entropy, gathered.info_profile.entropy(n_boot=40, target="late"))
+    # the same session answers the next call: the data is read once
+    assert ddf.info_profile._session(settings) is ddf.info_profile._session(dict(settings))
+    pd.testing.assert_frame_equal(ddf.info_profile.matrix("nmi", **settings),
+                                  gathered.info_profile.matrix("nmi", n_boot=40, target="late"))
+    pairs = ddf.info_profile.pairs("mi", **settings).drop(columns=MONTE_CARLO)
+    pd.testing.assert_frame_equal(pairs, gathered.info_profile.pairs("mi", n_boot=40, target="late")
+                                  .drop(columns=MONTE_CARLO))
+    np.testing.assert_array_equal(ddf.info_profile.pair("depot", "late", **settings).counts,
+                                  gathered.info_profile.pair("depot", "late", n_boot=40, target="late").counts)
+    hidden = ddf.info_profile.pair("depot", "service", min_count=30, **settings).hidden
+    expected = gathered.info_profile.pair("depot", "service", min_count=30, n_boot=40, target="late").hidden
+    assert hidden["small"] == expected["small"] and hidden["complementary"] == expected["complementary"]
+    assert hidden["small"]  # small cells were there to hide
+    relevance = ddf.info_profile.relevance(**settings).drop(columns=MONTE_CARLO, errors="ignore")
+    pd.testing.assert_frame_equal(relevance, gathered.info_profile.relevance(n_boot=40, target="late")
+                                  .drop(columns=MONTE_CARLO, errors="ignore"))
+    page = ddf.info_profile.to_html(min_count=5, title="<deliveries>", **settings)
+    assert page.startswith("<!DOCTYPE html>") and "<deliveries>" not in page and "&lt;deliveries&gt;" in page
+
+
+@pytest.mark.parametrize("call", [
+    lambda p: p.conditional("depot", "late"),
+    lambda p: p.select("late"),
+    lambda p: p.tree(),
+    lambda p: p.surprising_rows(),
+    lambda p: p.drift(DELIVERIES),
+    lambda p: p.drift_report(DELIVERIES),
+    lambda p: p.to_html(reference=DELIVERIES),
+])
+@pytest.mark.filterwarnings("ignore::infoscope.DataQualityWarning")
+def test_views_that_read_rows_say_how_to_get_them(call):
+    ddf = dd.from_pandas(DELIVERIES[["depot", "late", "weight_kg"]], npartitions=2)
+    with dask.config.set(scheduler="synchronous"), pytest.raises(NeedsRows, match="sample"):
+        call(ddf.info_profile)
+
+
+# ------------------------------------------------------------------ bad input
+def test_bad_dask_sources_give_one_clear_error():
+    frame = pd.DataFrame({"a": [1, 2, 3], "when": pd.to_datetime(["2026-01-01"] * 3), "x": [0.5, 1.5, 2.5]})
+    ddf = dd.from_pandas(frame, npartitions=2)
+    with dask.config.set(scheduler="synchronous"):
+        with pytest.raises(TypeError, match="dask.dataframe.DataFrame.*Series"):
+            profile_dask(ddf["a"], progress=False)
+        with pytest.raises(ValueError, match="no columns"):
+            profile_dask(ddf[[]], progress=False)
+        with pytest.raises(ValueError, match="no rows"):
+            profile_dask(ddf[ddf["a"] > 5], progress=False)
+        with pytest.raises(ValueError, match="column 'a'.*bins='fd'"):
+            profile_dask(ddf, bins="fd", progress=False)
+        with pytest.raises(ValueError, match="split_every"):
+            profile_dask(ddf, split_every=1, progress=False)
+        with pytest.raises(ValueError, match="progress"):
+            profile_dask(ddf, progress="yes")
+        odd = dd.from_pandas(pd.DataFrame({"a": [1, 2], "span": pd.arrays.IntervalArray.from_breaks([0, 1, 2])}),
+                             npartitions=1)
+        with pytest.raises(ValueError, match="'span'"):
+            profile_dask(odd, progress=False)
+    assert frame.equals(pd.DataFrame({"a": [1, 2, 3], "when": pd.to_datetime(["2026-01-01"] * 3),
+                                      "x": [0.5, 1.5, 2.5]}))
+
+
+def test_docstring_examples_run():
+    import doctest
+
+    import infoscope.sources.dask as dask_source
+
+    with dask.config.set(scheduler="synchronous"), warnings.catch_warnings():
+        warnings.simplefilter("ignore", DataQualityWarning)
+        for module in (dask_source, infoscope.dask):
+            result = doctest.testmod(module, optionflags=doctest.NORMALIZE_WHITESPACE)
+            assert result.failed == 0 and result.attempted > 0, module.__name__

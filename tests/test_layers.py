@@ -30,7 +30,7 @@ LAYERS = {
     "views": 5,
     "report": 6,
     "widgets": 7,
-    "accessor": 8, "polars": 8, "cli": 8, "reading": 8, "sources": 8, "__main__": 8, "": 8,
+    "accessor": 8, "polars": 8, "dask": 8, "cli": 8, "reading": 8, "sources": 8, "__main__": 8, "": 8,
 }
 ESTIMATOR_THIRD_PARTY = {"numpy", "scipy"}
 

@@ -122,6 +122,11 @@ def _register_accessor() -> None:
             importlib.import_module("infoscope.polars")
         except ImportError:  # a broken or partial Polars install: the pandas accessor still works
             pass
+    if "dask.dataframe" in sys.modules:  # likewise: `import infoscope.dask` registers it later
+        try:
+            importlib.import_module("infoscope.dask")
+        except ImportError:  # dask without its dataframe extras
+            pass
 
 
 _register_accessor()

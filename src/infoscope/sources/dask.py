@@ -536,6 +536,49 @@ def _check_frame(ddf) -> list[str]:
     return column_keys(ddf.columns)
 
 
+def _take(part, labels, categories, positions):
+    return _prepared(part, labels, categories).iloc[positions]
+
+
+def _concat(parts):
+    import pandas as pd
+
+    return pd.concat(parts, ignore_index=True)
+
+
+def _sampled(ddf, categories, settings, *, progress):
+    """The seeded row sample of the in-memory path, gathered from the partitions that hold it.
+
+    The row positions are those :func:`infoscope.engine.sampling.sample_rows` picks
+    among all the frame's rows in order (partition lengths first, one small Dask
+    computation), so the sample holds the rows ``ProfileSession(ddf.compute(),
+    sample=..., seed=...)`` profiles; only they are sent to this process.
+    """
+    import dask
+
+    from infoscope.engine.sampling import sample_rows
+    from infoscope.frame.settings import _DEFAULTS
+    from infoscope.sources import SampledSession
+
+    lengths = np.asarray(compute(ddf.map_partitions(len), progress=progress), dtype=np.int64)
+    n = int(lengths.sum())
+    if n == 0:
+        raise ValueError("the Dask DataFrame has no rows: there is nothing to profile")
+    rows = sample_rows(n, settings["sample"], seed=settings.get("seed", _DEFAULTS["seed"]))
+    if rows is None:
+        rows = np.arange(n, dtype=np.int64)
+    starts = np.concatenate([[0], np.cumsum(lengths)])
+    labels = list(ddf.columns)
+    taken = []
+    for i, part in enumerate(ddf.to_delayed()):
+        lo, hi = np.searchsorted(rows, [starts[i], starts[i + 1]])
+        if hi > lo:
+            taken.append(dask.delayed(_take, pure=True)(part, labels, categories, rows[lo:hi] - starts[i]))
+    frame = compute(dask.delayed(_concat, pure=True)(taken), progress=progress)
+    rest = {k: v for k, v in settings.items() if k != "sample"}
+    return SampledSession(frame, of_rows=n, **rest)
+
+
 def profile_dask(ddf, *, split_every=None, progress="auto", backend: str = "auto", **settings):
     """The information profile of a Dask DataFrame, computed on the active Dask scheduler.
 
@@ -552,14 +595,16 @@ def profile_dask(ddf, *, split_every=None, progress="auto", backend: str = "auto
         Counting kernel on the workers.
     **settings
         Settings of :class:`~infoscope.frame.session.ProfileSession` (``bins``,
-        ``estimator``, ``target``, ...).
+        ``estimator``, ``target``, ``sample``, ``seed`` ...).
 
     Returns
     -------
-    TableSession
+    TableSession or SampledSession
         The session built from the alphabets and count tables
         (:func:`infoscope.sources.session.session_from_tables`): its tables equal
-        those of ``ProfileSession(ddf.compute(), **settings)``.
+        those of ``ProfileSession(ddf.compute(), **settings)``.  With ``sample=``,
+        the rows that session would sample are gathered (and only they) into an
+        in-memory :class:`infoscope.sources.SampledSession`, where every view works.
 
     Raises
     ------
@@ -580,14 +625,17 @@ def profile_dask(ddf, *, split_every=None, progress="auto", backend: str = "auto
     100
     """
     from infoscope.encode.summaries import column_specs
-    from infoscope.frame.settings import _ENCODING_SETTINGS
+    from infoscope.frame.settings import _DEFAULTS, _ENCODING_SETTINGS, _check_settings
     from infoscope.sources.session import session_from_tables
 
     keys = _check_frame(ddf)
     split_every = _check_split_every(split_every)
     progress = _check_progress(progress)
+    checked = _check_settings({**_DEFAULTS, **settings})  # a bad setting fails before any data is read
     encoding = {k: settings[k] for k in _ENCODING_SETTINGS if k in settings}
     categories = _known_categories(ddf, split_every=split_every, progress=progress)
+    if checked["sample"] is not None:
+        return _sampled(ddf, categories, settings, progress=progress)
     meta = _prepared(ddf._meta, keys, categories)
     specs = column_specs(meta.dtypes, **encoding)
     p, alphabets = dask_alphabets(ddf, keys, specs, categories=categories, split_every=split_every,
