@@ -11,12 +11,11 @@ ones on the same rows exactly.
 """
 from __future__ import annotations
 
-from infoscope.frame.session import ProfileSession
 from infoscope.frame.sessions import session_for
 from infoscope.frame.settings import _DEFAULTS, _ENCODING_SETTINGS, _check_settings
 from infoscope.sources.passes import DEFAULT_MEMORY_LIMIT, batch_rows_for, count_tables, parse_memory, run_pass1
 from infoscope.sources.readers import SourceError, arrow_to_pandas, open_source, source_kind
-from infoscope.sources.session import NeedsRows, TableSession, session_from_tables
+from infoscope.sources.session import NeedsRows, SampledSession, TableSession, session_from_tables
 
 __all__ = ["profile", "TableSession", "session_from_tables", "SourceError", "NeedsRows", "open_source",
            "arrow_to_pandas", "SampledSession"]
@@ -130,22 +129,3 @@ def _sampled(src, merged, settings):
     frame = pd.concat(parts, ignore_index=True)
     rest = {k: v for k, v in settings.items() if k not in ("sample",)}
     return SampledSession(frame, of_rows=n, **rest)
-
-
-class SampledSession(ProfileSession):
-    """A ProfileSession of a sample read from a source: ``sampled`` and ``n_rows`` speak of the source."""
-
-    def __init__(self, frame, *, of_rows: int, **settings):
-        super().__init__(frame, **settings)
-        self._of_rows = int(of_rows)
-        self._n_sampled = int(len(frame))
-
-    @property
-    def sampled(self):
-        """Rows of the sample (the profile's every number rests on them)."""
-        return self._n_sampled if self._n_sampled < self._of_rows else None
-
-    @property
-    def n_rows(self) -> int:
-        """Rows of the source (before the sample)."""
-        return self._of_rows

@@ -558,7 +558,7 @@ def _sampled(ddf, categories, settings, *, progress):
 
     from infoscope.engine.sampling import sample_rows
     from infoscope.frame.settings import _DEFAULTS
-    from infoscope.sources import SampledSession
+    from infoscope.sources.session import SampledSession
 
     lengths = np.asarray(compute(ddf.map_partitions(len), progress=progress), dtype=np.int64)
     n = int(lengths.sum())

@@ -20,7 +20,7 @@ from infoscope.engine.tables import TableEngine
 from infoscope.frame.session import ProfileSession
 from infoscope.frame.settings import _DEFAULTS, _ENCODING_SETTINGS, _check_settings
 
-__all__ = ["TableSession", "session_from_tables", "NeedsRows"]
+__all__ = ["TableSession", "session_from_tables", "NeedsRows", "SampledSession"]
 
 
 class NeedsRows(ValueError):
@@ -252,3 +252,22 @@ def session_from_tables(alphabets: Sequence, tables: Mapping, marginals: Mapping
             for message in a.messages:
                 warn_user(message, DataQualityWarning)
     return TableSession(alphabets, tables, marginals, n_rows=n_rows, source=source, **settings)
+
+
+class SampledSession(ProfileSession):
+    """A ProfileSession of a sample read from a source: ``sampled`` and ``n_rows`` speak of the source."""
+
+    def __init__(self, frame, *, of_rows: int, **settings):
+        super().__init__(frame, **settings)
+        self._of_rows = int(of_rows)
+        self._n_sampled = int(len(frame))
+
+    @property
+    def sampled(self):
+        """Rows of the sample (the profile's every number rests on them)."""
+        return self._n_sampled if self._n_sampled < self._of_rows else None
+
+    @property
+    def n_rows(self) -> int:
+        """Rows of the source (before the sample)."""
+        return self._of_rows
