@@ -16,9 +16,13 @@ Usage::
     python benchmarks/latency.py [--rows 100000] [--repeats 15] [--debounce 0.15]
     python benchmarks/latency.py --frame wide --rows 1000000 --cols 50   # the all-pairs benchmark frame
 
-Also prints how long the profile cell took to show the widget and when the first
-numbers arrived in the kernel (the first view; a big frame shows a progress line
-first and fills in from the worker thread).
+The profile cell calls ``frame.info_profile()`` as a user does.  Also prints how
+long it took to show the widget and when the first numbers arrived in the kernel
+(the first view; a big frame starts on a seeded sample, shows a progress line and
+fills in from the worker thread), and, on frames where the widget drafts bins moves
+(``ProfileWidget(drafts=...)``), when the fine tables were counted and the nested
+bin counts drafted ahead; the moves are timed after that, and the count of moves
+first drawn from a draft is printed.
 
 Prints the median and 90th percentile of the latency in ms, the baseline's median
 and the ratio; the target is a median of 300 ms or less.
@@ -43,7 +47,7 @@ from conftest import CHROMIUM, CHROMIUM_ARGS  # noqa: E402
 
 BINS = 'input[type=range][aria-label="Bins per numeric column"]'
 GRID = ".isc-gridwrap canvas"
-TARGET_MS = 300.0
+TARGET_MS = {"demo": 300.0, "wide": 250.0}  # median, per frame
 
 MEASURE = """async ([value, timeoutMs]) => {
   const input = document.querySelector('.isc-root %s');
@@ -75,8 +79,10 @@ def notebook(rows: int, debounce: float, frame: str = "demo", cols: int = 50) ->
     build = make + "from infoscope.frame.session import ProfileSession\nfrom infoscope.widgets.profile import ProfileWidget\n"
     show = (
         "import time\n"
+        "import infoscope\n"
         "t0 = time.time()\n"
-        f"profile = ProfileWidget(ProfileSession(frame), debounce={debounce})\n"
+        "profile = frame.info_profile()  # as a user calls it (a big frame starts on a seeded sample)\n"
+        f"profile._debounce = {debounce}\n"
         "t_shown = time.time() - t0\n"
         "profile"
     )
@@ -92,6 +98,18 @@ import time
 while profile.generation < 1 and time.time() - t0 < 600:
     time.sleep(0.02)
 print(f"{t_shown:.3f} {profile._first_numbers_at - t0 if hasattr(profile, '_first_numbers_at') else time.time() - t0:.3f}")
+"""
+
+
+DRAFTS_READY = """
+import time
+t1 = time.time()
+while profile._drafts_on and profile._drafted_ahead < 1 and time.time() - t1 < 1200:
+    time.sleep(0.05)
+print("not used (drafts off for this frame)" if not profile._drafts_on else
+      f"fine tables counted and the nested bin counts drafted ahead {time.time() - t0:.1f} s after the "
+      "profile cell started" if profile._drafted_ahead else "NOT ready")
+profile.wait(600)
 """
 
 
@@ -130,6 +148,11 @@ def main(argv=None) -> int:
                   f"{first:.2f} s after (target: first view <= 3 s)")
             page.wait_for_function(f"() => {{ const c = document.querySelector('{GRID}'); return c && c.width > 1; }}")
             kernel_exec(page, "profile.wait(600)", timeout_ms=620_000)
+            # the fine tables of the drafts are counted once after the first view, on a
+            # thread of their own; the moves are timed once they are there (and the
+            # drafts of the nested bin counts made ahead while the view is idle)
+            ready = kernel_exec(page, DRAFTS_READY, timeout_ms=1_220_000).strip()
+            print(f"draft tables: {ready}")
             print(f"notebook ready in {time.monotonic() - started:.1f} s "
                   f"({args.rows} rows x {kernel_exec(page, 'print(frame.shape[1])').strip()} columns)")
             values = [8, 12, 10, 14, 9, 16, 11, 13, 7, 15]
@@ -144,15 +167,19 @@ def main(argv=None) -> int:
                 pings.append(kernel_ping_ms(page))
                 if i >= args.warmup:
                     latencies.append(ms)
+            drafted = int(kernel_exec(page, "print(profile._drafts_shown)").strip())
             browser.close()
 
     median, p90 = statistics.median(latencies), percentile(latencies, 0.9)
+    print(f"moves first drawn from a draft grid: {drafted} of {args.warmup + args.repeats}")
     base = statistics.median(pings)
     print(f"slider -> redrawn grid: median {median:.0f} ms, p90 {p90:.0f} ms over {len(latencies)} moves "
           f"(debounce {args.debounce * 1000:.0f} ms included)")
     print(f"baseline (empty kernel round trip through JupyterLab): median {base:.1f} ms")
     print(f"ratio median / baseline: {median / base:.1f}x")
-    print(f"target median <= {TARGET_MS:.0f} ms: {'met' if median <= TARGET_MS else 'NOT met'}")
+    target = TARGET_MS[args.frame]
+    print(f"target median <= {target:.0f} ms: {'met' if median <= target else 'NOT met'}"
+          + (f"; <= 4x the round trip: {'met' if median <= 4 * base else 'NOT met'}" if args.frame == "wide" else ""))
     return 0
 
 

@@ -542,6 +542,40 @@ def test_threaded_preview_then_full_data_and_wait_covers_both(frame):
     w.close()
 
 
+def test_a_session_started_on_the_preview_sample_ends_on_the_full_data(frame):
+    # sampled_start: the session was built on the preview's sample (df.info_profile()
+    # on a big frame does so to show the view sooner); the full data follow
+    class Recording(ProfileWidget):
+        def _apply(self, gen, result, notes, snap):
+            if "_entropy" in result:
+                self.history = getattr(self, "history", []) + [json.loads(result["_entropy"])]
+            super()._apply(gen, result, notes, snap)
+
+    w = quiet(Recording, session_of(frame, sample=200), threaded=False, sampled_start=True)
+    first, last = w.history[0], w.history[-1]
+    assert first["sampled"] == 200 and last["sampled"] is None
+    assert w.session.sampled is None and w._meta["sampled"] is None  # the caution no longer says sampled
+    assert_same_entropy(w, direct_entropy(frame))
+    with pytest.raises(ValueError, match="sampled_start=True needs a session built with sample="):
+        quiet(ProfileWidget, session_of(frame), threaded=False, sampled_start=True)
+
+
+def test_accessor_starts_a_big_frame_on_its_sample_and_fills_in(frame, monkeypatch):
+    import infoscope.widgets.profile as profile_module
+
+    # "big" for this test: more than 300 rows and 1,000 cells (the real limits are 200,000 rows, 2M cells)
+    monkeypatch.setattr(profile_module, "PREVIEW_ROWS", 300)
+    monkeypatch.setattr(profile_module, "BACKGROUND_FIRST_VIEW_CELLS", 1_000)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        w = frame.info_profile(bins=16, n_boot=0)
+        assert w._status["state"] == "computing"       # shown at once, computed on the worker
+        assert w.wait(120), w._status
+    assert w._status["state"] == "idle" and w.session.sampled is None
+    assert_same_entropy(w, direct_entropy(frame))
+    w.close()
+
+
 @pytest.mark.parametrize("name", ["ProfileWidget", "EntropyBarsWidget", "InformationGridWidget",
                                   "PairViewWidget", "RelevanceWidget", "SelectionWidget", "SurprisingRowsWidget"])
 def test_public_widgets_have_numpydoc(name):

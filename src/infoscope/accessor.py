@@ -602,4 +602,13 @@ class InfoProfileAccessor:
                 "(infoscope.widgets.profile.ProfileWidget), which could not be imported: "
                 f"{error}. The tables work without it: df.info_profile.entropy(), .pairs(), ..."
             ) from error
+        from infoscope.widgets.profile import BACKGROUND_FIRST_VIEW_CELLS, PREVIEW_ROWS
+
+        frame = self._checked_frame()
+        if (settings.get("sample") is None and frame.shape[0] > PREVIEW_ROWS
+                and frame.shape[0] * frame.shape[1] >= BACKGROUND_FIRST_VIEW_CELLS):
+            # a big frame: the session starts on the preview's seeded sample, so the
+            # widget shows in a second or two; the full data follow on its worker thread
+            start = self.session(**{**settings, "sample": PREVIEW_ROWS})
+            return ProfileWidget(start, reference=reference, sampled_start=True)
         return ProfileWidget(self.session(**settings), reference=reference)

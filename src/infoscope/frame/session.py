@@ -39,6 +39,7 @@ from infoscope.frame.settings import (
     _check_bins,
     _check_settings,
 )
+from infoscope.frame.tables.draft import DraftTables
 from infoscope.frame.tables.drift import DriftTable
 from infoscope.frame.tables.entropy import EntropyTable
 from infoscope.frame.tables.estimates import TableMeasures
@@ -48,7 +49,7 @@ from infoscope.frame.tables.relevance import RelevanceTable
 __all__ = ["MEASURES", "ORDERS", "ProfileSession", "as_pandas", "column_keys"]
 
 
-class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, TableMeasures):
+class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, DraftTables, TableMeasures):
     """The information profile of one frame: settings, encoded columns, one engine.
 
     Parameters

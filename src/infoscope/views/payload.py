@@ -34,7 +34,7 @@ from infoscope.views import serialize as ser
 from infoscope.views.choices import check_view_settings, meta, view_settings_from_session
 
 __all__ = ["CORE_PARTS", "FORMAT", "PARTS", "SETTINGS_TRAITS", "VIEW_TRAITS", "DATA_TRAITS", "TOP_PAIRS",
-           "drift_data", "payload", "view_data", "top_pairs"]
+           "draft_grid", "draft_message", "drift_data", "payload", "view_data", "top_pairs"]
 
 FORMAT = "infoscope-profile/1"
 #: The data parts a view can ask for.
@@ -99,6 +99,76 @@ def top_pairs(pairs: pd.DataFrame, alpha: float, k: int = TOP_PAIRS) -> list[tup
     ranked = pairs.assign(_sig=pairs["q_value"] < alpha).sort_values(
         ["_sig", "value"], ascending=[False, False], na_position="last")
     return [(str(a), str(b)) for a, b in ranked[["a", "b"]].head(k).itertuples(index=False)]
+
+
+def draft_message(info: Mapping) -> str:
+    """The status line of a draft grid (``attrs["draft"]`` of ``ProfileSession.draft_pairs``).
+
+    Parameters
+    ----------
+    info : mapping
+        ``bins``, ``exact``, ``fine_bins``.
+
+    Returns
+    -------
+    str
+
+    Examples
+    --------
+    >>> draft_message({"bins": 12, "exact": True, "fine_bins": 96})[:60]
+    'Draft grid: 96-bin tables summed into 12 bins (the same tabl'
+    """
+    how = ("the same tables as a recount: exact; p-values of permutation tests follow" if info["exact"]
+           else "close: each bin edge within 1/64 of the rows of its exact place")
+    return (f"Draft grid: {info['fine_bins']}-bin tables summed into {info['bins']} bins ({how}). "
+            "Computing the exact numbers...")
+
+
+def draft_grid(session, bins, *, order, order_name: str = "cluster", alpha_fdr: float = 0.05,
+               generation: int = 0) -> dict | None:
+    """The grid parts of a draft at ``bins`` bins (``ProfileSession.draft_pairs``), or None.
+
+    Parameters
+    ----------
+    session : ProfileSession
+        With :meth:`~infoscope.frame.session.ProfileSession.prepare_drafts` done.
+    bins : int
+        The bin count the controls ask for.
+    order : sequence of str
+        The column order the grid shows now (kept while a control moves).
+    order_name : str, default="cluster"
+        The order's name, as in the grid's meta.
+    alpha_fdr : float, default=0.05
+        False discovery rate of the muted cells.
+    generation : int, default=0
+        Stamped on the part.
+
+    Returns
+    -------
+    dict or None
+        ``_grid_meta`` (with ``draft``: bins, exact, fine_bins, nested, columns),
+        ``_grid_values``, ``_grid_n``, ``_grid_q``, ``_grid_reliability``; None when
+        the session cannot draft these settings.
+
+    Examples
+    --------
+    >>> draft_grid(session, 12, order=session.names)["_grid_meta"]["draft"]["exact"]  # doctest: +SKIP
+    True
+    """
+    got = session.draft_pairs(bins)
+    if got is None:
+        return None
+    pairs, diagonal = got
+    keys = list(session.names)
+    names = [str(x) for x in order]
+    if sorted(names) != sorted(keys):
+        names = keys
+    grid = ser.grid_buffers(pairs, names, alpha=alpha_fdr, diagonal=diagonal, generation=generation,
+                            order_name=order_name)
+    meta_part = dict(grid["meta"])
+    meta_part["draft"] = dict(pairs.attrs["draft"])
+    return {"_grid_meta": meta_part, "_grid_values": grid["values"], "_grid_n": grid["n"],
+            "_grid_q": grid["q"], "_grid_reliability": grid["reliability"]}
 
 
 def view_data(session, parts, *, order: str = "cluster", alpha_fdr: float = 0.05,

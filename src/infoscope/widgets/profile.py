@@ -54,6 +54,12 @@ PREVIEW_ROWS = 200_000
 BACKGROUND_FIRST_VIEW_CELLS = 2_000_000
 #: Choices of ``first_view``.
 FIRST_VIEWS = ("auto", "background", "now")
+#: ``drafts="auto"``: frames of at least this many cells draw a bins move first from
+#: fine tables summed into the new bins (exact numbers follow); smaller frames
+#: recompute exactly in well under a second.
+DRAFT_MIN_CELLS = 2_000_000
+#: Choices of ``drafts``.
+DRAFTS = ("auto", "always", "never")
 
 
 class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits):
@@ -64,7 +70,8 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
 
     def __init__(self, session, *, debounce: float = 0.15, threaded: bool = True,
                  live_picture: bool = True, preview_rows: int | None = PREVIEW_ROWS,
-                 picture_delay: float = 1.0, first_view: str = "auto", reference=None, **kwargs):
+                 picture_delay: float = 1.0, first_view: str = "auto", reference=None, drafts: str = "auto",
+                 sampled_start: bool = False, **kwargs):
         if not all(hasattr(session, m) for m in ("update", "entropy", "pairs", "names", "settings")):
             raise TypeError("the profile widgets need an infoscope ProfileSession "
                             f"(infoscope.frame.session), got {type(session).__name__}")
@@ -72,6 +79,8 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
             raise ValueError(f"debounce must be >= 0 seconds, got {debounce}")
         if first_view not in FIRST_VIEWS:
             raise ValueError(f"first_view={first_view!r} is not one of {', '.join(map(repr, FIRST_VIEWS))}")
+        if drafts not in DRAFTS:
+            raise ValueError(f"drafts={drafts!r} is not one of {', '.join(map(repr, DRAFTS))}")
         if preview_rows is not None and (isinstance(preview_rows, bool) or not isinstance(preview_rows, int)
                                          or preview_rows < 100):
             raise ValueError(f"preview_rows must be None or a number of rows >= 100, got {preview_rows!r}")
@@ -80,10 +89,23 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
         # setting, if any, is what the full view uses.
         self._user_sample = session.settings.get("sample")
         n_rows = _row_count(session)
+        if sampled_start:
+            # the session was built on the preview's seeded sample so that the view shows
+            # sooner (df.info_profile() on a big frame): the full data are the user's ask
+            if not isinstance(self._user_sample, int) or n_rows is None or n_rows <= self._user_sample:
+                raise ValueError("sampled_start=True needs a session built with sample= fewer rows than "
+                                 "the frame (the preview's); the full data then follow")
+            preview_rows, self._user_sample = self._user_sample, None
         self._preview = (preview_rows is not None and self._user_sample is None
                          and n_rows is not None and n_rows > preview_rows)
         self._sample = preview_rows if self._preview else self._user_sample
         self._session = session
+        self._drafts_on = drafts == "always" or (
+            drafts == "auto" and (n_rows or 0) * len(session.names) >= DRAFT_MIN_CELLS)
+        self._drafts_started = False
+        self._drafts_ready = False
+        self._drafted_ahead = 0                 # complete rounds of drafts made ahead
+        self._drafts_shown = 0                  # drafts applied (tests and benchmarks read it)
         # a reference frame adds the drift view (drift of this frame from it), recomputed
         # when a setting that changes the encoding or the estimates changes
         self._reference = None if reference is None else as_pandas(reference, "reference")
@@ -227,6 +249,19 @@ class ProfileWidget(_ProfileBase):
         least :data:`BACKGROUND_FIRST_VIEW_CELLS` cells (with ``threaded=True``).
     live_picture : bool, default=True
         Refresh the static picture beside a displayed view after each recompute.
+    sampled_start : bool, default=False
+        The session was built with ``sample=`` a preview's rows only so that the
+        view can show sooner (``df.info_profile()`` does so for frames of more than
+        ``preview_rows`` rows): its first view is that sample's, labelled "sampled",
+        and the full data follow on the worker thread as for ``preview_rows``.
+    drafts : {"auto", "always", "never"}, default="auto"
+        When only the bins control moves, draw the grid first from fine tables summed
+        into the new bins (:meth:`ProfileSession.draft_pairs
+        <infoscope.frame.session.ProfileSession.draft_pairs>`: the exact tables for 2
+        to 16 and 32 bins, close ones elsewhere, said in the status line), then the
+        exact numbers. The fine tables are counted once on a thread of their own
+        after the first view. "auto": for frames of at least
+        :data:`DRAFT_MIN_CELLS` cells.
     **traits
         Initial values of the public traits (``bins``, ``estimator``, ``target`` ...).
 

@@ -181,6 +181,8 @@ class Scheduler:
                 with self.hold_sync():
                     for key, value in result.items():
                         setattr(self, key, value)
+                    if self._meta.get("sampled") != self._session.sampled:
+                        self._set_meta()  # a sampled first view was followed by the full data
                     self._status = {"state": "idle", "message": "", "generation": gen,
                                     "progress": None, "notes": notes}
             finally:
@@ -188,6 +190,23 @@ class Scheduler:
             first = not getattr(self, "_picture_drawn", False)
             self._picture_drawn = True
         self._refresh_picture(now=first)  # the first numbers replace the "computing" line at once
+        self._prepare_drafts_later()
+
+    def _apply_draft(self, gen: int, result: dict, message: str) -> None:
+        """Show a draft of the newest request's parts; the recompute goes on and replaces it."""
+        with self._lock:
+            if gen != self._requested or gen < self._applied:
+                return
+            self._reverting = True
+            try:
+                with self.hold_sync():
+                    for key, value in result.items():
+                        setattr(self, key, value)
+                    self._status = {"state": "computing", "message": message, "generation": gen,
+                                    "progress": 0.1, "notes": []}
+            finally:
+                self._reverting = False
+            self._drafts_shown += 1
 
     def _revert(self) -> None:
         with self._lock:
