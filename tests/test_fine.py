@@ -1,4 +1,4 @@
-"""Draft pair tables from fine quantile encodings (encode/fine.py, engine/merge.py, frame/tables/draft.py).
+"""Draft pair tables from fine quantile encodings (encode/fine.py, engine/coarsen.py, frame/tables/draft.py).
 
 The claim under test: for the bin counts the fine cuts nest (2..16 and 32), the
 fine tables summed into ``b`` bins are the tables of the column encoded directly
@@ -15,7 +15,7 @@ from sklearn.metrics import mutual_info_score
 
 from infoscope.encode.columns import encode_column
 from infoscope.encode.fine import NESTED_BIN_COUNTS, coarse_map, fine_column, fine_probabilities
-from infoscope.engine.merge import merge_marginal, merge_table
+from infoscope.engine.coarsen import merge_marginal, merge_table
 from infoscope.frame.session import ProfileSession
 from infoscope.widgets.profile import ProfileWidget
 

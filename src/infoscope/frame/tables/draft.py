@@ -7,7 +7,7 @@ first view) the float columns binned by quantiles get a fine encoding
 (:mod:`infoscope.encode.fine`: about 96 bins cut at every quantile the bin counts
 2..16 and 32 ask for) and every pair that touches one is counted at that resolution.
 Then :meth:`DraftTables.draft_pairs` sums those tables into the bins asked for
-(:mod:`infoscope.engine.merge`) and estimates them with the session's own
+(:mod:`infoscope.engine.coarsen`) and estimates them with the session's own
 vectorised estimators and per-table tests.  For bin counts in
 :data:`~infoscope.encode.fine.NESTED_BIN_COUNTS` the merged tables *are* the
 tables the re-encoded columns give, so the draft's MI, NMI, G and chi-square
@@ -28,7 +28,7 @@ import pandas as pd
 from infoscope._warnings import collect_warnings
 from infoscope.encode.fine import NESTED_BIN_COUNTS, coarse_map, fine_column
 from infoscope.engine.engine import PairEngine
-from infoscope.engine.merge import group_starts
+from infoscope.engine.coarsen import group_starts
 from infoscope.estimators._checks import log_base
 from infoscope.estimators.information import benjamini_hochberg
 from infoscope.estimators.significance import table_tests
