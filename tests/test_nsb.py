@@ -327,3 +327,20 @@ def test_nsb_of_a_fingerprint_is_the_nsb_of_its_vector():
     assert v.tolist() == [0.0, 1.0, 3.0, 40.0]
     got = nsb_fingerprint_nats(v, m, counts.size, counts.sum())
     assert got == pytest.approx(nsb_posterior_nats(counts), rel=1e-12)
+
+
+def test_a_stack_of_vectors_is_integrated_together_with_the_same_numbers(rng):
+    # the stacked kernel (bootstrap replicates, pair tables of one shape) against the
+    # one-vector path, and a few rows against the paper's integrals by scipy.integrate.quad
+    from infoscope.estimators.entropy import ENTROPY_ESTIMATORS
+    from infoscope.estimators.nsb import nsb_counts_nats
+
+    for K, N, B in [(2, 10, 12), (4, 50, 40), (16, 300, 60), (32, 5, 30), (9, 2000, 25)]:
+        stack = rng.multinomial(N, rng.dirichlet(np.full(K, 0.5)), size=B).astype(float)
+        one = np.array([nsb_posterior_nats(row, with_std=False)[0] for row in stack])
+        np.testing.assert_allclose(ENTROPY_ESTIMATORS["nsb"](stack), one, rtol=1e-12, atol=0)
+        np.testing.assert_allclose(nsb_counts_nats(stack), one, rtol=1e-12, atol=0)
+        np.testing.assert_allclose(ENTROPY_ESTIMATORS["nsb"](stack.reshape(B, 1, K))[:, 0], one, rtol=1e-12)
+    for row in ([3, 1, 0], [7, 2, 2, 1, 1, 1]):
+        got = nsb_counts_nats(np.array([row, row[::-1]], dtype=float))
+        assert got == pytest.approx([_naive_nsb(row, with_std=False)[0]] * 2, rel=1e-8)
