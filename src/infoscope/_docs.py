@@ -46,6 +46,10 @@ CITATIONS = {
         "framework for combining multiple partitions. Journal of Machine Learning\n"
         "Research, 3, 583-617."
     ),
+    "meila_2007": (
+        "Meilă, M. (2007). Comparing clusterings - an information based distance.\n"
+        "Journal of Multivariate Analysis, 98(5), 873-895."
+    ),
     "watanabe_1960": (
         "Watanabe, S. (1960). Information theoretical analysis of multivariate\n"
         "correlation. IBM Journal of Research and Development, 4(1), 66-82."

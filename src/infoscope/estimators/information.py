@@ -615,6 +615,7 @@ def adjusted_mutual_information_from_table(table, *, normalization: str = "arith
     return float((mi - emi) / denominator)
 
 
+@fill_doc()
 def variation_of_information_from_table(table, *, estimator: str = "plugin", base=2, alpha=None) -> float:
     """Variation of information between the row and column variables of a table.
 
@@ -637,8 +638,7 @@ def variation_of_information_from_table(table, *, estimator: str = "plugin", bas
 
     References
     ----------
-    .. [1] Meilă, M. (2007). Comparing clusterings - an information based distance.
-       Journal of Multivariate Analysis, 98(5), 873-895.
+    .. [1] {meila_2007}
 
     Examples
     --------

@@ -398,8 +398,7 @@ def variation_of_information(x, y, *, estimator="plugin", base=2, bins=None, mis
 
     References
     ----------
-    .. [1] Meilă, M. (2007). Comparing clusterings - an information based distance.
-       Journal of Multivariate Analysis, 98(5), 873-895.
+    .. [1] {meila_2007}
 
     Examples
     --------

@@ -36,6 +36,7 @@ from pathlib import Path
 
 import traitlets as t
 
+from infoscope._docs import fill_doc
 from infoscope.frame.keys import as_pandas
 from infoscope.widgets.computation import Computation
 from infoscope.widgets.payload import Payload
@@ -352,22 +353,34 @@ class ProfileWidget(_ProfileBase):
             return profile_charts(self.session, **kw)
 
 
+
+def _view_returns_doc(cls) -> str:
+    """The ``Returns`` section of a widget class's docstring (its own name)."""
+    return f"""Returns
+-------
+{cls.__name__}
+    An anywidget; display it in a notebook."""
+
+
+def _single_view_doc(cls) -> str:
+    """``Parameters`` and ``Returns`` of a single-view widget (its controls live in Python)."""
+    return """Parameters
+----------
+session : infoscope.frame.session.ProfileSession
+    The state the view shows; settings start from ``session.settings``.
+**options
+    As :class:`ProfileWidget` (``debounce``, ``threaded``, ``preview_rows``,
+    ``picture_delay``, initial trait values). Settings are changed from Python
+    (``w.bins = 8``): a single view has no controls strip.
+
+""" + _view_returns_doc(cls)
+
+
+@fill_doc(single_view=_single_view_doc)
 class EntropyBarsWidget(_ProfileBase):
     """Entropy bars alone: one bar per column with its CI and maximum log K.
 
-    Parameters
-    ----------
-    session : infoscope.frame.session.ProfileSession
-        The state the view shows; settings start from ``session.settings``.
-    **options
-        As :class:`ProfileWidget` (``debounce``, ``threaded``, ``preview_rows``,
-        ``picture_delay``, initial trait values). Settings are changed from Python
-        (``w.bins = 8``): a single view has no controls strip.
-
-    Returns
-    -------
-    EntropyBarsWidget
-        An anywidget; display it in a notebook.
+    {single_view}
 
     Examples
     --------
@@ -378,22 +391,11 @@ class EntropyBarsWidget(_ProfileBase):
     _parts = ("entropy",)
 
 
+@fill_doc(single_view=_single_view_doc)
 class InformationGridWidget(_ProfileBase):
     """The information grid alone: every column pair, coloured by the pair measure.
 
-    Parameters
-    ----------
-    session : infoscope.frame.session.ProfileSession
-        The state the view shows; settings start from ``session.settings``.
-    **options
-        As :class:`ProfileWidget` (``debounce``, ``threaded``, ``preview_rows``,
-        ``picture_delay``, initial trait values). Settings are changed from Python
-        (``w.bins = 8``): a single view has no controls strip.
-
-    Returns
-    -------
-    InformationGridWidget
-        An anywidget; display it in a notebook.
+    {single_view}
 
     Examples
     --------
@@ -404,22 +406,11 @@ class InformationGridWidget(_ProfileBase):
     _parts = ("grid",)
 
 
+@fill_doc(single_view=_single_view_doc)
 class PairViewWidget(_ProfileBase):
     """The pair view alone: one pair's joint counts with pointwise MI per cell.
 
-    Parameters
-    ----------
-    session : infoscope.frame.session.ProfileSession
-        The state the view shows; settings start from ``session.settings``.
-    **options
-        As :class:`ProfileWidget` (``debounce``, ``threaded``, ``preview_rows``,
-        ``picture_delay``, initial trait values). Settings are changed from Python
-        (``w.bins = 8``): a single view has no controls strip.
-
-    Returns
-    -------
-    PairViewWidget
-        An anywidget; display it in a notebook.
+    {single_view}
 
     Examples
     --------
@@ -430,22 +421,11 @@ class PairViewWidget(_ProfileBase):
     _parts = ("grid", "pair")
 
 
+@fill_doc(single_view=_single_view_doc)
 class RelevanceWidget(_ProfileBase):
     """Relevance alone: the information each column gives about ``target``.
 
-    Parameters
-    ----------
-    session : infoscope.frame.session.ProfileSession
-        The state the view shows; settings start from ``session.settings``.
-    **options
-        As :class:`ProfileWidget` (``debounce``, ``threaded``, ``preview_rows``,
-        ``picture_delay``, initial trait values). Settings are changed from Python
-        (``w.bins = 8``): a single view has no controls strip.
-
-    Returns
-    -------
-    RelevanceWidget
-        An anywidget; display it in a notebook.
+    {single_view}
 
     Examples
     --------
@@ -456,6 +436,7 @@ class RelevanceWidget(_ProfileBase):
     _parts = ("relevance",)
 
 
+@fill_doc(view_returns=_view_returns_doc)
 class SelectionWidget(_ProfileBase):
     """The selection view alone: columns chosen for ``target`` step by step (``select()``).
 
@@ -468,10 +449,7 @@ class SelectionWidget(_ProfileBase):
         ``selection_k`` (None: stop when the next gain is not significant) are set
         from the view's controls or from Python, and recompute in the kernel.
 
-    Returns
-    -------
-    SelectionWidget
-        An anywidget; display it in a notebook.
+    {view_returns}
 
     References
     ----------
@@ -491,6 +469,7 @@ class SelectionWidget(_ProfileBase):
     _parts = ("selection",)
 
 
+@fill_doc(view_returns=_view_returns_doc)
 class SurprisingRowsWidget(_ProfileBase):
     """The surprising-rows view alone: the rows least likely under the Chow-Liu tree.
 
@@ -502,10 +481,7 @@ class SurprisingRowsWidget(_ProfileBase):
         As :class:`ProfileWidget`; ``surprise_model`` ("tree", "independent") and
         ``surprise_n`` (rows listed); ``min_count`` hides the listed values.
 
-    Returns
-    -------
-    SurprisingRowsWidget
-        An anywidget; display it in a notebook.
+    {view_returns}
 
     References
     ----------
