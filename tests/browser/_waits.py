@@ -8,8 +8,6 @@ the assertion it replaces and independent of the machine's speed.
 """
 from __future__ import annotations
 
-import json
-
 from playwright.sync_api import Error as PlaywrightError
 
 #: How long a state may take to appear on a loaded machine (milliseconds).
@@ -21,10 +19,12 @@ def eventually(page, expression: str, expected, *, arg=None, message: str = "", 
 
     ``expression`` is evaluated as ``(arg) => (expression)``; values are compared as JSON.
     """
-    want = json.dumps(expected)
-    probe = f"(arg) => JSON.stringify(({expression})) === {json.dumps(want)}"
+    # both sides serialised by the browser's JSON.stringify (Python's json.dumps spaces
+    # and escapes differently, so a non-empty list would never match)
+    probe = ("(box) => { const arg = box.arg; "
+             f"return JSON.stringify(({expression})) === JSON.stringify(box.expected); }}")
     try:
-        page.wait_for_function(probe, arg=arg, timeout=timeout)
+        page.wait_for_function(probe, arg={"arg": arg, "expected": expected}, timeout=timeout)
     except PlaywrightError:
         seen = page.evaluate(f"(arg) => ({expression})", arg)
         raise AssertionError(f"{message or expression}: expected {expected!r}, still {seen!r} "
