@@ -17,12 +17,14 @@ reader decided).
 from __future__ import annotations
 
 import argparse
+import contextlib
 import sys
 import warnings
 
 import numpy as np
 import pandas as pd
 
+from infoscope._docs import fill_doc
 from infoscope.reading import ReadError, parse_datetime_columns, read_table
 
 __all__ = ["build_parser", "main", "cmd_demo", "cmd_drift", "cmd_profile", "format_table", "read_input",
@@ -41,6 +43,20 @@ CAUTION = (
 
 #: Columns holding probabilities: below 0.001 they read "below 0.001".
 _PROBABILITY_COLUMNS = ("p_value", "q_value")
+
+
+#: Docstring blocks of the command functions (see :mod:`infoscope._docs`).
+_DOCS = {
+    "out": """out : file-like, optional
+    Where to print (default ``sys.stdout``).""",
+    "parser_returns": """Returns
+-------
+argparse.ArgumentParser
+
+References
+----------
+.. [1] Python documentation, ``argparse`` (sub-commands).""",
+}
 
 
 def format_table(table: pd.DataFrame, *, digits: int = 3, max_rows: int | None = None,
@@ -160,6 +176,47 @@ def _relevance_title(target, unit) -> str:
             f"target; {_NEGATIVE_NOTE})")
 
 
+def _entropy_section(session, entropy, out) -> None:
+    _section(_entropy_title(session, entropy),
+             format_table(entropy[["column", "kind", "k", "missing_share", "entropy", "ci_low",
+                                   "ci_high", "efficiency", "flags"]], max_width=44), out)
+
+
+def _relevance_section(relevance, target, unit, out) -> None:
+    _section(_relevance_title(target, unit),
+             format_table(relevance[["column", "mi", "mi_above_chance", "ci_low", "ci_high", "share_of_target",
+                                     "reliability", "q_value", "leakage"]])
+             + "\n" + _reliability_note(relevance, "columns"), out)
+
+
+@contextlib.contextmanager
+def _noting():
+    """Collect infoscope's warnings as notes (this runs in the main thread only)."""
+    from infoscope._warnings import InfoscopeWarning
+
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", InfoscopeWarning)
+        yield caught
+
+
+def _notes(caught) -> list[str]:
+    return sorted({str(w.message) for w in caught})
+
+
+def _notes_section(lines, out) -> None:
+    if lines:
+        _section("notes on the data", "\n".join(lines), out)
+
+
+@contextlib.contextmanager
+def _refused_as_command_error():
+    """A ValueError, TypeError or KeyError of the library becomes a one-line CommandError."""
+    try:
+        yield
+    except (ValueError, TypeError, KeyError) as exc:
+        raise CommandError(str(exc).strip().splitlines()[0]) from None
+
+
 def add_demo_parser(subparsers) -> argparse.ArgumentParser:
     """Declare ``infoscope demo`` and its options.
 
@@ -202,6 +259,7 @@ def add_demo_parser(subparsers) -> argparse.ArgumentParser:
     return p
 
 
+@fill_doc(_DOCS)
 def cmd_demo(args: argparse.Namespace, out=None) -> int:
     """Run ``infoscope demo``: print the demo profile's tables.
 
@@ -209,8 +267,7 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
     ----------
     args : argparse.Namespace
         Parsed options (``rows``, ``batch_rows``, ``seed``, ``bins``, ``top``).
-    out : file-like, optional
-        Where to print (default ``sys.stdout``).
+    {out}
 
     Returns
     -------
@@ -231,7 +288,6 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
     >>> "relevance" in buf.getvalue()
     True
     """
-    from infoscope._warnings import InfoscopeWarning
     from infoscope.datasets import PLANTED, make_deliveries, make_deliveries_batch
     from infoscope.frame.session import ProfileSession
 
@@ -248,34 +304,26 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
     print(f"infoscope demo: an invented parcel-courier log, {len(frame)} rows x "
           f"{frame.shape[1]} columns; target {target!r}.", file=out)
     print(CAUTION, file=out)
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always", InfoscopeWarning)
+    with _noting() as caught:
         session = ProfileSession(frame, bins=args.bins, target=target, seed=args.seed)
         entropy = session.entropy()
         unit = entropy.attrs["unit"]
-        _section(_entropy_title(session, entropy),
-                 format_table(entropy[["column", "kind", "k", "missing_share", "entropy", "ci_low",
-                                       "ci_high", "efficiency", "flags"]], max_width=44), out)
+        _entropy_section(session, entropy, out)
         _top_pairs_section(session, args.top, out)
         relevance = session.relevance(target)
-        _section(_relevance_title(target, unit),
-                 format_table(relevance[["column", "mi", "mi_above_chance", "ci_low", "ci_high", "share_of_target",
-                                         "reliability", "q_value", "leakage"]])
-                 + "\n" + _reliability_note(relevance, "columns"), out)
-    log_notes = sorted({str(w.message) for w in caught})
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always", InfoscopeWarning)
+        _relevance_section(relevance, target, unit, out)
+    log_notes = _notes(caught)
+    with _noting() as caught:
         drift = ProfileSession(batch, bins=args.bins).drift(frame)
         _section(f"drift of a later batch ({len(batch)} rows) from the log "
                  "(PSI: < 0.10 stable, 0.10-0.25 moderate, >= 0.25 major; id_like / time_axis: "
                  "drift by construction (identifiers; another period), not a change of distribution; "
                  f"PSI in {drift.attrs['units']['psi']}; KL and JS in {drift.attrs['units']['kl']})",
                  format_table(drift[["column", "kind", "k", "psi", "kl", "js", "p_value", "flag"]]), out)
-    batch_notes = sorted({str(w.message) for w in caught} - set(log_notes))
+    batch_notes = [m for m in _notes(caught) if m not in log_notes]
     notes = [f"- log ({len(frame)} rows): {m}" for m in log_notes]
     notes += [f"- later batch ({len(batch)} rows): {m}" for m in batch_notes]
-    if notes:
-        _section("notes on the data", "\n".join(notes), out)
+    _notes_section(notes, out)
     if getattr(args, "out", None):
         return _write_page(session, args, out, command="demo")
     return 0
@@ -481,6 +529,7 @@ def add_profile_parser(subparsers) -> argparse.ArgumentParser:
     return p
 
 
+@fill_doc(_DOCS)
 def cmd_profile(args: argparse.Namespace, out=None) -> int:
     """Run ``infoscope profile DATA``: print the tables, write ``--out`` if given.
 
@@ -490,8 +539,7 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
         Parsed options (``data``, ``target``, ``bins``, ``strategy``, ``estimator``,
         ``sample``, ``seed``, ``top``, ``out``, ``min_count``, ``title``, ``sep``,
         ``encoding``).
-    out : file-like, optional
-        Where to print (default ``sys.stdout``).
+    {out}
 
     Returns
     -------
@@ -510,7 +558,6 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
     """
     from tqdm.auto import tqdm
 
-    from infoscope._warnings import InfoscopeWarning
     from infoscope.frame.session import ProfileSession
 
     out = sys.stdout if out is None else out
@@ -524,8 +571,7 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
     steps = ["read", "encode and count", "entropy", "pairs", "relevance"] + (["page"] if args.out else [])
     bar = tqdm(total=len(steps), desc="infoscope profile", unit="step", file=sys.stderr, disable=None,
                leave=False)
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always", InfoscopeWarning)
+    with _noting() as caught:
         bar.set_postfix_str("reading")
         frame = read_input(args.data, args)
         bar.update()
@@ -535,12 +581,10 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
             raise CommandError(f"--target {args.target!r} is not a column of {args.data!r} "
                                f"(columns: {names}{more})")
         bar.set_postfix_str("encoding")
-        try:
+        with _refused_as_command_error():
             session = ProfileSession(frame, bins=args.bins, strategy=args.strategy,
                                      estimator=args.estimator, target=args.target,
                                      sample=args.sample, seed=args.seed)
-        except (ValueError, TypeError, KeyError) as exc:
-            raise CommandError(str(exc).strip().splitlines()[0]) from None
         bar.update()
         print(f"infoscope profile: {args.data}, {len(frame)} rows x {frame.shape[1]} columns"
               + (f"; target {args.target!r}" if args.target else "") + ".", file=out)
@@ -550,9 +594,7 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
         entropy = session.entropy()
         bar.update()
         unit = entropy.attrs["unit"]
-        _section(_entropy_title(session, entropy),
-                 format_table(entropy[["column", "kind", "k", "missing_share", "entropy", "ci_low",
-                                       "ci_high", "efficiency", "flags"]], max_width=44), out)
+        _entropy_section(session, entropy, out)
         bar.set_postfix_str("pairs")
         if len(session.names) >= 2:
             _top_pairs_section(session, args.top, out)
@@ -560,10 +602,7 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
         bar.set_postfix_str("relevance")
         if args.target is not None:
             relevance = session.relevance(args.target)
-            _section(_relevance_title(args.target, unit),
-                     format_table(relevance[["column", "mi", "mi_above_chance", "ci_low", "ci_high", "share_of_target",
-                                             "reliability", "q_value", "leakage"]])
-                     + "\n" + _reliability_note(relevance, "columns"), out)
+            _relevance_section(relevance, args.target, unit, out)
         bar.update()
         status = 0
         if args.out:
@@ -571,9 +610,7 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
             status = _write_page(session, args, out, command="profile")
             bar.update()
     bar.close()
-    notes = sorted({str(w.message) for w in caught})
-    if notes:
-        _section("notes on the data", "\n".join(f"- {m}" for m in notes), out)
+    _notes_section([f"- {m}" for m in _notes(caught)], out)
     return status
 
 
@@ -588,6 +625,7 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
 EXIT_DRIFT = 1
 
 
+@fill_doc(_DOCS)
 def add_drift_parser(subparsers) -> argparse.ArgumentParser:
     """Declare ``infoscope drift`` and its options.
 
@@ -596,13 +634,7 @@ def add_drift_parser(subparsers) -> argparse.ArgumentParser:
     subparsers : argparse._SubParsersAction
         The ``infoscope`` subcommands.
 
-    Returns
-    -------
-    argparse.ArgumentParser
-
-    References
-    ----------
-    .. [1] Python documentation, ``argparse`` (sub-commands).
+    {parser_returns}
 
     Examples
     --------
@@ -647,6 +679,7 @@ def _format_rows(report) -> str:
     return format_table(t, max_width=32)
 
 
+@fill_doc(_DOCS)
 def cmd_drift(args: argparse.Namespace, out=None) -> int:
     """Run ``infoscope drift REFERENCE CURRENT``.
 
@@ -655,8 +688,7 @@ def cmd_drift(args: argparse.Namespace, out=None) -> int:
     args : argparse.Namespace
         Parsed options (``reference``, ``current``, ``out``, ``json_path``,
         ``fail_on``, ``pairs``, ``bins``, ``n_perm``, ``seed``).
-    out : file-like, optional
-        Where to print (default ``sys.stdout``).
+    {out}
 
     Returns
     -------
@@ -676,7 +708,6 @@ def cmd_drift(args: argparse.Namespace, out=None) -> int:
     """
     from pathlib import Path
 
-    from infoscope._warnings import InfoscopeWarning
     from infoscope.frame.session import ProfileSession
 
     out = sys.stdout if out is None else out
@@ -691,17 +722,14 @@ def cmd_drift(args: argparse.Namespace, out=None) -> int:
     for option, path in (("--out", args.out), ("--json", args.json_path)):
         if path and path != "-" and not Path(path).resolve().parent.is_dir():
             raise CommandError(f"{option} {path!r}: the folder does not exist")
-    with warnings.catch_warnings(record=True) as caught:
-        warnings.simplefilter("always", InfoscopeWarning)
+    with _noting() as caught:
         reference = read_input(args.reference, args)
         current = read_input(args.current, args)
-        try:
+        with _refused_as_command_error():
             session = ProfileSession(current, bins=args.bins, seed=args.seed, n_boot=100)
             report = session.drift_report(reference, pairs=args.pairs, n_perm=args.n_perm,
                                           reference_name=str(args.reference),
                                           current_name=str(args.current))
-        except (ValueError, TypeError, KeyError) as exc:
-            raise CommandError(str(exc).strip().splitlines()[0]) from None
     to_stdout = args.json_path == "-"
     show = sys.stderr if to_stdout else out
     print(f"infoscope drift: {args.current} ({report.current_rows} rows) against {args.reference} "
@@ -720,9 +748,7 @@ def cmd_drift(args: argparse.Namespace, out=None) -> int:
         body = format_table(moved[["a", "b", "mi_reference", "mi", "change", "ci_low", "ci_high",
                                    "q_value", "flag"]]) if len(moved) else "no pair changed beyond chance"
         _section(f"pairs whose dependence changed (MI in {report.units.get('kl', 'bits')})", body, show)
-    notes = sorted({str(w.message) for w in caught})
-    if notes:
-        _section("notes on the data", "\n".join(f"- {m}" for m in notes), show)
+    _notes_section([f"- {m}" for m in _notes(caught)], show)
     if args.json_path:
         text = report.to_json(min_count=args.min_count)
         if to_stdout:
@@ -744,16 +770,11 @@ def cmd_drift(args: argparse.Namespace, out=None) -> int:
     return 0
 
 
+@fill_doc(_DOCS)
 def build_parser() -> argparse.ArgumentParser:
     """The ``infoscope`` argument parser with every subcommand.
 
-    Returns
-    -------
-    argparse.ArgumentParser
-
-    References
-    ----------
-    .. [1] Python documentation, ``argparse`` (sub-commands).
+    {parser_returns}
 
     Examples
     --------
