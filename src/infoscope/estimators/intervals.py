@@ -64,6 +64,7 @@ __all__ = [
     "MIN_EXPECTED_EXACT",
     "chance_mi_nats",
     "entropy_standard_error",
+    "intervals_from_statistics",
     "mi_interval_from_table",
     "mi_intervals_from_tables",
 ]
@@ -355,6 +356,56 @@ def mi_intervals_from_tables(tables, *, level=0.95, base=2, p_values=None, willi
         else:
             chance[i] = _chance_mi_nats(t)
     pv = _per_table(p_values, m, "p_values")
+    estimate, low, high = intervals_from_statistics(g, dof, n, chance, level=level, p_values=pv)
+    chance = np.where(n > 0, chance, np.nan)
+    return MIInterval(estimate / divisor, low / divisor, high / divisor, chance / divisor, dof.astype(np.int64))
+
+
+def intervals_from_statistics(g, dof, n, chance, *, level=0.95, p_values=None):
+    r"""Chance-corrected estimate and interval (nats) from G statistics: the rule of the module notes.
+
+    The one place where a G statistic, its degrees of freedom, the number of rows and
+    the exact chance mean of the plug-in estimate become ``estimate``, ``low`` and
+    ``high``: :func:`mi_intervals_from_tables` (two-way tables) and the conditional
+    mutual information of :mod:`infoscope.estimators.conditional` (three-way tables,
+    G summed over the strata) both call it.
+
+    Parameters
+    ----------
+    g, dof, n, chance : array_like of shape (T,)
+        :math:`G = 2N\hat I` (plug-in, nats), its degrees of freedom, the rows N
+        and :math:`E_0[\hat I]` in nats (0 where unknown: then the scale is 1).
+    level : float, default=0.95
+        Two-sided confidence level.
+    p_values : array_like of shape (T,), optional
+        The p-values shown beside the intervals: ``low > 0`` exactly where
+        ``p < (1 - level) / 2``; rows with a NaN p-value get NaN.
+
+    Returns
+    -------
+    estimate, low, high : numpy.ndarray
+        In nats; NaN where ``n`` is 0, 0 where ``dof`` is 0.
+
+    References
+    ----------
+    .. [1] Mitra, S. K. (1958). On the limiting power function of the frequency
+       chi-square test. Annals of Mathematical Statistics, 29(4), 1221-1233.
+    .. [2] Steiger, J. H., & Lind, J. C. (1980). Statistically based tests for the
+       number of common factors. Annual meeting of the Psychometric Society, Iowa
+       City (the noncentrality interval).
+
+    Examples
+    --------
+    >>> est, low, high = intervals_from_statistics([20.0], [1], [100], [0.005], p_values=[1e-5])
+    >>> bool(0 < low[0] < est[0] < high[0])
+    True
+    """
+    level = _check_level(level)
+    g = np.asarray(g, dtype=np.float64).reshape(-1)
+    dof = np.asarray(dof, dtype=np.float64).reshape(-1)
+    n = np.asarray(n, dtype=np.float64).reshape(-1)
+    chance = np.asarray(chance, dtype=np.float64).reshape(-1)
+    pv = _per_table(p_values, g.size, "p_values")
     live = (n > 0) & (dof > 0)
     if pv is not None:
         live &= np.isfinite(pv)
@@ -380,8 +431,7 @@ def mi_intervals_from_tables(tables, *, level=0.95, base=2, p_values=None, willi
         # lower end, but never across 0: the sign follows the test
         held = np.minimum(low[live], estimate[live])
         low[live] = np.where(low[live] > 0, np.maximum(held, np.finfo(np.float64).tiny), held)
-    chance = np.where(n > 0, chance, np.nan)
-    return MIInterval(estimate / divisor, low / divisor, high / divisor, chance / divisor, dof.astype(np.int64))
+    return estimate, low, high
 
 
 def _counts_table(table, parameter: str) -> np.ndarray:

@@ -2,9 +2,13 @@
 
 One result row: the conditional mutual information :math:`I(X;Y \\mid Z)` (Z = the
 combination of the given columns, one stratum per observed combination) with a
-bootstrap interval and a permutation p-value that shuffles X within the strata of Z
-(:mod:`infoscope.estimators.conditional`), next to the unconditional :math:`I(X;Y)` on
-the same rows and their difference, the co-information.
+permutation p-value that shuffles X within the strata of Z and an interval that
+agrees with it (:mod:`infoscope.estimators.conditional`), next to the unconditional
+:math:`I(X;Y)` on the same rows and their difference, the co-information.
+
+The interval follows the rule of the pair tables: it belongs to ``cmi_above_chance``
+(the plug-in CMI less what the within-strata shuffles give by chance), and
+``ci_low > 0`` exactly when ``p_value < (1 - ci) / 2``.
 
 The codes come from the session's encoded columns (its bins, missing policy and
 folded levels), so the numbers agree with the pair tables.  Rows where any of the
@@ -12,8 +16,10 @@ columns is missing are left out (under ``missing="drop"``).
 
 Strata multiply cells: with ``k_x * k_y`` cells per stratum and many strata, the
 three-way table quickly has fewer than 5 rows per cell.  The row says so
-(``reliability`` and ``note``): the estimate is then biased upwards and the interval too
-narrow, while the permutation p-value stays valid (it is only less powerful).
+(``reliability`` and ``note``): ``cmi`` is then biased upwards (the chance level that
+``cmi_above_chance`` takes out is large), the interval rests on a chi-square
+approximation that sparse strata strain, and the permutation p-value stays valid
+(it is only less powerful).
 """
 from __future__ import annotations
 
@@ -30,7 +36,7 @@ __all__ = ["CONDITIONAL_COLUMNS", "conditional_table", "joint_codes", "present_r
 
 #: Columns of the ``conditional()`` result row (DEVELOPERS.md, "Result tables").
 CONDITIONAL_COLUMNS = (
-    "x", "y", "given", "n", "k_x", "k_y", "strata", "mi", "cmi", "ci_low", "ci_high", "p_value",
+    "x", "y", "given", "n", "k_x", "k_y", "strata", "mi", "cmi", "cmi_above_chance", "ci_low", "ci_high", "p_value",
     "null_mean", "co_information", "rows_per_cell", "reliability", "note",
 )
 
@@ -79,7 +85,7 @@ def sparse_note(what: str, cells: int, n: int) -> str:
         return ""
     return (
         f"the joint table of {what} has {cells:,} cells for {n:,} rows ({n / max(cells, 1):.2g} per cell, "
-        "fewer than 5): the estimate is biased upwards and its interval too narrow; "
+        "fewer than 5): cmi is biased upwards (read cmi_above_chance), the interval is approximate; "
         "the permutation p-value stays valid but has little power"
     )
 
@@ -108,15 +114,20 @@ def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> 
         keys), ``n`` rows where all columns are present, ``k_x``/``k_y`` observed
         symbols, ``strata`` (observed combinations of ``given``), ``mi`` = I(X;Y) and
         ``cmi`` = I(X;Y|given) with the session's estimator on those rows,
-        ``ci_low``/``ci_high`` (bootstrap of ``cmi``), ``p_value`` (permutation of X
-        within strata), ``null_mean`` (the mean plug-in CMI under the shuffles, the
-        chance level), ``co_information`` = mi - cmi (positive: the given columns
+        ``cmi_above_chance`` = the plug-in CMI less its chance level under the
+        within-strata shuffles (>= 0) with its interval ``ci_low``/``ci_high`` at the
+        session's ``ci`` (the noncentral chi-square of the conditional G, the rule
+        of the pair tables: ``ci_low > 0`` exactly when ``p_value < (1 - ci) / 2``),
+        ``p_value`` (permutation of X within strata), ``null_mean`` (the mean
+        plug-in CMI under the shuffles, a Monte-Carlo view of the chance level), ``co_information`` = mi - cmi (positive: the given columns
         explain part of the dependence; negative: they reveal dependence),
         ``rows_per_cell`` = n / (k_x k_y strata), ``reliability`` ("ok", "sparse":
         fewer than 5 rows per cell, "too_few": under 1 or too few rows; the rule of
         ``infoscope.estimators.significance.table_reliability``) and a ``note`` that
         says what sparsity does to the numbers.  ``attrs``: unit,
-        estimator, sampled, n_permutations.
+        estimator, sampled, n_permutations, ci.  With ``n_permutations=0`` there is
+        no p-value and the sign of the lower end comes from the chi-square law of
+        the scaled G.
 
     References
     ----------
@@ -126,6 +137,8 @@ def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> 
        Psychometrika, 19(2), 97-116.
     .. [3] B. Phipson, G. K. Smyth (2010), Statistical Applications in Genetics and
        Molecular Biology 9, Article 39 (permutation p-values).
+    .. [4] Mitra, S. K. (1958). On the limiting power function of the frequency
+       chi-square test. Annals of Mathematical Statistics, 29(4), 1221-1233.
 
     Examples
     --------
@@ -134,16 +147,15 @@ def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> 
     >>> rng = np.random.default_rng(0)
     >>> z = rng.integers(0, 2, 2000)
     >>> df = pd.DataFrame({"x": z ^ (rng.random(2000) < 0.1), "y": z ^ (rng.random(2000) < 0.1), "z": z})
-    >>> row = conditional_table(ProfileSession(df, n_boot=50), "x", "y", given=["z"], n_permutations=199)
-    >>> bool(row["mi"][0] > 0.2), bool(row["p_value"][0] > 0.05)
-    (True, True)
+    >>> row = conditional_table(ProfileSession(df), "x", "y", given=["z"], n_permutations=199)
+    >>> bool(row["mi"][0] > 0.2), bool(row["p_value"][0] > 0.05), float(row["ci_low"][0])
+    (True, True, 0.0)
     """
-    from infoscope.estimators.conditional import bootstrap_cmi_ci, conditional_permutation_test
+    from infoscope.estimators.conditional import cmi_interval_from_table, conditional_permutation_test
     from infoscope.estimators.information import (
         conditional_mutual_information_from_table,
         mutual_information_from_table,
     )
-    from infoscope.estimators.resampling import _check_positive_int
     from infoscope.estimators.significance import table_reliability
 
     given = _given_list(given)
@@ -158,7 +170,7 @@ def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> 
     keep = present_rows(cols)
     n = int(keep.sum())
     attrs = {"unit": unit_name(s["base"]), "estimator": s["estimator"], "sampled": session.sampled,
-             "n_permutations": int(n_permutations)}
+             "n_permutations": int(n_permutations), "ci": float(s["ci"])}
     row = dict.fromkeys(CONDITIONAL_COLUMNS, math.nan)
     row.update(x=keys[0], y=keys[1], given=tuple(keys[2:]), n=n, reliability="ok", note="")
     if n < 2:
@@ -176,20 +188,19 @@ def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> 
         kw["alpha"] = s["alpha"]
     cmi = conditional_mutual_information_from_table(table, **kw)
     mi = mutual_information_from_table(table.sum(axis=2), **kw)
-    low = high = math.nan
-    if s["n_boot"] > 0:
-        low, high = bootstrap_cmi_ci(table, level=s["ci"], n_boot=_check_positive_int(s["n_boot"], "n_boot"),
-                                     seed=s["seed"], **kw)
     p_value = null_mean = math.nan
     if n_permutations > 0:
         test = conditional_permutation_test(xc, yc, zc, n_permutations=int(n_permutations), seed=s["seed"],
                                             base=s["base"])
         p_value, null_mean = test.p_value, test.null_mean
+    # the interval of the pair tables' rule; the shown p-value decides its lower end's sign
+    interval = cmi_interval_from_table(table, level=float(s["ci"]), base=s["base"],
+                                       p_value=p_value if n_permutations > 0 else None)
     cells = kx * ky * kz
     what = f"{keys[0]!r}, {keys[1]!r}" + (f" and the {kz:,} strata of {', '.join(map(repr, keys[2:]))}"
                                           if given else "")
-    row.update(k_x=kx, k_y=ky, strata=kz, mi=float(mi), cmi=float(cmi), ci_low=float(low),
-               ci_high=float(high), p_value=float(p_value), null_mean=float(null_mean),
+    row.update(k_x=kx, k_y=ky, strata=kz, mi=float(mi), cmi=float(cmi),
+               cmi_above_chance=float(interval.estimate), ci_low=float(interval.low), ci_high=float(interval.high), p_value=float(p_value), null_mean=float(null_mean),
                co_information=float(mi - cmi), rows_per_cell=n / cells,
                reliability=str(table_reliability([n], [kx * ky], [kz])[0]), note=sparse_note(what, cells, n))
     return result_frame([row], CONDITIONAL_COLUMNS, **attrs)
