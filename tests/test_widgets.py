@@ -214,6 +214,112 @@ def test_selection_view_recomputes_when_its_controls_change(frame):
     assert [r[1] for r in steps] == direct.loc[direct["step"].notna(), "column"].tolist()
 
 
+
+def _selection_columns(data) -> list:
+    return [r[1] for r in data["rows"] if r[0] is not None]
+
+
+def test_profile_shows_the_selection_after_the_other_parts(frame):
+    # the main profile with a target: the selection arrives as a follow-up generation
+    # (after entropy, grid and relevance are shown), equal to select() of the session
+    from infoscope.frame.selection import select_table
+
+    w = widget(frame, target="late")
+    rel, sel = json.loads(w._relevance), json.loads(w._selection)
+    assert sel["target"] == "late" and sel["method"] == "mrmr" and sel["k"] is None
+    assert sel["generation"] > rel["generation"] == json.loads(w._entropy)["generation"]
+    direct = quiet(select_table, w.session, "late", n_permutations=99)
+    assert _selection_columns(sel) == direct.loc[direct["step"].notna(), "column"].tolist()
+    # method and k recompute the selection only
+    entropy = w._entropy
+    quiet(setattr, w, "selection_method", "jmi")
+    quiet(setattr, w, "selection_k", 3)
+    sel = json.loads(w._selection)
+    assert sel["method"] == "jmi" and sel["k"] == 3 and w._entropy == entropy
+    direct = quiet(select_table, w.session, "late", k=3, method="jmi", n_permutations=99)
+    assert _selection_columns(sel) == direct.loc[direct["step"].notna(), "column"].tolist()
+    # a bins move redoes it on the new encodings
+    quiet(setattr, w, "bins", 4)
+    direct = quiet(select_table, w.session, "late", k=3, method="jmi", n_permutations=99)
+    assert _selection_columns(json.loads(w._selection)) == direct.loc[direct["step"].notna(), "column"].tolist()
+    assert json.loads(w._selection)["generation"] == w.generation
+
+
+def test_profile_without_a_target_sends_an_empty_selection_in_one_recompute(frame):
+    w = widget(frame)
+    sel = json.loads(w._selection)
+    assert sel["target"] is None and sel["rows"] == []
+    assert sel["generation"] == json.loads(w._entropy)["generation"] == w.generation
+
+
+def test_a_control_move_does_not_wait_for_the_selection(frame, monkeypatch):
+    # a selection is running (held on an event) when the bins move: it stops at its
+    # next block of shuffles, the new numbers are shown first, and the selection is
+    # redone for the new settings as a later generation; the held one is never shown
+    from infoscope.frame import selection
+
+    w = quiet(ProfileWidget, session_of(frame), debounce=0.0, target="late")
+    assert w.wait(60)
+    started, release = threading.Event(), threading.Event()
+    real = selection._select
+
+    def held(*args, **kwargs):
+        started.set()
+        assert release.wait(60)
+        return real(*args, **kwargs)
+
+    shown = []
+    w.observe(lambda ch: shown.append((ch["name"], json.loads(ch["new"])["generation"])),
+              names=["_entropy", "_selection"])
+    monkeypatch.setattr(selection, "_select", held)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        w.selection_method = "cmim"
+        assert started.wait(60)
+        monkeypatch.setattr(selection, "_select", real)
+        w.bins = 5             # while the selection is held
+        release.set()
+        assert w.wait(60)
+    assert_same_entropy(w, direct_entropy(frame, bins=5))
+    assert [name for name, _ in shown] == ["_entropy", "_selection"]  # the held selection never came
+    assert shown[0][1] < shown[1][1] == w.generation
+    sel = json.loads(w._selection)
+    assert sel["method"] == "cmim" and _selection_columns(sel) == select_table_of(w, "cmim")
+    w.close()
+
+
+def select_table_of(w, method):
+    from infoscope.frame.selection import select_table
+
+    table = select_table(w.session, w.target, method=method, n_permutations=99)
+    return table.loc[table["step"].notna(), "column"].tolist()
+
+
+def test_a_superseded_recompute_keeps_its_parts(frame, monkeypatch):
+    # a measure change (grid only) superseded by a pair click (pair only) before it
+    # finished: the grid is still recomputed for the new measure
+    w = quiet(ProfileWidget, session_of(frame), debounce=0.0)
+    assert w.wait(60)
+    started, release = threading.Event(), threading.Event()
+    real = w._compute
+
+    def held(gen, parts, snap):
+        if "grid" in parts and not started.is_set():
+            started.set()
+            assert release.wait(60)
+        return real(gen, parts, snap)
+
+    w._compute = held
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", InfoscopeWarning)
+        w.measure = "nmi"
+        assert started.wait(60)
+        w.selected_pair = ["weight_kg", "weight_lb"]
+        release.set()
+        assert w.wait(60)
+    assert w._grid_meta["measure"] == "nmi" and w._pair["a"] == "weight_kg"
+    w.close()
+
 def test_surprising_rows_view_hides_values_under_min_count(frame):
     from infoscope.widgets import SurprisingRowsWidget
 

@@ -39,11 +39,12 @@ export function render({ model, el }, memory = createMemory()) {
     parts.drift = driftView(ctx); // hidden unless the profile has a reference (_drift)
     root.append(parts.controls.el, h("div", { class: "isc-row" }, parts.entropy.el, parts.grid.el),
       h("div", { class: "isc-row" }, parts.pair.el, parts.relevance.el), h("div", { class: "isc-row" }, parts.drift.el));
-    // the selection and surprising rows travel in exports; the live profile has its own views for them
-    const extra = [];
-    if (model.get("_selection")) { parts.selection = selectionView(ctx); extra.push(parts.selection.el); }
+    // the selection view shows itself when a target is set (the kernel sends it after
+    // the other parts); the surprising rows travel in exports
+    parts.selection = selectionView(ctx, { onlyWithTarget: true });
+    const extra = [parts.selection.el];
     if (model.get("_surprising")) { parts.surprising = surprisingView(ctx); extra.push(parts.surprising.el); }
-    if (extra.length) root.append(h("div", { class: "isc-row" }, ...extra));
+    root.append(h("div", { class: "isc-row" }, ...extra));
   } else {
     const make = { entropy: entropyView, grid: gridView, pair: pairView, relevance: relevanceView, drift: driftView,
       selection: selectionView, surprising: surprisingView }[view] || entropyView;

@@ -21,10 +21,24 @@ export const STATUS_WORDS = {
   leakage: "left out: may leak the target", constant: "left out: one value", id_like: "left out: an identifier",
 };
 
+// What the selection view can show: "no_target" (none is set), "computing" (a target
+// is set and no answer for it has come), "stale" (an answer for another method or k
+// while the kernel recomputes) or "ready". `data` is the parsed `_selection` record.
+export function selectionState(data, { target, method, k }) {
+  if (target == null) return "no_target";
+  if (!data || data.target == null || String(data.target) !== String(target)) return "computing";
+  const same = (data.method == null || data.method === method) && (data.k ?? null) === (k ?? null);
+  return same ? "ready" : "stale";
+}
+
+// Names and values are data: in plain text (titles, aria labels) each goes between the
+// Unicode first-strong isolate and its pop (U+2068 ... U+2069), as dom.iso does.
+const isolate = (text) => `\u2068${text}\u2069`;
+
 // A cell of a surprising row in words: "weight_lb = 2.4 given weight_kg = 5.3" (values
-// may be hidden: null with hidden = true).
+// may be hidden: null with hidden = true), every name and value isolated.
 export function cellWords(cell, hidden) {
-  const v = (x, sym) => (hidden ? "(hidden)" : x != null ? String(x) : sym != null ? String(sym) : "missing");
-  const own = `${cell.column} = ${v(cell.value, cell.symbol)}`;
-  return cell.parent != null ? `${own} given ${cell.parent} = ${v(cell.parent_value, cell.parent_symbol)}` : own;
+  const v = (x, sym) => (hidden ? "(hidden)" : x != null ? isolate(String(x)) : sym != null ? isolate(String(sym)) : "missing");
+  const own = `${isolate(String(cell.column))} = ${v(cell.value, cell.symbol)}`;
+  return cell.parent != null ? `${own} given ${isolate(String(cell.parent))} = ${v(cell.parent_value, cell.parent_symbol)}` : own;
 }

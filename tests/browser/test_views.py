@@ -752,3 +752,62 @@ def test_drift_view_shows_a_planted_shift_beyond_chance(harness, web, payloads, 
     assert page.get_attribute(f".isc-drift .isc-erow[data-keep='drift:{stable[0]}']", "data-flag") in ("stable", "within_chance")
     assert web.page_errors == [] and web.outside_requests == []
     page.locator(".isc-drift").screenshot(path=str(artifacts / "drift.png"))
+
+
+def test_selection_view_in_the_profile_controls_keyboard_and_focus(harness, web, payloads, artifacts):
+    # the main profile with a target shows the selection (the kernel's select() table);
+    # its method and steps controls go to the kernel, a step row takes keyboard focus
+    # and shows its numbers, a redraw keeps that focus, and the panel hides without a target
+    page = harness()
+    sel = json.loads(payloads["base"]["state"]["_selection"])
+    steps = [r for r in sel["rows"] if r[0] is not None]
+    assert page.locator(".isc-selection").is_visible()
+    rows = page.locator(".isc-selection .isc-selrow")
+    assert rows.count() == len(steps) and rows.first.get_attribute("data-keep") == "step:1"
+    assert steps[0][1] in rows.first.text_content()
+    page.select_option(".isc-selection select", "jmi")
+    page.wait_for_function("window.__saves.some(s => s.selection_method === 'jmi')")
+    # the answer for jmi has not come: the panel says its numbers are the last ones
+    page.wait_for_function("document.querySelector('.isc-selection .isc-punit').textContent.includes('recomputing')")
+    box = page.locator(".isc-selection input[type=number]")
+    box.fill("2")
+    box.press("Enter")
+    box.dispatch_event("change")
+    page.wait_for_function("window.__saves.some(s => s.selection_k === 2)")
+    rows.nth(1).focus()
+    page.wait_for_timeout(60)
+    tip = page.locator(".isc-tip")
+    assert tip.is_visible() and "relevance I(" in tip.text_content() and "shuffles of the target" in tip.text_content()
+    page.evaluate("window.__model.set('_selection', window.__model.get('_selection') + ' ')")  # a redraw
+    page.wait_for_timeout(80)
+    assert page.evaluate("document.activeElement.dataset.keep") == "step:2"
+    page.locator(".isc-selection").screenshot(path=str(artifacts / "profile-selection.png"))
+    page.evaluate("window.__model.set('target', null)")
+    page.wait_for_timeout(80)
+    assert not page.locator(".isc-selection").is_visible()
+    assert web.page_errors == [] and web.outside_requests == []
+
+
+@pytest.mark.parametrize("theme", ["light", "dark"])
+def test_selection_and_surprising_rows_readable_in_jupyterlab_themes(harness, web, artifacts, theme):
+    page = harness(f"?theme={theme}")
+    for sel in (".isc-selection .isc-selrow .isc-name", ".isc-selection .isc-leftout .isc-name",
+                ".isc-surprising .isc-surtable td", ".isc-surprising .isc-treelist li"):
+        assert page.locator(sel).count(), sel
+        painted = page.evaluate(_PAINTED, sel)
+        ratio = _contrast(painted["ink"], painted["back"])
+        assert ratio >= 4.5, f"{theme}: {sel} text {painted['ink']} on {painted['back']} has contrast {ratio:.2f}"
+    page.locator(".isc-selection").screenshot(path=str(artifacts / f"selection-{theme}.png"))
+    assert web.page_errors == [] and web.outside_requests == []
+
+
+def test_selection_and_surprising_rows_keep_odd_names_in_place(harness, web, payloads):
+    # a right-to-left override in the target's name and in cell values reorders nothing
+    page = harness("?payload=odd")
+    page.wait_for_timeout(150)
+    assert page.evaluate(IN_ORDER, [".isc-selection .isc-punit", "bits"]) == "ok"
+    assert page.evaluate(IN_ORDER, [".isc-surprising .isc-punit", "bits"]) == "ok"
+    assert page.locator(f".isc-selection bdi[title='{RTL}']").count() >= 1
+    titles = page.eval_on_selector_all(".isc-surprising .isc-surcell", "els => els.map(e => e.title)")
+    assert titles and all(t.startswith("\u2068") for t in titles)  # names isolated in the plain-text title
+    assert web.page_errors == [] and web.outside_requests == []

@@ -3,12 +3,14 @@
 // marked and the columns left out are listed with the reason.
 import { h, clear, iso, nameEl, tipOnFocus } from "../dom.js";
 import { parseJSON, table } from "../decode.js";
+import { keepFocus } from "../memory.js";
 import { amount, axisPct, niceMax, num, pWords, ticks, val } from "../format.js";
-import { STATUS_WORDS, selectionMax, splitSelection } from "../selection.js";
+import { STATUS_WORDS, selectionMax, selectionState, splitSelection } from "../selection.js";
 
 const METHOD_WORDS = { mrmr: "mRMR (Peng, Long & Ding 2005)", jmi: "JMI (Yang & Moody 1999)", cmim: "CMIM (Fleuret 2004)" };
 
-export function selectionView(ctx) {
+// onlyWithTarget: the profile layout hides the panel while no target is set.
+export function selectionView(ctx, { onlyWithTarget = false } = {}) {
   const el = h("section", { class: "isc-panel isc-selection", "aria-label": "selection" });
   const sub = h("span", { class: "isc-punit" });
   const tools = h("div", { class: "isc-seltools" });
@@ -24,21 +26,28 @@ export function selectionView(ctx) {
   });
   if (!ctx.offline) tools.append(h("label", null, "method ", method), h("label", null, " steps ", kBox));
 
-  function draw() {
+  // redraws keep the focused step (keyboard users) and the scroll position
+  function draw() { keepFocus(body, drawRows); }
+
+  function drawRows() {
     clear(body);
     clear(legend);
     clear(sub);
     method.value = ctx.get("selection_method") || "mrmr";
     const k = ctx.get("selection_k");
-    kBox.value = k == null ? "" : String(k);
+    if (document.activeElement !== kBox) kBox.value = k == null ? "" : String(k);
     const data = parseJSON(ctx.get("_selection"));
-    if (!data || data.target == null) {
-      body.append(h("div", { class: "isc-empty" }, ctx.get("target") != null ? "Computing\u2026"
+    const state = selectionState(data, { target: ctx.get("target"), method: method.value, k });
+    el.style.display = onlyWithTarget && state === "no_target" ? "none" : "";
+    if (state === "no_target" || state === "computing") {
+      body.append(h("div", { class: "isc-empty" }, state === "computing" ? "Choosing columns for the target\u2026"
         : "Pick a target in the controls to choose columns for it."));
       return;
     }
     const unit = data.unit || ctx.unit();
     sub.append("columns for ", nameEl(data.target), ` by ${METHOD_WORDS[data.method] || data.method}, ${unit}`);
+    // the controls moved and the kernel has not answered yet: say that these are the last numbers
+    if (state === "stale") sub.append(h("span", { class: "isc-stale" }, " \u00b7 recomputing\u2026"));
     const { steps, leftOut } = splitSelection(table(data));
     const max = niceMax(selectionMax(steps));
     const x = (v) => axisPct(v, max);
@@ -55,7 +64,7 @@ export function selectionView(ctx) {
       const words = [STATUS_WORDS[r.status] || r.status, r.gain_supported ? "" : "gain not estimated: too few rows per cell"].filter(Boolean);
       const rowEl = h("div", {
         class: `isc-erow isc-selrow${r.status === "stop" ? " isc-stop" : ""}`, tabindex: 0, style: { cursor: "default" },
-        "data-status": r.status, "data-step": String(r.step),
+        "data-status": r.status, "data-step": String(r.step), "data-keep": `step:${r.step}`,
         onfocus: () => tipOnFocus(rowEl), onblur: () => ctx.tip.hide(),
         "aria-label": `step ${r.step}: ${iso(r.column)}, gain ${amount(r.gain)} ${unit}, ${words.join(", ")}`,
         onmousemove: (ev) => ctx.tip.show([[`step ${r.step}: `, nameEl(r.column)],
@@ -72,7 +81,8 @@ export function selectionView(ctx) {
     }
     if (!steps.length) body.append(h("div", { class: "isc-empty" }, "No column was chosen."));
     for (const r of leftOut) {
-      body.append(h("div", { class: "isc-erow isc-leftout", "data-status": r.status },
+      body.append(h("div", { class: "isc-erow isc-leftout", "data-status": r.status, tabindex: 0, "data-keep": `out:${r.column}`,
+        "aria-label": `${iso(r.column)}: ${STATUS_WORDS[r.status] || r.status}${r.note ? `; ${r.note}` : ""}` },
         h("span", { class: "isc-name" }, nameEl(r.column)), h("span", { class: "isc-track" }),
         h("span", { class: "isc-val" }, val(r.relevance)),
         h("span", { class: "isc-relmarks" }, r.status === "leakage" ? h("span", { class: "isc-leakword" }, STATUS_WORDS[r.status]) : STATUS_WORDS[r.status] || r.status)));

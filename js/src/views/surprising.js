@@ -33,8 +33,10 @@ export function surprisingView(ctx) {
       const list = h("span", { class: "isc-surcells" });
       cells.forEach((c, j) => {
         if (j) list.append(" \u00b7 ");
+        // a value is data too: its own <bdi>, so right-to-left text cannot reorder the words around it
+        const value = hidden ? "(hidden)" : c.value != null ? c.value : c.symbol != null ? c.symbol : null;
         list.append(h("span", { class: "isc-surcell", title: cellWords(c, hidden), "data-bits": String(c.bits) },
-          nameEl(c.column), hidden ? " (hidden)" : ` = ${c.value != null ? c.value : c.symbol != null ? c.symbol : "missing"}`,
+          nameEl(c.column), " = ", value == null ? "missing" : hidden ? value : h("bdi", null, String(value)),
           c.parent != null ? [" given ", nameEl(c.parent)] : null,
           h("b", null, ` ${num(c.bits, 3)} bits`)));
       });

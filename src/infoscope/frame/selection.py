@@ -82,6 +82,11 @@ SELECTION_STATUS = {
 # and at most this many shuffles per block (the sequential stop looks after each block).
 _BLOCK_CELLS = 4_000_000
 _SHUFFLE_BLOCK = 40
+# select() tables a session keeps (the views ask again when a control goes back)
+_CACHED_TABLES = 8
+# counting kernel of the shuffled tables (infoscope.engine.strata.table_scores): the
+# compiled one once numba is loaded; tests compare the two
+_BACKEND = "auto"
 
 
 class _Columns:
@@ -125,7 +130,7 @@ def _count(index_parts, shape, keep) -> np.ndarray:
 
 
 def select_table(session, target, *, k=None, method: str = "mrmr", include_leaks: bool = False,
-                 n_permutations: int = 199, fdr: float = 0.05) -> pd.DataFrame:
+                 n_permutations: int = 199, fdr: float = 0.05, progress=None) -> pd.DataFrame:
     """Greedy information-based selection of columns for a target (see the module notes).
 
     Parameters
@@ -146,6 +151,10 @@ def select_table(session, target, *, k=None, method: str = "mrmr", include_leaks
         Shuffles of the target within the strata of the chosen columns, per step.
     fdr : float, default=0.05
         False discovery rate of the steps' significance.
+    progress : callable, optional
+        Called as ``progress(fraction, message)`` before each step and between
+        blocks of shuffles (the live profile reports and cancels through it: an
+        exception it raises stops the selection).
 
     Returns
     -------
@@ -163,6 +172,10 @@ def select_table(session, target, *, k=None, method: str = "mrmr", include_leaks
 
     Notes
     -----
+    The session keeps the last tables (by these arguments, its estimator settings,
+    seed and the encoded columns), so asking again, as a view does when its method
+    control goes back, costs nothing; a copy is returned.
+
     Information does not say why: a chosen column may only stand in for a cause.
     Selection on the same rows makes the gains of later steps optimistic; the
     permutation test accounts for the choice within a step, not for the whole path.
@@ -195,9 +208,6 @@ def select_table(session, target, *, k=None, method: str = "mrmr", include_leaks
     >>> out["column"].tolist(), out["status"].tolist()   # the copy adds nothing: b is tried, and stops
     (['a', 'b'], ['selected', 'stop'])
     """
-    from infoscope.estimators.information import benjamini_hochberg
-    from infoscope.estimators.resampling import _rng
-
     method = check_choice(method, SELECTION_METHODS, "method")
     if k is not None and (isinstance(k, bool) or not isinstance(k, (int, np.integer)) or k < 1):
         raise ValueError(f"k={k!r} must be None or a whole number >= 1")
@@ -207,6 +217,38 @@ def select_table(session, target, *, k=None, method: str = "mrmr", include_leaks
         raise ValueError(f"fdr={fdr!r} must be a number in (0, 1)")
     s = session.settings
     target = session.column(target).name
+    key = (target, k, method, bool(include_leaks), int(n_permutations), float(fdr), s["estimator"], s["alpha"],
+           s["base"], s["seed"])
+    columns = tuple(session.column(name) for name in session.names)
+    cache = session._selection_cache
+    hit = cache.get(key)
+    if hit is not None and len(hit[0]) == len(columns) and all(a is b for a, b in zip(hit[0], columns)):
+        return _copy(hit[1])
+    out = _select(session, target, k, method, include_leaks, int(n_permutations), float(fdr), progress)
+    if s["seed"] is None:
+        return out  # a fresh random seed each call: nothing to keep
+    # keep only tables of the current encodings (an old one holds old codes alive)
+    for stale in [key_ for key_, (cols_, _) in cache.items() if not all(a is b for a, b in zip(cols_, columns))]:
+        del cache[stale]
+    if len(cache) >= _CACHED_TABLES:
+        cache.pop(next(iter(cache)))  # the oldest
+    cache[key] = (columns, _copy(out))
+    return out
+
+
+def _copy(table: pd.DataFrame) -> pd.DataFrame:
+    out = table.copy()
+    out.attrs = dict(table.attrs)
+    return out
+
+
+def _select(session, target, k, method, include_leaks, n_permutations, fdr, progress) -> pd.DataFrame:
+    """The selection itself (see :func:`select_table`): arguments checked, ``target`` a key."""
+    from infoscope.estimators.information import benjamini_hochberg
+    from infoscope.estimators.resampling import _rng
+
+    s = session.settings
+    report = progress if progress is not None else (lambda fraction, message: None)
     divisor = log_base(s["base"])
     h = _entropy_nats_fn(s)
     names = [n for n in session.names if n != target]
@@ -251,7 +293,11 @@ def select_table(session, target, *, k=None, method: str = "mrmr", include_leaks
         else:
             scores = {c: cmim_min[c] for c in remaining}
         best = max(remaining, key=lambda c: (scores[c], relevance[c]))  # ties: the more relevant
-        gain, supported, p_value, note = _step_test(cols, best, remaining, chosen, target, h, n_permutations, rng, fdr)
+        step_no = len(steps) + 1
+        report(len(steps) / max(limit, 1), f"Selection: testing step {step_no} ({best!r})...")
+        gain, supported, p_value, note = _step_test(cols, best, remaining, chosen, target, h, n_permutations, rng, fdr,
+                                                    _BACKEND, lambda: report(len(steps) / max(limit, 1),
+                                                                             f"Selection: testing step {step_no}..."))
         steps.append({
             "column": best, "relevance": relevance[best] / divisor, "criterion": scores[best] / divisor,
             "gain": gain / divisor if supported else math.nan, "gain_supported": supported,
@@ -318,69 +364,64 @@ def _sum_nlogn(counts: np.ndarray) -> np.ndarray:
 
 
 class _Candidate:
-    """A candidate's fixed part under shuffles of Y within strata: its rows, (X, Z) cells and dof."""
+    """A candidate's fixed part under shuffles of Y within strata: its rows, (X, Z) cells and dof.
+
+    Rows are in the order of the strata (the order the shuffles come in), so a
+    shuffled target is counted as it is drawn, without putting it back in row order
+    (the counts do not depend on the order of the rows).
+    """
 
     def __init__(self, x: np.ndarray, present: np.ndarray, z: np.ndarray, kz: int, y: np.ndarray, ky: int):
-        self.present = None if present.all() else present
-        self.z = z if self.present is None else z[present]
+        self.rows = None if present.all() else np.flatnonzero(present)
+        self.z = z if self.rows is None else z[self.rows]
         self.n = int(self.z.size)
-        xz_raw = (x if self.present is None else x[present]) * kz + self.z
+        xz_raw = (x if self.rows is None else x[self.rows]) * kz + self.z
         xz_codes, xz_index = np.unique(xz_raw, return_inverse=True)
         self.xz = xz_index.astype(np.int64).reshape(-1)
         self.kxz = int(xz_codes.size)
         self.kz, self.ky = kz, ky
-        self._table = None
+        self.xz_base = self.xz * ky
+        self.z_base = self.z * ky
         self.s_xz = float(_sum_nlogn(np.bincount(self.xz).astype(np.float64)))
         self.s_z = float(_sum_nlogn(np.bincount(self.z, minlength=kz).astype(np.float64)))
         # dof of the conditional G-test: sum over strata of (distinct x - 1)(distinct y - 1)
         rx = np.bincount(xz_codes % kz, minlength=kz)
-        yy = y if self.present is None else y[present]
+        yy = y if self.rows is None else y[self.rows]
         ry = np.bincount(np.unique(self.z * ky + yy) // ky, minlength=kz)
         self.dof = int(np.sum(np.maximum(rx - 1, 0) * np.maximum(ry - 1, 0)))
-        self.s_yz_fixed = None if self.present is not None else float(
+        # with every row present the (Y, Z) table is the same in every shuffle
+        self.s_yz_fixed = None if self.rows is not None else float(
             _sum_nlogn(np.bincount(self.z * ky + yy, minlength=kz * ky).astype(np.float64)))
+        from scipy.special import xlogy
 
-    def g_statistics(self, y_rows: np.ndarray) -> np.ndarray:
+        j = np.arange(self.n + 1, dtype=np.float64)
+        self._lut = xlogy(j, j)  # j ln j for every count a cell can hold
+
+    def g_statistics(self, y_rows: np.ndarray, backend: str = "auto") -> np.ndarray:
         """G = 2 n I_plugin(X;Y|Z) for each row of ``y_rows`` (b, rows): 2 (S_xyz + S_z - S_xz - S_yz)."""
-        yv = y_rows if self.present is None else y_rows[:, self.present]
-        b = yv.shape[0]
-        cells = self.kxz * self.ky
-        dtype = np.int32 if b * cells < 2**31 else np.int64
-        index = yv.astype(dtype)  # a fresh array: the in-place additions below do not touch y_rows
-        index += (self.xz * self.ky).astype(dtype)[None, :]
-        index += (np.arange(b, dtype=dtype) * cells)[:, None]
-        xyz = np.bincount(index.ravel(), minlength=b * cells).reshape(b, cells)
-        s_xyz = self._nlogn(xyz)
+        from infoscope.engine.strata import table_scores
+
+        s_xyz = table_scores(y_rows, self.xz_base, self.kxz * self.ky, self._lut, rows=self.rows,
+                             backend=backend)
         if self.s_yz_fixed is not None:
             s_yz = self.s_yz_fixed
         else:
-            cells_yz = self.kz * self.ky
-            index = yv.astype(dtype)
-            index += (self.z * self.ky).astype(dtype)[None, :]
-            index += (np.arange(b, dtype=dtype) * cells_yz)[:, None]
-            s_yz = self._nlogn(np.bincount(index.ravel(), minlength=b * cells_yz).reshape(b, cells_yz))
+            s_yz = table_scores(y_rows, self.z_base, self.kz * self.ky, self._lut, rows=self.rows,
+                                backend=backend)
         return np.maximum(2.0 * (s_xyz + self.s_z - self.s_xz - s_yz), 0.0)
 
-    def _nlogn(self, counts: np.ndarray) -> np.ndarray:
-        """Row sums of n ln n of integer counts, by a lookup table of j ln j (j <= n)."""
-        if self._table is None:
-            from scipy.special import xlogy
-
-            j = np.arange(self.n + 1, dtype=np.float64)
-            self._table = xlogy(j, j)
-        return self._table[counts].sum(axis=-1)
-
-    def statistic(self, y_rows: np.ndarray) -> np.ndarray:
+    def statistic(self, y_rows: np.ndarray, backend: str = "auto") -> np.ndarray:
         """-log of the chi-square tail of G: one scale for candidates with many and few symbols."""
         from scipy.stats import chi2
 
         if self.dof <= 0:
             return np.zeros(y_rows.shape[0])
-        return -chi2.logsf(self.g_statistics(y_rows), self.dof)
+        return -chi2.logsf(self.g_statistics(y_rows, backend), self.dof)
 
 
 def _step_test(cols: _Columns, best: str, remaining: list[str], chosen: list[str], target: str, h,
-               n_permutations: int, rng, fdr: float) -> tuple[float, bool, float, str]:
+               n_permutations: int, rng, fdr: float, backend: str = "auto",
+               between=None) -> tuple[float, bool, float, str]:
     """The gain I(best; Y | chosen) (nats), whether it is supported, its max-statistic p-value, a note.
 
     The statistic of a candidate is its conditional G-test's chi-square tail on a log
@@ -415,16 +456,18 @@ def _step_test(cols: _Columns, best: str, remaining: list[str], chosen: list[str
         f"{cells:,} cells for {n_best:,} rows (fewer than 5 per cell); the p-value stays valid")
     if n_rows < 2 or n_best < 2:
         return gain, False, 1.0, note or "too few rows to test"
-    cands = {c: _Candidate(cols.codes[c][rows], cols.present[c][rows], z_all, kz, y, ky) for c in remaining}
-    observed = float(cands[best].statistic(y[None, :])[0])
-    # null: shuffle the target within the strata of the chosen columns; record the
-    # largest statistic over every remaining candidate for each shuffle
+    # rows in the order of the strata: the shuffles are drawn in that order and counted as drawn
     order = np.argsort(z_all, kind="stable")
     zs = z_all[order]
+    ys = y[order]
+    sorted_rows = rows[order]
+    cands = {c: _Candidate(cols.codes[c][sorted_rows], cols.present[c][sorted_rows], zs, kz, ys, ky)
+             for c in remaining}
+    observed = float(cands[best].statistic(ys[None, :], backend)[0])
+    # null: shuffle the target within the strata of the chosen columns; record the
+    # largest statistic over every remaining candidate for each shuffle
     cuts = np.flatnonzero(np.diff(zs)) + 1
     starts, ends = np.r_[0, cuts], np.r_[cuts, n_rows]
-    inverse = np.empty_like(order)
-    inverse[order] = np.arange(n_rows)
     largest = max(c.kxz * ky for c in cands.values())
     per_block = max(1, min(_SHUFFLE_BLOCK, _BLOCK_CELLS // max(n_rows, largest)))
     tolerance = 1e-9 * (1.0 + abs(observed))
@@ -433,12 +476,14 @@ def _step_test(cols: _Columns, best: str, remaining: list[str], chosen: list[str
     h_stop = math.floor(fdr * (n_permutations + 1)) + 1
     done = exceed = 0
     while done < n_permutations:
+        if between is not None and done:
+            between()
         b = min(per_block, n_permutations - done)
-        shuffled = _shuffle_within(rng, y[order], zs, starts, ends, b)[:, inverse]  # (b, rows) in row order
+        shuffled = _shuffle_within(rng, ys, zs, starts, ends, b)  # (b, rows) in strata order
         null_max = np.zeros(b)  # every statistic is >= 0 (a candidate with dof 0 scores 0)
         for cand in cands.values():
             if cand.dof > 0:
-                np.maximum(null_max, cand.statistic(shuffled), out=null_max)
+                np.maximum(null_max, cand.statistic(shuffled, backend), out=null_max)
         hits = np.flatnonzero(null_max >= observed - tolerance)
         if exceed + hits.size >= h_stop:
             last = done + int(hits[h_stop - exceed - 1]) + 1  # the shuffle that made h

@@ -165,6 +165,8 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Draft
         self._relevance_cache: dict = {}  # (column, target) -> (columns, settings, row)
         # (a, b) -> (columns, test and level, MI interval in nats): tables/intervals.py
         self._interval_cache: dict = {}
+        # select() tables by their arguments and the encoded columns: frame/selection.py
+        self._selection_cache: dict = {}
         # measure -> (memo key, the last full pairs() table): matrix() reuses it
         self._pairs_memo: dict = {}
         self._pairs_estimated: list[tuple[str, str]] = []

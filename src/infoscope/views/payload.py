@@ -261,8 +261,10 @@ def view_data(session, parts, *, order: str = "cluster", alpha_fdr: float = 0.05
         target = settings.get("target")
         table = None
         if target is not None:
+            # the step callback between blocks of shuffles: progress, and the widget's cancel
             table = select_table(session, target, k=selection_k, method=selection_method,
-                                 n_permutations=SELECTION_PERMUTATIONS, fdr=alpha_fdr)
+                                 n_permutations=SELECTION_PERMUTATIONS, fdr=alpha_fdr,
+                                 progress=lambda fraction, message: step(0.8 + 0.05 * fraction, message))
         tables["selection"] = table
         out["_selection"] = ser.selection_json(table, target, generation=generation)
     if "surprising" in parts:

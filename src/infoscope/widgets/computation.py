@@ -16,8 +16,21 @@ log = logging.getLogger("infoscope.widgets")
 PAYLOAD_TOP_PAIRS = TOP_PAIRS
 
 
+#: Parts that cost seconds (the selection's permutation tests, when a target is set):
+#: in a recompute with other parts they are split off and requested as a follow-up
+#: generation once the others are shown, so a control move never waits for them.
+DEFERRED_PARTS = frozenset({"selection"})
+
+
 class Computation:
     """Widget part: :meth:`_compute` (settings to the session, then :func:`infoscope.views.view_data`)."""
+
+    def _later_parts(self, parts: set[str]) -> set[str]:
+        """The parts of ``parts`` to compute in a follow-up recompute (see :data:`DEFERRED_PARTS`)."""
+        later = parts & DEFERRED_PARTS
+        if not later or not parts - later or self.target is None:
+            return set()  # alone, or nothing to compute (without a target the part is empty)
+        return set(later)
 
     def _compute(self, gen: int, parts: set[str], snap: dict):
         """Apply the snapshot's settings to the session and build ``parts``; returns the trait values."""

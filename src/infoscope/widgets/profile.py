@@ -284,6 +284,8 @@ class ProfileWidget(_ProfileBase):
     """
 
     _view = t.Unicode("profile").tag(sync=True)
+    #: the selection (with a target) comes as a follow-up recompute (computation.DEFERRED_PARTS)
+    _parts = ("entropy", "grid", "pair", "relevance", "selection")
 
     def to_html(self, path=None, *, min_count=None):
         """Write the profile as one self-contained HTML file that works offline.

@@ -118,6 +118,8 @@ class Scheduler:
                     return  # superseded before it started
                 parts = set(self._pending_parts)
                 self._pending_parts = set()
+                later = self._later_parts(parts)  # costly parts: a follow-up once the others are shown
+                parts -= later
                 snapshot = self._snapshot()
                 self._run_started = time.monotonic()
             try:
@@ -125,10 +127,10 @@ class Scheduler:
             except Cancelled:
                 with self._lock:
                     latest = gen == self._requested
-                    if latest:
-                        # a cancel (not a newer request): controls return to what is shown
-                        self._pending_parts |= parts
-                if latest:
+                    # the parts are still to do: a newer request (the worker runs one
+                    # at a time, so it starts after this returns) or the next one takes them
+                    self._pending_parts |= parts | later
+                if latest:  # a cancel (not a newer request): controls return to what is shown
                     self._revert()
                     self._status = {"state": "idle", "generation": self._applied, "progress": None,
                                     "message": "Cancelled: the view shows the last finished settings.",
@@ -139,12 +141,19 @@ class Scheduler:
                 with self._lock:
                     latest = gen == self._requested
                     if latest:
-                        self._pending_parts |= parts
+                        self._pending_parts |= parts | later
                 if latest:
                     self._status = {"state": "error", "generation": gen, "progress": None,
                                     "message": f"{type(exc).__name__}: {exc}", "notes": []}
                 return
             self._apply(gen, result, notes, snapshot)
+            if later:
+                with self._lock:
+                    newer = gen != self._requested
+                    if newer:
+                        self._pending_parts |= later  # the newer request does them
+                if not newer:
+                    self._request(later)
         finally:
             with self._idle:
                 self._outstanding -= 1

@@ -1485,15 +1485,22 @@ var STATUS_WORDS = {
   constant: "left out: one value",
   id_like: "left out: an identifier"
 };
+function selectionState(data, { target, method, k }) {
+  if (target == null) return "no_target";
+  if (!data || data.target == null || String(data.target) !== String(target)) return "computing";
+  const same = (data.method == null || data.method === method) && (data.k ?? null) === (k ?? null);
+  return same ? "ready" : "stale";
+}
+var isolate = (text) => `⁨${text}⁩`;
 function cellWords(cell, hidden) {
-  const v = (x, sym) => hidden ? "(hidden)" : x != null ? String(x) : sym != null ? String(sym) : "missing";
-  const own = `${cell.column} = ${v(cell.value, cell.symbol)}`;
-  return cell.parent != null ? `${own} given ${cell.parent} = ${v(cell.parent_value, cell.parent_symbol)}` : own;
+  const v = (x, sym) => hidden ? "(hidden)" : x != null ? isolate(String(x)) : sym != null ? isolate(String(sym)) : "missing";
+  const own = `${isolate(String(cell.column))} = ${v(cell.value, cell.symbol)}`;
+  return cell.parent != null ? `${own} given ${isolate(String(cell.parent))} = ${v(cell.parent_value, cell.parent_symbol)}` : own;
 }
 
 // src/views/selection.js
 var METHOD_WORDS = { mrmr: "mRMR (Peng, Long & Ding 2005)", jmi: "JMI (Yang & Moody 1999)", cmim: "CMIM (Fleuret 2004)" };
-function selectionView(ctx) {
+function selectionView(ctx, { onlyWithTarget = false } = {}) {
   const el = h("section", { class: "isc-panel isc-selection", "aria-label": "selection" });
   const sub = h("span", { class: "isc-punit" });
   const tools = h("div", { class: "isc-seltools" });
@@ -1518,19 +1525,25 @@ function selectionView(ctx) {
   });
   if (!ctx.offline) tools.append(h("label", null, "method ", method), h("label", null, " steps ", kBox));
   function draw() {
+    keepFocus(body, drawRows);
+  }
+  function drawRows() {
     clear(body);
     clear(legend);
     clear(sub);
     method.value = ctx.get("selection_method") || "mrmr";
     const k = ctx.get("selection_k");
-    kBox.value = k == null ? "" : String(k);
+    if (document.activeElement !== kBox) kBox.value = k == null ? "" : String(k);
     const data = parseJSON(ctx.get("_selection"));
-    if (!data || data.target == null) {
-      body.append(h("div", { class: "isc-empty" }, ctx.get("target") != null ? "Computing…" : "Pick a target in the controls to choose columns for it."));
+    const state = selectionState(data, { target: ctx.get("target"), method: method.value, k });
+    el.style.display = onlyWithTarget && state === "no_target" ? "none" : "";
+    if (state === "no_target" || state === "computing") {
+      body.append(h("div", { class: "isc-empty" }, state === "computing" ? "Choosing columns for the target…" : "Pick a target in the controls to choose columns for it."));
       return;
     }
     const unit = data.unit || ctx.unit();
     sub.append("columns for ", nameEl(data.target), ` by ${METHOD_WORDS[data.method] || data.method}, ${unit}`);
+    if (state === "stale") sub.append(h("span", { class: "isc-stale" }, " · recomputing…"));
     const { steps, leftOut } = splitSelection(table(data));
     const max = niceMax(selectionMax(steps));
     const x = (v) => axisPct(v, max);
@@ -1558,6 +1571,7 @@ function selectionView(ctx) {
           style: { cursor: "default" },
           "data-status": r.status,
           "data-step": String(r.step),
+          "data-keep": `step:${r.step}`,
           onfocus: () => tipOnFocus(rowEl),
           onblur: () => ctx.tip.hide(),
           "aria-label": `step ${r.step}: ${iso(r.column)}, gain ${amount(r.gain)} ${unit}, ${words.join(", ")}`,
@@ -1582,7 +1596,13 @@ function selectionView(ctx) {
     for (const r of leftOut) {
       body.append(h(
         "div",
-        { class: "isc-erow isc-leftout", "data-status": r.status },
+        {
+          class: "isc-erow isc-leftout",
+          "data-status": r.status,
+          tabindex: 0,
+          "data-keep": `out:${r.column}`,
+          "aria-label": `${iso(r.column)}: ${STATUS_WORDS[r.status] || r.status}${r.note ? `; ${r.note}` : ""}`
+        },
         h("span", { class: "isc-name" }, nameEl(r.column)),
         h("span", { class: "isc-track" }),
         h("span", { class: "isc-val" }, val(r.relevance)),
@@ -1637,11 +1657,13 @@ function surprisingView(ctx) {
       const list = h("span", { class: "isc-surcells" });
       cells.forEach((c, j) => {
         if (j) list.append(" · ");
+        const value = hidden ? "(hidden)" : c.value != null ? c.value : c.symbol != null ? c.symbol : null;
         list.append(h(
           "span",
           { class: "isc-surcell", title: cellWords(c, hidden), "data-bits": String(c.bits) },
           nameEl(c.column),
-          hidden ? " (hidden)" : ` = ${c.value != null ? c.value : c.symbol != null ? c.symbol : "missing"}`,
+          " = ",
+          value == null ? "missing" : hidden ? value : h("bdi", null, String(value)),
           c.parent != null ? [" given ", nameEl(c.parent)] : null,
           h("b", null, ` ${num(c.bits, 3)} bits`)
         ));
@@ -1754,16 +1776,13 @@ function render({ model, el }, memory = createMemory()) {
       h("div", { class: "isc-row" }, parts.pair.el, parts.relevance.el),
       h("div", { class: "isc-row" }, parts.drift.el)
     );
-    const extra = [];
-    if (model.get("_selection")) {
-      parts.selection = selectionView(ctx);
-      extra.push(parts.selection.el);
-    }
+    parts.selection = selectionView(ctx, { onlyWithTarget: true });
+    const extra = [parts.selection.el];
     if (model.get("_surprising")) {
       parts.surprising = surprisingView(ctx);
       extra.push(parts.surprising.el);
     }
-    if (extra.length) root.append(h("div", { class: "isc-row" }, ...extra));
+    root.append(h("div", { class: "isc-row" }, ...extra));
   } else {
     const make = {
       entropy: entropyView,
