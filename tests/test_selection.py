@@ -25,7 +25,8 @@ import pytest
 
 import infoscope  # noqa: F401  (registers the accessor)
 from infoscope.datasets import PLANTED, make_deliveries
-from infoscope.frame.selection import SELECTION_COLUMNS, SELECTION_STATUS
+from infoscope.frame.selection import SELECTION_COLUMNS, SELECTION_STATUS, select_table
+from infoscope.frame.session import ProfileSession
 
 
 # ------------------------------------------------------------------ direct implementation
@@ -230,3 +231,59 @@ def test_docstring_examples_run():
 
     result = doctest.testmod(selection, optionflags=doctest.NORMALIZE_WHITESPACE)
     assert result.attempted > 0 and result.failed == 0
+
+
+@pytest.mark.parametrize("method", ["mrmr", "jmi", "cmim"])
+def test_compiled_and_numpy_counting_give_the_same_selection(method, monkeypatch):
+    # the compiled kernel (engine/strata.py) against one numpy.bincount over every
+    # shuffle: the same tables, so the same steps, gains and p-values; the frame has
+    # missing values (candidates on part of the rows) and a 400-level column (more
+    # than 256 strata once chosen: the sorting shuffle)
+    from infoscope.engine.counting import numba_ready
+    from infoscope.frame import selection
+
+    assert numba_ready(wait=True)
+    rng = np.random.default_rng(3)
+    n = 3000
+    a = rng.integers(0, 4, n)
+    many = rng.integers(0, 400, n)
+    y = ((a + (many % 3) + rng.integers(0, 2, n)) % 3).astype(str)
+    b = np.where(rng.random(n) < 0.1, np.nan, rng.normal(size=n) + (y == "1"))
+    df = pd.DataFrame({"a": a.astype(str), "many": many, "b": b, "c": rng.integers(0, 3, n).astype(str), "y": y})
+    tables = {}
+    for backend in ("numpy", "numba"):
+        monkeypatch.setattr(selection, "_BACKEND", backend)
+        s = ProfileSession(df, categorical_threshold=500, max_categories=500)
+        tables[backend] = selection.select_table(s, "y", method=method, k=4, n_permutations=99)
+    pd.testing.assert_frame_equal(tables["numpy"], tables["numba"])
+    assert tables["numba"]["step"].notna().sum() == 4
+
+
+def test_table_scores_count_what_bincount_counts():
+    # reference: numpy.bincount of each shuffle's cells, then sum of j ln j (scipy xlogy)
+    from scipy.special import xlogy
+
+    from infoscope.engine.strata import table_scores
+
+    rng = np.random.default_rng(8)
+    y = rng.integers(0, 3, (7, 500))
+    base = rng.integers(0, 20, 300) * 3
+    rows = np.sort(rng.choice(500, 300, replace=False))
+    lut = xlogy(np.arange(501.0), np.arange(501.0))
+    expected = [xlogy(c, c).sum() for c in (np.bincount(base + y[i, rows], minlength=60) for i in range(7))]
+    for backend in ("numpy", "numba"):
+        np.testing.assert_allclose(table_scores(y, base, 60, lut, rows=rows, backend=backend), expected, rtol=1e-12)
+
+
+def test_select_tables_are_kept_by_arguments_and_encodings():
+    rng = np.random.default_rng(4)
+    a = rng.integers(0, 3, 800)
+    df = pd.DataFrame({"a": a, "b": rng.normal(size=800), "y": (a % 2) ^ (rng.random(800) < 0.1)})
+    s = ProfileSession(df)
+    first = select_table(s, "y", n_permutations=49)
+    first.loc[0, "column"] = "changed by the user"  # a copy: the kept table is not touched
+    again = select_table(s, "y", n_permutations=49)
+    assert again.loc[0, "column"] == "a" and len(s._selection_cache) == 1
+    s.update(bins=3)  # new encodings: computed again, the old entry let go
+    select_table(s, "y", n_permutations=49)
+    assert len(s._selection_cache) == 1
