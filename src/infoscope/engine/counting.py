@@ -301,6 +301,11 @@ def _load_numba_kernels() -> None:
         _numba_kernels.count_pairs_serial(*args)
         with _PARALLEL_LOCK:
             _numba_kernels.count_pairs(*args)
+        # the selection test's counting kernels (engine/strata.py) load with them, so that
+        # numba_ready() means "no compile left" and the widget's worker never compiles
+        from infoscope.engine import _numba_strata
+
+        _numba_strata.warm()
         _NUMBA_STATE["ready"] = True
 
 

@@ -6,7 +6,8 @@ shuffle and every candidate, needs ``sum over cells of n ln n`` of the table of
 (candidate and strata cell, shuffled target).  :func:`table_scores` counts and
 scores all shuffles of one candidate in one call: a compiled kernel
 (``_numba_strata``, serial, without the GIL) once numba's kernels are loaded
-(:func:`infoscope.engine.counting.numba_ready`), else one ``numpy.bincount`` over
+(:func:`infoscope.engine.counting.numba_ready`, which loads these with the counting
+kernels, so nothing compiles on a widget's worker thread), else one ``numpy.bincount`` over
 all shuffles.  Both count the same integers; the sums differ only in the order of
 floating-point additions (about 1e-13 relative).
 """

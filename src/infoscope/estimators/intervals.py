@@ -400,7 +400,7 @@ def intervals_from_statistics(g, dof, n, chance, *, level=0.95, p_values=None):
     >>> bool(0 < low[0] < est[0] < high[0])
     True
     """
-    level = _check_level(level)
+    level = check_level(level)
     g = np.asarray(g, dtype=np.float64).reshape(-1)
     dof = np.asarray(dof, dtype=np.float64).reshape(-1)
     n = np.asarray(n, dtype=np.float64).reshape(-1)
