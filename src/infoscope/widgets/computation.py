@@ -27,7 +27,8 @@ class Computation:
 
     def _later_parts(self, parts: set[str]) -> set[str]:
         """The parts of ``parts`` to compute in a follow-up recompute (see :data:`DEFERRED_PARTS`)."""
-        later = parts & DEFERRED_PARTS
+        # a session of count tables only (out of core) builds no selection at all
+        later = parts & DEFERRED_PARTS & set(getattr(self._session, "view_parts", DEFERRED_PARTS))
         if not later or not parts - later or self.target is None:
             return set()  # alone, or nothing to compute (without a target the part is empty)
         return set(later)
