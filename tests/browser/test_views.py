@@ -167,7 +167,12 @@ def payloads():
 
     wo = _quiet(ProfileWidget, _quiet(ProfileSession, odd_names_frame(), n_boot=0), threaded=False,
                 target=RTL, selected_pair=[RTL, LONG], selected_column=LONG)
-    return {"base": base, "answers": answers, "evil": _quiet(ws.payload),
+    # a weighted profile (observation weights in column "w"): the caution says so
+    weighted = make_deliveries(400, seed=6)
+    weighted["w"] = np.random.default_rng(2).lognormal(0.0, 1.0, len(weighted))
+    ww = _quiet(ProfileWidget, _quiet(ProfileSession, weighted, n_boot=0, weights="w"), threaded=False,
+                target="late")
+    return {"base": base, "answers": answers, "evil": _quiet(ws.payload), "weighted": _quiet(ww.payload),
             "evil_name": evil_name, "evil_value": evil_value, "odd": _quiet(wo.payload), "wide_pair": wide_pair,
             "drift": drift}
 
@@ -810,4 +815,15 @@ def test_selection_and_surprising_rows_keep_odd_names_in_place(harness, web, pay
     assert page.locator(f".isc-selection bdi[title='{RTL}']").count() >= 1
     titles = page.eval_on_selector_all(".isc-surprising .isc-surcell", "els => els.map(e => e.title)")
     assert titles and all(t.startswith("\u2068") for t in titles)  # names isolated in the plain-text title
+    assert web.page_errors == [] and web.outside_requests == []
+
+
+def test_a_weighted_profile_says_so_and_its_selection_says_why_it_is_empty(harness, web, payloads):
+    page = harness("?payload=weighted")
+    meta = payloads["weighted"]["state"]["_meta"]
+    caution = page.text_content(".isc-caution")
+    assert "Rows weighted by" in caution and "effective sample size" in caution
+    assert f"{round(meta['n_effective']):,}" in caution
+    assert "does not take observation weights" in page.text_content(".isc-selection")
+    assert page.locator(".isc-surprising").count() == 0  # no surprising rows part for weighted rows
     assert web.page_errors == [] and web.outside_requests == []

@@ -44,6 +44,10 @@ export function selectionView(ctx, { onlyWithTarget = false } = {}) {
         : "Pick a target in the controls to choose columns for it."));
       return;
     }
+    if (data.note) { // the kernel says why there is no selection for this target
+      body.append(h("div", { class: "isc-empty" }, String(data.note)));
+      return;
+    }
     const unit = data.unit || ctx.unit();
     sub.append("columns for ", nameEl(data.target), ` by ${METHOD_WORDS[data.method] || data.method}, ${unit}`);
     // the controls moved and the kernel has not answered yet: say that these are the last numbers

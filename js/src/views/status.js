@@ -43,6 +43,10 @@ export function cautionView(ctx) {
     const busy = (ctx.get("_status") || {}).state === "computing";
     if (sampled) el.append(h("span", { class: "isc-sampled" }, `Sampled: these numbers come from a seeded sample of ${count(sampled)} rows${meta.n_rows ? ` of ${count(meta.n_rows)}` : ""}${busy && !ctx.offline ? "; the full data follow" : ""}.`));
     el.append(h("span", null, `Estimates from ${n ? `${count(n)} rows` : "a sample"}, with ${levelText(data.ci)} intervals; they carry sampling error.`));
+    if (meta.weights != null) {
+      el.append(h("span", { class: "isc-weighted" }, "Rows weighted by ", h("bdi", null, String(meta.weights)),
+        `: an effective sample size of ${count(Math.round(meta.n_effective || 0))} rows (Kish), which the bias corrections, intervals and tests use.`));
+    }
     el.append(h("span", null, "Mutual information measures dependence, not cause."));
     el.append(h("span", null, "Bias-corrected estimates near 0 can be slightly negative."));
     el.append(h("span", null, "Profiles of personal data can reveal rare values: hide small cells, and follow the law and policy that apply."));

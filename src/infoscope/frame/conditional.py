@@ -158,6 +158,7 @@ def conditional_table(session, x, y, given=(), *, n_permutations: int = 999) -> 
     )
     from infoscope.estimators.significance import table_reliability
 
+    session._refuse_weights("conditional()")
     given = _given_list(given)
     names = [x, y, *given]
     cols = [session.column(name) for name in names]  # KeyError names an unknown column

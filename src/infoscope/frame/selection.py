@@ -215,6 +215,7 @@ def select_table(session, target, *, k=None, method: str = "mrmr", include_leaks
         raise ValueError(f"n_permutations={n_permutations!r} must be a whole number >= 1")
     if not (isinstance(fdr, (int, float)) and 0 < fdr < 1):
         raise ValueError(f"fdr={fdr!r} must be a number in (0, 1)")
+    session._refuse_weights("select()")
     s = session.settings
     target = session.column(target).name
     key = (target, k, method, bool(include_leaks), int(n_permutations), float(fdr), s["estimator"], s["alpha"],

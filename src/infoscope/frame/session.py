@@ -107,6 +107,18 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Draft
         Bootstrap replicates of the entropy intervals: 0 skips them (NaN), else at
         least ``2 / (1 - ci)`` (40 at 95%).  The mutual information intervals need
         no bootstrap (:mod:`infoscope.estimators.intervals`).
+    weights : str, optional
+        Key of a column of observation weights (survey or sampling weights: finite,
+        >= 0, not all 0).  That column is not profiled; every count table holds
+        *effective counts*: the summed weights rescaled to Kish's effective sample
+        size of its rows and rounded (:mod:`infoscope.engine.weighted`), so the
+        bias corrections, intervals and tests read the effective sample size.
+        Tables say so in ``attrs["weights"]`` and ``attrs["n_effective"]``; ``n``
+        of the pair and relevance tables is then the pair's effective rows.  Only
+        the estimators of ``infoscope.estimators.multivariate.WEIGHTED_ESTIMATORS``
+        take weights, and the tables built on rows rather than counts (``select``,
+        ``conditional``, ``tree``, ``surprising_rows``, drift) refuse them.  Set
+        when the session is made.
 
     Attributes
     ----------
@@ -155,6 +167,14 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Draft
         self._rows = self._sample_rows(self._n_rows)
         # one Series per key, positional (safe with repeated or odd column labels)
         self._series = {key: pdf.iloc[:, i] for i, key in enumerate(self._names)}
+        self._weight_key = None
+        if self._settings["weights"] is not None:
+            # the weight column is a setting, not a profiled column
+            self._weight_key = self._check_name(self._settings["weights"], "weights")
+            self._settings["weights"] = self._weight_key
+            self._names = [k for k in self._names if k != self._weight_key]
+            if not self._names:
+                raise ValueError(f"the frame has only the weight column {self._weight_key!r}: there is nothing to profile")
         self._bins_override: dict[str, object] = {}
         self._encoded: dict[str, object] = {}
         self._engine = None
@@ -172,6 +192,25 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Draft
         self._pairs_estimated: list[tuple[str, str]] = []
         self._settings["target"] = self._check_target(self._settings["target"], "target")
         self._encode(self._names)
+
+    # ---------------------------------------------------------- weights
+    def _row_weights(self) -> np.ndarray:
+        """The weights of the profiled rows (after any sample), validated: the column is named in every error."""
+        from infoscope.frame.weights import row_weights
+
+        return row_weights(self._values(self._weight_key), self._weight_key)
+
+    @property
+    def weighted(self) -> bool:
+        """Whether the rows carry observation weights (the ``weights`` setting)."""
+        return getattr(self, "_weight_key", None) is not None
+
+    def _refuse_weights(self, what: str) -> None:
+        """A clear error for a table that works on rows and cannot take weights yet."""
+        if self.weighted:
+            raise ValueError(
+                f"{what} works on the rows themselves and does not take observation weights yet; this profile "
+                f"is weighted by {self._weight_key!r}: make a session without weights= for it")
 
     # ---------------------------------------------------------- state
     @property
@@ -278,6 +317,11 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Draft
         set()
         """
         old = self._settings
+        if "weights" in settings and settings["weights"] is not None and self.weighted:
+            settings = {**settings, "weights": self._check_name(settings["weights"], "weights")}
+        if "weights" in settings and settings["weights"] != old["weights"]:
+            raise ValueError(f"weights={settings['weights']!r}: the weight column is fixed when the session is made "
+                             f"(it is {old['weights']!r}); make a new session")
         merged = _check_settings({**old, **settings}, old)
         merged["target"] = self._check_target(merged["target"], "target")
         resample = merged["sample"] != old["sample"] or (
@@ -389,7 +433,13 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Draft
         if done:
             self._prune_caches()
         if self._engine is None:
-            self._engine = PairEngine([self._encoded[k] for k in self._names], progress=False)
+            columns = [self._encoded[k] for k in self._names]
+            if self.weighted:
+                from infoscope.engine.weighted import WeightedPairEngine
+
+                self._engine = WeightedPairEngine(columns, weights=self._row_weights(), progress=False)
+            else:
+                self._engine = PairEngine(columns, progress=False)
         return done
 
     def _encode_supervised(self, keys) -> None:
@@ -423,14 +473,23 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Draft
 
     # ---------------------------------------------------------- helpers
     def _check_name(self, name, parameter: str) -> str:
+        key = self._find_name(name)
+        if key is not None and key == getattr(self, "_weight_key", None) and parameter != "weights":
+            raise KeyError(f"{parameter}={name!r} is the column of observation weights (weights=): it is not "
+                           "profiled")
+        if key is not None:
+            return key
+        shown = ", ".join(repr(k) for k in self._names[:12]) + (" ..." if len(self._names) > 12 else "")
+        raise KeyError(f"{parameter}={name!r} is not a column of the profile; the columns are: {shown}")
+
+    def _find_name(self, name) -> str | None:
         if isinstance(name, str) and name in self._series:
             return name
         # a MultiIndex tuple or a number names the column whose key it gives (column_keys)
         label = key_text(name) if isinstance(name, (tuple, numbers.Integral)) and not isinstance(name, bool) else name
         if isinstance(label, str) and label in self._series:
             return label
-        shown = ", ".join(repr(k) for k in self._names[:12]) + (" ..." if len(self._names) > 12 else "")
-        raise KeyError(f"{parameter}={name!r} is not a column of the profile; the columns are: {shown}")
+        return None
 
     def _check_target(self, target, parameter: str) -> str | None:
         """The target's column key (a tuple or number label becomes the key), or None."""
@@ -440,6 +499,11 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Draft
         s = self._settings
         attrs = {"unit": unit_name(s["base"]), "estimator": s["estimator"], "sampled": self.sampled,
                  "ci": float(s["ci"])}
+        if self.weighted:
+            eng = self._engine
+            attrs.update(weights=self._weight_key, weight_total=float(eng.weights.sum()),
+                         n_effective=float(eng.n_effective),
+                         n_effective_columns={k: eng.column_n_effective(k) for k in self._names})
         attrs.update(extra)
         return attrs
 

@@ -14,6 +14,7 @@ from infoscope.encode.binning import BIN_RULES, STRATEGIES
 from infoscope.estimators._checks import check_choice, log_base
 from infoscope.estimators.entropy import ENTROPY_ESTIMATORS, resolve_alpha
 from infoscope.estimators.information import NORMALIZATIONS
+from infoscope.estimators.multivariate import WEIGHTED_ESTIMATORS as _WEIGHTED_ESTIMATORS
 
 __all__ = ["CHOICES", "MEASURES", "MISSING_POLICIES", "ORDERS"]
 
@@ -43,6 +44,7 @@ _DEFAULTS = {
     "seed": 0,
     "ci": 0.95,
     "n_boot": 200,
+    "weights": None,
 }
 # the settings that change how a column is encoded (the rest only change numbers)
 _ENCODING_SETTINGS = ("bins", "strategy", "missing", "max_categories", "categorical_threshold")
@@ -119,6 +121,16 @@ def _check_settings(settings: Mapping, previous: Mapping | None = None) -> dict:
     target = s["target"]
     if target is not None and (isinstance(target, bool) or not isinstance(target, (str, tuple, numbers.Integral))):
         raise TypeError(f"target must be a column key (a string, or a MultiIndex tuple) or None, got {target!r}")
+    weights = s["weights"]
+    if weights is not None and (isinstance(weights, bool) or not isinstance(weights, (str, tuple, numbers.Integral))):
+        raise TypeError(f"weights must be the key of the column of observation weights (a string, or a MultiIndex "
+                        f"tuple) or None, got {type(weights).__name__}")
+    if weights is not None and s["bins"] == "mdlp":
+        raise ValueError("bins='mdlp' cuts columns on unweighted rows: it does not take weights= (use a bin number "
+                         "or rule)")
+    if weights is not None and s["estimator"] not in _WEIGHTED_ESTIMATORS:
+        raise ValueError(f"estimator={s['estimator']!r} does not take observation weights (its formula needs the "
+                         f"rows' own counts); with weights= use one of: {', '.join(map(repr, _WEIGHTED_ESTIMATORS))}")
     return s
 
 

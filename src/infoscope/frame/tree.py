@@ -249,6 +249,7 @@ def row_scores(session, *, model: str = "tree", alpha: float = 0.5) -> RowScores
     >>> float(scores.total[0])        # (50 + 0.5) / (100 + 2 * 0.5) = 1/2 for each of two cells
     2.0
     """
+    session._refuse_weights("surprising_rows()")
     from infoscope.estimators._checks import check_choice
 
     check_choice(model, SURPRISE_MODELS, "model")
@@ -346,6 +347,7 @@ def surprising_rows_table(session, n: int = 20, *, model: str = "tree", alpha: f
     >>> int(out["position"][0]), out["cells"][0][0]["column"]
     (7, 'b')
     """
+    session._refuse_weights("surprising_rows()")
     from infoscope.frame.suppression import check_min_count
 
     if isinstance(n, bool) or not isinstance(n, (int, np.integer)) or n < 1:

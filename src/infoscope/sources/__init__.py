@@ -90,6 +90,9 @@ def profile(source, *, memory_limit=DEFAULT_MEMORY_LIMIT, columns=None, progress
             source = source[list(columns)]
         return dask_source.profile_dask(source, progress=progress, **settings)
     merged = _check_settings({**_DEFAULTS, **settings})  # a bad setting fails before any file is read
+    if merged["weights"] is not None:
+        raise ValueError("weights= is not taken by a profile of a file or dataset source yet: load the frame "
+                         "(pandas or Polars) to weight its rows")
     src = open_source(source, columns=columns, sep=sep, encoding=encoding)
     if merged["sample"] is not None:
         return _sampled(src, merged, settings)

@@ -68,6 +68,9 @@ class TableSession(ProfileSession):
                  source: str = "", **settings):
         merged = {**_DEFAULTS, **settings}
         self._settings = _check_settings(merged)
+        if self._settings["weights"] is not None:
+            raise ValueError("weights= is not taken by a profile of tables from a file or cluster source yet: "
+                             "load the frame (pandas or Polars) to weight its rows")
         alphabets = list(alphabets)
         if not alphabets:
             raise ValueError("the source has no columns: there is nothing to profile")

@@ -178,7 +178,8 @@ def meta(session, n_rows: int | None = None) -> dict:
     -------
     dict
         ``names``, ``n_rows``, ``sampled``, ``choices`` (:func:`control_choices`),
-        ``bin_rules``, ``version``.
+        ``bin_rules``, ``version``, ``weights`` (the weight column or None) and
+        ``n_effective`` (Kish's effective sample size of a weighted profile).
 
     Examples
     --------
@@ -187,11 +188,17 @@ def meta(session, n_rows: int | None = None) -> dict:
     >>> meta(ProfileSession(pd.DataFrame({"a": [1, 2, 3]})))["names"]
     ['a']
     """
-    return {
+    out = {
         "names": [str(x) for x in session.names],
         "n_rows": int(session.n_rows if n_rows is None else n_rows),
         "sampled": scalar(session.sampled),
         "choices": control_choices(),
         "bin_rules": list(CHOICES["bin_rule"]),
         "version": __version__,
+        # observation weights: the column and Kish's effective sample size of the rows
+        "weights": None, "n_effective": None,
     }
+    if getattr(session, "weighted", False):
+        out["weights"] = str(session.settings["weights"])
+        out["n_effective"] = scalar(session.engine.n_effective)
+    return out

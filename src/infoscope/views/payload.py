@@ -260,13 +260,18 @@ def view_data(session, parts, *, order: str = "cluster", alpha_fdr: float = 0.05
         step(0.8, "Choosing columns for the target...")
         target = settings.get("target")
         table = None
-        if target is not None:
+        note = None
+        if target is not None and getattr(session, "weighted", False):
+            note = "select() works on the rows themselves and does not take observation weights yet"
+        elif target is not None:
             # the step callback between blocks of shuffles: progress, and the widget's cancel
             table = select_table(session, target, k=selection_k, method=selection_method,
                                  n_permutations=SELECTION_PERMUTATIONS, fdr=alpha_fdr,
                                  progress=lambda fraction, message: step(0.8 + 0.05 * fraction, message))
         tables["selection"] = table
-        out["_selection"] = ser.selection_json(table, target, generation=generation)
+        out["_selection"] = ser.selection_json(table, target, generation=generation, note=note)
+    if "surprising" in parts and getattr(session, "weighted", False):
+        parts = parts - {"surprising"}  # row surprisal needs unweighted rows: no part (the view stays hidden)
     if "surprising" in parts:
         from infoscope.frame.tree import surprising_rows_table, tree_table
 

@@ -362,15 +362,21 @@ SURPRISING_FIELDS = ("rank", "row", "position", "surprisal", "excess", "summary"
 SURPRISING_CELL_KEYS = ("column", "value", "symbol", "bits", "parent", "parent_value", "parent_symbol")
 
 
-def selection_json(table: pd.DataFrame | None, target: str | None, *, generation: int = 0) -> str:
+def selection_json(table: pd.DataFrame | None, target: str | None, *, generation: int = 0,
+                   note: str | None = None) -> str:
     """The ``select()`` table as compact JSON rows; ``{"target": null, ...}`` when there is no target.
 
     ``{"target", "method", "k", "fdr", "stop_step", "n_permutations", "unit", "fields", "rows",
     "statuses" (legend text per status), "generation"}``: one row per step in order, then
-    one per column left out (``step`` null).
+    one per column left out (``step`` null).  With a ``note`` (why there is no
+    selection for this target, e.g. a weighted profile) the record is
+    ``{"target", "note", "rows": [], ...}``.
     """
     from infoscope.frame.selection import SELECTION_STATUS
 
+    if note is not None and target is not None:
+        return dumps({"target": str(target), "note": str(note), "fields": list(SELECTION_FIELDS), "rows": [],
+                      "unit": None, "statuses": dict(SELECTION_STATUS), "generation": int(generation)})
     if table is None or target is None:
         return dumps({"target": None, "fields": list(SELECTION_FIELDS), "rows": [], "unit": None,
                       "statuses": dict(SELECTION_STATUS), "generation": int(generation)})

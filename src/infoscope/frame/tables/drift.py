@@ -129,6 +129,7 @@ class DriftTable:
         >>> d.set_index("column").loc["booking_channel", "flag"]
         'moderate'
         """
+        self._refuse_weights("drift()")
         common, ref_series = self._reference_columns(reference, sides=_sides)
         s = self._settings
         rows = drift_table(
@@ -192,6 +193,7 @@ class DriftTable:
         >>> ProfileSession(cur, n_boot=50).pair_drift(ref).loc[0, "flag"]
         'weaker'
         """
+        self._refuse_weights("pair_drift()")
         common, ref_series = self._reference_columns(reference)
         check_reference_rows({k: ref_series[k] for k in common})
         s = self._settings
@@ -261,6 +263,7 @@ class DriftTable:
         >>> ProfileSession(df).drift_over("t", every="1W")[["period", "flag"]].shape
         (7, 2)
         """
+        self._refuse_weights("drift_over()")
         from infoscope.frame.drift_over import (DRIFT_OVER_COLUMNS, REFERENCE_MODES, assign_periods,
                                                 drift_over_table)
 
@@ -338,6 +341,7 @@ class DriftTable:
         >>> r.worst, r.reaching("moderate"), r.to_dict()["version"]
         ('major', ['c'], 1)
         """
+        self._refuse_weights("drift_report()")
         from infoscope.frame.drift_report import DriftReport, bin_rows
         from infoscope.frame.keys import as_pandas
 
