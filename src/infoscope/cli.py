@@ -7,7 +7,9 @@ declares its options, so that new subcommands slot in beside the others:
   log, :mod:`infoscope.datasets`) and print its tables in the terminal;
   ``--out profile.html`` also writes the self-contained offline profile page.
 * ``infoscope profile DATA.csv|DATA.parquet`` — profile a file of your own: print
-  its tables, and with ``--out`` write the self-contained offline profile page.
+  its tables, and with ``--out`` write the self-contained offline profile page;
+  a glob, a folder or several files are read out of core, ``--dask`` /
+  ``--scheduler`` count on a Dask cluster (:mod:`infoscope.cli_sources`).
 
 Files are read by :func:`infoscope.reading.read_table` (one reader for every
 subcommand: :func:`read_input` with the ``--sep`` / ``--encoding`` options that
@@ -25,6 +27,7 @@ import numpy as np
 import pandas as pd
 
 from infoscope._docs import fill_doc
+from infoscope.cli_sources import add_source_options, open_profile
 from infoscope.reading import ReadError, parse_datetime_columns, read_table
 
 __all__ = ["build_parser", "main", "cmd_demo", "cmd_drift", "cmd_profile", "format_table", "read_input",
@@ -210,10 +213,10 @@ def _notes_section(lines, out) -> None:
 
 @contextlib.contextmanager
 def _refused_as_command_error():
-    """A ValueError, TypeError or KeyError of the library becomes a one-line CommandError."""
+    """A ValueError, TypeError, KeyError or ImportError of the library becomes a one-line CommandError."""
     try:
         yield
-    except (ValueError, TypeError, KeyError) as exc:
+    except (ValueError, TypeError, KeyError, ImportError) as exc:
         raise CommandError(str(exc).strip().splitlines()[0]) from None
 
 
@@ -508,7 +511,10 @@ def add_profile_parser(subparsers) -> argparse.ArgumentParser:
         description="Profile the columns of a CSV or Parquet file: entropy of every column, "
                     "the most informative pairs, relevance to a target; with --out, one "
                     "self-contained HTML page that works offline.")
-    p.add_argument("data", metavar="DATA", help="a .csv (or .csv.gz, .tsv) or .parquet file")
+    p.add_argument("data", metavar="DATA", nargs="+",
+                   help="a .csv (or .csv.gz, .tsv) or .parquet file, read into memory; or a glob "
+                        "('events/*.parquet', quoted), a folder or several files of one kind, read "
+                        "out of core in row batches")
     p.add_argument("--target", default=None, help="column to measure every other column against")
     p.add_argument("--bins", type=_bins_option, default="rows",
                    help="bins for numeric columns: a number or a rule name (fd, scott, sturges, "
@@ -524,6 +530,7 @@ def add_profile_parser(subparsers) -> argparse.ArgumentParser:
     p.add_argument("--top", type=int, default=10, help="pairs to show (default 10)")
     p.add_argument("--title", default=None, help="title of the HTML page")
     add_read_options(p)
+    add_source_options(p)
     _add_export_options(p)
     p.set_defaults(handler=cmd_profile)
     return p
@@ -538,7 +545,8 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
     args : argparse.Namespace
         Parsed options (``data``, ``target``, ``bins``, ``strategy``, ``estimator``,
         ``sample``, ``seed``, ``top``, ``out``, ``min_count``, ``title``, ``sep``,
-        ``encoding``).
+        ``encoding``, ``memory_limit``, ``dask``, ``scheduler``); how DATA is read
+        (in memory, out of core, on Dask) is :mod:`infoscope.cli_sources`.
     {out}
 
     Returns
@@ -558,8 +566,6 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
     """
     from tqdm.auto import tqdm
 
-    from infoscope.frame.session import ProfileSession
-
     out = sys.stdout if out is None else out
     if isinstance(args.bins, int) and args.bins < 1:
         raise CommandError(f"--bins must be >= 1 or a rule name, got {args.bins}")
@@ -567,28 +573,27 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
         raise CommandError(f"--top must be >= 1, got {args.top}")
     if args.sample is not None and args.sample < 1:
         raise CommandError(f"--sample must be >= 1, got {args.sample}")
+    data = args.data if isinstance(args.data, list) else [args.data]
     _check_out(args)
-    steps = ["read", "encode and count", "entropy", "pairs", "relevance"] + (["page"] if args.out else [])
+    steps = ["read, encode and count", "entropy", "pairs", "relevance"] + (["page"] if args.out else [])
     bar = tqdm(total=len(steps), desc="infoscope profile", unit="step", file=sys.stderr, disable=None,
                leave=False)
-    with _noting() as caught:
-        bar.set_postfix_str("reading")
-        frame = read_input(args.data, args)
-        bar.update()
-        if args.target is not None and args.target not in frame.columns:
-            names = ", ".join(repr(str(c)) for c in list(frame.columns)[:12])
-            more = " ..." if frame.shape[1] > 12 else ""
-            raise CommandError(f"--target {args.target!r} is not a column of {args.data!r} "
-                               f"(columns: {names}{more})")
-        bar.set_postfix_str("encoding")
+    settings = dict(bins=args.bins, strategy=args.strategy, estimator=args.estimator, target=args.target,
+                    sample=args.sample, seed=args.seed)
+    with _noting() as caught, contextlib.ExitStack() as stack:
         with _refused_as_command_error():
-            session = ProfileSession(frame, bins=args.bins, strategy=args.strategy,
-                                     estimator=args.estimator, target=args.target,
-                                     sample=args.sample, seed=args.seed)
+            opened = stack.enter_context(
+                open_profile(data, args, settings, read_frame=lambda path: _read_with_target(path, args)))
+        session = opened.session
         bar.update()
-        print(f"infoscope profile: {args.data}, {len(frame)} rows x {frame.shape[1]} columns"
-              + (f"; target {args.target!r}" if args.target else "") + ".", file=out)
-        print_read_notes(frame, out)
+        print(f"infoscope profile: {opened.label}, {session.n_rows} rows x {len(session.names)} columns"
+              + (f"; a seeded sample of {session.sampled} rows" if session.sampled else "")
+              + (f"; target {args.target!r}" if args.target else "") + f"; {opened.how}.", file=out)
+        if opened.frame is not None:
+            print_read_notes(opened.frame, out)
+        elif args.sample is None:
+            print("Out of core the profile holds count tables: entropy, pairs, relevance and the page; "
+                  "--sample N reads a seeded sample for every view.", file=out)
         print(CAUTION, file=out)
         bar.set_postfix_str("entropy")
         entropy = session.entropy()
@@ -612,6 +617,16 @@ def cmd_profile(args: argparse.Namespace, out=None) -> int:
     bar.close()
     _notes_section([f"- {m}" for m in _notes(caught)], out)
     return status
+
+
+def _read_with_target(path: str, args: argparse.Namespace) -> pd.DataFrame:
+    """One file read into memory; ``--target`` checked against its columns."""
+    frame = read_input(path, args)
+    if args.target is not None and args.target not in frame.columns:
+        names = ", ".join(repr(str(c)) for c in list(frame.columns)[:12])
+        more = " ..." if frame.shape[1] > 12 else ""
+        raise CommandError(f"--target {args.target!r} is not a column of {path!r} (columns: {names}{more})")
+    return frame
 
 
 # ------------------------------------------------------------------ infoscope drift

@@ -37,7 +37,7 @@ from pathlib import Path
 import pandas as pd
 
 __all__ = ["ReadError", "read_table", "sniff_csv", "delimiter_name", "parse_datetime_columns",
-           "DATETIME_PARSE_SHARE", "SNIFF_DELIMITERS", "SNIFF_BYTES"]
+           "DATETIME_PARSE_SHARE", "SNIFF_DELIMITERS", "SNIFF_BYTES", "check_sep", "check_encoding"]
 
 #: Delimiters the sniffer chooses among (common practice for delimited text).
 SNIFF_DELIMITERS = ",;\t|"
@@ -90,7 +90,28 @@ def delimiter_name(sep: str) -> str:
     return _DELIMITER_NAMES.get(sep, repr(sep))
 
 
-def _check_sep(sep):
+def check_sep(sep):
+    """The one-character delimiter a ``--sep`` / ``sep=`` option names, or None when not given.
+
+    Parameters
+    ----------
+    sep : str or None
+        One character, or ``tab``, ``comma``, ``semicolon``, ``pipe`` (any case).
+
+    Returns
+    -------
+    str or None
+
+    Raises
+    ------
+    ReadError
+        Not one character (nor a name of one), or a line break or quote.
+
+    Examples
+    --------
+    >>> check_sep("tab"), check_sep(";")
+    ('\\t', ';')
+    """
     if sep is None:
         return None
     if not isinstance(sep, str):
@@ -101,7 +122,28 @@ def _check_sep(sep):
     return named
 
 
-def _check_encoding(encoding):
+def check_encoding(encoding):
+    """The codec name of an ``--encoding`` / ``encoding=`` option (UTF-8 when not given).
+
+    Parameters
+    ----------
+    encoding : str or None
+
+    Returns
+    -------
+    str
+        Python's canonical name of the codec.
+
+    Raises
+    ------
+    ReadError
+        Python knows no such encoding.
+
+    Examples
+    --------
+    >>> check_encoding("latin-1")
+    'iso8859-1'
+    """
     if encoding is None:
         return "utf-8"
     try:
@@ -239,13 +281,13 @@ def _first_line(exc: BaseException) -> str:
 
 
 def _read_csv(file: Path, path: str, name: str, sep, encoding) -> tuple[pd.DataFrame, list[str]]:
-    sep = _check_sep(sep)
+    sep = check_sep(sep)
     if sep is None and name.endswith(_TSV):
         sep = "\t"
         told = "tab (a .tsv file)"
     else:
         told = None if sep is None else f"{delimiter_name(sep)} (--sep)"
-    enc = _check_encoding(encoding)
+    enc = check_encoding(encoding)
     head, complete = _head_bytes(file, name, SNIFF_BYTES)
     text = _decode_head(head, enc, path)
     if not text.strip():

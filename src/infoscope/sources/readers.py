@@ -29,7 +29,7 @@ from pathlib import Path
 import numpy as np
 import pandas as pd
 
-__all__ = ["SourceError", "Source", "open_source", "arrow_to_pandas", "source_kind"]
+__all__ = ["SourceError", "Source", "open_source", "arrow_to_pandas", "source_kind", "csv_delimiter", "local_files"]
 
 _PARQUET = (".parquet", ".pq", ".parq")
 _CSV = (".csv", ".tsv", ".txt", ".tab", ".csv.gz", ".tsv.gz")
@@ -291,7 +291,15 @@ class PolarsSource(Source):
 
 
 # ----------------------------------------------------------------------------- files
-def _files_of(path: str) -> tuple[list[str], str]:
+def _files_of(path) -> tuple[list[str], str]:
+    if isinstance(path, (list, tuple)):  # several paths (a shell's expansion of a glob): each one a file
+        if not path:
+            raise SourceError("no file given")
+        files = []
+        for one in path:
+            files.extend(_files_of(one)[0])
+        label = os.fspath(path[0]) + (f" and {len(path) - 1} more" if len(path) > 1 else "")
+        return sorted(dict.fromkeys(files)), label
     text = os.fspath(path)
     if any(ch in text for ch in "*?["):
         files = sorted(f for f in glob.glob(text, recursive=True) if os.path.isfile(f))
@@ -319,6 +327,37 @@ def _format_of(files: list[str], label: str) -> str:
     if len(kinds) > 1:
         raise SourceError(f"{label}: mixes Parquet and CSV files; profile one kind at a time")
     return kinds.pop()
+
+
+def local_files(path) -> tuple[list[str], str]:
+    """The files a path, glob, folder or list of paths names, and their format.
+
+    Parameters
+    ----------
+    path : str, os.PathLike or list of them
+        As :func:`open_source` takes it.
+
+    Returns
+    -------
+    files : list of str
+        Sorted; a folder's hidden files (``.*``, ``_*``) and other formats left out.
+    format : {"parquet", "csv"}
+
+    Raises
+    ------
+    SourceError
+        A missing path, a pattern no file matches, a folder with no data files,
+        a file of another format, or Parquet and CSV files mixed.
+
+    Examples
+    --------
+    >>> local_files("no/such/*.parquet")
+    Traceback (most recent call last):
+    ...
+    infoscope.sources.readers.SourceError: no/such/*.parquet: no file matches this pattern
+    """
+    files, label = _files_of(path)
+    return files, _format_of(files, label)
 
 
 def _parquet_dataset(files: list[str], label: str):
@@ -361,24 +400,51 @@ def _parquet_dataset(files: list[str], label: str):
     return ds.dataset(files, format="parquet", schema=schema)
 
 
+def csv_delimiter(files: list[str], sep=None, encoding=None) -> str:
+    """The delimiter of CSV ``files``: ``sep`` if given, a tab for ``.tsv``, else sniffed from the first file.
+
+    Parameters
+    ----------
+    files : list of str
+        The files (all of one delimiter).
+    sep, encoding : str, optional
+        As given by the user (see :func:`infoscope.reading.read_table`).
+
+    Returns
+    -------
+    str
+
+    Raises
+    ------
+    SourceError
+        The first file is not valid text in ``encoding`` (UTF-8 by default).
+
+    Examples
+    --------
+    >>> csv_delimiter(["a.tsv"])
+    '\\t'
+    """
+    from infoscope.reading import SNIFF_BYTES, check_sep, sniff_csv
+
+    if sep is not None:
+        return check_sep(sep)
+    if files[0].lower().endswith((".tsv", ".tab", ".tsv.gz")):
+        return "\t"
+    with open(files[0], "rb") as fh:
+        head = fh.read(SNIFF_BYTES)
+    try:
+        text = head.decode(encoding or "utf-8-sig", errors="strict")
+    except UnicodeDecodeError:
+        raise SourceError(f"{files[0]}: not valid {encoding or 'UTF-8'} text; give the file's encoding "
+                          "(encoding=)") from None
+    return sniff_csv(text, complete=len(head) < SNIFF_BYTES)["sep"]
+
+
 def _csv_dataset(files: list[str], label: str, sep=None, encoding=None):
     import pyarrow.csv as pcsv
     import pyarrow.dataset as ds
 
-    from infoscope.reading import SNIFF_BYTES, sniff_csv
-
-    if sep is None:
-        if files[0].lower().endswith((".tsv", ".tab", ".tsv.gz")):
-            sep = "\t"
-        else:
-            with open(files[0], "rb") as fh:
-                head = fh.read(SNIFF_BYTES)
-            try:
-                text = head.decode(encoding or "utf-8-sig", errors="strict")
-            except UnicodeDecodeError:
-                raise SourceError(f"{files[0]}: not valid {encoding or 'UTF-8'} text; give the file's encoding "
-                                  "(encoding=)") from None
-            sep = sniff_csv(text, complete=len(head) < SNIFF_BYTES)["sep"]
+    sep = csv_delimiter(files, sep, encoding)
     fmt = ds.CsvFileFormat(parse_options=pcsv.ParseOptions(delimiter=sep),
                            read_options=pcsv.ReadOptions(encoding=encoding or "utf8"))
     return ds.dataset(files, format=fmt)
@@ -387,7 +453,8 @@ def _csv_dataset(files: list[str], label: str, sep=None, encoding=None):
 def source_kind(obj) -> str:
     """What kind of source ``obj`` is: "files", "arrow", "duckdb", "polars_lazy", "polars", "dask",
     "pandas" or "unknown"."""
-    if isinstance(obj, (str, os.PathLike)):
+    if isinstance(obj, (str, os.PathLike)) or (
+            isinstance(obj, (list, tuple)) and obj and all(isinstance(o, (str, os.PathLike)) for o in obj)):
         return "files"
     module = type(obj).__module__.split(".")[0]
     if isinstance(obj, pd.DataFrame):
