@@ -12,7 +12,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from infoscope.encode import summaries
+from infoscope.encode import batch_pass1, batch_specs
 from infoscope.encode.encoder import _encode
 from infoscope.encode.summaries import OutOfCoreError, Pass1, column_specs, encode_batch, merge, summarize
 
@@ -127,10 +127,11 @@ def test_every_setting_decides_the_same_alphabet(settings):
 
 def test_beyond_the_cap_the_order_statistics_come_from_selection_rounds(monkeypatch):
     # a small cap forces the radix selection (several rounds) on a few thousand values
-    monkeypatch.setattr(summaries, "LEVEL_CAP", 40)
-    monkeypatch.setattr(summaries, "COLLECT_MAX", 25)
-    monkeypatch.setattr(summaries, "SELECT_BUCKETS", 8)
-    monkeypatch.setattr(summaries, "_FIRST_BUCKETS", 16)
+    # (each constant patched in the module that reads it)
+    monkeypatch.setattr(batch_specs, "LEVEL_CAP", 40)
+    monkeypatch.setattr(batch_pass1, "COLLECT_MAX", 25)
+    monkeypatch.setattr(batch_pass1, "SELECT_BUCKETS", 8)
+    monkeypatch.setattr(batch_pass1, "_FIRST_BUCKETS", 16)
     frame = _mixed_frame(4000, seed=3)
     rng = np.random.default_rng(5)
     frame["ties"] = np.round(rng.normal(size=4000), 1)  # heavy ties inside the selected ranges
@@ -153,3 +154,18 @@ def test_a_batch_of_another_type_names_the_column_and_both_types():
 def test_width_rules_need_memory_and_say_so():
     with pytest.raises(OutOfCoreError, match=r"column 'a'.*bins='fd'.*sample="):
         column_specs({"a": np.dtype(np.float64)}, bins="fd")
+
+
+def test_the_public_names_live_in_summaries_and_their_examples_run():
+    # summaries.py is the home of the public names; each part's docstring examples print what they say
+    import doctest
+    import importlib
+
+    from infoscope.encode import summaries
+
+    for name in summaries.__all__:
+        assert getattr(summaries, name) is not None, name
+    for part in ("batch_specs", "batch_summaries", "batch_pass1", "batch_alphabet"):
+        module = importlib.import_module(f"infoscope.encode.{part}")
+        result = doctest.testmod(module, optionflags=doctest.NORMALIZE_WHITESPACE)
+        assert result.failed == 0 and result.attempted > 0, module.__name__
