@@ -141,3 +141,17 @@ def test_on_a_running_cluster_by_its_address(folder, in_memory):
                              "--scheduler", cluster.scheduler_address])
     assert status == 0 and f"the Dask cluster at {cluster.scheduler_address}" in text
     assert _tables(text) == _tables(in_memory)
+
+
+def test_the_demo_writes_parquet_files_that_profile_out_of_core(tmp_path, capsys):
+    # the README's quick start: demo --write-parquet, then profile the glob it prints
+    assert main(["demo", "--rows", "6000", "--write-parquet", str(tmp_path / "deliveries")]) == 0
+    said = capsys.readouterr().out
+    command = said.strip().splitlines()[-1].split()
+    assert command[:2] == ["infoscope", "profile"] and len(list((tmp_path / "deliveries").glob("*.parquet"))) == 8
+    glob = command[2].strip("'")
+    assert main(["profile", glob, "--target", "late"]) == 0
+    text = capsys.readouterr().out
+    assert "6000 rows x 17 columns" in text and "read out of core" in text
+    leak = next(x for x in text.split("== relevance")[1].splitlines() if x.startswith("compensation_eur"))
+    assert leak.rstrip().endswith("True")  # the planted leak is found

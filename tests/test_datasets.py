@@ -170,3 +170,23 @@ def test_bad_options_are_refused():
         make_wide(10, 3, missing_share=1.5)
     with pytest.raises(ValueError, match="p=0"):
         make_wide(10, 0)
+
+
+def test_write_deliveries_writes_parts_of_the_reference_process(tmp_path):
+    from infoscope.datasets import PLANTED, make_deliveries, write_deliveries
+
+    paths = write_deliveries(tmp_path / "log", n=10_001, files=4, seed=3)
+    parts = [pd.read_parquet(p) for p in paths]
+    assert [len(p) for p in parts] == [2501, 2500, 2500, 2500]
+    whole = pd.concat(parts, ignore_index=True)
+    reference = make_deliveries(100, seed=3)
+    assert list(whole.columns) == list(reference.columns)
+    # the same kinds of column (Parquet keeps timestamps in milliseconds, not seconds)
+    assert [d.kind for d in whole.dtypes] == [d.kind for d in reference.dtypes]
+    assert whole["parcel_ref"].is_unique
+    assert bool((whole["compensation_eur"] > 0).eq(whole[PLANTED["target"]]).all())  # the planted leak
+    again = pd.concat([pd.read_parquet(p) for p in write_deliveries(tmp_path / "again", n=10_001, files=4, seed=3)],
+                      ignore_index=True)
+    pd.testing.assert_frame_equal(whole, again)
+    with pytest.raises(ValueError, match="files=5 is more than the n=4 rows"):
+        write_deliveries(tmp_path / "x", n=4, files=5)

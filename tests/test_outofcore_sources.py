@@ -7,6 +7,8 @@ must give one error naming the file or the column.
 """
 from __future__ import annotations
 
+import json
+
 import numpy as np
 import pandas as pd
 import pyarrow as pa
@@ -167,3 +169,42 @@ def test_a_column_all_missing_in_one_file(tmp_path):
 
 def test_the_package_exports_profile():
     assert infoscope.profile is profile
+
+
+@pytest.mark.filterwarnings("ignore:column '(ref|shop)'")  # the folding warnings: expected here
+def test_text_and_whole_numbers_beyond_the_level_cap_are_answered_by_duckdb(tmp_path):
+    # more distinct values than pass 1 keeps exactly (LEVEL_CAP = 32,768): the levels and the
+    # distinct count come from DuckDB queries over the files (seen failing on DuckDB 2, whose
+    # relations have no fetchone); the tables must still equal the in-memory ones
+    rng = np.random.default_rng(8)
+    n = 40_000
+    parts = []
+    for i in range(2):
+        ids = rng.permutation(n // 2) + i * n
+        parts.append(pd.DataFrame({
+            "ref": np.array([f"R{v:06d}" for v in ids], dtype=object),
+            "uid": ids * 7 + 3,
+            "shop": np.array([f"s{v}" for v in rng.zipf(1.6, size=n // 2) % 500], dtype=object),
+            "x": rng.normal(size=n // 2),
+        }))
+    _write(tmp_path, parts, [5_000, 5_000])
+    out = profile(tmp_path, progress=False, n_boot=0, max_categories=32)
+    ref = _reference(tmp_path, n_boot=0, max_categories=32)
+    _assert_same_tables(out, ref)
+    assert "id_like" in out.column("ref").flags
+
+
+def test_the_widget_on_count_tables_says_when_a_control_needs_another_pass(tmp_path):
+    from infoscope.widgets import ProfileWidget
+
+    _write(tmp_path, [_frame(300, 1), _frame(300, 2)], [100, 100])
+    s = profile(tmp_path, progress=False, n_boot=0)
+    w = ProfileWidget(s, threaded=False)
+    assert w._status["state"] == "idle" and w._status["message"] == "" and json.loads(w._entropy)["rows"]
+    shown, bins = w.generation, w.bins
+    w.bins = bins - 2  # new bins need the rows: said, the slider returns, the session keeps its settings
+    assert w._status["state"] == "idle" and "needs another pass" in w._status["message"]
+    assert w.bins == bins and w.generation == shown and s.settings["bins"] == "rows"
+    w.estimator = "plugin"  # the tables answer this one
+    assert w._status["message"] == "" and w.generation > shown and s.settings["estimator"] == "plugin"
+    assert json.loads(w._entropy)["rows"]

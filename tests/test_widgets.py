@@ -806,3 +806,23 @@ def test_the_slider_starts_at_the_row_dependent_default(frame):
     w = quiet(ProfileWidget, quiet(ProfileSession, frame, n_boot=0), threaded=False)
     assert w.bins == rows_bin_count(len(frame)) == 7 and w.strategy == "quantile"
     w.close()
+
+
+def test_the_default_rows_rule_stays_while_the_slider_shows_its_number():
+    # the slider shows floor(sqrt(n / 10)) within 2..16 for the frame's rows (16 for 4,000 rows); a column
+    # with missing values gets the count of its own values under the rule (6 for its 400 values): the
+    # first view must keep that, not re-bin the column into the slider's 16 (README, bins="rows")
+    rng = np.random.default_rng(4)
+    x = rng.normal(size=4000)
+    sparse = np.where(rng.random(4000) < 0.9, np.nan, rng.normal(size=4000))
+    n_values = int(np.count_nonzero(~np.isnan(sparse)))
+    df = pd.DataFrame({"x": x, "sparse": sparse})
+    s = quiet(ProfileSession, df, n_boot=0)
+    w = quiet(ProfileWidget, s, threaded=False)
+    assert w.bins == 16 and s.settings["bins"] == "rows"
+    expected = min(16, max(2, int(np.floor(np.sqrt(n_values / 10)))))  # the rule, written out
+    assert s.column("sparse").k == expected < 16
+    w.bins = 8
+    assert s.settings["bins"] == 8 and s.column("sparse").k == 8
+    w.bins = 16
+    assert s.settings["bins"] == "rows" and s.column("sparse").k == expected

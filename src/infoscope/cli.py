@@ -257,6 +257,9 @@ def add_demo_parser(subparsers) -> argparse.ArgumentParser:
                    help="bins for numeric columns: a number or a rule name (default 'rows': "
                         "floor(sqrt(n/10)) within 2..16)")
     p.add_argument("--top", type=int, default=10, help="pairs to show (default 10)")
+    p.add_argument("--write-parquet", default=None, metavar="FOLDER", dest="write_parquet",
+                   help="write the demo log (--rows rows) as 8 Parquet files in FOLDER instead of "
+                        "profiling it, to try `infoscope profile 'FOLDER/*.parquet'` out of core")
     _add_export_options(p)
     p.set_defaults(handler=cmd_demo)
     return p
@@ -302,6 +305,8 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
     if args.seed < 0:
         raise CommandError(f"--seed must be >= 0, got {args.seed}")
     target = PLANTED["target"]
+    if getattr(args, "write_parquet", None):
+        return _write_demo_files(args, out)
     frame = make_deliveries(args.rows, seed=args.seed)
     batch = make_deliveries_batch(args.batch_rows, seed=args.seed + 1, drift=True)
     print(f"infoscope demo: an invented parcel-courier log, {len(frame)} rows x "
@@ -329,6 +334,21 @@ def cmd_demo(args: argparse.Namespace, out=None) -> int:
     _notes_section(notes, out)
     if getattr(args, "out", None):
         return _write_page(session, args, out, command="demo")
+    return 0
+
+
+def _write_demo_files(args: argparse.Namespace, out) -> int:
+    """``infoscope demo --write-parquet FOLDER``: the demo log as Parquet files, and what to run next."""
+    from infoscope.datasets import PLANTED, write_deliveries
+
+    try:
+        paths = write_deliveries(args.write_parquet, n=args.rows, files=min(8, args.rows), seed=args.seed)
+    except OSError as exc:
+        raise CommandError(f"could not write to {args.write_parquet!r}: {exc}") from None
+    folder = args.write_parquet.rstrip("/\\") or args.write_parquet
+    print(f"wrote {args.rows} rows of the invented parcel-courier log as {len(paths)} Parquet files in "
+          f"{folder}/; profile them out of core with:\n"
+          f"  infoscope profile '{folder}/*.parquet' --target {PLANTED['target']} --out profile.html", file=out)
     return 0
 
 

@@ -17,7 +17,7 @@ from types import MappingProxyType
 import numpy as np
 import pandas as pd
 
-__all__ = ["PLANTED", "make_deliveries", "make_deliveries_batch", "make_wide"]
+__all__ = ["PLANTED", "make_deliveries", "make_deliveries_batch", "make_wide", "write_deliveries"]
 
 # ---------------------------------------------------------------- vocabulary
 _DEPOTS = (
@@ -326,6 +326,63 @@ def make_deliveries_batch(n: int = 20_000, seed=1, *, drift: bool = True) -> pd.
         raise TypeError(f"drift must be True or False, got {drift!r}")
     start = _REFERENCE_START + np.timedelta64(7 * _REFERENCE_WEEKS, "D") if drift else _REFERENCE_START
     return _deliveries(n, seed, first_ref=10 ** 7, start=start, drifted=bool(drift))
+
+
+def write_deliveries(folder, n: int = 1_000_000, *, files: int = 8, seed=0) -> list[str]:
+    """Write the delivery log as a folder of Parquet files, one seeded part per file.
+
+    For trying the out-of-core and Dask paths (``infoscope.profile("folder/*.parquet")``,
+    ``infoscope profile 'folder/*.parquet'``) on data of any size: each file is
+    generated and written on its own, so memory holds one file's rows at a time.
+    Every part is a sample of the reference process of :func:`make_deliveries`
+    (the same columns, types and planted structure) with its own seed
+    (``[seed, i]``) and its own identifiers; the parts together are not the frame
+    ``make_deliveries(n)`` returns.
+
+    Parameters
+    ----------
+    folder : str or os.PathLike
+        Created if missing; files ``deliveries-000.parquet`` ... are written in it
+        (existing files of those names are replaced).
+    n : int, default=1_000_000
+        Rows in all, at least 1, spread as evenly as the files allow.
+    files : int, default=8
+        Number of files, at least 1 and at most ``n``.
+    seed : int, default=0
+        Seed of the parts.
+
+    Returns
+    -------
+    list of str
+        The paths written, in order.
+
+    Examples
+    --------
+    >>> import tempfile, pandas as pd
+    >>> from infoscope.datasets import write_deliveries
+    >>> paths = write_deliveries(tempfile.mkdtemp(), n=3_000, files=3)
+    >>> [len(pd.read_parquet(p)) for p in paths]
+    [1000, 1000, 1000]
+    """
+    import os
+
+    n = _check_n(n)
+    files = _check_n(files, "files")
+    if files > n:
+        raise ValueError(f"files={files} is more than the n={n} rows to write")
+    if not isinstance(seed, (int, np.integer)) or seed < 0:
+        raise ValueError(f"seed must be a whole number >= 0, got {seed!r}")
+    os.makedirs(folder, exist_ok=True)
+    sizes = np.full(files, n // files)
+    sizes[: n % files] += 1
+    paths, first_ref = [], 0
+    for i, size in enumerate(sizes):
+        part = _deliveries(int(size), [int(seed), i], first_ref=first_ref, start=_REFERENCE_START, drifted=False)
+        path = os.path.join(os.fspath(folder), f"deliveries-{i:03d}.parquet")
+        part.to_parquet(path, index=False)
+        paths.append(path)
+        first_ref += int(size)
+    return paths
 
 
 def make_wide(n: int = 100_000, p: int = 50, seed=0, *, missing_share: float = 0.05) -> pd.DataFrame:

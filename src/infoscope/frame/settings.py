@@ -16,7 +16,7 @@ from infoscope.estimators.entropy import ENTROPY_ESTIMATORS, resolve_alpha
 from infoscope.estimators.information import NORMALIZATIONS
 from infoscope.estimators.multivariate import WEIGHTED_ESTIMATORS as _WEIGHTED_ESTIMATORS
 
-__all__ = ["CHOICES", "MEASURES", "MISSING_POLICIES", "ORDERS"]
+__all__ = ["CHOICES", "MEASURES", "MISSING_POLICIES", "ORDERS", "NeedsRows"]
 
 #: Pair measures: name -> what the ``value`` column of ``pairs()`` holds.
 MEASURES = {
@@ -60,6 +60,16 @@ CHOICES = {
     "missing": MISSING_POLICIES,
     "order": ORDERS,
 }
+
+
+class NeedsRows(ValueError):
+    """A view or setting of a profile of count tables (out of core) that needs the rows.
+
+    Raised by :class:`infoscope.sources.TableSession` for a change of an encoding
+    setting (another pass over the source) and for the views that read rows (a
+    seeded sample, ``sample=``, has them); the live view shows its message and
+    keeps the last finished settings.
+    """
 
 
 def _check_settings(settings: Mapping, previous: Mapping | None = None) -> dict:

@@ -158,12 +158,13 @@ def _duckdb_answer(rel, query):
     valid = rel.filter(f"{col} IS NOT NULL" + (f" AND NOT isnan({col})" if query.kind == "distinct" and
                                                _is_float(rel, query.column) else ""))
     if query.kind == "distinct":
-        return int(valid.aggregate(f"count(DISTINCT {col})").fetchone()[0])
+        return int(valid.aggregate(f"count(DISTINCT {col})").fetchall()[0][0])
     counts = valid.aggregate(f"{col} AS v, count(*) AS c", col)
     cc = counts.aggregate("c, count(*) AS m", "c").fetchall()
     n_distinct = int(sum(m for _, m in cc))
-    boundary = counts.order("c DESC").limit(1, offset=max(query.limit - 1, 0)).fetchone()
-    top = counts.filter(f"c >= {int(boundary[1])}").fetchall() if boundary else counts.fetchall()
+    # fetchall on a one-row relation: DuckDB 2 relations have no fetchone
+    boundary = counts.order("c DESC").limit(1, offset=max(query.limit - 1, 0)).fetchall()
+    top = counts.filter(f"c >= {int(boundary[0][1])}").fetchall() if boundary else counts.fetchall()
     return {"n_distinct": n_distinct, "counts_of_counts": [(int(c), int(m)) for c, m in cc],
             "top": [(str(v), int(c)) for v, c in top]}
 

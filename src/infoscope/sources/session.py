@@ -18,13 +18,10 @@ from collections.abc import Mapping, Sequence
 from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.engine.tables import TableEngine
 from infoscope.frame.session import ProfileSession
+from infoscope.frame.settings import NeedsRows
 from infoscope.frame.settings import _DEFAULTS, _ENCODING_SETTINGS, _check_settings
 
 __all__ = ["TableSession", "session_from_tables", "NeedsRows", "SampledSession"]
-
-
-class NeedsRows(ValueError):
-    """A view or setting of an out-of-core profile that needs the rows (another pass, or a sample)."""
 
 
 class TableSession(ProfileSession):
@@ -138,7 +135,12 @@ class TableSession(ProfileSession):
         """
         if "sample" in settings and settings["sample"] != self._settings["sample"]:
             self._needs_rows("sample=")
-        return super().update(**settings)
+        before = self._settings
+        try:
+            return super().update(**settings)
+        except NeedsRows:
+            self._settings = before  # nothing was re-encoded: the settings stay those of the tables
+            raise
 
     def set_column_bins(self, name: str, bins) -> None:
         """Not available: new bins need another pass over the source (raises :class:`NeedsRows`)."""

@@ -94,7 +94,7 @@ def view_settings_from_session(settings: Mapping, rows: int | None = None) -> di
     return out
 
 
-def session_settings(view: Mapping, *, sample=None) -> dict:
+def session_settings(view: Mapping, *, sample=None, rows_bins: int | None = None) -> dict:
     """The ``ProfileSession.update`` keywords of a view's control values.
 
     Parameters
@@ -104,6 +104,11 @@ def session_settings(view: Mapping, *, sample=None) -> dict:
         ``unit``, ``missing``, ``target``, ``measure``.
     sample : int, optional
         The ``sample`` setting to pass on.
+    rows_bins : int, optional
+        The number the bins slider showed for a session on the ``"rows"`` rule
+        (:func:`view_settings_from_session`).  While the slider stays at it the
+        session keeps the rule, which gives a column with missing values the count
+        of its own values; another number is a fixed count for every column.
 
     Returns
     -------
@@ -118,9 +123,12 @@ def session_settings(view: Mapping, *, sample=None) -> dict:
 
     Examples
     --------
-    >>> session_settings({"bins": 8, "strategy": "fd", "estimator": "plugin", "alpha": 0.5,
-    ...                   "unit": "nats", "missing": "drop", "target": None, "measure": "mi"})["bins"]
+    >>> view = {"bins": 8, "strategy": "fd", "estimator": "plugin", "alpha": 0.5,
+    ...         "unit": "nats", "missing": "drop", "target": None, "measure": "mi"}
+    >>> session_settings(view)["bins"]
     'fd'
+    >>> session_settings({**view, "strategy": "quantile"}, rows_bins=8)["bins"]
+    'rows'
     """
     unit = view["unit"]
     if unit not in BASE_OF_UNIT:
@@ -129,6 +137,8 @@ def session_settings(view: Mapping, *, sample=None) -> dict:
         bins, strategy = view["strategy"], "uniform"
     else:
         bins, strategy = int(view["bins"]), view["strategy"]
+        if rows_bins is not None and bins == int(rows_bins):
+            bins = "rows"
     return {
         "bins": bins, "strategy": strategy, "estimator": view["estimator"],
         "alpha": float(view["alpha"]) if view["estimator"] == "dirichlet" else None,

@@ -137,6 +137,8 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
         self._display_id = f"infoscope-{uuid.uuid4().hex}"
         self._displayed = False
         start = self._settings_from_session(session)
+        # the slider shows the number the "rows" rule gives; at that number the session keeps the rule
+        self._rows_bins = start.get("bins") if session.settings["bins"] == "rows" else None
         start.update({k: v for k, v in kwargs.items() if k in _settings_traits()})
         super().__init__(**start, **{k: v for k, v in kwargs.items() if k not in start})
         self.observe(self._on_setting, names=list(_settings_traits()))

@@ -9,6 +9,7 @@ import logging
 import threading
 import time
 
+from infoscope.frame.settings import NeedsRows
 from infoscope.widgets.traits import _settings_traits
 
 log = logging.getLogger("infoscope.widgets")
@@ -135,6 +136,14 @@ class Scheduler:
                     self._status = {"state": "idle", "generation": self._applied, "progress": None,
                                     "message": "Cancelled: the view shows the last finished settings.",
                                     "notes": []}
+                return
+            except NeedsRows as exc:  # a profile of count tables: this control needs another pass
+                with self._lock:
+                    latest = gen == self._requested
+                if latest:
+                    self._revert()
+                    self._status = {"state": "idle", "generation": self._applied, "progress": None,
+                                    "message": f"{exc}. The view shows the last finished settings.", "notes": []}
                 return
             except Exception as exc:  # shown in the view, logged, never swallowed
                 log.exception("infoscope profile: recompute %d failed", gen)

@@ -123,7 +123,8 @@ class ProfileTraits(anywidget.AnyWidget):
 
     def _session_settings(self) -> dict:
         """The traits as ``ProfileSession.update`` keywords."""
-        return session_settings(self._view_values(), sample=self._sample)
+        return session_settings(self._view_values(), sample=self._sample,
+                                rows_bins=getattr(self, "_rows_bins", None))
 
     def _check_settings(self) -> None:
         # only what no session method checks: the estimator, measure, strategy, bin
