@@ -93,6 +93,25 @@ def check_counts(counts, parameter: str = "counts", *, ndim: int | None = 1) -> 
     return arr
 
 
+def check_table(table, parameter: str = "table", ndim: int | None = 2, *, allow_empty: bool = False) -> np.ndarray:
+    """Validate a count table (any number of axes with ``ndim=None``): as :func:`check_counts`, and not all 0.
+
+    ``allow_empty=True`` lets a table with no observations through (a batch of tests
+    gives it p = NaN instead of stopping).
+    """
+    if not isinstance(table, np.ndarray):
+        try:
+            table = np.asarray(table)
+        except (TypeError, ValueError):  # ragged rows: numpy cannot make one array of them
+            raise TypeError(f"{parameter} must be a rectangular table of counts; its rows differ in length") from None
+    arr = check_counts(table, parameter, ndim=ndim)
+    if ndim is None and arr.ndim < 1:
+        raise ValueError(f"{parameter} must have at least one axis, got a scalar")
+    if not allow_empty and arr.sum() <= 0:
+        raise ValueError(f"{parameter} has no observations (all counts are 0)")
+    return arr
+
+
 def check_probabilities(p, parameter: str = "p", *, atol: float = 1e-9) -> np.ndarray:
     """Validate a probability vector: finite, >= 0, summing to 1 within ``atol``."""
     try:

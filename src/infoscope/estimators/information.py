@@ -1,4 +1,7 @@
-"""Information measures on count tables: MI, conditional MI, NMI, AMI, VI, G-test.
+"""Information measures on count tables: MI, conditional MI, NMI, AMI, VI, PMI.
+
+The G-test of a table and the Benjamini-Hochberg q-values live with the other tests in
+:mod:`infoscope.estimators.significance`; their names are importable from here too.
 
 Everything here works on contingency tables of counts (numpy + scipy only).  A table
 ``T`` of shape ``(r, c)`` holds ``T[i, j]`` = number of rows with ``X = i`` and
@@ -19,13 +22,13 @@ they are.
 from __future__ import annotations
 
 import math
-from typing import NamedTuple
 
 import numpy as np
-from scipy import special, stats
+from scipy import special
 
 from infoscope._docs import fill_doc
-from infoscope.estimators._checks import check_choice, check_counts, log_base
+from infoscope.estimators._checks import check_choice, check_table, log_base
+from infoscope.estimators.significance import GTestResult, benjamini_hochberg, g_test_from_table, g_test_from_tables
 
 __all__ = [
     "GTestResult",
@@ -101,20 +104,6 @@ def _check_estimator(estimator, alpha=None) -> str:
     return estimator
 
 
-def _check_table(table, parameter: str = "table", ndim: int | None = 2, *, allow_empty: bool = False) -> np.ndarray:
-    if not isinstance(table, np.ndarray):
-        try:
-            table = np.asarray(table)
-        except (TypeError, ValueError):  # ragged rows: numpy cannot make one array of them
-            raise TypeError(f"{parameter} must be a rectangular table of counts; its rows differ in length") from None
-    arr = check_counts(table, parameter, ndim=ndim)
-    if ndim is None and arr.ndim < 1:
-        raise ValueError(f"{parameter} must have at least one axis, got a scalar")
-    if not allow_empty and arr.sum() <= 0:
-        raise ValueError(f"{parameter} has no observations (all counts are 0)")
-    return arr
-
-
 def _plugin_mi_nats(t: np.ndarray) -> float:
     """Plug-in MI in nats: sum_ij p_ij ln(p_ij / (p_i p_j)), computed cell-wise."""
     n = t.sum()
@@ -183,7 +172,7 @@ def joint_entropy_from_counts(counts, *, estimator: str = "miller_madow", base=2
     >>> joint_entropy_from_counts([[1, 1], [1, 1]], estimator="plugin")
     2.0
     """
-    arr = _check_table(counts, "counts", ndim=None)
+    arr = check_table(counts, "counts", ndim=None)
     estimator = _check_estimator(estimator, alpha)
     return _entropy_nats(arr, estimator, alpha) / log_base(base)
 
@@ -225,7 +214,7 @@ def conditional_entropy_from_table(
     >>> conditional_entropy_from_table([[5, 0], [0, 5]], estimator="plugin")
     0.0
     """
-    arr = _check_table(table, "table", ndim=None)
+    arr = check_table(table, "table", ndim=None)
     if arr.ndim < 2:
         raise ValueError(f"table must have at least 2 axes, got shape {arr.shape}")
     requested = (given_axis,) if isinstance(given_axis, (int, np.integer)) else given_axis
@@ -285,7 +274,7 @@ def mutual_information_from_table(table, *, estimator: str = "miller_madow", bas
     >>> mutual_information_from_table([[5, 0], [0, 5]], estimator="plugin")
     1.0
     """
-    t = _check_table(table)
+    t = check_table(table)
     estimator = _check_estimator(estimator, alpha)
     return _mi_nats(t, estimator, alpha) / log_base(base)
 
@@ -328,7 +317,7 @@ def conditional_mutual_information_from_table(
     >>> round(conditional_mutual_information_from_table(t, estimator="plugin"), 12)
     1.0
     """
-    t = _check_table(table3d, "table3d", ndim=3)
+    t = check_table(table3d, "table3d", ndim=3)
     estimator = _check_estimator(estimator, alpha)
     h = lambda a: _entropy_nats(a, estimator, alpha)  # noqa: E731
     cmi = h(t.sum(axis=1)) + h(t.sum(axis=0)) - h(t) - h(t.sum(axis=(0, 1)))
@@ -395,7 +384,7 @@ def normalized_mutual_information_from_table(
     >>> round(normalized_mutual_information_from_table([[5, 0], [0, 5]]), 12)
     1.0
     """
-    t = _check_table(table)
+    t = check_table(table)
     normalization = check_choice(normalization, NORMALIZATIONS, "normalization")
     estimator = _check_estimator(estimator, alpha)
     rows, cols = t.sum(axis=1), t.sum(axis=0)
@@ -500,7 +489,7 @@ def expected_mutual_information_from_table(table, *, base=2) -> float:
     >>> round(expected_mutual_information_from_table([[1, 1], [1, 1]], base="nats"), 6)
     0.231049
     """
-    t = _check_table(table)
+    t = check_table(table)
     return _emi_nats(t) / log_base(base)
 
 
@@ -582,7 +571,7 @@ def adjusted_mutual_information_from_table(table, *, normalization: str = "arith
     >>> round(adjusted_mutual_information_from_table([[3, 0], [0, 3]]), 12)
     1.0
     """
-    t = _check_table(table)
+    t = check_table(table)
     if not isinstance(normalization, str) or normalization not in _AMI_NORMALIZATIONS:
         raise ValueError(
             f"normalization={normalization!r} is not valid for the adjusted MI; choose one of: "
@@ -645,184 +634,13 @@ def variation_of_information_from_table(table, *, estimator: str = "plugin", bas
     >>> round(variation_of_information_from_table([[1, 1], [1, 1]]), 12)
     2.0
     """
-    t = _check_table(table)
+    t = check_table(table)
     estimator = _check_estimator(estimator, alpha)
     h = lambda a: _entropy_nats(a, estimator, alpha)  # noqa: E731
     vi = 2.0 * h(t) - h(t.sum(axis=1)) - h(t.sum(axis=0))
     if estimator == "plugin":
         vi = _nonnegative(vi)  # sum of two conditional entropies; a negative is rounding
     return vi / log_base(base)
-
-
-# --------------------------------------------------------------------------- G-test
-class GTestResult(NamedTuple):
-    """Result of a G-test of independence.
-
-    ``statistic`` is G = 2 N I (I the plug-in MI in nats), ``dof`` the degrees of
-    freedom and ``p_value`` the upper tail of the chi-square distribution at G.
-    """
-
-    statistic: float
-    dof: int
-    p_value: float
-
-
-@fill_doc()
-def g_test_from_table(table) -> GTestResult:
-    """G-test (likelihood-ratio test) of independence of a count table.
-
-    Parameters
-    ----------
-    table : array_like of shape (r, c)
-        Joint counts.
-
-    Returns
-    -------
-    GTestResult
-        ``(statistic, dof, p_value)``: :math:`G = 2 \\sum O \\ln(O / E) = 2 N \\hat I`
-        (nats), ``dof = (r' - 1)(c' - 1)`` where ``r'`` and ``c'`` count only the
-        non-empty rows and columns (an empty row or column carries no observation
-        and no parameter), and the chi-square upper-tail p-value.  With
-        ``dof == 0`` (one variable constant) G is 0 and the p-value is 1.0, as in
-        ``scipy.stats.chi2_contingency``.
-
-    References
-    ----------
-    .. [1] {wilks_1938}
-    .. [2] Kullback, S. (1959). Information Theory and Statistics. Wiley (the
-       statistic 2 N I).
-    .. [3] Sokal, R. R., & Rohlf, F. J. (1995). Biometry, 3rd ed., Freeman
-       (the G-test of independence).
-
-    Examples
-    --------
-    >>> res = g_test_from_table([[10, 0], [0, 10]])
-    >>> res.dof, round(res.statistic, 4)
-    (1, 27.7259)
-    """
-    res = _g_tests([_check_table(table)])
-    return GTestResult(float(res.statistic[0]), int(res.dof[0]), float(res.p_value[0]))
-
-
-@fill_doc()
-def g_test_from_tables(tables) -> GTestResult:
-    """G-tests of independence for many count tables at once.
-
-    Parameters
-    ----------
-    tables : sequence of array_like of shape (r_t, c_t), or array of shape (T, r, c)
-        The tables; shapes may differ.  Tables of the same shape are computed
-        together in one vectorised pass (an engine's output has few distinct shapes).
-
-    Returns
-    -------
-    GTestResult
-        Arrays of length T: ``statistic`` (float), ``dof`` (int) and ``p_value``
-        (float), with the conventions of :func:`g_test_from_table`.  A table with no
-        observations gets ``statistic = 0``, ``dof = 0`` and ``p_value = nan``
-        (nothing was tested) instead of an error, so that one empty pair does not
-        stop a batch.
-
-    References
-    ----------
-    .. [1] {wilks_1938}
-
-    Examples
-    --------
-    >>> res = g_test_from_tables([[[10, 0], [0, 10]], [[5, 5], [5, 5]]])
-    >>> res.dof.tolist(), res.statistic.round(4).tolist()
-    ([1, 1], [27.7259, 0.0])
-    """
-    if isinstance(tables, np.ndarray) and tables.ndim == 3:
-        items = [tables[i] for i in range(tables.shape[0])]
-    else:
-        items = list(tables)
-    return _g_tests([_check_table(t, f"tables[{i}]", allow_empty=True) for i, t in enumerate(items)])
-
-
-def _g_tests(checked: list[np.ndarray]) -> GTestResult:
-    """The G-tests of :func:`g_test_from_tables` on tables already checked."""
-    m = len(checked)
-    stat = np.zeros(m)
-    dof = np.zeros(m, dtype=np.int64)
-    groups: dict[tuple[int, int], list[int]] = {}
-    for i, t in enumerate(checked):
-        groups.setdefault(t.shape, []).append(i)
-    for shape, index in groups.items():
-        if 0 in shape:
-            continue
-        stack = np.stack([checked[i] for i in index])  # (T, r, c)
-        n = stack.sum(axis=(1, 2))
-        rows = stack.sum(axis=2)
-        cols = stack.sum(axis=1)
-        safe_n = np.where(n > 0, n, 1.0)
-        expected = rows[:, :, None] * cols[:, None, :] / safe_n[:, None, None]
-        ratio = np.divide(stack, expected, out=np.ones_like(stack), where=stack > 0)
-        g = 2.0 * np.sum(special.xlogy(stack, ratio), axis=(1, 2))
-        stat[index] = np.maximum(g, 0.0)  # 2 N times a KL divergence: >= 0 up to rounding
-        d_rows = np.maximum(np.count_nonzero(rows, axis=1) - 1, 0)
-        d_cols = np.maximum(np.count_nonzero(cols, axis=1) - 1, 0)
-        dof[index] = d_rows * d_cols
-    totals = np.array([t.sum() for t in checked]) if m else np.zeros(0)
-    with np.errstate(invalid="ignore"):
-        p = np.where(dof > 0, stats.chi2.sf(stat, np.maximum(dof, 1)), 1.0)
-    p = np.where(totals > 0, p, np.nan)
-    stat = np.where(dof > 0, stat, 0.0)
-    return GTestResult(stat, dof, p)
-
-
-def benjamini_hochberg(p_values) -> np.ndarray:
-    """Benjamini-Hochberg adjusted p-values (q-values) controlling the FDR.
-
-    Parameters
-    ----------
-    p_values : array_like
-        p-values in [0, 1], any shape.  NaN entries (tests that were not run) are
-        left out of the count of tests and stay NaN in the result.
-
-    Returns
-    -------
-    numpy.ndarray
-        q-values of the same shape: :math:`q_{(i)} = \\min_{j \\ge i} \\min(1, m p_{(j)} / j)`
-        over the sorted p-values, ``m`` the number of non-NaN p-values.  Rejecting
-        every hypothesis with ``q <= alpha`` controls the false discovery rate at
-        ``alpha`` for independent (or positively dependent) tests.
-
-    References
-    ----------
-    .. [1] Benjamini, Y., & Hochberg, Y. (1995). Controlling the false discovery
-       rate: a practical and powerful approach to multiple testing. Journal of the
-       Royal Statistical Society B, 57(1), 289-300.
-
-    Examples
-    --------
-    >>> benjamini_hochberg([0.01, 0.04, 0.03]).round(3).tolist()
-    [0.03, 0.04, 0.04]
-    """
-    p = np.asarray(p_values)
-    if p.dtype == object and p.size:
-        try:  # a list mixing None-free numbers is fine; anything else is named below
-            p = p.astype(np.float64)
-        except (TypeError, ValueError):
-            pass
-    if p.dtype == object or not (np.issubdtype(p.dtype, np.number) or p.dtype == bool):
-        raise TypeError(f"p_values must be numeric, got dtype {p.dtype}")
-    p = p.astype(np.float64, copy=False)
-    flat = p.ravel()
-    ok = ~np.isnan(flat)
-    if np.any((flat[ok] < 0) | (flat[ok] > 1)):
-        raise ValueError("p_values must lie in [0, 1] (NaN marks a test that was not run)")
-    q = np.full(flat.shape, np.nan)
-    vals = flat[ok]
-    m = vals.size
-    if m:
-        order = np.argsort(vals, kind="stable")
-        scaled = vals[order] * m / np.arange(1, m + 1)
-        adjusted = np.minimum(np.minimum.accumulate(scaled[::-1])[::-1], 1.0)
-        out = np.empty(m)
-        out[order] = adjusted
-        q[ok] = out
-    return q.reshape(p.shape)
 
 
 def pointwise_mutual_information(table, base=2) -> np.ndarray:
@@ -857,7 +675,7 @@ def pointwise_mutual_information(table, base=2) -> np.ndarray:
     >>> pointwise_mutual_information([[2, 0], [1, 1]]).round(3).tolist()
     [[0.415, -inf], [-0.585, 1.0]]
     """
-    t = _check_table(table)
+    t = check_table(table)
     n = t.sum()
     expected = t.sum(axis=1, keepdims=True) * t.sum(axis=0, keepdims=True) / n
     with np.errstate(divide="ignore", invalid="ignore"):

@@ -150,9 +150,10 @@ def surprisal(p, *, base=2):
 
 # --------------------------------------------------------------------------- tables
 def _check_nd_table(table, estimator, alpha, min_axes: int):
-    from infoscope.estimators.information import _check_estimator, _check_table
+    from infoscope.estimators._checks import check_table
+    from infoscope.estimators.information import _check_estimator
 
-    t = _check_table(table, "table", ndim=None)
+    t = check_table(table, "table", ndim=None)
     if t.ndim < min_axes:
         raise ValueError(f"table must have at least {min_axes} axes (one per variable), got shape {t.shape}")
     return t, _check_estimator(estimator, alpha)

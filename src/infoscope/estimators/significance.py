@@ -65,6 +65,7 @@ import numpy as np
 from scipy import special, stats
 
 from infoscope._docs import fill_doc
+from infoscope.estimators._checks import check_table
 
 __all__ = [
     "CHI2_CLEAR_P",
@@ -78,10 +79,14 @@ __all__ = [
     "TOO_FEW_ROWS",
     "UNEVEN_PERMUTATION_ROWS",
     "WILLIAMS_MAX",
+    "GTestResult",
     "IndependenceTests",
     "P_METHODS",
     "TableTests",
+    "benjamini_hochberg",
     "g_statistics",
+    "g_test_from_table",
+    "g_test_from_tables",
     "independence_tests",
     "monte_carlo_p_value",
     "permutation_p_values",
@@ -418,8 +423,6 @@ def permutation_p_values(p_value, p_method, n, shuffle: Shuffler, *, alpha: floa
     >>> p.tolist(), done.tolist()
     ([0.5], [40])
     """
-    from infoscope.estimators.information import benjamini_hochberg
-
     p = np.array(p_value, dtype=np.float64)
     m = p.size
     permute = np.asarray(p_method, dtype=object) == "permutation"
@@ -500,3 +503,174 @@ def independence_tests(tables, shuffle: Shuffler | None = None, *, alpha: float 
     permuted = method == "permutation"
     return IndependenceTests(tt.statistic, tt.dof, p, method, np.where(permuted, done, 0),
                              np.where(permuted, exceed, 0), p_error, tt.reliability)
+
+
+# --------------------------------------------------------------------------- G-test of a table, FDR
+class GTestResult(NamedTuple):
+    """Result of a G-test of independence.
+
+    ``statistic`` is G = 2 N I (I the plug-in MI in nats), ``dof`` the degrees of
+    freedom and ``p_value`` the upper tail of the chi-square distribution at G.
+    """
+
+    statistic: float
+    dof: int
+    p_value: float
+
+
+@fill_doc()
+def g_test_from_table(table) -> GTestResult:
+    """G-test (likelihood-ratio test) of independence of a count table.
+
+    Parameters
+    ----------
+    table : array_like of shape (r, c)
+        Joint counts.
+
+    Returns
+    -------
+    GTestResult
+        ``(statistic, dof, p_value)``: :math:`G = 2 \\sum O \\ln(O / E) = 2 N \\hat I`
+        (nats), ``dof = (r' - 1)(c' - 1)`` where ``r'`` and ``c'`` count only the
+        non-empty rows and columns (an empty row or column carries no observation
+        and no parameter), and the chi-square upper-tail p-value.  With
+        ``dof == 0`` (one variable constant) G is 0 and the p-value is 1.0, as in
+        ``scipy.stats.chi2_contingency``.
+
+    References
+    ----------
+    .. [1] {wilks_1938}
+    .. [2] Kullback, S. (1959). Information Theory and Statistics. Wiley (the
+       statistic 2 N I).
+    .. [3] Sokal, R. R., & Rohlf, F. J. (1995). Biometry, 3rd ed., Freeman
+       (the G-test of independence).
+
+    Examples
+    --------
+    >>> res = g_test_from_table([[10, 0], [0, 10]])
+    >>> res.dof, round(res.statistic, 4)
+    (1, 27.7259)
+    """
+    res = _g_tests([check_table(table)])
+    return GTestResult(float(res.statistic[0]), int(res.dof[0]), float(res.p_value[0]))
+
+
+@fill_doc()
+def g_test_from_tables(tables) -> GTestResult:
+    """G-tests of independence for many count tables at once.
+
+    Parameters
+    ----------
+    tables : sequence of array_like of shape (r_t, c_t), or array of shape (T, r, c)
+        The tables; shapes may differ.  Tables of the same shape are computed
+        together in one vectorised pass (an engine's output has few distinct shapes).
+
+    Returns
+    -------
+    GTestResult
+        Arrays of length T: ``statistic`` (float), ``dof`` (int) and ``p_value``
+        (float), with the conventions of :func:`g_test_from_table`.  A table with no
+        observations gets ``statistic = 0``, ``dof = 0`` and ``p_value = nan``
+        (nothing was tested) instead of an error, so that one empty pair does not
+        stop a batch.
+
+    References
+    ----------
+    .. [1] {wilks_1938}
+
+    Examples
+    --------
+    >>> res = g_test_from_tables([[[10, 0], [0, 10]], [[5, 5], [5, 5]]])
+    >>> res.dof.tolist(), res.statistic.round(4).tolist()
+    ([1, 1], [27.7259, 0.0])
+    """
+    if isinstance(tables, np.ndarray) and tables.ndim == 3:
+        items = [tables[i] for i in range(tables.shape[0])]
+    else:
+        items = list(tables)
+    return _g_tests([check_table(t, f"tables[{i}]", allow_empty=True) for i, t in enumerate(items)])
+
+
+def _g_tests(checked: list[np.ndarray]) -> GTestResult:
+    """The G-tests of :func:`g_test_from_tables` on tables already checked."""
+    m = len(checked)
+    stat = np.zeros(m)
+    dof = np.zeros(m, dtype=np.int64)
+    groups: dict[tuple[int, int], list[int]] = {}
+    for i, t in enumerate(checked):
+        groups.setdefault(t.shape, []).append(i)
+    for shape, index in groups.items():
+        if 0 in shape:
+            continue
+        stack = np.stack([checked[i] for i in index])  # (T, r, c)
+        n = stack.sum(axis=(1, 2))
+        rows = stack.sum(axis=2)
+        cols = stack.sum(axis=1)
+        safe_n = np.where(n > 0, n, 1.0)
+        expected = rows[:, :, None] * cols[:, None, :] / safe_n[:, None, None]
+        ratio = np.divide(stack, expected, out=np.ones_like(stack), where=stack > 0)
+        g = 2.0 * np.sum(special.xlogy(stack, ratio), axis=(1, 2))
+        stat[index] = np.maximum(g, 0.0)  # 2 N times a KL divergence: >= 0 up to rounding
+        d_rows = np.maximum(np.count_nonzero(rows, axis=1) - 1, 0)
+        d_cols = np.maximum(np.count_nonzero(cols, axis=1) - 1, 0)
+        dof[index] = d_rows * d_cols
+    totals = np.array([t.sum() for t in checked]) if m else np.zeros(0)
+    with np.errstate(invalid="ignore"):
+        p = np.where(dof > 0, stats.chi2.sf(stat, np.maximum(dof, 1)), 1.0)
+    p = np.where(totals > 0, p, np.nan)
+    stat = np.where(dof > 0, stat, 0.0)
+    return GTestResult(stat, dof, p)
+
+
+def benjamini_hochberg(p_values) -> np.ndarray:
+    """Benjamini-Hochberg adjusted p-values (q-values) controlling the FDR.
+
+    Parameters
+    ----------
+    p_values : array_like
+        p-values in [0, 1], any shape.  NaN entries (tests that were not run) are
+        left out of the count of tests and stay NaN in the result.
+
+    Returns
+    -------
+    numpy.ndarray
+        q-values of the same shape: :math:`q_{(i)} = \\min_{j \\ge i} \\min(1, m p_{(j)} / j)`
+        over the sorted p-values, ``m`` the number of non-NaN p-values.  Rejecting
+        every hypothesis with ``q <= alpha`` controls the false discovery rate at
+        ``alpha`` for independent (or positively dependent) tests.
+
+    References
+    ----------
+    .. [1] Benjamini, Y., & Hochberg, Y. (1995). Controlling the false discovery
+       rate: a practical and powerful approach to multiple testing. Journal of the
+       Royal Statistical Society B, 57(1), 289-300.
+
+    Examples
+    --------
+    >>> benjamini_hochberg([0.01, 0.04, 0.03]).round(3).tolist()
+    [0.03, 0.04, 0.04]
+    """
+    p = np.asarray(p_values)
+    if p.dtype == object and p.size:
+        try:  # a list mixing None-free numbers is fine; anything else is named below
+            p = p.astype(np.float64)
+        except (TypeError, ValueError):
+            pass
+    if p.dtype == object or not (np.issubdtype(p.dtype, np.number) or p.dtype == bool):
+        raise TypeError(f"p_values must be numeric, got dtype {p.dtype}")
+    p = p.astype(np.float64, copy=False)
+    flat = p.ravel()
+    ok = ~np.isnan(flat)
+    if np.any((flat[ok] < 0) | (flat[ok] > 1)):
+        raise ValueError("p_values must lie in [0, 1] (NaN marks a test that was not run)")
+    q = np.full(flat.shape, np.nan)
+    vals = flat[ok]
+    m = vals.size
+    if m:
+        order = np.argsort(vals, kind="stable")
+        scaled = vals[order] * m / np.arange(1, m + 1)
+        adjusted = np.minimum(np.minimum.accumulate(scaled[::-1])[::-1], 1.0)
+        out = np.empty(m)
+        out[order] = adjusted
+        q[ok] = out
+    return q.reshape(p.shape)
