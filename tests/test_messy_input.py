@@ -118,6 +118,42 @@ def test_multiindex_target_is_a_tuple_like_in_pair():
     assert quiet(numbered.info_profile.relevance, 0, n_boot=0)["column"].tolist() == ["1"]
 
 
+
+def test_multiindex_columns_with_an_empty_level_work_end_to_end():
+    # ('a', '') is keyed "a" (the empty level left out), ('b', 'x') "b / x"; ('', 'a')
+    # also reads "a" and is keyed "a (2)", and its tuple still names it, not the first.
+    # References: pandas.crosstab (the counts), scipy.stats.entropy (the entropies),
+    # sklearn.metrics.mutual_info_score (the plug-in MI, nats).
+    from sklearn.metrics import mutual_info_score
+
+    rng = np.random.default_rng(12)
+    a = rng.integers(0, 3, 400)
+    b = (a + rng.integers(0, 2, 400)) % 4
+    c = rng.integers(0, 2, 400)
+    columns = pd.MultiIndex.from_tuples([("a", ""), ("b", "x"), ("", "a")])
+    df = pd.DataFrame(np.column_stack([a, b, c]), columns=columns)
+    before = copy.deepcopy(df)
+    settings = {"estimator": "plugin", "n_boot": 0}
+
+    e = quiet(df.info_profile.entropy, **settings)
+    assert e["column"].tolist() == ["a", "b / x", "a (2)"]
+    for values, h in zip((a, b, c), e["entropy"]):
+        assert h == pytest.approx(scipy.stats.entropy(np.bincount(values), base=2))
+
+    p = quiet(df.info_profile.pairs, **settings).set_index(["a", "b"])
+    assert p.loc[("a", "b / x"), "mi"] == pytest.approx(mutual_info_score(a, b) / np.log(2))
+    assert p.loc[("a", "a (2)"), "mi"] == pytest.approx(mutual_info_score(a, c) / np.log(2))
+
+    t = quiet(df.info_profile.pair, ("a", ""), ("b", "x"), **settings)
+    assert np.array_equal(t.counts.to_numpy(dtype=np.int64), pd.crosstab(a, b).to_numpy())
+    assert t.mi == pytest.approx(mutual_info_score(a, b) / np.log(2))
+    # the tuple of the third column is that column, though its text is the first's
+    t = quiet(df.info_profile.pair, ("", "a"), ("a", ""), **settings)
+    assert np.array_equal(t.counts.to_numpy(dtype=np.int64), pd.crosstab(c, a).to_numpy())
+    assert quiet(df.info_profile.relevance, ("", "a"), n_boot=0).attrs["target"] == "a (2)"
+    pd.testing.assert_frame_equal(df, before)
+
+
 # ------------------------------------------------------------------ integers beyond 2**53
 BIG = 2**60
 

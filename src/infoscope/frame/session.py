@@ -167,6 +167,15 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Draft
         self._rows = self._sample_rows(self._n_rows)
         # one Series per key, positional (safe with repeated or odd column labels)
         self._series = {key: pdf.iloc[:, i] for i, key in enumerate(self._names)}
+        # a label that is not text (a MultiIndex tuple, a number) names its own column's key,
+        # also where its text repeats another's: ('', 'a') is 'a (2)' beside ('a', '')
+        self._label_keys = {}
+        for label, key in zip(pdf.columns, self._names):
+            if not isinstance(label, (str, bool)):
+                try:
+                    self._label_keys.setdefault(label, key)
+                except TypeError:  # an unhashable label: reached by its key only
+                    pass
         self._weight_key = None
         if self._settings["weights"] is not None:
             # the weight column is a setting, not a profiled column
@@ -485,6 +494,13 @@ class ProfileSession(EntropyTable, PairTables, RelevanceTable, DriftTable, Draft
     def _find_name(self, name) -> str | None:
         if isinstance(name, str) and name in self._series:
             return name
+        if not isinstance(name, (str, bool)):
+            try:
+                key = self._label_keys.get(name)
+            except TypeError:  # unhashable: not a label
+                key = None
+            if key is not None:
+                return key
         # a MultiIndex tuple or a number names the column whose key it gives (column_keys)
         label = key_text(name) if isinstance(name, (tuple, numbers.Integral)) and not isinstance(name, bool) else name
         if isinstance(label, str) and label in self._series:

@@ -77,6 +77,7 @@ class TableSession(ProfileSession):
         self._n_rows = int(n_rows)
         self._rows = None
         self._series = dict.fromkeys(self._names)
+        self._label_keys = {}  # a source's column labels are its keys
         self._bins_override: dict = {}
         self._encoded = {a.name: a.column() for a in alphabets}
         self._alphabets = {a.name: a for a in alphabets}
