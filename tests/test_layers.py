@@ -7,9 +7,14 @@ and the layers below it, never one above; the module graph has no cycle; the
 estimators import numpy, scipy and the standard library only.
 
 The imports are read from the source with :mod:`ast` (``import``, ``from ...
-import``, ``importlib.import_module("...")`` with a literal name and the lazy
-``_PUBLIC`` name tables of the packages), so an import hidden in a function body
-counts like one at the top of a module.
+import``, relative imports, ``importlib.import_module("...")`` and ``__import__``
+with a literal name and the lazy ``_PUBLIC`` name tables of the packages), so an
+import hidden in a function body counts like one at the top of a module; an import
+of a computed name is refused outside a package's ``_PUBLIC`` lookup, since the check
+could not read it.  In the team's words the data flows frame -> encode -> engine ->
+estimators -> result tables -> views: the user's frame is read by encode/ and frame/,
+the result tables are frame/; the estimators, which know nothing of frames, sit at
+the bottom of the import order so that every layer may call them.
 """
 from __future__ import annotations
 
@@ -33,6 +38,8 @@ LAYERS = {
     "accessor": 8, "polars": 8, "dask": 8, "cli": 8, "cli_sources": 8, "reading": 8, "sources": 8, "__main__": 8, "": 8,
 }
 ESTIMATOR_THIRD_PARTY = {"numpy", "scipy"}
+#: marks an ``import_module`` / ``__import__`` of a computed name (the check cannot read it)
+DYNAMIC = "<computed name>"
 
 
 def _module_name(path: Path, src: Path) -> str:
@@ -51,6 +58,7 @@ def _imports(name: str, path: Path, known: set[str]) -> list[tuple[str, int]]:
     tree = ast.parse(path.read_text(encoding="utf-8"), filename=str(path))
     is_package = path.name == "__init__.py"
     out = []
+    has_table = False
 
     def add(target: str, line: int, names=()):
         for alias in names:  # `from pkg import sub` depends on pkg.sub, not on pkg's __init__
@@ -73,15 +81,22 @@ def _imports(name: str, path: Path, known: set[str]) -> list[tuple[str, int]]:
             else:
                 target = node.module or ""
             add(target, node.lineno, [a.name for a in node.names if a.name != "*"])
-        elif (isinstance(node, ast.Call) and getattr(node.func, "attr", getattr(node.func, "id", "")) == "import_module"
-              and node.args and isinstance(node.args[0], ast.Constant) and isinstance(node.args[0].value, str)):
-            add(node.args[0].value, node.lineno)
-        elif (isinstance(node, ast.Assign) and any(getattr(t, "id", "") == "_PUBLIC" for t in node.targets)
-              and isinstance(node.value, ast.Dict)):
+        elif (isinstance(node, ast.Call) and node.args
+              and getattr(node.func, "attr", getattr(node.func, "id", "")) in ("import_module", "__import__")):
+            if isinstance(node.args[0], ast.Constant) and isinstance(node.args[0].value, str):
+                add(node.args[0].value, node.lineno)
+            else:  # a computed name: only a package's lazy _PUBLIC table may do that (read below)
+                out.append((DYNAMIC, node.lineno))
+        elif isinstance(node, (ast.Assign, ast.AnnAssign)) and isinstance(node.value, ast.Dict) and any(
+                getattr(t, "id", "") == "_PUBLIC" for t in (node.targets if isinstance(node, ast.Assign)
+                                                            else [node.target])):
             for value in node.value.values:  # lazy name tables: name -> module
                 if isinstance(value, ast.Constant) and isinstance(value.value, str):
                     add(value.value, node.lineno)
-    return out
+            has_table = True
+    if not has_table:
+        return out
+    return [item for item in out if item[0] != DYNAMIC]  # the table's own lookup, its names read above
 
 
 def _layer(module: str) -> str:
@@ -100,6 +115,10 @@ def layer_violations(src: Path) -> tuple[list[str], dict[str, set[str]]]:
             problems.append(f"{name}: its layer {_layer(name)!r} is not in the layer order")
             continue
         for target, line in _imports(name, path, known):
+            if target == DYNAMIC:
+                problems.append(f"{name}:{line} imports a computed module name, which this check cannot read; "
+                                "import by a literal name or through the package's _PUBLIC table")
+                continue
             top = target.split(".")[0]
             if top != "infoscope":
                 if _layer(name) == "estimators" and top not in ESTIMATOR_THIRD_PARTY \
@@ -174,11 +193,20 @@ def test_the_checker_sees_deferred_upward_imports_and_cycles(tmp_path):
     (pkg / "frame" / "c.py").write_text("import infoscope.frame.b\n")
     (pkg / "frame" / "__init__.py").write_text('_PUBLIC = {"W": "infoscope.widgets.view"}\n')
     (pkg / "widgets" / "view.py").write_text("W = 1\n")
+    # and a relative import up, the package itself from below, a computed name, __import__
+    (pkg / "estimators" / "rel.py").write_text("from ..frame import a\n")
+    (pkg / "estimators" / "top.py").write_text("from infoscope import entropy\n")
+    (pkg / "frame" / "dyn.py").write_text("import importlib\nm = importlib.import_module('infoscope.' + 'x')\n")
+    (pkg / "frame" / "old.py").write_text("w = __import__('infoscope.widgets.view')\n")
     problems, graph = layer_violations(tmp_path)
     text = "\n".join(problems)
     assert "infoscope.frame.a:2 imports infoscope.widgets.view" in text
     assert "infoscope.estimators.bad:1 imports pandas" in text
     assert "infoscope.frame:1 imports infoscope.widgets.view" in text
+    assert "infoscope.estimators.rel:1 imports infoscope.frame.a" in text
+    assert "infoscope.estimators.top:1 imports infoscope (layer infoscope is above estimators)" in text
+    assert "infoscope.frame.dyn:2 imports a computed module name" in text
+    assert "infoscope.frame.old:1 imports infoscope.widgets.view" in text
     assert cycles(graph) == [["infoscope.frame.b", "infoscope.frame.c"]]
 
 
