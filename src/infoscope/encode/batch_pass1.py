@@ -30,7 +30,14 @@ from infoscope.encode.drafts import (
 )
 from infoscope.encode.encoded import MISSING_LABEL, OTHER_LABEL
 from infoscope.encode.encoder import _column_flags
-from infoscope.encode.levels import _distinct_labels, _fold_message, _fold_room, _level_alphabet, _reserve
+from infoscope.encode.levels import (
+    _category_labels,
+    _distinct_labels,
+    _fold_message,
+    _fold_room,
+    _level_alphabet,
+    _reserve,
+)
 from infoscope.encode.numeric import (
     _TAIL_PROBS,
     _id_like_rule,
@@ -43,7 +50,6 @@ from infoscope.encode.numeric import (
     _value_edges,
 )
 from infoscope.encode.temporal import _time_bins, _time_texts
-from infoscope.encode.text import _cell_texts
 
 __all__ = ["SELECT_BUCKETS", "COLLECT_MAX", "SourceQuery", "Pass1"]
 
@@ -307,13 +313,7 @@ class Pass1:
             k, labels, lc, new_index = self._finish_levels(spec, c, ["False", "True"], counts, True, notes, None)
             return "boolean", k, labels, lc, int(np.count_nonzero(counts)), ("index", new_index)
         if spec.family == "categorical":
-            cats = spec.categories.categories
-            if cats.dtype.kind in "iuf":
-                cat_labels = _format_numbers(cats.to_numpy())
-            elif cats.dtype.kind in "mM":
-                cat_labels = [str(x) for x in cats]
-            else:
-                cat_labels = list(_cell_texts(cats.to_numpy(dtype=object), notes))
+            cat_labels = _category_labels(spec.categories.categories, notes)
             counts = c.counts.counts
             k, labels, lc, new_index = self._finish_levels(spec, c, cat_labels, counts, bool(spec.categories.ordered),
                                                            notes, None)

@@ -9,15 +9,20 @@ from infoscope.encode.encoded import MISSING_LABEL, OTHER_LABEL, codes_dtype
 from infoscope.encode.text import _cell_texts
 
 
+def _category_labels(cats: pd.Index, notes: _Notes) -> list:
+    """The labels of a Categorical's categories (in memory and out of core): numbers
+    formatted as numbers, times by ``str``, other values as cell texts."""
+    if cats.dtype.kind in "iuf":
+        return _format_numbers(cats.to_numpy())
+    if cats.dtype.kind in "mM":
+        return [str(c) for c in cats]
+    return list(_cell_texts(cats.to_numpy(dtype=object), notes))
+
+
 def _categorical(series: pd.Series, notes: _Notes) -> _Levels:
     cats = series.cat.categories
     raw = series.cat.codes.to_numpy()  # int8 / int16 / ..., -1 missing (kept narrow)
-    if cats.dtype.kind in "iuf":
-        labels = _format_numbers(cats.to_numpy())
-    elif cats.dtype.kind in "mM":
-        labels = [str(c) for c in cats]
-    else:
-        labels = list(_cell_texts(cats.to_numpy(dtype=object), notes))
+    labels = _category_labels(cats, notes)
     used = _level_counts(raw, len(cats))
     return _Levels(raw, labels, bool(series.cat.ordered), "categorical", int(np.count_nonzero(used)), used)
 

@@ -93,6 +93,16 @@ def check_counts(counts, parameter: str = "counts", *, ndim: int | None = 1) -> 
     return arr
 
 
+
+def check_observed_counts(counts, parameter: str = "counts", *, ndim: int | None = 1) -> np.ndarray:
+    """:func:`check_counts`, and at least one symbol and one observation (what an estimate needs)."""
+    arr = check_counts(counts, parameter, ndim=ndim)
+    if arr.size == 0:
+        raise ValueError(f"{parameter} is empty: pass one count per possible symbol (K >= 1)")
+    if arr.sum() == 0:
+        raise ValueError(f"{parameter} has no observations (every count is 0): the estimate is undefined")
+    return arr
+
 def check_table(table, parameter: str = "table", ndim: int | None = 2, *, allow_empty: bool = False) -> np.ndarray:
     """Validate a count table (any number of axes with ``ndim=None``): as :func:`check_counts`, and not all 0.
 

@@ -19,7 +19,7 @@ import numbers
 import numpy as np
 from scipy.special import digamma, xlogy
 
-from infoscope.estimators._checks import check_choice, check_counts, log_base
+from infoscope.estimators._checks import check_choice, check_counts, check_observed_counts, log_base
 
 __all__ = [
     "ENTROPY_ESTIMATORS",
@@ -515,11 +515,7 @@ def entropy_from_counts(counts, *, estimator="miller_madow", base=2, alpha=None)
     estimator = check_choice(estimator, ENTROPY_ESTIMATORS, "estimator")
     divisor = log_base(base)
     a = resolve_alpha(estimator, alpha)
-    n = check_counts(counts, "counts")
-    if n.size == 0:
-        raise ValueError("counts is empty: pass one count per possible symbol (K >= 1)")
-    if n.sum() == 0:
-        raise ValueError("counts has no observations (every count is 0): the entropy is undefined")
+    n = check_observed_counts(counts, "counts")
     return vector_entropy_nats(n, estimator, a) / divisor
 
 

@@ -41,7 +41,7 @@ from typing import NamedTuple
 import numpy as np
 from scipy.special import digamma, gammaln
 
-from infoscope.estimators._checks import check_counts, log_base
+from infoscope.estimators._checks import check_observed_counts, log_base
 
 __all__ = ["NSBPosterior", "nsb_counts_nats", "nsb_fingerprint_nats", "nsb_posterior", "nsb_posterior_nats"]
 
@@ -322,11 +322,7 @@ def nsb_posterior(counts, *, base=2) -> NSBPosterior:
     (1.28, True)
     """
     divisor = log_base(base)
-    n = check_counts(counts, "counts")
-    if n.size == 0:
-        raise ValueError("counts is empty: pass one count per possible symbol (K >= 1)")
-    if n.sum() == 0:
-        raise ValueError("counts has no observations (every count is 0): the entropy is undefined")
+    n = check_observed_counts(counts, "counts")
     mean, std, beta = nsb_posterior_nats(n)
     return NSBPosterior(mean / divisor, std / divisor, beta)
 

@@ -63,8 +63,8 @@ import numpy as np
 
 from infoscope.estimators._checks import (
     check_choice,
-    check_counts,
     check_level,
+    check_observed_counts,
     check_positive_int,
     check_same_length,
     log_base,
@@ -338,12 +338,8 @@ def _resampling_inputs(counts, parameter, ndim, estimator, alpha, base, level, n
     level = check_level(level)
     n_boot = _check_n_boot(n_boot, level)
     rng = _rng(seed)
-    n = check_counts(counts, parameter, ndim=ndim)
-    if n.size == 0:
-        raise ValueError(f"{parameter} is empty: pass one count per possible symbol")
+    n = check_observed_counts(counts, parameter, ndim=ndim)
     total = n.sum()
-    if total == 0:
-        raise ValueError(f"{parameter} has no observations (every count is 0)")
     if total > np.iinfo(np.int64).max:
         raise ValueError(f"{parameter} sums to {total:.3g}, too many observations to resample")
     return n, int(total), estimator, a, divisor, level, n_boot, rng
