@@ -496,7 +496,7 @@ def test_drift_over_bad_input_is_one_clear_message():
 
 
 # ------------------------------------------------------------------ documentation
-DRIFT_MODULES = ["infoscope.estimators.two_sample", "infoscope.frame.drift", "infoscope.frame.pair_drift",
+DRIFT_MODULES = ["infoscope.estimators.two_sample", "infoscope.frame.drift", "infoscope.frame.drift_batches", "infoscope.frame.pair_drift",
                  "infoscope.frame.drift_over", "infoscope.frame.drift_report", "infoscope.frame.tables.drift",
                  "infoscope.report.drift_page"]
 

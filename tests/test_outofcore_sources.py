@@ -115,7 +115,9 @@ def test_views_that_read_rows_say_to_use_a_sample(tmp_path):
     _write(tmp_path, [_frame(300, 9)], [100])
     out = profile(tmp_path, progress=False, n_boot=0)
     with pytest.raises(NeedsRows, match="sample="):
-        out.drift(pd.DataFrame({"x": [1.0]}))
+        out.pair_drift(pd.DataFrame({"x": [1.0, 2.0]}))
+    with pytest.raises(NeedsRows, match="sample="):
+        out.conditional("x", "y", given=["colour"])
     with pytest.raises(NeedsRows, match="another pass"):
         out.update(bins=4)
     out.update(estimator="plugin")  # needs no new encoding

@@ -64,12 +64,15 @@ __all__ = [
     "TIME_AXIS_SHARE",
     "TYPE_MATCH_SHARE",
     "SharedAlphabet",
+    "LevelPlan",
+    "level_plan",
     "align_to_reference",
     "axis_flag",
     "NULL_METHODS",
     "check_reference_rows",
     "column_seed",
     "counts_row",
+    "flagged_row",
     "drift_table",
     "finish_drift_rows",
 ]
@@ -128,6 +131,10 @@ class SharedAlphabet:
     current_new : numpy.ndarray or None
         Per current row, whether its value is one the reference never had (levels)
         or lies outside the reference's range (bins); None when not compared.
+    reference_counts, current_counts : numpy.ndarray or None
+        The counts per symbol when they were gathered without codes (a source
+        read in batches, :mod:`infoscope.sources.drift`); :meth:`counts` reads
+        them instead of the codes.
     """
 
     name: str
@@ -141,6 +148,8 @@ class SharedAlphabet:
     compared: bool
     reference_flags: tuple
     current_new: np.ndarray | None = None
+    reference_counts: np.ndarray | None = None
+    current_counts: np.ndarray | None = None
 
     @property
     def k(self) -> int:
@@ -169,6 +178,9 @@ class SharedAlphabet:
         """
         if side not in ("reference", "current"):
             raise ValueError(f"side={side!r} is not valid; choose 'reference' or 'current'")
+        given = self.reference_counts if side == "reference" else self.current_counts
+        if given is not None:
+            return np.asarray(given, dtype=np.int64)
         codes = self.reference_codes if side == "reference" else self.current_codes
         return np.bincount(codes, minlength=self.k + 1)[: self.k].astype(np.int64)
 
@@ -350,40 +362,126 @@ def _align_bins(current, reference, name, settings, ref, flags, dtypes) -> Share
 
 
 def _align_levels(current, reference, name, settings, ref, flags, dtypes) -> SharedAlphabet:
-    from infoscope.encode.columns import MISSING_LABEL, OTHER_LABEL
-
-    max_categories = settings[3]
     ref_all = _quiet_encode(reference, name, settings, max_categories=None,
                             categorical_threshold=_ALL_LEVELS)
     cur_all = _quiet_encode(current, name, settings, max_categories=None,
                             categorical_threshold=_ALL_LEVELS)
-    union = list(ref_all.labels)
+    plan = level_plan(name, ref.kind, ref_all.labels, _level_counts(ref_all), cur_all.kind, cur_all.labels,
+                      _level_counts(cur_all), max_categories=settings[3], dtypes=dtypes)
+    if not plan.compared:
+        return _not_compared(name, ref.kind, flags, plan.note)
+    k = len(plan.labels)
+    ref_codes = _codes(ref_all.codes, ref_all.k, plan.reference_map, k)
+    cur_codes = _codes(cur_all.codes, cur_all.k, plan.current_map, k)
+    level_is_new = np.append(plan.current_new, False)
+    new_rows = level_is_new[np.minimum(np.asarray(cur_all.codes, dtype=np.int64), cur_all.k)]
+    return SharedAlphabet(name, ref.kind, plan.labels, ref_codes, cur_codes, None, plan.new_share,
+                          plan.note, True, flags, new_rows)
+
+
+def _level_counts(encoded) -> np.ndarray:
+    return np.bincount(encoded.codes, minlength=encoded.k + 1)[: encoded.k].astype(np.int64)
+
+
+@dataclass(frozen=True)
+class LevelPlan:
+    """How the levels of both sides of a column map onto their shared alphabet (:func:`level_plan`).
+
+    Attributes
+    ----------
+    labels : tuple of str
+        The shared symbols.
+    reference_map, current_map : numpy.ndarray
+        int64: the shared code of each reference / current level.
+    current_new : numpy.ndarray
+        bool: per current level, whether the reference never had it.
+    new_share : float
+        Share of the current non-missing rows on a level the reference never had.
+    note : str
+        What was done when the kinds differ ("" otherwise).
+    compared : bool
+        False when too few current rows match a reference level (``"type_changed"``).
+    """
+
+    labels: tuple
+    reference_map: np.ndarray
+    current_map: np.ndarray
+    current_new: np.ndarray
+    new_share: float
+    note: str
+    compared: bool
+
+
+def level_plan(name: str, reference_kind: str, reference_labels, reference_counts, current_kind: str,
+               current_labels, current_counts, *, max_categories, dtypes: str) -> LevelPlan:
+    """The shared alphabet of a column of levels from the level counts of both sides.
+
+    The union of both sides' levels; above ``max_categories`` symbols the levels
+    most frequent in the **pooled** counts are kept (ties by label) and the rest
+    share ``"(other)"``, so the alphabet does not depend on which side a row is
+    on (see the module docstring).  Only counts are read, so the same rule serves
+    rows in memory and counts gathered batch by batch.
+
+    Parameters
+    ----------
+    name : str
+        Column key (for messages).
+    reference_kind, current_kind : str
+        The encoder's kinds of both sides (a different family means a type change).
+    reference_labels, current_labels : sequence of str
+        Every level of each side (no folding).
+    reference_counts, current_counts : array_like of int
+        Rows per level, in the order of the labels.
+    max_categories : int or None
+        Most symbols of the shared alphabet.
+    dtypes : str
+        Both dtypes, for the type-change message.
+
+    Returns
+    -------
+    LevelPlan
+
+    Warns
+    -----
+    DataQualityWarning
+        When the kinds differ: compared on the printed values, or not compared.
+
+    Examples
+    --------
+    >>> plan = level_plan("c", "text", ["a", "b"], [3, 1], "text", ["b", "z"], [2, 2],
+    ...                   max_categories=64, dtypes="")
+    >>> plan.labels, plan.current_map.tolist(), plan.new_share
+    (('a', 'b', 'z'), [1, 2], 0.5)
+    """
+    from infoscope.encode.columns import MISSING_LABEL, OTHER_LABEL
+
+    union = list(reference_labels)
     index = {label: i for i, label in enumerate(union)}
-    for label in cur_all.labels:
+    for label in current_labels:
         if label not in index:
             index[label] = len(union)
             union.append(label)
-    cur_to_union = np.array([index[label] for label in cur_all.labels], dtype=np.int64)
+    cur_to_union = np.array([index[label] for label in current_labels], dtype=np.int64)
     ref_u = np.zeros(len(union), dtype=np.int64)
-    ref_u[: ref_all.k] = np.bincount(ref_all.codes, minlength=ref_all.k + 1)[: ref_all.k]
-    cur_level = np.bincount(cur_all.codes, minlength=cur_all.k + 1)[: cur_all.k]
+    ref_u[: len(reference_labels)] = np.asarray(reference_counts, dtype=np.int64)
     cur_u = np.zeros(len(union), dtype=np.int64)
-    np.add.at(cur_u, cur_to_union, cur_level)
+    np.add.at(cur_u, cur_to_union, np.asarray(current_counts, dtype=np.int64))
     is_missing = np.array([label == MISSING_LABEL for label in union], dtype=bool)  # bool when empty
     seen = (ref_u > 0) & ~is_missing
     present = cur_u[~is_missing].sum()
     new_share = float(cur_u[~seen & ~is_missing].sum() / present) if present else math.nan
+    empty = np.zeros(0, dtype=np.int64)
 
     note = ""
-    if _FAMILY.get(cur_all.kind) != _FAMILY.get(ref.kind) and present:
+    if _FAMILY.get(current_kind) != _FAMILY.get(reference_kind) and present:
         matched = 1.0 - new_share
         if matched < TYPE_MATCH_SHARE:
-            note = (f"column {name!r} is {dtypes} ({ref.kind} against {cur_all.kind}): only "
+            note = (f"column {name!r} is {dtypes} ({reference_kind} against {current_kind}): only "
                     f"{matched:.1%} of this frame's values match a reference level, so it was not "
                     "compared (flag 'type_changed')")
             warn_user(note, DataQualityWarning)
-            return _not_compared(name, ref.kind, flags, note)
-        note = (f"column {name!r} is {dtypes} ({ref.kind} against {cur_all.kind}): compared on the "
+            return LevelPlan((), empty, empty, np.zeros(0, dtype=bool), math.nan, note, False)
+        note = (f"column {name!r} is {dtypes} ({reference_kind} against {current_kind}): compared on the "
                 f"printed values, on which {matched:.1%} of this frame's rows match a reference level")
         warn_user(note, DataQualityWarning)
 
@@ -405,13 +503,9 @@ def _align_levels(current, reference, name, settings, ref, flags, dtypes) -> Sha
         for i in np.flatnonzero(is_missing):
             mapping[i] = len(labels)
             labels.append(MISSING_LABEL)
-    k = len(labels)
-    ref_codes = _codes(ref_all.codes, ref_all.k, mapping[: ref_all.k], k)
-    cur_codes = _codes(cur_all.codes, cur_all.k, mapping[cur_to_union], k)
-    level_is_new = np.append(~seen[cur_to_union] & ~is_missing[cur_to_union], False)
-    new_rows = level_is_new[np.minimum(np.asarray(cur_all.codes, dtype=np.int64), cur_all.k)]
-    return SharedAlphabet(name, ref.kind, tuple(labels), ref_codes, cur_codes, None, new_share,
-                          note, True, flags, new_rows)
+    current_new = ~seen[cur_to_union] & ~is_missing[cur_to_union]
+    return LevelPlan(tuple(labels), np.asarray(mapping[: len(reference_labels)], dtype=np.int64),
+                     np.asarray(mapping[cur_to_union], dtype=np.int64), current_new, new_share, note, True)
 
 
 def check_reference_rows(reference: dict) -> int:
@@ -612,8 +706,45 @@ def _drift_row(al: SharedAlphabet, current, reference, *, pseudocount, ln_base, 
     if not al.compared:
         return counts_row(al, None, None, new_share=al.new_share, pseudocount=pseudocount,
                           ln_base=ln_base, n_perm=n_perm, seed=seed, null=null)
-    axis = axis_flag(al, current, reference)
-    row = counts_row(al, al.counts("reference"), al.counts("current"), new_share=al.new_share,
+    return flagged_row(al, al.counts("reference"), al.counts("current"), axis_flag(al, current, reference),
+                       pseudocount=pseudocount, ln_base=ln_base, n_perm=n_perm, seed=seed, null=null)
+
+
+def flagged_row(al: SharedAlphabet, ref_counts, cur_counts, axis: str, *, pseudocount, ln_base, n_perm, seed,
+                null: str = "permutation") -> dict:
+    """:func:`counts_row` of a compared column, with its axis flag and the empty-side warning.
+
+    Parameters
+    ----------
+    al : SharedAlphabet
+        The column (its codes are not read: only ``name``, ``kind``, ``k``, ``compared``).
+    ref_counts, cur_counts : numpy.ndarray
+        Counts per shared symbol of both sides.
+    axis : str
+        ``"id_like"``, ``"time_axis"`` or ``""`` (:func:`axis_flag`).
+    pseudocount, ln_base, n_perm, seed, null
+        As in :func:`counts_row`.
+
+    Returns
+    -------
+    dict
+        The row; ``flag`` is ``axis`` (``""`` until :func:`finish_drift_rows`).
+
+    Warns
+    -----
+    DataQualityWarning
+        When a side has no non-missing values (the numbers are NaN).
+
+    Examples
+    --------
+    >>> import numpy as np, pandas as pd
+    >>> al = align_to_reference(pd.Series(list("ab")), pd.Series(list("ab")), "c",
+    ...                         (16, "quantile", "drop", 64))
+    >>> flagged_row(al, np.array([5, 5]), np.array([5, 5]), "", pseudocount=0.5, ln_base=1.0,
+    ...             n_perm=99, seed=0)["psi"]
+    0.0
+    """
+    row = counts_row(al, ref_counts, cur_counts, new_share=al.new_share,
                      pseudocount=pseudocount, ln_base=ln_base, n_perm=n_perm, seed=seed, null=null,
                      refine=not axis)
     if row["n"] == 0 or row["n_reference"] == 0:

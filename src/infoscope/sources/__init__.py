@@ -104,7 +104,10 @@ def profile(source, *, memory_limit=DEFAULT_MEMORY_LIMIT, columns=None, progress
     p = run_pass1(src, specs, batch_rows=rows, progress=progress)
     alphabets = p.alphabets()
     tables, marginals, n = count_tables(src, list(alphabets.values()), batch_rows=rows, progress=progress)
-    return session_from_tables(list(alphabets.values()), tables, marginals, n_rows=n, source=src.label, **settings)
+    session = session_from_tables(list(alphabets.values()), tables, marginals, n_rows=n, source=src.label,
+                                  **settings)
+    session.reads(src, batch_rows=rows, progress=progress)  # drift reads the source once more
+    return session
 
 
 def _sampled(src, merged, settings):

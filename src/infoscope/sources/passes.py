@@ -21,7 +21,7 @@ from infoscope.encode.summaries import Pass1, encode_batch, merge, summarize
 from infoscope.engine.counting import count_chunk, finalize
 from infoscope.engine.counting import merge as merge_tables
 
-__all__ = ["batch_rows_for", "parse_memory", "run_pass1", "count_tables", "DEFAULT_MEMORY_LIMIT"]
+__all__ = ["batch_rows_for", "parse_memory", "run_pass1", "count_tables", "progress_bar", "DEFAULT_MEMORY_LIMIT"]
 
 #: Memory a profile may use for its row batches by default.
 DEFAULT_MEMORY_LIMIT = 1 << 30
@@ -76,7 +76,22 @@ def batch_rows_for(bytes_per_row: int, memory_limit: int) -> int:
     return int(min(max(rows, BATCH_ROWS[0]), BATCH_ROWS[1]))
 
 
-def _bar(progress, total, desc):
+def progress_bar(progress, total, desc):
+    """A tqdm bar over rows (None when ``progress`` is False).
+
+    Parameters
+    ----------
+    progress : {"auto", True, False}
+        ``"auto"``: shown where tqdm can show it.
+    total : int or None
+        Rows expected.
+    desc : str
+        Its label.
+
+    Returns
+    -------
+    tqdm.tqdm or None
+    """
     if progress is False:
         return None
     from tqdm.auto import tqdm
@@ -106,7 +121,7 @@ def run_pass1(source, specs, *, batch_rows: int, progress="auto") -> Pass1:
     """
     p = Pass1(specs)
     while (req := p.request()) is not None:
-        bar = _bar(progress, source.n_rows, f"pass 1, round {req.round + 1}")
+        bar = progress_bar(progress, source.n_rows, f"pass 1, round {req.round + 1}")
         total = None
         try:
             for batch in source.batches(req.columns, batch_rows):
@@ -153,7 +168,7 @@ def count_tables(source, alphabets, *, batch_rows: int, progress="auto", backend
     acc: dict = {}
     marginals = [np.zeros(k + 1, dtype=np.int64) for k in ks]
     rows = 0
-    bar = _bar(progress, source.n_rows, "pass 2, counting")
+    bar = progress_bar(progress, source.n_rows, "pass 2, counting")
     try:
         for batch in source.batches(names, batch_rows):
             codes = encode_batch(batch, alphabets)

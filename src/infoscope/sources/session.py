@@ -150,9 +150,81 @@ class TableSession(ProfileSession):
     def _values(self, key: str):
         self._needs_rows("this view")
 
-    def drift(self, reference, **settings):
-        """Not available out of core yet: drift reads the rows (raises :class:`NeedsRows`)."""
-        self._needs_rows("drift()")
+    def reads(self, source, *, batch_rows: int, progress="auto") -> None:
+        """Keep the source the tables were counted from, for the views that read it again (drift).
+
+        Parameters
+        ----------
+        source : infoscope.sources.readers.Source
+            The source of :func:`infoscope.sources.profile`.
+        batch_rows : int
+            Rows per batch of its passes.
+        progress : {"auto", True, False}, default="auto"
+            A progress bar over the batches of a further pass.
+
+        Returns
+        -------
+        None
+        """
+        self._source, self._batch_rows, self._progress = source, int(batch_rows), progress
+
+    def drift(self, reference, *, pseudocount: float = 0.5, n_perm: int = 999, null: str = "permutation",
+              _alphabets: dict | None = None, _sides: list | None = None):
+        """Per-column drift of the source from an in-memory reference frame, in one more pass over the source.
+
+        The method and the table of :meth:`infoscope.frame.session.ProfileSession.drift`
+        (:mod:`infoscope.frame.drift_batches` gathers the source's counts batch by
+        batch); the numbers equal the in-memory ones on the same rows.  A column
+        of text that would be read as numbers, or of levels with more than
+        :data:`infoscope.frame.drift_batches.MAX_LEVELS` distinct values, is not
+        compared out of core (a note says so; a sample compares it).
+
+        Parameters
+        ----------
+        reference : pandas.DataFrame or polars.DataFrame
+            The frame to compare with; at least 2 rows.
+        pseudocount, n_perm, null
+            As in :meth:`~infoscope.frame.session.ProfileSession.drift`.
+
+        Returns
+        -------
+        pandas.DataFrame
+            As :meth:`~infoscope.frame.session.ProfileSession.drift`.
+
+        Raises
+        ------
+        NeedsRows
+            A profile counted on a Dask cluster keeps no source to read again.
+
+        References
+        ----------
+        .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (PSI).
+        """
+        from infoscope.frame.drift_batches import batch_drift_rows
+        from infoscope.sources.passes import progress_bar
+
+        src = getattr(self, "_source", None)
+        if src is None:
+            self._needs_rows("drift()")
+        common, ref_series = self._reference_columns(reference, sides=_sides)
+        s = self._settings
+        bar = progress_bar(self._progress, src.n_rows, "drift")
+
+        def batches():
+            for batch in src.batches(common, self._batch_rows):
+                if bar is not None:
+                    bar.update(len(batch))
+                yield batch
+
+        try:
+            rows = batch_drift_rows(batches(), {k: ref_series[k] for k in common}, src.dtypes(),
+                                    encoding={k: self._encoding_settings(k, s) for k in common},
+                                    pseudocount=pseudocount, base=s["base"], n_perm=n_perm, seed=s["seed"],
+                                    null=null, alphabets_out=_alphabets)
+        finally:
+            if bar is not None:
+                bar.close()
+        return self._drift_frame(rows, pseudocount=pseudocount, null=null, n_perm=n_perm)
 
     def pair_drift(self, reference, **settings):
         """Not available out of core: reads the rows (raises :class:`NeedsRows`)."""
@@ -162,9 +234,28 @@ class TableSession(ProfileSession):
         """Not available out of core: reads the rows (raises :class:`NeedsRows`)."""
         self._needs_rows("drift_over()")
 
-    def drift_report(self, reference, **settings):
-        """Not available out of core: reads the rows (raises :class:`NeedsRows`)."""
-        self._needs_rows("drift_report()")
+    def drift_report(self, reference, *, pairs: bool = False, **settings):
+        """The drift record of the source against a reference (:meth:`drift`; no relationship drift).
+
+        Parameters
+        ----------
+        reference : pandas.DataFrame or polars.DataFrame
+            The frame to compare with.
+        pairs : bool, default=False
+            Relationship drift reads the rows: out of core it is left out (the
+            record's notes say so).
+        **settings
+            As in :meth:`~infoscope.frame.session.ProfileSession.drift_report`.
+
+        Returns
+        -------
+        infoscope.frame.drift_report.DriftReport
+        """
+        report = super().drift_report(reference, pairs=False, **settings)
+        if pairs:
+            report.notes.append("relationship drift (pairs) reads the rows: out of core it is not computed; "
+                                "profile a sample (sample=) for it")
+        return report
 
     def conditional(self, *args, **kwargs):
         """Not available out of core: conditional tables read the rows (raises :class:`NeedsRows`)."""
@@ -203,11 +294,21 @@ class TableSession(ProfileSession):
 
         return to_html(self, path, min_count=min_count, title=title)
 
-    def widget(self):
-        """The live profile view of this session (:class:`infoscope.widgets.profile.ProfileWidget`)."""
+    def widget(self, *, reference=None):
+        """The live profile view of this session (:class:`infoscope.widgets.profile.ProfileWidget`).
+
+        Parameters
+        ----------
+        reference : pandas.DataFrame or polars.DataFrame, optional
+            Adds the drift view (the source against this frame; one more pass over the source).
+
+        Returns
+        -------
+        infoscope.widgets.profile.ProfileWidget
+        """
         from infoscope.widgets.profile import ProfileWidget
 
-        return ProfileWidget(self)
+        return ProfileWidget(self, reference=reference)
 
 
 def session_from_tables(alphabets: Sequence, tables: Mapping, marginals: Mapping, *, n_rows: int,

@@ -138,7 +138,11 @@ class DriftTable:
             pseudocount=pseudocount, base=s["base"], n_perm=n_perm, seed=s["seed"], null=null,
             alphabets_out=_alphabets,
         )
-        unit = unit_name(s["base"])
+        return self._drift_frame(rows, pseudocount=pseudocount, null=null, n_perm=n_perm)
+
+    def _drift_frame(self, rows: list[dict], *, pseudocount: float, null: str, n_perm: int) -> pd.DataFrame:
+        """The drift table of finished rows, with its settings and units in ``attrs``."""
+        unit = unit_name(self._settings["base"])
         return result_frame(rows, DRIFT_COLUMNS, **self._attrs(
             pseudocount=pseudocount, null=null, n_perm=n_perm,
             units={"psi": "nats", "psi_chance": "nats", "psi_chance_high": "nats",
