@@ -126,3 +126,12 @@ def test_a_profile_from_dask_says_drift_needs_a_sample():
     ddf = dd.from_pandas(pd.DataFrame({"a": list("ab") * 50}), npartitions=2)
     with pytest.raises(NeedsRows, match=r"drift\(\) reads the rows"):
         profile(ddf, progress=False, n_boot=0).drift(pd.DataFrame({"a": list("ab") * 50}))
+
+
+def test_naive_against_zoned_times_are_not_compared_and_say_why(tmp_path):
+    t = pd.Series(pd.date_range("2026-01-01", periods=300, freq="h"))
+    _write(tmp_path, pd.DataFrame({"t": t, "c": list("abc") * 100}), 2)
+    ref = pd.DataFrame({"t": t.dt.tz_localize("UTC"), "c": list("abc") * 100})
+    with pytest.warns(InfoscopeWarning, match="column 't' is datetime64.*naive and time-zone-aware"):
+        out = _source(tmp_path).drift(ref)
+    assert out.set_index("column").loc["t", "flag"] == "type_changed"

@@ -217,6 +217,18 @@ def _zoned(values) -> bool | None:
     return None
 
 
+def _zone_note(name: str, dtypes: str, zone_ref, zone_cur) -> str:
+    """The warning (given here) when one side's times are naive and the other's zoned, else ""."""
+    if zone_ref is None or zone_cur is None or zone_ref == zone_cur:
+        return ""
+    note = (f"column {name!r} is {dtypes}: naive and time-zone-aware times cannot be "
+            "compared without knowing the zone of the naive ones, so it was not compared "
+            "(flag 'type_changed'); localize the naive side (Series.dt.tz_localize) or "
+            "drop the zone of the other (Series.dt.tz_convert(None)) to compare it")
+    warn_user(note, DataQualityWarning)
+    return note
+
+
 def _codes(values: np.ndarray, k_in: int, mapping: np.ndarray, k_out: int) -> np.ndarray:
     """Re-code ``values`` (0 .. k_in-1, k_in = left out) through ``mapping`` onto 0 .. k_out."""
     lookup = np.append(np.asarray(mapping, dtype=np.int64), k_out)
@@ -305,13 +317,8 @@ def align_to_reference(current: pd.Series, reference: pd.Series, name: str, sett
     ref = _encode(reference, name, settings)
     flags = tuple(ref.flags)
     dtypes = f"{_dtype_text(reference)} in the reference, {_dtype_text(current)} in this frame"
-    zone_ref, zone_cur = _zoned(reference), _zoned(current)
-    if zone_ref is not None and zone_cur is not None and zone_ref != zone_cur:
-        note = (f"column {name!r} is {dtypes}: naive and time-zone-aware times cannot be "
-                "compared without knowing the zone of the naive ones, so it was not compared "
-                "(flag 'type_changed'); localize the naive side (Series.dt.tz_localize) or "
-                "drop the zone of the other (Series.dt.tz_convert(None)) to compare it")
-        warn_user(note, DataQualityWarning)
+    note = _zone_note(name, dtypes, _zoned(reference), _zoned(current))
+    if note:
         return _not_compared(name, ref.kind, flags, note)
     if ref.edges is not None:
         return _align_bins(current, reference, name, settings, ref, flags, dtypes)

@@ -32,7 +32,7 @@ import pandas as pd
 from infoscope._warnings import DataQualityWarning, warn_user
 from infoscope.frame.drift import (
     _ALL_LEVELS, NULL_METHODS, TIME_AXIS_SHARE, SharedAlphabet, _dtype_text, _encode, _outside, _quiet_encode,
-    _zoned, check_reference_rows, column_seed, counts_row, finish_drift_rows, flagged_row, level_plan,
+    _zone_note, _zoned, check_reference_rows, column_seed, counts_row, finish_drift_rows, flagged_row, level_plan,
 )
 
 __all__ = ["batch_drift_rows", "MAX_LEVELS"]
@@ -228,12 +228,9 @@ def batch_drift_rows(batches, reference: dict, dtypes: dict, *, encoding: dict, 
     for key, ref_values in reference.items():
         texts[key] = f"{_dtype_text(ref_values)} in the reference, {dtypes.get(key, '?')} in this frame"
         ref = _encode(ref_values, key, encoding[key])
-        zone_ref = _zoned(ref_values)
         zone_cur = _zoned(pd.Series([], dtype=dtypes[key])) if key in dtypes else None
-        if zone_ref is not None and zone_cur is not None and zone_ref != zone_cur:
-            note = (f"column {key!r} is {texts[key]}: naive and time-zone-aware times cannot be compared without "
-                    "knowing the zone of the naive ones, so it was not compared (flag 'type_changed')")
-            warn_user(note, DataQualityWarning)
+        note = _zone_note(key, texts[key], _zoned(ref_values), zone_cur)
+        if note:
             rows[key] = SharedAlphabet(key, ref.kind, (), _EMPTY, _EMPTY, None, math.nan, note, False,
                                        tuple(ref.flags))
             continue
