@@ -136,7 +136,7 @@ def test_on_a_running_cluster_by_its_address(folder, in_memory):
     import distributed  # in the test extra
 
     with distributed.LocalCluster(n_workers=1, threads_per_worker=1, processes=True,
-                                  dashboard_address=None) as cluster:
+                                  dashboard_address=":0") as cluster:
         status, text = _run(["profile", str(folder), "--target", "t", "--estimator", "plugin",
                              "--scheduler", cluster.scheduler_address])
     assert status == 0 and f"the Dask cluster at {cluster.scheduler_address}" in text
@@ -155,3 +155,27 @@ def test_the_demo_writes_parquet_files_that_profile_out_of_core(tmp_path, capsys
     assert "6000 rows x 17 columns" in text and "read out of core" in text
     leak = next(x for x in text.split("== relevance")[1].splitlines() if x.startswith("compensation_eur"))
     assert leak.rstrip().endswith("True")  # the planted leak is found
+
+
+def test_drift_of_a_batch_folder_out_of_core_is_the_in_memory_record(tmp_path, capsys):
+    # infoscope drift REFERENCE 'day/*.parquet': the same record (and exit status) as the batch read whole
+    import json
+
+    from infoscope.datasets import make_deliveries, make_deliveries_batch
+
+    batch = make_deliveries_batch(9_000, seed=1)
+    (tmp_path / "day").mkdir()
+    for i in range(3):
+        batch.iloc[i * 3000:(i + 1) * 3000].to_parquet(tmp_path / "day" / f"p{i}.parquet", index=False)
+    batch.to_parquet(tmp_path / "day.parquet", index=False)
+    make_deliveries(6_000).to_parquet(tmp_path / "ref.parquet", index=False)
+    ref = str(tmp_path / "ref.parquet")
+    assert main(["drift", ref, str(tmp_path / "day" / "*.parquet"), "--fail-on", "major", "--pairs",
+                 "--json", str(tmp_path / "a.json"), "--memory-limit", "32MB"]) == 1
+    said = capsys.readouterr().out
+    assert "batch: read out of core in row batches within 32MB" in said
+    assert main(["drift", ref, str(tmp_path / "day.parquet"), "--fail-on", "major",
+                 "--json", str(tmp_path / "b.json")]) == 1
+    a, b = (json.loads((tmp_path / f"{x}.json").read_text()) for x in "ab")
+    assert a["columns"] == b["columns"] and a["summary"] == b["summary"]
+    assert any("relationship drift" in note for note in a["notes"])

@@ -49,7 +49,7 @@ WAIT_SECONDS = 300
 @pytest.fixture(scope="module")
 def client():
     """Two worker processes on this machine (loopback only), shared by the module."""
-    cluster = LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None,
+    cluster = LocalCluster(n_workers=2, threads_per_worker=1, processes=True, dashboard_address=":0",
                            host="127.0.0.1", silence_logs=50)
     dask_client = Client(cluster)
     try:

@@ -687,7 +687,11 @@ def add_drift_parser(subparsers) -> argparse.ArgumentParser:
                     "common-practice bands (0.10 moderate, 0.25 major). Exit status: 0 fine, "
                     "1 a column reached --fail-on, 2 unusable input.")
     p.add_argument("reference", metavar="REFERENCE", help="the reference data (CSV, TSV or Parquet)")
-    p.add_argument("current", metavar="CURRENT", help="the batch to check (CSV, TSV or Parquet)")
+    p.add_argument("current", metavar="CURRENT",
+                   help="the batch to check (CSV, TSV or Parquet); a glob ('day/*.parquet', quoted) or a "
+                        "folder is read out of core")
+    p.add_argument("--memory-limit", default=None, metavar="SIZE", dest="memory_limit",
+                   help="read the batch out of core in row batches within SIZE (e.g. 512MB)")
     p.add_argument("--out", metavar="PAGE.html", default=None,
                    help="write the check as one self-contained HTML page (works offline)")
     p.add_argument("--json", metavar="FILE.json", default=None, dest="json_path",
@@ -743,8 +747,6 @@ def cmd_drift(args: argparse.Namespace, out=None) -> int:
     """
     from pathlib import Path
 
-    from infoscope.frame.session import ProfileSession
-
     out = sys.stdout if out is None else out
     if args.bins < 1:
         raise CommandError(f"--bins must be >= 1, got {args.bins}")
@@ -757,20 +759,24 @@ def cmd_drift(args: argparse.Namespace, out=None) -> int:
     for option, path in (("--out", args.out), ("--json", args.json_path)):
         if path and path != "-" and not Path(path).resolve().parent.is_dir():
             raise CommandError(f"{option} {path!r}: the folder does not exist")
-    with _noting() as caught:
+    with _noting() as caught, contextlib.ExitStack() as stack:
         reference = read_input(args.reference, args)
-        current = read_input(args.current, args)
-        with _refused_as_command_error():
-            session = ProfileSession(current, bins=args.bins, seed=args.seed, n_boot=100)
-            report = session.drift_report(reference, pairs=args.pairs, n_perm=args.n_perm,
-                                          reference_name=str(args.reference),
-                                          current_name=str(args.current))
+        with _refused_as_command_error():  # a glob or folder (or --memory-limit): the batch out of core
+            opened = stack.enter_context(open_profile([args.current], args, dict(bins=args.bins, seed=args.seed,
+                                                      n_boot=100), read_frame=lambda path: read_input(path, args)))
+            report = opened.session.drift_report(reference, pairs=args.pairs, n_perm=args.n_perm,
+                                                 reference_name=str(args.reference),
+                                                 current_name=str(args.current))
+        current = opened.frame
     to_stdout = args.json_path == "-"
     show = sys.stderr if to_stdout else out
     print(f"infoscope drift: {args.current} ({report.current_rows} rows) against {args.reference} "
           f"({report.reference_rows} rows); {len(report.columns)} common column(s).", file=show)
     print_read_notes(reference, show, label="reference: ")
-    print_read_notes(current, show, label="batch: ")
+    if current is not None:
+        print_read_notes(current, show, label="batch: ")
+    else:
+        print(f"batch: {opened.how}", file=show)
     for flag_list, words in ((report.missing_columns, "only in the reference"),
                              (report.extra_columns, "only in the batch")):
         if flag_list:

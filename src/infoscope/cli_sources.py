@@ -150,9 +150,10 @@ def open_profile(data: list[str], args: argparse.Namespace, settings: dict, *, r
         yield Opened(ProfileSession(frame, **settings), label, "read into memory", frame)
         return
     source = data[0] if len(data) == 1 else list(data)
-    if not (args.dask or args.scheduler):
-        limit = args.memory_limit or "1GiB"
-        session = profile(source, memory_limit=limit, sep=args.sep, encoding=args.encoding, **settings)
+    if not (getattr(args, "dask", False) or getattr(args, "scheduler", None)):
+        limit = getattr(args, "memory_limit", None) or "1GiB"
+        session = profile(source, memory_limit=limit, sep=getattr(args, "sep", None),
+                          encoding=getattr(args, "encoding", None), **settings)
         yield Opened(session, label, f"read out of core in row batches within {limit}")
         return
     with _dask_client(args) as (client, where):
@@ -175,7 +176,7 @@ def _dask_client(args):
         finally:
             client.close()
         return
-    with LocalCluster(processes=True, threads_per_worker=1, dashboard_address=None) as cluster, \
+    with LocalCluster(processes=True, threads_per_worker=1, dashboard_address=":0") as cluster, \
             Client(cluster) as client:
         yield client, f"a local Dask cluster of {len(cluster.workers)} worker processes"
 
