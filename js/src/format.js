@@ -55,6 +55,11 @@ export function expectedWords(e) {
 }
 
 export function count(v) { return v == null || !Number.isFinite(v) ? DASH : Math.round(v).toLocaleString("en-US"); }
+// a share of rows in a table of shares: one decimal below 10% ("3.4%"), whole percent above
+export function shareText(v) {
+  if (v == null || !Number.isFinite(v)) return DASH;
+  return v < 0.1 ? `${(v * 100).toFixed(1)}%` : pct(v);
+}
 export function pct(v) { return v == null || !Number.isFinite(v) ? DASH : `${Math.round(v * 100)}%`; }
 
 export function tickStep(max, n = 5) {

@@ -3,14 +3,15 @@
 // restores it: which element had keyboard focus, scroll positions of the scrolling
 // panels and the information grid's keyboard cursor (by column names, not by
 // position). Elements opt in with data-keep="<key>" (focus) and
-// data-keep-scroll="<key>" (scroll).
+// data-keep-scroll="<key>" (scroll). A view may keep its own choices under its name
+// (the drift panel: `drift`, its sort, open column and strip cursor).
 
 // A focus lost without a new owner (its view was taken down) is given back to the
 // next view only within this time; focus the person moved elsewhere stays there.
 const REFOCUS_MS = 4000;
 
 export function createMemory() {
-  return { focus: null, lostAt: -Infinity, scroll: new Map(), cursor: null };
+  return { focus: null, lostAt: -Infinity, scroll: new Map(), cursor: null, drift: null };
 }
 
 // Follow focus and scrolling inside `root` as they happen (a view may be taken

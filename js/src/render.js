@@ -77,7 +77,7 @@ export function render({ model, el }, memory = createMemory()) {
   const wiring = {
     _entropy: ["entropy", "caution", "controls"], sort_by: ["entropy"], selected_column: ["entropy", "controls"],
     _grid_meta: ["grid"], _grid_values: ["grid"], _grid_n: ["grid"], _grid_q: ["grid"], order: ["grid", "controls"],
-    selected_pair: ["grid", "pair"], _pair: ["pair"], _relevance: ["relevance"], _drift: ["drift"], _status: ["status", "caution"],
+    selected_pair: ["grid", "pair"], _pair: ["pair"], _relevance: ["relevance"], _drift: ["drift"], _drift_over: ["drift"], _status: ["status", "caution"],
     _meta: ["caution", "sub"], alpha_fdr: ["grid", "relevance"],
     _selection: ["selection"], selection_method: ["selection"], selection_k: ["selection"], _surprising: ["surprising"],
   };

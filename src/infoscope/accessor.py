@@ -426,7 +426,8 @@ class InfoProfileAccessor:
         options = {k: settings.pop(k) for k in ("pseudocount", "n_perm", "null") if k in settings}
         return self._session(settings).drift(reference, **options)
 
-    def to_html(self, path=None, *, min_count=None, title: str | None = None, reference=None, **settings):
+    def to_html(self, path=None, *, min_count=None, title: str | None = None, reference=None, drift_over=None,
+                **settings):
         """The profile as one self-contained HTML file that works offline.
 
         The file holds the live view's front end and every view's data
@@ -446,6 +447,9 @@ class InfoProfileAccessor:
             Title of the page.
         reference : pandas.DataFrame or polars.DataFrame, optional
             A reference frame: the page adds the drift view (this frame against it).
+        drift_over : str or tuple, optional
+            ``(time_column, every[, against])``: the drift view adds a strip of each
+            column's drift period by period (see ``__call__``).
         **settings
             Settings of the session (``bins``, ``estimator``, ``target`` ...) and
             view settings (``order``, ``alpha_fdr``, ``selected_pair``, ``sort_by``).
@@ -471,7 +475,7 @@ class InfoProfileAccessor:
 
         view = {k: settings.pop(k) for k in list(settings) if k in _VIEW_SETTINGS}
         return to_html(self._session(settings), path, min_count=min_count, title=title, settings=view,
-                       reference=reference)
+                       reference=reference, drift_over=drift_over)
 
     def pair_drift(self, reference, **settings) -> pd.DataFrame:
         """Pairs whose dependence changed from a reference frame: see :meth:`ProfileSession.pair_drift`.
@@ -569,7 +573,7 @@ class InfoProfileAccessor:
         options = {k: settings.pop(k) for k in names if k in settings}
         return self._session(settings).drift_report(reference, pairs=pairs, **options)
 
-    def __call__(self, *, reference=None, **settings):
+    def __call__(self, *, reference=None, drift_over=None, **settings):
         """The live profile widget of this frame (needs the widget extra).
 
         Parameters
@@ -578,6 +582,14 @@ class InfoProfileAccessor:
             A reference frame (e.g. the training data): the profile adds the drift
             view, each column's drift of this frame from it against the drift that
             sampling alone gives (:meth:`drift_report`), recomputed with the controls.
+        drift_over : str or tuple, optional
+            Drift over time in the drift view: ``(time_column, every)`` such as
+            ``("dispatched_at", "1W")``, or ``(time_column, every, against)`` with
+            ``against`` one of ``"reference"`` (the reference frame; the default
+            when one is given), ``"first"`` (the first period; the default without
+            a reference) or ``"previous"``; a name alone means periods of ``"1W"``.
+            Adds a strip, one row per column and one cell per period, coloured
+            where the period moved beyond chance (:meth:`drift_over`).
         **settings
             Initial settings of the profile.
 
@@ -610,5 +622,5 @@ class InfoProfileAccessor:
             # a big frame: the session starts on the preview's seeded sample, so the
             # widget shows in a second or two; the full data follow on its worker thread
             start = self.session(**{**settings, "sample": PREVIEW_ROWS})
-            return ProfileWidget(start, reference=reference, sampled_start=True)
-        return ProfileWidget(self.session(**settings), reference=reference)
+            return ProfileWidget(start, reference=reference, drift_over=drift_over, sampled_start=True)
+        return ProfileWidget(self.session(**settings), reference=reference, drift_over=drift_over)

@@ -149,20 +149,21 @@ def _pairs_note(meta: dict) -> str | None:
     return text
 
 
-def _payload_of(source, *, settings=None, min_count=None, reference=None) -> dict:
+def _payload_of(source, *, settings=None, min_count=None, reference=None, drift_over=None) -> dict:
     """The payload of a live view (its own ``payload``) or of a session (:func:`infoscope.views.payload`)."""
     if callable(getattr(source, "payload", None)) and hasattr(source, "session"):
-        if settings or reference is not None:
-            raise TypeError("settings= and reference= apply to a session; a live view exports its own "
-                            "control values and reference")
+        if settings or reference is not None or drift_over is not None:
+            raise TypeError("settings=, reference= and drift_over= apply to a session; a live view exports "
+                            "its own control values, reference and drift over time")
         return source.payload(min_count=min_count)
     if not all(hasattr(source, m) for m in ("entropy", "pairs", "pair", "names", "settings")):
         raise TypeError("to_html needs an infoscope ProfileSession (or a live profile view), "
                         f"got {type(source).__name__}")
-    return build_payload(source, settings, min_count=min_count, reference=reference)
+    return build_payload(source, settings, min_count=min_count, reference=reference, drift_over=drift_over)
 
 
-def profile_html(source, *, min_count=None, title: str | None = None, settings=None, reference=None) -> str:
+def profile_html(source, *, min_count=None, title: str | None = None, settings=None, reference=None,
+                 drift_over=None) -> str:
     """The text of a self-contained offline HTML page of a profile.
 
     Parameters
@@ -182,6 +183,9 @@ def profile_html(source, *, min_count=None, title: str | None = None, settings=N
     reference : DataFrame, optional
         A reference frame for a session's export: adds the drift view (drift of the
         session's frame from it; a live view exports its own reference).
+    drift_over : str or tuple, optional
+        ``(time_column, every[, against])`` for a session's export: adds the strip of
+        drift over time to the drift view (:func:`infoscope.views.payload.drift_over_spec`).
 
     Returns
     -------
@@ -202,7 +206,8 @@ def profile_html(source, *, min_count=None, title: str | None = None, settings=N
     True
     """
     check_min_count(min_count)
-    data = _payload_of(source, settings=settings, min_count=min_count, reference=reference)
+    data = _payload_of(source, settings=settings, min_count=min_count, reference=reference,
+                       drift_over=drift_over)
     effective = data["state"].get("min_count") or None
     svg = profile_svg_from_payload(data)
     picture = f'<img alt="infoscope profile (static picture)" src="{svg_data_uri(svg)}">'
@@ -237,7 +242,8 @@ def profile_html(source, *, min_count=None, title: str | None = None, settings=N
     )
 
 
-def to_html(source, path=None, *, min_count=None, title: str | None = None, settings=None, reference=None):
+def to_html(source, path=None, *, min_count=None, title: str | None = None, settings=None, reference=None,
+            drift_over=None):
     """Write one self-contained HTML file of a profile that works offline.
 
     Parameters
@@ -255,6 +261,8 @@ def to_html(source, path=None, *, min_count=None, title: str | None = None, sett
         View settings of a session's export (see :func:`profile_html`).
     reference : DataFrame, optional
         A reference frame: adds the drift view (see :func:`profile_html`).
+    drift_over : str or tuple, optional
+        Adds the strip of drift over time (see :func:`profile_html`).
 
     Returns
     -------
@@ -271,7 +279,8 @@ def to_html(source, path=None, *, min_count=None, title: str | None = None, sett
     >>> report.to_html(session, "profile.html", min_count=10)  # doctest: +SKIP
     PosixPath('profile.html')
     """
-    text = profile_html(source, min_count=min_count, title=title, settings=settings, reference=reference)
+    text = profile_html(source, min_count=min_count, title=title, settings=settings, reference=reference,
+                        drift_over=drift_over)
     if path is None:
         return text
     target = Path(os.fspath(path))

@@ -34,7 +34,8 @@ from infoscope.views import serialize as ser
 from infoscope.views.choices import check_view_settings, meta, view_settings_from_session
 
 __all__ = ["CORE_PARTS", "FORMAT", "PARTS", "SETTINGS_TRAITS", "VIEW_TRAITS", "DATA_TRAITS", "TOP_PAIRS",
-           "draft_grid", "draft_message", "drift_data", "payload", "view_data", "top_pairs"]
+           "DRIFT_OVER_AGAINST", "draft_grid", "draft_message", "drift_data", "drift_over_data", "drift_over_spec",
+           "payload", "view_data", "top_pairs"]
 
 FORMAT = "infoscope-profile/1"
 #: The data parts a view can ask for.
@@ -50,7 +51,7 @@ VIEW_TRAITS = ("selected_column", "selected_pair", "alpha_fdr", "sort_by")
 #: The data parts as trait names (kernel -> view).
 DATA_TRAITS = ("_view", "_entropy", "_grid_meta", "_grid_values", "_grid_n", "_grid_q",
                "_grid_reliability", "_pair", "_relevance", "_selection", "_surprising", "_meta", "_status",
-               "_drift")
+               "_drift", "_drift_over")
 #: Pair views precomputed into a payload for a page without a kernel.
 TOP_PAIRS = 12
 #: Control values a view starts from where the session has no setting for them.
@@ -344,9 +345,105 @@ def drift_data(session, reference, *, min_count=None, pairs: bool = True, genera
     return {**report.to_dict(min_count=min_count or None), "generation": int(generation)}
 
 
+#: What each period of ``drift_over=`` is compared with (the third item of the setting).
+DRIFT_OVER_AGAINST = ("reference", "first", "previous")
+
+
+def drift_over_spec(value, *, has_reference: bool) -> dict | None:
+    """Read the ``drift_over=`` setting of a profile: which time column, how long a period, against what.
+
+    Parameters
+    ----------
+    value : None, str or tuple
+        ``None`` (no strip); a time column's key (periods of ``"1W"``); a tuple
+        ``(time_column, every)`` or ``(time_column, every, against)`` where
+        ``every`` is a pandas period frequency (``"1D"``, ``"1W"``, ``"2W"``,
+        ``"1M"``, ...) and ``against`` is ``"reference"`` (the profile's reference
+        frame), ``"first"`` (the first period) or ``"previous"`` (the period
+        before).
+    has_reference : bool
+        Whether the profile has a reference frame (then ``against`` defaults to
+        ``"reference"``, else to ``"first"``).
+
+    Returns
+    -------
+    dict or None
+        ``{"time_column", "every", "against"}``; the session checks the column and
+        the frequency when it computes.
+
+    Raises
+    ------
+    TypeError, ValueError
+        A value of another shape, or ``against="reference"`` without a reference.
+
+    Examples
+    --------
+    >>> drift_over_spec(("dispatched_at", "1W"), has_reference=True)
+    {'time_column': 'dispatched_at', 'every': '1W', 'against': 'reference'}
+    >>> drift_over_spec("dispatched_at", has_reference=False)["against"]
+    'first'
+    """
+    if value is None:
+        return None
+    items = (value,) if isinstance(value, str) else value
+    if not isinstance(items, (tuple, list)) or not 1 <= len(items) <= 3:
+        raise TypeError("drift_over must be a time column's name or a tuple (time_column, every[, against]), "
+                        f"e.g. ('dispatched_at', '1W'); got {value!r}")
+    time_column = items[0]
+    every = items[1] if len(items) > 1 else "1W"
+    against = items[2] if len(items) > 2 else ("reference" if has_reference else "first")
+    if not isinstance(every, str):
+        raise TypeError(f"drift_over: every must be a pandas period frequency such as '1W', got {every!r}")
+    if against not in DRIFT_OVER_AGAINST:
+        raise ValueError(f"drift_over: against={against!r} is not one of "
+                         f"{', '.join(map(repr, DRIFT_OVER_AGAINST))}")
+    if against == "reference" and not has_reference:
+        raise ValueError("drift_over: against='reference' needs a reference frame (reference=...); "
+                         "or compare each period with 'first' or 'previous'")
+    return {"time_column": time_column, "every": every, "against": against}
+
+
+def drift_over_data(session, spec: Mapping, *, reference=None, min_count=None, generation: int = 0) -> dict:
+    """The drift-over-time part of a view: ``session.drift_over(...)`` as a column x period strip.
+
+    Parameters
+    ----------
+    session : ProfileSession
+        The profile.
+    spec : mapping
+        :func:`drift_over_spec` of the setting.
+    reference : DataFrame, optional
+        The profile's reference frame (used when ``spec["against"]`` is ``"reference"``).
+    min_count : int, optional
+        Row counts below this (and those that would give them back) are hidden.
+    generation : int, default=0
+        Stamped on the part.
+
+    Returns
+    -------
+    dict
+        :func:`infoscope.views.serialize.drift_over_record` of the table.
+
+    References
+    ----------
+    .. [1] Siddiqi, N. (2006). Credit Risk Scorecards. Wiley (PSI bands, common practice).
+
+    Examples
+    --------
+    >>> from infoscope.frame.session import ProfileSession
+    >>> df = pd.DataFrame({"t": pd.date_range("2026-01-05", periods=28, freq="D"), "c": list("ab") * 14})
+    >>> d = drift_over_data(ProfileSession(df, n_boot=0), drift_over_spec("t", has_reference=False))
+    >>> d["reference"], len(d["periods"]), d["columns"]
+    ('first', 4, ['c'])
+    """
+    against = reference if spec["against"] == "reference" else spec["against"]
+    table = session.drift_over(spec["time_column"], every=spec["every"], reference=against)
+    return ser.drift_over_record(table, min_count=min_count, generation=generation)
+
+
 def payload(session, settings: Mapping | None = None, *, min_count=None, top_pairs: int = TOP_PAIRS,
             view: str = "profile", generation: int = 0, status: Mapping | None = None,
-            parts=PARTS, reference=None) -> dict:
+            parts=PARTS, reference=None, drift_over=None) -> dict:
     """Every view's data of a profile as one JSON-able dict (see the module docstring).
 
     Parameters
@@ -376,6 +473,9 @@ def payload(session, settings: Mapping | None = None, *, min_count=None, top_pai
         ``selection`` runs permutation tests and costs seconds on a large frame).
     reference : DataFrame, optional
         A reference frame: adds the ``_drift`` part (:func:`drift_data`; None without one).
+    drift_over : str or tuple, optional
+        Adds the ``_drift_over`` part, the column x period strip (:func:`drift_over_data`
+        of :func:`drift_over_spec`; None without it).
 
     Returns
     -------
@@ -406,6 +506,7 @@ def payload(session, settings: Mapping | None = None, *, min_count=None, top_pai
                          "session's settings; the numbers come from the session: update it first")
     state: dict[str, Any] = {**VIEW_DEFAULTS, **shown, **given}
     check_view_settings(state, session.names)
+    over_spec = drift_over_spec(drift_over, has_reference=reference is not None)
     threshold = max(check_min_count(min_count) or 0, check_min_count(state["min_count"] or None) or 0)
     state["min_count"] = threshold
     # a sparse pair still exports; its note is in the status.  collect_warnings, not
@@ -428,9 +529,12 @@ def payload(session, settings: Mapping | None = None, *, min_count=None, top_pai
             cache[a + "\u0000" + b] = _pair_view(session, a, b, unit, threshold or None, generation)
         drift = None if reference is None else drift_data(session, reference, min_count=threshold or None,
                                                           generation=generation)
+        over = None if over_spec is None else drift_over_data(session, over_spec, reference=reference,
+                                                             min_count=threshold or None, generation=generation)
     notes = sorted({f"{w.category.__name__}: {w.message}" for w in caught})
     state.update(data)
     state["_drift"] = drift
+    state["_drift_over"] = over
     state["_view"] = view
     state["_meta"] = meta(session)
     state["_status"] = dict(status) if status is not None else {

@@ -32,6 +32,13 @@ Shapes of the live view and of the HTML export (the front end reads exactly thes
 ``relevance_json`` -> JSON text
     ``{"target", "fields": [...RELEVANCE_JSON_FIELDS], "rows": [...], "unit", "generation"}``
     (the table's fields, then ``sparse``: reliability is not "ok").
+``drift_over_record`` -> dict
+    ``{"time_column", "every", "reference" ("first" / "previous" / "frame"),
+    "periods": [{"period", "start", "is_reference"}], "columns": [...], "cells":
+    [{DRIFT_OVER_CELL_FIELDS..., "hidden"}], "flags", "level", "units",
+    "min_count", "generation"}``: one cell per (period, column) of
+    ``ProfileSession.drift_over``; with ``min_count`` the row counts below it (and
+    those that would give them back) are null, ``hidden`` says so.
 
 Records of the charts and the static picture (lists of flat dicts, one per row or
 cell): :func:`entropy_records`, :func:`grid_records`, :func:`pair_records` (the
@@ -49,7 +56,10 @@ import pandas as pd
 
 from infoscope.estimators._checks import UNIT_OF_BASE
 from infoscope.estimators.significance import RELIABILITY_STATES
-from infoscope.frame.suppression import SMALL, complement_label, pair_hidden_kinds, suppressed_label
+from infoscope.frame.drift_over import DRIFT_OVER_COLUMNS
+from infoscope.frame.results import DRIFT_FLAGS, TEST_LEVEL
+from infoscope.frame.suppression import (SMALL, check_min_count, complement_label, pair_hidden_kinds,
+                                         suppressed_label, suppression_kinds)
 
 #: The units a view can show (the names of :data:`infoscope.estimators._checks.UNIT_OF_BASE`).
 UNITS = tuple(UNIT_OF_BASE.values())
@@ -350,6 +360,72 @@ DRIFT_CHANCE_FIELDS = ("psi_chance", "psi_chance_high", "q_value", "new_share")
 def drift_records(table: pd.DataFrame) -> list[dict]:
     """One record per column of a ``drift(reference)`` table (``DRIFT_FIELDS``, plus ``DRIFT_CHANCE_FIELDS``)."""
     return _row_records(table, DRIFT_FIELDS, "the drift table", extra=DRIFT_CHANCE_FIELDS)
+
+
+#: Fields of one cell of the drift-over-time strip (columns of ``drift_over()``).
+DRIFT_OVER_CELL_FIELDS = ("period", "column", "reference", "n", "n_reference", "psi", "psi_chance",
+                          "psi_chance_high", "kl", "js", "p_value", "q_value", "flag")
+
+
+def drift_over_record(table: pd.DataFrame, *, min_count=None, generation: int = 0) -> dict:
+    """The ``_drift_over`` part: a ``drift_over()`` table as periods, columns and cells.
+
+    With ``min_count``, the row counts of the (column x period) table, the
+    reference period's included, go through the one small-cell rule of the
+    exports (:func:`infoscope.frame.suppression.suppression_kinds`: counts below
+    ``min_count`` and the ones that would give them back through a column's
+    total); since the columns of one period often share its row count, a period
+    with a hidden count has every count hidden.  A hidden count is null in ``n``
+    or ``n_reference`` and the cell's ``hidden`` is ``"small"`` (its own count is
+    small) or ``"complement"``.  The divergences are shipped.
+    """
+    require(table, DRIFT_OVER_COLUMNS, "the drift_over table")
+    attrs = getattr(table, "attrs", None) or {}
+    mode = str(attrs.get("reference", "frame"))
+    columns = list(dict.fromkeys(str(c) for c in table["column"]))
+    labels = list(dict.fromkeys(str(p) for p in table["period"]))
+    starts = {str(p): t for p, t in zip(table["period"], table["start"])}
+    first = None
+    if mode == "first" and len(table):
+        first = str(table["reference"].iloc[0])
+        labels.insert(0, first)
+    cells = [{f: scalar(row[f]) for f in DRIFT_OVER_CELL_FIELDS} for row in table.to_dict(orient="records")]
+    for c in cells:
+        c["period"], c["column"], c["hidden"] = str(c["period"]), str(c["column"]), None
+    threshold = check_min_count(min_count)
+    if threshold:
+        at = {(c["column"], c["period"]): c for c in cells}
+        col_i = {c: i for i, c in enumerate(columns)}
+        per_i = {p: j for j, p in enumerate(labels)}
+        counts = np.zeros((len(columns), len(labels)))
+        for c in cells:
+            counts[col_i[c["column"]], per_i[c["period"]]] = c["n"] or 0
+            if first is not None:
+                counts[col_i[c["column"]], 0] = c["n_reference"] or 0
+        kinds = suppression_kinds(counts, threshold)
+        # the columns of one period often share its row count (no missing values), so a
+        # period with any hidden count hides every count of that period
+        gone = kinds.any(axis=0)
+        for c in cells:
+            i, j = col_i[c["column"]], per_i[c["period"]]
+            ref = c["reference"]
+            ref_gone = (0 < (c["n_reference"] or 0) < threshold) if mode == "frame" else \
+                bool(ref in per_i and gone[per_i[ref]])
+            if gone[j]:
+                c["n"] = None
+            if ref_gone:
+                c["n_reference"] = None
+            if gone[j] or ref_gone:
+                c["hidden"] = "small" if kinds[i, j] == SMALL else "complement"
+
+    def start_of(p):
+        t = starts.get(p)
+        return None if t is None or pd.isna(t) else pd.Timestamp(t).isoformat()
+    periods = [{"period": p, "start": start_of(p), "is_reference": p == first} for p in labels]
+    return {"time_column": scalar(attrs.get("time_column")), "every": scalar(attrs.get("every")),
+            "reference": mode, "periods": periods, "columns": columns, "cells": cells,
+            "flags": dict(DRIFT_FLAGS), "level": float(TEST_LEVEL), "units": dict(attrs.get("units", {})),
+            "min_count": threshold, "generation": int(generation)}
 
 
 # ------------------------------------------------------------------ selection and surprising rows

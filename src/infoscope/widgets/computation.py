@@ -8,7 +8,7 @@ from typing import Any
 
 from infoscope._warnings import collect_warnings
 from infoscope.frame.tables.draft import NESTED_BIN_COUNTS
-from infoscope.views.payload import TOP_PAIRS, draft_grid, draft_message, drift_data, view_data
+from infoscope.views.payload import TOP_PAIRS, draft_grid, draft_message, drift_data, drift_over_data, view_data
 
 log = logging.getLogger("infoscope.widgets")
 
@@ -63,16 +63,27 @@ class Computation:
                                selection_k=snap["traits"]["selection_k"],
                                surprise_model=snap["traits"]["surprise_model"],
                                surprise_n=snap["traits"]["surprise_n"])
-            if self._reference is not None:
+            if self._reference is not None or self._drift_over_spec is not None:
                 # the drift record depends on the session settings and the small-cell
                 # threshold only: a pair click or a new order does not redo its splits
                 key = (repr(sorted(snap["session"].items())), repr(sorted(snap["column_bins"].items())),
                        snap["min_count"] or None)
                 if key != self._drift_key:
-                    self._step(gen, 0.95, "Drift from the reference...")
-                    record = drift_data(s, self._reference, min_count=snap["min_count"] or None,
-                                        generation=gen)
-                    out["_drift"] = json.dumps(record, allow_nan=False)
+                    if self._reference is not None:
+                        self._step(gen, 0.9, "Drift from the reference...")
+                        record = drift_data(s, self._reference, min_count=snap["min_count"] or None,
+                                            generation=gen)
+                        out["_drift"] = json.dumps(record, allow_nan=False)
+                    if self._drift_over_spec is not None:
+                        self._step(gen, 0.95, "Drift over time...")
+                        try:
+                            over = drift_over_data(s, self._drift_over_spec, reference=self._reference,
+                                                   min_count=snap["min_count"] or None, generation=gen)
+                        except (KeyError, TypeError, ValueError) as exc:
+                            # a bad time column or period: said in the strip, the rest of the profile shows
+                            message = exc.args[0] if isinstance(exc, KeyError) and exc.args else str(exc)
+                            over = {"error": f"drift over time: {message}", "generation": gen}
+                        out["_drift_over"] = json.dumps(over, allow_nan=False)
                     self._drift_key = key
         notes = sorted({f"{w.category.__name__}: {w.message}" for w in caught})
         return out, notes

@@ -41,4 +41,4 @@ class Payload:
         with self._session_lock:
             return payload(self._session, self._view_values(), min_count=min_count, top_pairs=top_pairs,
                            view=self._view, generation=self._applied, status=self._status,
-                           reference=self._reference)
+                           reference=self._reference, drift_over=self._drift_over_setting)

@@ -38,6 +38,7 @@ import traitlets as t
 
 from infoscope._docs import fill_doc
 from infoscope.frame.keys import as_pandas
+from infoscope.views.payload import drift_over_spec
 from infoscope.widgets.computation import Computation
 from infoscope.widgets.payload import Payload
 from infoscope.widgets.picture import StaticPicture
@@ -71,7 +72,8 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
 
     def __init__(self, session, *, debounce: float = 0.15, threaded: bool = True,
                  live_picture: bool = True, preview_rows: int | None = PREVIEW_ROWS,
-                 picture_delay: float = 1.0, first_view: str = "auto", reference=None, drafts: str = "auto",
+                 picture_delay: float = 1.0, first_view: str = "auto", reference=None, drift_over=None,
+                 drafts: str = "auto",
                  sampled_start: bool = False, **kwargs):
         if not all(hasattr(session, m) for m in ("update", "entropy", "pairs", "names", "settings")):
             raise TypeError("the profile widgets need an infoscope ProfileSession "
@@ -110,6 +112,9 @@ class _ProfileBase(Scheduler, Computation, Payload, StaticPicture, ProfileTraits
         # a reference frame adds the drift view (drift of this frame from it), recomputed
         # when a setting that changes the encoding or the estimates changes
         self._reference = None if reference is None else as_pandas(reference, "reference")
+        # drift_over=(time_column, every[, against]) adds the strip of drift over time
+        self._drift_over_setting = drift_over
+        self._drift_over_spec = drift_over_spec(drift_over, has_reference=self._reference is not None)
         self._drift_key = None
         self._debounce = float(debounce)
         self._threaded = bool(threaded)
@@ -265,6 +270,17 @@ class ProfileWidget(_ProfileBase):
         exact numbers. The fine tables are counted once on a thread of their own
         after the first view. "auto": for frames of at least
         :data:`DRAFT_MIN_CELLS` cells.
+    reference : pandas.DataFrame or polars.DataFrame, optional
+        A reference frame: adds the drift panel (each column's PSI against chance,
+        its bins on click, the pairs whose dependence moved), recomputed when a
+        setting that changes the encoding or the estimates changes.
+    drift_over : str or tuple, optional
+        ``(time_column, every)`` such as ``("dispatched_at", "1W")``, or
+        ``(time_column, every, against)`` with ``against`` in ``"reference"``
+        (the default with a reference frame), ``"first"`` (the default without)
+        or ``"previous"``; a name alone means periods of ``"1W"``. Adds the strip
+        of drift over time to the drift panel (``session.drift_over``; the column
+        and the period are checked when it is computed).
     **traits
         Initial values of the public traits (``bins``, ``estimator``, ``target`` ...).
 

@@ -102,6 +102,9 @@ class ProfileTraits(anywidget.AnyWidget):
     #: JSON text: the drift record (``infoscope-drift``, docs/drift-json.md) of this frame against
     #: the widget's ``reference`` frame; "" without a reference (the drift view then stays hidden)
     _drift = t.Unicode("").tag(sync=True)
+    #: JSON text: drift over time (``views.serialize.drift_over_record``: one cell per column and
+    #: period of ``session.drift_over``) when the widget has ``drift_over=``; "" without it
+    _drift_over = t.Unicode("").tag(sync=True)
     #: dict: names, kinds, n_rows, sampled, choices of every control, version.
     _meta = t.Dict({}).tag(sync=True)
     #: dict: {state: "idle"|"computing"|"error", message, generation, progress, notes}.

@@ -58,7 +58,7 @@ function nameEl(name, { cls = "", max } = {}) {
 // src/memory.js
 var REFOCUS_MS = 4e3;
 function createMemory() {
-  return { focus: null, lostAt: -Infinity, scroll: /* @__PURE__ */ new Map(), cursor: null };
+  return { focus: null, lostAt: -Infinity, scroll: /* @__PURE__ */ new Map(), cursor: null, drift: null };
 }
 function track(memory, root) {
   const keyOf = (el) => el && el.closest ? el.closest("[data-keep]") : null;
@@ -480,6 +480,10 @@ function expectedWords(e) {
 }
 function count(v) {
   return v == null || !Number.isFinite(v) ? DASH : Math.round(v).toLocaleString("en-US");
+}
+function shareText(v) {
+  if (v == null || !Number.isFinite(v)) return DASH;
+  return v < 0.1 ? `${(v * 100).toFixed(1)}%` : pct(v);
 }
 function pct(v) {
   return v == null || !Number.isFinite(v) ? DASH : `${Math.round(v * 100)}%`;
@@ -1374,33 +1378,510 @@ function relevanceView(ctx) {
   return { el, draw };
 }
 
-// src/views/drift.js
+// src/driftdata.js
 var DRIFT_FINDINGS = /* @__PURE__ */ new Set(["major", "moderate"]);
+var PAIR_MOVED = /* @__PURE__ */ new Set(["stronger", "weaker"]);
+var DRIFT_SORTS = [
+  ["psi", "PSI"],
+  ["beyond", "PSI beyond chance"],
+  ["q", "q-value"],
+  ["name", "name"]
+];
+var DRIFT_SORT_KEYS = DRIFT_SORTS.map(([k]) => k);
+var finite = (v) => typeof v === "number" && Number.isFinite(v);
+function beyondChance(r) {
+  return r && finite(r.psi) && finite(r.psi_chance) ? r.psi - r.psi_chance : null;
+}
+var byName = (a, b) => String(a.column).localeCompare(String(b.column));
+function sortDriftRows(rows, key) {
+  const out = [...rows || []];
+  if (key === "name") return out.sort(byName);
+  const value = key === "beyond" ? beyondChance : key === "q" ? (r) => r.q_value : (r) => r.psi;
+  const sign = key === "q" ? 1 : -1;
+  return out.sort((a, b) => {
+    const va = value(a), vb = value(b);
+    const fa = finite(va), fb = finite(vb);
+    if (fa !== fb) return fa ? -1 : 1;
+    if (fa && va !== vb) return sign * (va - vb);
+    return byName(a, b);
+  });
+}
+function nextSortKey(key, press) {
+  const keys = DRIFT_SORT_KEYS, i = Math.max(0, keys.indexOf(key));
+  if (press === "ArrowRight" || press === "ArrowDown") return keys[(i + 1) % keys.length];
+  if (press === "ArrowLeft" || press === "ArrowUp") return keys[(i - 1 + keys.length) % keys.length];
+  if (press === "Home") return keys[0];
+  if (press === "End") return keys[keys.length - 1];
+  return null;
+}
+function binDetail(column) {
+  const bins = Array.isArray(column && column.bins) ? column.bins : [];
+  let shareMax = 0, contribMax = 0, shown = 0, hidden = 0;
+  for (const b of bins) {
+    for (const v of [b.reference_share, b.current_share]) if (finite(v)) shareMax = Math.max(shareMax, v);
+    if (finite(b.contribution)) {
+      contribMax = Math.max(contribMax, b.contribution);
+      shown += b.contribution;
+    }
+    if (b.hidden) hidden += 1;
+  }
+  return { bins, shareMax, contribMax, contributionShown: shown, hidden };
+}
+function topPairDrift(pairs, k = 10) {
+  const list = Array.isArray(pairs) ? pairs : [];
+  return { rows: list.slice(0, k), total: list.length, moved: list.filter((p) => PAIR_MOVED.has(p.flag)).length };
+}
+function stripLayout(over, order = []) {
+  const periods = Array.isArray(over && over.periods) ? over.periods : [];
+  const cells = Array.isArray(over && over.cells) ? over.cells : [];
+  const names = Array.isArray(over && over.columns) ? over.columns.map(String) : [];
+  const known = new Set(names);
+  const columns = [...order.map(String).filter((c) => known.has(c)), ...names.filter((c) => !order.map(String).includes(c))];
+  const at = /* @__PURE__ */ new Map();
+  for (const c of cells) at.set(`${c.column}\0${c.period}`, c);
+  const cell = (column, period) => at.get(`${column}\0${period}`);
+  return { periods, columns, cell };
+}
+function stripTone(c) {
+  if (!c) return "reference";
+  if (DRIFT_FINDINGS.has(c.flag)) return c.flag;
+  return c.flag ? "calm" : "empty";
+}
+function moveCursor([r, c], key, rows, cols) {
+  const clamp = (v, n) => Math.max(0, Math.min(n - 1, v));
+  if (key === "ArrowUp") return [clamp(r - 1, rows), c];
+  if (key === "ArrowDown") return [clamp(r + 1, rows), c];
+  if (key === "ArrowLeft") return [r, clamp(c - 1, cols)];
+  if (key === "ArrowRight") return [r, clamp(c + 1, cols)];
+  if (key === "Home") return [r, 0];
+  if (key === "End") return [r, Math.max(0, cols - 1)];
+  return null;
+}
+
+// src/views/driftdetail.js
+var HIDDEN_WORDS = {
+  small: (n) => `hidden: a count below ${n}`,
+  complement: () => "hidden: would give a small count back"
+};
+function driftDetail(ctx, rec, col, { onClose }) {
+  const { bins, shareMax, contribMax, contributionShown, hidden } = binDetail(col);
+  const settings = rec.settings || {};
+  const minCount = settings.min_count;
+  const pseudo = settings.pseudocount ?? 0.5;
+  const word = col.flag ? String(col.flag).replace(/_/g, " ") : "not compared";
+  const box = h("div", { class: "isc-ddetail", role: "region", "aria-label": `bins of ${iso(col.column)}`, "data-column": String(col.column) });
+  const close = h("button", { type: "button", class: "isc-btn isc-dclose", "data-keep": "drift-close", "aria-label": "close the bins (Escape)", onclick: onClose }, "Close");
+  box.append(h(
+    "div",
+    { class: "isc-dhead" },
+    h("span", { class: "isc-ptitle" }, "Bins of ", nameEl(col.column)),
+    h("span", { class: "isc-punit" }, `PSI ${amount(col.psi)} nats (chance ${amount(col.psi_chance)}, up to ${amount(col.psi_chance_high)}; beyond chance ${amount(beyondChance(col))}) · ${pWords("q", col.q_value)} · ${word}`),
+    close
+  ));
+  if (!bins.length) {
+    box.append(h("div", { class: "isc-empty" }, (rec.flags || {})[col.flag] || "This column was not compared: it has no bins."));
+    return box;
+  }
+  const sx = (v) => axisPct(v, niceMax(shareMax));
+  const cx = (v) => axisPct(v, niceMax(contribMax));
+  box.append(h(
+    "div",
+    { class: "isc-dbin isc-daxis", "aria-hidden": "true" },
+    h("span", { class: "isc-axislab" }, col.kind === "numeric" ? "bin" : "level"),
+    h("span", { class: "isc-axislab" }, "share of rows: reference / this frame"),
+    h("span", { class: "isc-axislab isc-dnum" }, "share: reference → now"),
+    h("span", { class: "isc-axislab" }, "contribution to PSI"),
+    h("span", { class: "isc-axislab isc-dnum" }, "nats")
+  ));
+  for (const b of bins) {
+    const why = b.hidden ? (HIDDEN_WORDS[b.hidden] || (() => "hidden"))(minCount) : null;
+    const shares = h("span", { class: "isc-dshares" });
+    for (const [side, cls] of [["reference_share", "isc-dref"], ["current_share", "isc-dcur"]]) {
+      const track2 = h("span", { class: "isc-dtrack" });
+      if (Number.isFinite(b[side])) track2.append(h("span", { class: `isc-dfill ${cls}`, style: { width: sx(b[side]) } }));
+      else if (b.hidden) track2.classList.add("isc-hid");
+      shares.append(track2);
+    }
+    const contrib = h("span", { class: "isc-dtrack isc-dctrack" });
+    if (Number.isFinite(b.contribution)) contrib.append(h("span", { class: "isc-dfill isc-dcon", style: { width: cx(b.contribution) } }));
+    else if (b.hidden) contrib.classList.add("isc-hid");
+    const sharesWords = b.hidden && !(Number.isFinite(b.reference_share) && Number.isFinite(b.current_share)) ? why : `${shareText(b.reference_share)} → ${shareText(b.current_share)}`;
+    const row = h(
+      "div",
+      {
+        class: "isc-dbin",
+        "data-label": String(b.label),
+        "data-hidden": b.hidden || "",
+        onmouseleave: () => ctx.tip.hide(),
+        onmousemove: (ev) => ctx.tip.show([
+          [nameEl(col.column), " · ", nameEl(b.label)],
+          `reference: ${b.reference == null ? "hidden" : `${count(b.reference)} rows`}, share ${shareText(b.reference_share)}`,
+          `this frame: ${b.current == null ? "hidden" : `${count(b.current)} rows`}, share ${shareText(b.current_share)}`,
+          `contribution to PSI ${b.contribution == null ? "hidden" : `${amount(b.contribution)} nats`} of ${amount(col.psi)}`,
+          why ? `▸ ${why}` : null
+        ].filter(Boolean), ev.clientX, ev.clientY)
+      },
+      h("span", { class: "isc-name" }, nameEl(b.label)),
+      shares,
+      h("span", { class: "isc-dnum" }, sharesWords),
+      contrib,
+      h("span", { class: "isc-dnum" }, b.contribution == null ? "—" : amount(b.contribution))
+    );
+    box.append(row);
+  }
+  const lines = [
+    h("span", null, h("span", { class: "isc-swatch isc-dref" }), "reference"),
+    h("span", null, h("span", { class: "isc-swatch isc-dcur" }), "this frame"),
+    h("span", null, h("span", { class: "isc-swatch isc-dcon" }), "contribution (a−e)·ln(a/e), nats; they sum to PSI"),
+    h("span", null, `shares smoothed with ${amount(pseudo)} per bin, as PSI reads them`)
+  ];
+  if (hidden) {
+    lines.push(h(
+      "span",
+      null,
+      h("span", { class: "isc-swatch isc-hid" }),
+      `${hidden} bin${hidden === 1 ? "" : "s"} hidden (counts below ${minCount} and the ones that would give them back); the shown contributions sum to ${amount(contributionShown)} of ${amount(col.psi)}`
+    ));
+  }
+  box.append(h("div", { class: "isc-legend" }, ...lines));
+  return box;
+}
+
+// src/views/driftpairs.js
+var SHOWN = 10;
+function pairDriftList(ctx, rec) {
+  const box = h("div", { class: "isc-dpairs", role: "region", "aria-label": "relationship drift" });
+  const unit = rec.units && rec.units.kl || ctx.unit();
+  box.append(h(
+    "div",
+    { class: "isc-dhead" },
+    h("span", { class: "isc-ptitle" }, "Relationships that moved"),
+    h("span", { class: "isc-punit" }, `change of mutual information, ${unit}: this frame minus the reference`)
+  ));
+  if (!Array.isArray(rec.pairs)) {
+    box.append(h("div", { class: "isc-empty" }, "Relationship drift was not computed for this record."));
+    return box;
+  }
+  const { rows, total, moved } = topPairDrift(rec.pairs, SHOWN);
+  if (!total) {
+    box.append(h("div", { class: "isc-empty" }, "Fewer than two comparable columns: no pairs to compare."));
+    return box;
+  }
+  const level = rec.level ?? 0.05;
+  if (!moved) {
+    box.append(h(
+      "div",
+      { class: "isc-note isc-dnone", "data-none-moved": "true" },
+      `No pair's dependence moved beyond chance: q ≥ ${num(level)} for all ${count(total)} pairs. The ${rows.length} with the smallest p-values:`
+    ));
+  }
+  let top = 0;
+  for (const p of rows) for (const v of [p.change, p.ci_low, p.ci_high, p.chance_low, p.chance_high]) if (Number.isFinite(v)) top = Math.max(top, Math.abs(v));
+  const half = top > 0 ? top * 1.05 : 1;
+  const pos = (v) => `${Math.max(0, Math.min(100, 50 + v / half * 50))}%`;
+  const span = (lo, hi, cls) => h("span", { class: cls, style: { left: pos(Math.min(lo, hi)), width: `calc(${pos(Math.max(lo, hi))} - ${pos(Math.min(lo, hi))})` } });
+  box.append(h(
+    "div",
+    { class: "isc-dprow isc-daxis", "aria-hidden": "true" },
+    h("span", { class: "isc-axislab" }, "pair"),
+    h("span", { class: "isc-axislab isc-dnum" }, "MI: reference → now"),
+    h("span", { class: "isc-axislab isc-dcentre" }, `−${num(half)}  ·  0  ·  +${num(half)}`),
+    h("span", { class: "isc-axislab isc-dnum" }, "change"),
+    h("span", { class: "isc-axislab" }, "flag")
+  ));
+  for (const p of rows) {
+    const hit = PAIR_MOVED.has(p.flag);
+    const track2 = h("span", { class: "isc-track isc-dctr" }, h("span", { class: "isc-dzero" }));
+    if (Number.isFinite(p.chance_low) && Number.isFinite(p.chance_high)) track2.append(span(p.chance_low, p.chance_high, "isc-chance"));
+    if (Number.isFinite(p.change)) {
+      const fill = span(0, p.change, "isc-fill");
+      fill.style.background = hit ? "var(--isc-warm)" : "var(--isc-bar-muted)";
+      track2.append(fill);
+    }
+    if (Number.isFinite(p.ci_low) && Number.isFinite(p.ci_high)) track2.append(span(p.ci_low, p.ci_high, "isc-whisk"));
+    const interval = Number.isFinite(p.ci_low) && Number.isFinite(p.ci_high) ? ` (interval ${amount(p.ci_low)} to ${amount(p.ci_high)})` : "";
+    const row = h(
+      "div",
+      {
+        class: "isc-dprow",
+        tabindex: 0,
+        "data-keep": `drift-pair:${p.a}\0${p.b}`,
+        "data-flag": p.flag || "",
+        "aria-label": `${iso(p.a)} and ${iso(p.b)}: MI ${amount(p.mi_reference)} to ${amount(p.mi)} ${unit}, change ${signed(p.change, 3)}${interval}, ${p.flag || "not tested"}`,
+        onfocus: () => tipOnFocus(row),
+        onblur: () => ctx.tip.hide(),
+        onmouseleave: () => ctx.tip.hide(),
+        onmousemove: (ev) => ctx.tip.show([
+          [nameEl(p.a), " × ", nameEl(p.b)],
+          `MI in the reference ${amount(p.mi_reference)} ${unit} (${count(p.n_reference)} rows), in this frame ${amount(p.mi)} ${unit} (${count(p.n)} rows)`,
+          `change ${signed(p.change, 3)} ${unit}${interval}`,
+          `random splits of the pooled rows give ${signed(p.change_chance, 3)} on average, 95% within ${amount(p.chance_low)} to ${amount(p.chance_high)}`,
+          `${pWords("p", p.p_value)}, ${pWords("q", p.q_value)}`,
+          hit ? `▸ the dependence is ${p.flag} than in the reference, beyond chance` : "▸ within what sampling gives"
+        ].filter(Boolean), ev.clientX, ev.clientY)
+      },
+      h("span", { class: "isc-name isc-dpair" }, nameEl(p.a), " × ", nameEl(p.b)),
+      h("span", { class: "isc-dnum" }, `${amount(p.mi_reference)} → ${amount(p.mi)}`),
+      track2,
+      h("span", { class: "isc-dnum" }, signed(p.change, 3)),
+      h("span", { class: "isc-notes" }, p.flag || "—")
+    );
+    box.append(row);
+  }
+  if (total > rows.length) box.append(h("div", { class: "isc-note" }, `${count(total - rows.length)} more pairs changed less (in the record).`));
+  return box;
+}
+
+// src/views/driftstrip.js
+var AGAINST = { first: "the first period", previous: "the period before", frame: "the reference frame" };
+function driftStrip(ctx, over, order, mem) {
+  const { periods, columns, cell } = stripLayout(over, order);
+  const box = h("div", { class: "isc-dstrip", role: "region", "aria-label": "drift over time" });
+  if (over.error) {
+    box.append(
+      h("div", { class: "isc-dhead" }, h("span", { class: "isc-ptitle" }, "Drift over time")),
+      h("div", { class: "isc-error isc-dstrip-error", role: "status" }, String(over.error))
+    );
+    return box;
+  }
+  const against = AGAINST[over.reference] || String(over.reference || "");
+  box.append(h(
+    "div",
+    { class: "isc-dhead" },
+    h("span", { class: "isc-ptitle" }, "Drift over time"),
+    h("span", { class: "isc-punit" }, "periods of ", nameEl(over.time_column), ` (every ${over.every}), each against ${against}`)
+  ));
+  if (!periods.length || !columns.length) {
+    box.append(h("div", { class: "isc-empty" }, "No periods to show."));
+    return box;
+  }
+  let [ri, ci] = [0, 0];
+  if (mem.cursor) {
+    const r = columns.indexOf(String(mem.cursor[0])), c = periods.findIndex((p) => p.period === mem.cursor[1]);
+    if (r >= 0 && c >= 0) [ri, ci] = [r, c];
+  }
+  const base = uid("dstrip");
+  const width = cellWidth(periods.length);
+  const scroller = h("div", { class: "isc-dscroll", "data-keep-scroll": "drift-strip" });
+  const grid = h("div", {
+    class: "isc-dgrid",
+    role: "grid",
+    tabindex: 0,
+    "data-keep": "drift-strip",
+    "aria-label": `drift of ${columns.length} columns over ${periods.length} periods; arrow keys move between cells`,
+    style: { gridTemplateColumns: `minmax(6em,10em) repeat(${periods.length}, ${width}px)` }
+  });
+  grid.style.setProperty("--isc-dcell-w", `${width}px`);
+  const head = [h("span", { class: "isc-axislab", role: "columnheader" }, "column")];
+  const every = Math.max(1, Math.ceil(38 / width));
+  periods.forEach((p, c) => head.push(h(
+    "span",
+    { class: "isc-dper", role: "columnheader", title: p.period, "aria-label": p.period },
+    c % every === 0 ? shortStart(p) : ""
+  )));
+  grid.append(h("div", { class: "isc-drowh", role: "row", style: { display: "contents" } }, ...head));
+  const words = (column, p) => {
+    const c = cell(column, p.period);
+    if (p.is_reference) return [[nameEl(column), ` · ${p.period}`], "the reference period: the others are compared with it"];
+    if (!c) return [[nameEl(column), ` · ${p.period}`], "not compared"];
+    const lines = [
+      [nameEl(column), ` · ${p.period}`],
+      c.reference && c.reference !== "frame" ? ["against ", c.reference] : "against the reference frame",
+      `rows ${c.n == null ? c.hidden ? "hidden (small)" : "—" : count(c.n)} (reference ${c.n_reference == null ? c.hidden ? "hidden" : "—" : count(c.n_reference)})`
+    ];
+    if (!c.flag) lines.push("no rows in this period: nothing compared");
+    else {
+      lines.push(`PSI ${amount(c.psi)} nats; sampling alone gives ${amount(c.psi_chance)}, up to ${amount(c.psi_chance_high)}`);
+      lines.push(`${pWords("p", c.p_value)}, ${pWords("q", c.q_value)} (within the period)`);
+      lines.push(`▸ ${(over.flags || {})[c.flag] || String(c.flag).replace(/_/g, " ")}`);
+    }
+    return lines;
+  };
+  const cellsEl = [];
+  columns.forEach((column, r) => {
+    const kids = [h("span", { class: "isc-name", role: "rowheader" }, nameEl(column))];
+    const row = [];
+    periods.forEach((p, c) => {
+      const tone = p.is_reference ? "reference" : stripTone(cell(column, p.period));
+      const c0 = cell(column, p.period);
+      const id = `${base}-${r}-${c}`;
+      const el = h("span", {
+        id,
+        role: "gridcell",
+        class: `isc-dcell isc-d-${tone}`,
+        "data-tone": tone,
+        "data-column": String(column),
+        "data-period": p.period,
+        "aria-label": `${iso(column)}, ${p.period}: ${tone === "reference" ? "reference period" : c0 && c0.flag ? `PSI ${amount(c0.psi)} nats, ${String(c0.flag).replace(/_/g, " ")}` : "no rows"}`,
+        onmousemove: (ev) => ctx.tip.show(words(column, p), ev.clientX, ev.clientY),
+        onmouseleave: () => ctx.tip.hide(),
+        onclick: () => {
+          ri = r;
+          ci = c;
+          place(true);
+          grid.focus({ preventScroll: true });
+        }
+      });
+      row.push(el);
+      kids.push(el);
+    });
+    cellsEl.push(row);
+    grid.append(h("div", { role: "row", style: { display: "contents" } }, ...kids));
+  });
+  const place = (showTip) => {
+    for (const row of cellsEl) for (const el2 of row) el2.classList.remove("isc-dcur-cell");
+    const el = cellsEl[ri][ci];
+    el.classList.add("isc-dcur-cell");
+    grid.setAttribute("aria-activedescendant", el.id);
+    mem.cursor = [columns[ri], periods[ci].period];
+    grid.dataset.cursor = JSON.stringify(mem.cursor);
+    if (showTip) {
+      const b = el.getBoundingClientRect();
+      ctx.tip.show(words(columns[ri], periods[ci]), b.right, b.bottom);
+    }
+  };
+  grid.addEventListener("keydown", (ev) => {
+    const next = moveCursor([ri, ci], ev.key, columns.length, periods.length);
+    if (!next) return;
+    ev.preventDefault();
+    [ri, ci] = next;
+    place(true);
+    cellsEl[ri][ci].scrollIntoView({ block: "nearest", inline: "nearest" });
+  });
+  grid.addEventListener("focus", () => place(true));
+  grid.addEventListener("blur", () => ctx.tip.hide());
+  scroller.append(grid);
+  box.append(scroller);
+  place(false);
+  const sw = (tone) => h("span", { class: `isc-swatch isc-dcell isc-d-${tone}` });
+  const level = over.level ?? 0.05;
+  box.append(h(
+    "div",
+    { class: "isc-legend" },
+    h("span", null, sw("major"), "major: q < ", num(level), ", PSI beyond chance ≥ 0.25"),
+    h("span", null, sw("moderate"), "moderate: q < ", num(level), ", beyond chance ≥ 0.10"),
+    h("span", null, sw("calm"), "compared, not a finding"),
+    h("span", null, sw("empty"), "no rows in the period"),
+    over.reference === "first" ? h("span", null, sw("reference"), "the reference period") : null,
+    over.min_count ? h("span", null, `row counts below ${over.min_count} hidden`) : null
+  ));
+  return box;
+}
+function cellWidth(n) {
+  return n <= 12 ? 34 : n <= 24 ? 22 : 16;
+}
+function shortStart(p) {
+  const s = String(p.start || p.period);
+  return /^\d{4}-\d{2}-\d{2}/.test(s) ? s.slice(5, 10) : s;
+}
+
+// src/views/drift.js
+function driftMemory(ctx) {
+  const m = ctx.memory || (ctx.memory = {});
+  if (!m.drift) m.drift = { sort: "psi", open: null, cursor: null };
+  return m.drift;
+}
 function driftView(ctx) {
+  const mem = driftMemory(ctx);
   const el = h("section", { class: "isc-panel isc-drift", "aria-label": "drift from the reference" });
   const sub = h("span", { class: "isc-punit" });
+  const sortBox = h("div", { class: "isc-dsort", role: "radiogroup", "aria-label": "sort the drift bars by" });
   const body = h("div", { class: "isc-bars" });
+  const detail = h("div", { class: "isc-ddetail-slot" });
   const legend = h("div", { class: "isc-legend" });
-  el.append(h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Drift"), sub), body, legend);
+  const notes = h("div", { class: "isc-dnotes" });
+  const pairs = h("div", { class: "isc-dpairs-slot" });
+  const strip = h("div", { class: "isc-dstrip-slot" });
+  el.append(
+    h("div", { class: "isc-phead" }, h("span", { class: "isc-ptitle" }, "Drift"), sub, sortBox),
+    body,
+    legend,
+    detail,
+    notes,
+    pairs,
+    strip
+  );
+  const rowOf = (column) => [...body.querySelectorAll(".isc-erow")].find((r) => r.dataset.column === String(column));
+  const setOpen = (column, { focusRow = false } = {}) => {
+    const was = mem.open;
+    mem.open = column;
+    draw();
+    if (focusRow && (column ?? was) != null) {
+      const r = rowOf(column ?? was);
+      if (r) r.focus({ preventScroll: true });
+    }
+  };
+  el.addEventListener("keydown", (ev) => {
+    if (ev.key === "Escape" && mem.open != null) {
+      ev.preventDefault();
+      ev.stopPropagation();
+      setOpen(null, { focusRow: true });
+    }
+  });
   function draw() {
-    keepFocus(body, drawRows);
+    keepFocus(el, drawAll);
   }
-  function drawRows() {
-    clear(body);
-    clear(sub);
-    clear(legend);
+  function drawSort(rec) {
+    clear(sortBox);
+    sortBox.style.display = rec ? "" : "none";
+    sortBox.append(h("span", { class: "isc-lab", "aria-hidden": "true" }, "sort"));
+    for (const [key, label] of DRIFT_SORTS) {
+      const on = mem.sort === key;
+      sortBox.append(h("button", {
+        type: "button",
+        class: "isc-dsortbtn",
+        role: "radio",
+        "aria-checked": String(on),
+        tabindex: on ? 0 : -1,
+        "data-sort": key,
+        "data-keep": `drift-sort:${key}`,
+        onclick: () => {
+          mem.sort = key;
+          draw();
+        },
+        onkeydown: (ev) => {
+          const next = nextSortKey(mem.sort, ev.key);
+          if (!next) return;
+          ev.preventDefault();
+          mem.sort = next;
+          draw();
+          const b = sortBox.querySelector(`[data-sort="${next}"]`);
+          if (b) b.focus({ preventScroll: true });
+        }
+      }, label));
+    }
+  }
+  function drawAll() {
+    for (const part of [sub, body, detail, legend, notes, pairs, strip]) clear(part);
     const rec = parseJSON(ctx.get("_drift"));
-    el.style.display = rec ? "" : "none";
-    if (!rec || !Array.isArray(rec.columns)) return;
+    const over = parseJSON(ctx.get("_drift_over"));
+    const columns = rec && Array.isArray(rec.columns) ? rec.columns : null;
+    el.style.display = columns || over ? "" : "none";
+    drawSort(columns);
+    let order = [];
+    if (columns) {
+      const rows = sortDriftRows(columns, mem.sort);
+      order = rows.map((r) => r.column);
+      drawBars(rec, rows);
+      if (mem.open != null) {
+        const col = columns.find((c) => String(c.column) === String(mem.open));
+        if (col) detail.append(driftDetail(ctx, rec, col, { onClose: () => setOpen(null, { focusRow: true }) }));
+        else mem.open = null;
+      }
+      pairs.append(pairDriftList(ctx, rec));
+    }
+    if (over) strip.append(driftStrip(ctx, over, order, mem));
+  }
+  function drawBars(rec, rows) {
     const ref = rec.reference || {}, cur = rec.current || {};
     sub.append(`PSI in nats, this frame (${count(cur.rows)} rows) against the reference (${count(ref.rows)} rows)`);
     const flags = rec.flags || {};
     legend.append(
       h("span", null, h("span", { class: "isc-swatch", style: { background: "var(--isc-warm)" } }), "moved beyond chance (moderate or major)"),
       h("span", null, h("span", { class: "isc-swatch", style: { background: "var(--isc-bar-muted)" } }), "within what sampling gives"),
-      h("span", null, h("span", { class: "isc-swatch isc-swatch-chance" }), "band: 95% of random splits of the pooled rows")
+      h("span", null, h("span", { class: "isc-swatch isc-swatch-chance" }), "band: 95% of random splits of the pooled rows"),
+      h("span", null, "click a row, or Enter, for its bins; Escape closes")
     );
-    const rows = [...rec.columns].sort((a, b) => (b.psi ?? -1) - (a.psi ?? -1));
     let top = 0;
     for (const r of rows) for (const v of [r.psi, r.psi_chance_high]) if (Number.isFinite(v)) top = Math.max(top, v);
     const max = niceMax(top);
@@ -1417,19 +1898,30 @@ function driftView(ctx) {
     ));
     for (const r of rows) {
       const moved = DRIFT_FINDINGS.has(r.flag);
+      const open = mem.open != null && String(mem.open) === String(r.column);
       const track2 = h("span", { class: "isc-track" });
       if (Number.isFinite(r.psi_chance_high)) track2.append(h("span", { class: "isc-chance", style: { width: x(r.psi_chance_high) } }));
       if (Number.isFinite(r.psi)) track2.append(h("span", { class: "isc-fill", style: { width: x(r.psi), background: moved ? "var(--isc-warm)" : "var(--isc-bar-muted)" } }));
       const word = r.flag ? String(r.flag).replace(/_/g, " ") : "not compared";
+      const toggle = () => setOpen(open ? null : r.column);
       const rowEl = h(
         "div",
         {
-          class: "isc-erow",
-          style: { cursor: "default" },
+          class: "isc-erow isc-drow",
+          role: "button",
           tabindex: 0,
+          "aria-expanded": String(open),
+          "aria-pressed": String(open),
           "data-keep": `drift:${r.column}`,
           "data-flag": r.flag || "",
           "aria-label": `${iso(r.column)}: PSI ${amount(r.psi)} nats, chance up to ${amount(r.psi_chance_high)}, ${word}`,
+          onclick: toggle,
+          onkeydown: (ev) => {
+            if (ev.key === "Enter" || ev.key === " ") {
+              ev.preventDefault();
+              toggle();
+            }
+          },
           onfocus: () => tipOnFocus(rowEl),
           onblur: () => ctx.tip.hide(),
           onmouseleave: () => ctx.tip.hide(),
@@ -1437,6 +1929,7 @@ function driftView(ctx) {
             [nameEl(r.column)],
             `${r.kind || ""}, K = ${count(r.k)} shared levels · n = ${count(r.n)} (reference ${count(r.n_reference)})`,
             `PSI ${amount(r.psi)} nats; sampling alone gives ${amount(r.psi_chance)} on average, up to ${amount(r.psi_chance_high)}`,
+            `beyond chance ${amount(beyondChance(r))} nats`,
             `KL ${amount(r.kl)} · JS ${amount(r.js)} ${rec.units && rec.units.kl || ""}`,
             `${pWords("p", r.p_value)}, ${pWords("q", r.q_value)}`,
             Number.isFinite(r.new_share) && r.new_share > 0 ? `${pct(r.new_share)} of rows hold values the reference never had` : null,
@@ -1448,12 +1941,13 @@ function driftView(ctx) {
         h("span", { class: "isc-val" }, amount(r.psi)),
         h("span", { class: "isc-notes" }, word)
       );
+      rowEl.dataset.column = String(r.column);
       body.append(rowEl);
     }
     const missing = rec.summary && rec.summary.missing_columns || [];
     const extra = rec.summary && rec.summary.extra_columns || [];
     if (missing.length || extra.length) {
-      body.append(h(
+      notes.append(h(
         "div",
         { class: "isc-note" },
         missing.length ? ["only in the reference: ", ...missing.flatMap((c, i) => [i ? ", " : "", nameEl(c)])] : null,
@@ -1846,6 +2340,7 @@ function render({ model, el }, memory = createMemory()) {
     _pair: ["pair"],
     _relevance: ["relevance"],
     _drift: ["drift"],
+    _drift_over: ["drift"],
     _status: ["status", "caution"],
     _meta: ["caution", "sub"],
     alpha_fdr: ["grid", "relevance"],
