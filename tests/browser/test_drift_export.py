@@ -46,6 +46,7 @@ def test_drift_detail_and_strip_work_offline(exported, served, web, artifacts):
     record, over = state["_drift"], state["_drift_over"]
     assert record["settings"]["min_count"] == MIN_COUNT and over["min_count"] == MIN_COUNT
     url = served.put("/export/drift.html", exported["path"].read_bytes())
+    seen = len(served.requests)  # the server is shared by the session's tests
     page = web.page
     web.goto(url)
     page.wait_for_selector("body[data-rendered='yes']", timeout=20_000)
@@ -72,7 +73,7 @@ def test_drift_detail_and_strip_work_offline(exported, served, web, artifacts):
     panel.screenshot(path=str(artifacts / "drift-export.png"))
     assert web.outside_requests == []
     assert web.page_errors == [] and web.console_errors == []
-    assert [r for r in served.requests if r.startswith("/export/")] == ["/export/drift.html"]
+    assert [r for r in served.requests[seen:] if r.startswith("/export/")] == ["/export/drift.html"]
 
 
 def test_hidden_counts_are_not_in_the_file(exported):
