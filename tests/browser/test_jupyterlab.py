@@ -7,6 +7,7 @@ session hold the new value. Outside requests are aborted and counted.
 """
 from __future__ import annotations
 
+import json
 import shutil
 import sys
 from pathlib import Path
@@ -149,4 +150,63 @@ def test_focus_and_grid_cursor_survive_a_kernel_side_update(lab, web):
     assert moved[0] == cursor[0], (cursor, moved)
     after = page.evaluate("document.querySelector('.jp-WindowedPanel-outer, .jp-Notebook').scrollTop")
     assert abs(after - scroll) < 40, f"the notebook scrolled from {scroll} to {after}"
+    assert web.page_errors == [], web.page_errors
+
+
+DRIFT_CELLS = [
+    "from infoscope.datasets import make_deliveries\n"
+    "reference = make_deliveries(800, seed=3)\n"
+    "batch = make_deliveries(800, seed=4)\n"
+    "batch['distance_km'] = batch['distance_km'] * 1.6  # a planted drift",
+    "drift_profile = batch.info_profile(reference=reference, drift_over=('dispatched_at', '4W'), n_boot=0)\n"
+    "drift_profile",
+]
+
+
+def test_drift_panel_shows_for_a_profile_with_a_reference(lab, web, artifacts):
+    # batch.info_profile(reference=ref, drift_over=...) in a real notebook: the drift panel,
+    # Enter on a row opens its bins (the key stays in the widget), the strip is drawn, and a
+    # kernel-side change redraws the panel keeping the sort and the open column
+    import nbformat
+
+    server, _, root = lab
+    nb = nbformat.v4.new_notebook(cells=[nbformat.v4.new_code_cell(c) for c in DRIFT_CELLS])
+    nb.metadata["kernelspec"] = {"name": "python3", "display_name": "Python 3", "language": "python"}
+    nbformat.write(nb, str(root / "drift_panel.ipynb"))
+    page = web.page
+    page.set_default_timeout(120_000)
+    open_notebook_and_run_all(page, server, "drift_panel.ipynb")
+    row = page.locator(".isc-root .isc-drift .isc-drow[data-column='distance_km']").first
+    row.wait_for(state="visible", timeout=120_000)
+    assert row.get_attribute("data-flag") in ("major", "moderate")
+    cells = int(kernel_exec(page, "import json\nd = json.loads(drift_profile._drift_over)\n"
+                                  "print(len(d['columns']) * len(d['periods']))").strip())
+    assert page.locator(".isc-root .isc-dstrip .isc-dgrid .isc-dcell").count() == cells
+    row.scroll_into_view_if_needed()
+    row.click()  # opens the bins; the notebook goes to command mode
+    page.locator(".isc-root .isc-ddetail[data-column='distance_km']").wait_for(state="visible")
+    page.keyboard.press("Escape")
+    page.wait_for_function("document.querySelectorAll('.isc-root .isc-ddetail').length === 0")
+    before = page.evaluate(NOTEBOOK_STATE)
+    row.focus()
+    page.keyboard.press("Enter")  # in command mode Enter would edit the cell: it must stay in the widget
+    page.locator(".isc-root .isc-ddetail[data-column='distance_km']").wait_for(state="visible")
+    after = page.evaluate(NOTEBOOK_STATE)
+    assert after["mode"] == before["mode"] == "command" and after["active"] == before["active"], (before, after)
+    # sort by name with the keyboard, then new numbers from the kernel: sort and detail stay
+    page.locator(".isc-root .isc-dsortbtn[aria-checked=true]").first.focus()
+    page.keyboard.press("End")
+    assert page.get_attribute(".isc-root .isc-dsortbtn[aria-checked=true]", "data-sort") == "name"
+    generation = json.loads(kernel_exec(page, "print(json.loads(drift_profile._drift)['generation'])"))
+    kernel_exec(page, "drift_profile.bins = 6\ndrift_profile.wait(120)", timeout_ms=150_000)
+    seen = json.loads(kernel_exec(page, "print(json.loads(drift_profile._drift)['generation'])"))
+    assert seen > generation
+    page.wait_for_function("(g) => { const r = document.querySelector('.isc-root .isc-drift'); "
+                           "return r && r.dataset.generation === String(g); }", arg=seen, timeout=60_000)
+    assert page.get_attribute(".isc-root .isc-dsortbtn[aria-checked=true]", "data-sort") == "name"
+    assert page.locator(".isc-root .isc-ddetail[data-column='distance_km']").count() == 1
+    names = page.eval_on_selector_all(".isc-root .isc-drift .isc-drow", "rs => rs.map(r => r.dataset.column)")
+    assert names == page.evaluate("(n) => [...n].sort((a, b) => a.localeCompare(b))", names)
+    page.locator(".isc-root .isc-drift").first.screenshot(path=str(artifacts / "jupyterlab-drift.png"))
+    assert web.outside_requests == []
     assert web.page_errors == [], web.page_errors

@@ -87,6 +87,7 @@ export function driftView(ctx) {
     const over = parseJSON(ctx.get("_drift_over"));
     const columns = rec && Array.isArray(rec.columns) ? rec.columns : null;
     el.style.display = columns || over ? "" : "none";
+    el.dataset.generation = rec && rec.generation != null ? String(rec.generation) : "";
     drawSort(columns);
     let order = [];
     if (columns) {

@@ -34,7 +34,7 @@ export function driftDetail(ctx, rec, col, { onClose }) {
   box.append(h("div", { class: "isc-dbin isc-daxis", "aria-hidden": "true" },
     h("span", { class: "isc-axislab" }, col.kind === "numeric" ? "bin" : "level"),
     h("span", { class: "isc-axislab" }, "share of rows: reference / this frame"),
-    h("span", { class: "isc-axislab isc-dnum" }, "share: reference \u2192 now"),
+    h("span", { class: "isc-axislab isc-dnum" }, "shares"),
     h("span", { class: "isc-axislab" }, "contribution to PSI"),
     h("span", { class: "isc-axislab isc-dnum" }, "nats")));
   for (const b of bins) {

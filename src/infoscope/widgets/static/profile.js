@@ -1489,7 +1489,7 @@ function driftDetail(ctx, rec, col, { onClose }) {
     { class: "isc-dbin isc-daxis", "aria-hidden": "true" },
     h("span", { class: "isc-axislab" }, col.kind === "numeric" ? "bin" : "level"),
     h("span", { class: "isc-axislab" }, "share of rows: reference / this frame"),
-    h("span", { class: "isc-axislab isc-dnum" }, "share: reference → now"),
+    h("span", { class: "isc-axislab isc-dnum" }, "shares"),
     h("span", { class: "isc-axislab" }, "contribution to PSI"),
     h("span", { class: "isc-axislab isc-dnum" }, "nats")
   ));
@@ -1857,6 +1857,7 @@ function driftView(ctx) {
     const over = parseJSON(ctx.get("_drift_over"));
     const columns = rec && Array.isArray(rec.columns) ? rec.columns : null;
     el.style.display = columns || over ? "" : "none";
+    el.dataset.generation = rec && rec.generation != null ? String(rec.generation) : "";
     drawSort(columns);
     let order = [];
     if (columns) {
